@@ -1,0 +1,41 @@
+// Delay corners: which concrete delay every gate gets in one run.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "sim/netlist.hpp"
+
+namespace settle {
+
+/// A named corner. Names print and parse back exactly:
+/// "min", "max", "typ", "random:S" (= "random:S#0"), "random:S#i",
+/// "gauss:S#i", "extremes#k", "exhaustive#k".
+struct corner {
+  enum class kind : std::uint8_t { min, typ, max, random, gauss, extremes, exhaustive } what = kind::typ;
+  std::uint64_t seed = 0;
+  std::uint64_t index = 0;
+  double spread = 1.0;  ///< ranges scaled about typ by this factor (1 = as written)
+
+  std::string name() const;
+};
+
+/// Parses a corner name; on failure returns nullopt and sets *error.
+std::optional<corner> parse_corner(std::string_view text, std::string* error);
+
+/// Concrete delays per gate, one table per run.
+struct delay_table {
+  std::vector<time_fs> rise, fall;
+};
+
+/// Fills `out` with the delays corner `c` gives every gate of `n`. Depends on
+/// (corner, gate index) alone, so any thread computes the same table.
+void fill_delays(const netlist& n, const corner& c, delay_table& out);
+
+/// The range of a gate edge after scaling about typ by `spread` (never below 0).
+delay_range scaled(const delay_range& r, double spread);
+
+}  // namespace settle

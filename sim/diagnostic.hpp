@@ -1,0 +1,30 @@
+// Diagnostics with file:line:col, the offending source line and a caret.
+#pragma once
+
+#include <cstdint>
+#include <string>
+#include <vector>
+
+namespace settle {
+
+struct diagnostic {
+  enum class level : std::uint8_t { error, warning, note } severity = level::error;
+  std::string file;
+  std::uint32_t line = 0, col = 0;  ///< 1-based; 0 when there is no position
+  std::string message;
+  std::string source_line;          ///< the text of that line, without its newline
+};
+
+/// Diagnostics collected while loading a design.
+struct diagnostics {
+  std::vector<diagnostic> items;
+
+  void add(diagnostic d) { items.push_back(std::move(d)); }
+  bool has_errors() const;
+  std::size_t error_count() const;
+};
+
+/// "file:line:col: error: message\n<line>\n    ^\n" (the caret under col).
+std::string format_diagnostic(const diagnostic& d);
+
+}  // namespace settle

@@ -1,0 +1,115 @@
+// The elaborated, flat, immutable netlist shared read-only by every run.
+#pragma once
+
+#include <cstdint>
+#include <string>
+#include <unordered_map>
+#include <vector>
+
+#include "sim/logic.hpp"
+
+namespace settle {
+
+using net_id = std::uint32_t;
+using gate_id = std::uint32_t;
+inline constexpr std::uint32_t no_id = UINT32_MAX;
+
+/// Gate kinds. `expr` is a complex gate (one delay, any ~ & | ^ expression);
+/// `celem` is the Muller C-element; `gc` the generalised C-element whose set
+/// and reset functions are programs.
+enum class gate_kind : std::uint8_t {
+  buf, inv, and_, nand, or_, nor, xor_, xnor, mux, maj, celem, gc, expr,
+};
+inline constexpr int gate_kind_count = 13;
+
+/// The name users write for a kind: "buf", "not", "and", ... "gc", "expr".
+const char* kind_name(gate_kind k);
+
+/// True for kinds whose next output depends on their present output.
+constexpr bool holds_state(gate_kind k) { return k == gate_kind::celem || k == gate_kind::gc; }
+
+/// A delay range; typ lies in [min, max].
+struct delay_range {
+  time_fs min = 0, typ = 0, max = 0;
+  friend bool operator==(const delay_range&, const delay_range&) = default;
+};
+
+/// A gate's delays: 0->1 output changes use `rise`, 1->0 use `fall`, any change
+/// to or from x the smaller of the two.
+struct gate_delay {
+  delay_range rise, fall;
+  bool transport = false;  ///< transport gates propagate every change
+};
+
+/// Programs of complex gates are postfix code over the gate's fan-in list.
+/// One 32-bit word per instruction: the opcode in the low byte, the operand
+/// (an index into the gate's fan-in) above it.
+enum class op : std::uint8_t { input, const0, const1, inv, and2, or2, xor2 };
+constexpr std::uint32_t encode(op o, std::uint32_t arg = 0) { return static_cast<std::uint32_t>(o) | (arg << 8); }
+constexpr op opcode(std::uint32_t w) { return static_cast<op>(w & 0xff); }
+constexpr std::uint32_t operand(std::uint32_t w) { return w >> 8; }
+
+/// A block instance (or the top level, scope 0) for waveform hierarchy.
+struct scope {
+  std::string name;        ///< instance name; "" for the top
+  std::string block;       ///< block definition name; "" for the top
+  std::uint32_t parent = no_id;
+};
+
+/// A name visible in a scope. Port names of an instance alias the parent's net.
+struct net_alias {
+  std::uint32_t scope = 0;
+  std::string local;       ///< the name inside its scope ("q_n")
+  net_id net = 0;
+};
+
+/// Where something was written, for diagnostics after elaboration.
+struct source_loc {
+  std::uint32_t line = 0, col = 0;
+};
+
+/// The flat netlist. Nets 0 and 1 are the constants 0 and 1 (hidden: not
+/// counted, not dumped). Every other net is driven by exactly one input or gate.
+struct netlist {
+  // ---- nets
+  std::vector<std::string> net_name;   ///< full hierarchical name: "deb.x" or "clean"
+  std::vector<gate_id> driver;         ///< gate driving the net; no_id for inputs and constants
+  std::vector<logic> init;             ///< initial value (x unless `init` says otherwise)
+  std::vector<std::uint32_t> fanout_begin;  ///< CSR over nets: size nets+1
+  std::vector<gate_id> fanout;              ///< gates reading each net (each gate once per net)
+  std::vector<net_id> inputs, outputs;      ///< in declaration order
+  std::vector<net_alias> aliases;           ///< every (scope, name) -> net, ports included
+  std::vector<scope> scopes;                ///< scopes[0] is the top level
+  std::vector<std::uint32_t> net_scope;     ///< scope where each net was declared
+  std::unordered_map<std::string, net_id> by_name;  ///< full names and aliases ("deb.q")
+
+  // ---- gates (structure of arrays)
+  std::vector<gate_kind> kind;
+  std::vector<net_id> gate_out;
+  std::vector<std::uint32_t> fanin_begin;  ///< CSR over gates: size gates+1
+  std::vector<net_id> fanin;
+  std::vector<std::uint32_t> code_begin;   ///< CSR over gates: programs of expr/gc gates
+  std::vector<std::uint32_t> code;
+  std::vector<gate_delay> delay;
+  std::vector<source_loc> gate_loc;        ///< where each gate was written
+
+  // ---- what the source held, for `check`
+  std::uint32_t blocks = 0;     ///< block definitions
+  std::uint32_t instances = 0;  ///< block instances placed (all levels)
+
+  static constexpr net_id const0 = 0, const1 = 1;
+
+  std::size_t net_count() const { return net_name.size(); }
+  std::size_t gate_count() const { return kind.size(); }
+  /// A gate's name is its output net's name.
+  const std::string& gate_name(gate_id g) const { return net_name[gate_out[g]]; }
+  /// The net for a full or hierarchical name, or no_id.
+  net_id find(const std::string& name) const {
+    auto it = by_name.find(name);
+    return it == by_name.end() ? no_id : it->second;
+  }
+  /// Largest max delay over all gates and edges (0 for an empty netlist).
+  time_fs largest_max_delay() const;
+};
+
+}  // namespace settle
