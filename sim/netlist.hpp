@@ -114,7 +114,7 @@ struct netlist {
   /// Creates the two constant nets (ids 0 and 1) and the top scope; call first.
   void begin();
   /// Adds a net with its full name in `scope`; registers the name. Returns its id.
-  net_id add_net(std::string full_name, std::uint32_t scope);
+  net_id add_net(std::string full_name, std::uint32_t scope_index);
   /// Adds a gate (fan-in, program) and records it as the driver of `out`.
   gate_id add_gate(gate_kind k, net_id out, const std::vector<net_id>& fanin,
                    const std::vector<std::uint32_t>& program, const gate_delay& d, source_loc loc = {});
