@@ -1,0 +1,59 @@
+// The subcommand table of the settle command line and the helpers every command shares.
+#pragma once
+
+#include <optional>
+#include <vector>
+#include <string>
+#include <string_view>
+
+#include "parser/load.hpp"
+
+namespace CLI {
+class App;
+}
+
+namespace settle::cli {
+
+/// Process exit statuses (a public contract).
+enum class exit_status : int { ok = 0, findings = 1, error = 2, interrupted = 130 };
+
+/// A subcommand: `add` creates it under `app` and arranges for its callback to
+/// store the outcome in `status`.
+struct command {
+  const char* name;
+  void (*add)(CLI::App& app, exit_status& status);
+};
+
+/// Registers a command at static-initialisation time (the command files are
+/// linked straight into the executable). Returns a dummy for the registrar.
+int register_command(command c);
+/// Registered commands in the order of `order` (a command's rank in help).
+const std::vector<command>& commands();
+
+#define SETTLE_COMMAND(ident, name, add_fn) \
+  static const int settle_command_##ident = ::settle::cli::register_command({name, add_fn})
+
+/// The options every command that reads a design takes: DESIGN, --stim,
+/// --format, --dff, --delay.
+struct design_options {
+  std::string path;
+  std::string stim;
+  std::string format = "auto";
+  std::string dff = "gates";
+  std::string delay;  ///< MIN..MAX for imported gates; empty: the default
+};
+void add_design_options(CLI::App& cmd, design_options& o);
+
+/// Loads the design; prints diagnostics (file:line:col, caret) on stderr.
+/// Returns nullopt when there was an error (the command then exits 2).
+std::optional<design> load(const design_options& o);
+
+/// Writes `text` to `path` atomically: a temporary file in the target's folder,
+/// renamed into place only on success. "-" writes to stdout. On failure prints
+/// a message naming the path and returns false (the command then exits 2).
+bool write_output(const std::string& path, std::string_view text);
+
+/// True when colour may be used on this stream (a terminal, NO_COLOR unset).
+bool use_colour(int fd);
+
+}  // namespace settle::cli
