@@ -55,10 +55,34 @@ gate_id netlist::add_gate(gate_kind k, net_id out, const std::vector<net_id>& in
   return g;
 }
 
+void netlist::mark_enumerated_gates() {
+  enumerate.assign(gate_count(), 0);
+  std::vector<gate_id> seen(net_name.size(), no_id);
+  for (gate_id g = 0; g < gate_count(); ++g) {
+    const auto k = kind[g];
+    if (k == gate_kind::expr || k == gate_kind::gc) {
+      enumerate[g] = 1;
+      continue;
+    }
+    // and/or/nand/nor are idempotent, so a repeated input changes nothing.
+    if (k == gate_kind::and_ || k == gate_kind::nand || k == gate_kind::or_ || k == gate_kind::nor ||
+        k == gate_kind::buf || k == gate_kind::inv)
+      continue;
+    bool dup = false;
+    if (holds_state(k)) seen[gate_out[g]] = g;
+    for (auto i = fanin_begin[g]; i < fanin_begin[g + 1]; ++i) {
+      if (seen[fanin[i]] == g) dup = true;
+      seen[fanin[i]] = g;
+    }
+    enumerate[g] = dup;
+  }
+}
+
 void netlist::finish() {
   if (fanin_begin.empty()) fanin_begin.push_back(0);
   if (code_begin.empty()) code_begin.push_back(0);
   const auto nets = net_name.size();
+  mark_enumerated_gates();
   std::vector<std::uint32_t> count(nets + 1, 0);
   // Each gate appears once per distinct input net, so a net read twice by one
   // gate wakes it once.

@@ -92,6 +92,10 @@ struct netlist {
   std::vector<std::uint32_t> code;
   std::vector<gate_delay> delay;
   std::vector<source_loc> gate_loc;        ///< where each gate was written
+  /// Set by finish(): gates whose exact ternary value needs enumeration of
+  /// their x inputs (complex gates, and primitives that read a net twice or
+  /// read their own output where that matters).
+  std::vector<std::uint8_t> enumerate;
 
   // ---- what the source held, for `check`
   std::uint32_t blocks = 0;     ///< block definitions
@@ -120,6 +124,9 @@ struct netlist {
                    const std::vector<std::uint32_t>& program, const gate_delay& d, source_loc loc = {});
   /// Builds the fan-out lists from the fan-in lists; call once after the last gate.
   void finish();
+
+ private:
+  void mark_enumerated_gates();
 };
 
 }  // namespace settle

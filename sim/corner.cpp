@@ -1,0 +1,145 @@
+// Corner names and the counter-based delay draws behind them.
+#include "sim/corner.hpp"
+
+#include <charconv>
+#include <cmath>
+
+#include <fmt/format.h>
+
+namespace settle {
+namespace {
+
+// splitmix64's finaliser: a strong 64-bit mixer (Steele, Lea and Flood 2014).
+constexpr std::uint64_t mix(std::uint64_t z) {
+  z += 0x9e3779b97f4a7c15ull;
+  z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ull;
+  z = (z ^ (z >> 27)) * 0x94d049bb133111ebull;
+  return z ^ (z >> 31);
+}
+
+// A draw that depends on (seed, corner index, gate, edge, stream) alone.
+std::uint64_t draw(std::uint64_t seed, std::uint64_t index, gate_id g, int edge, int stream) {
+  return mix(mix(mix(seed) ^ index) ^ (std::uint64_t{g} << 3 | std::uint64_t(edge) << 1 | stream));
+}
+
+// Uniform on [lo, hi] by a 128-bit multiply (no modulo bias worth naming).
+time_fs uniform(std::uint64_t h, time_fs lo, time_fs hi) {
+  const auto span = static_cast<unsigned __int128>(hi - lo) + 1;
+  return lo + static_cast<time_fs>((static_cast<unsigned __int128>(h) * span) >> 64);
+}
+
+double unit(std::uint64_t h) { return (static_cast<double>(h >> 11) + 0.5) * 0x1.0p-53; }
+
+// Truncated normal: mean typ, sigma (max - min) / 6, clipped to the range.
+time_fs gaussian(std::uint64_t h1, std::uint64_t h2, const delay_range& r) {
+  if (r.max == r.min) return r.min;
+  const double z = std::sqrt(-2.0 * std::log(unit(h1))) * std::cos(2 * M_PI * unit(h2));
+  const double v = static_cast<double>(r.typ) + z * static_cast<double>(r.max - r.min) / 6.0;
+  if (v <= static_cast<double>(r.min)) return r.min;
+  if (v >= static_cast<double>(r.max)) return r.max;
+  return static_cast<time_fs>(std::llround(v));
+}
+
+bool parse_u64(std::string_view s, std::uint64_t& out) {
+  if (s.empty()) return false;
+  auto [p, ec] = std::from_chars(s.data(), s.data() + s.size(), out);
+  return ec == std::errc{} && p == s.data() + s.size();
+}
+
+}  // namespace
+
+delay_range scaled(const delay_range& r, double spread) {
+  if (spread == 1.0) return r;
+  auto at = [&](time_fs end) {
+    const double v = static_cast<double>(r.typ) +
+                     spread * (static_cast<double>(end) - static_cast<double>(r.typ));
+    return v <= 0 ? time_fs{0} : static_cast<time_fs>(std::llround(v));
+  };
+  return {at(r.min), r.typ, at(r.max)};
+}
+
+std::string corner::name() const {
+  std::string base;
+  switch (what) {
+    case kind::min: base = "min"; break;
+    case kind::typ: base = "typ"; break;
+    case kind::max: base = "max"; break;
+    case kind::random: base = fmt::format("random:{}#{}", seed, index); break;
+    case kind::gauss: base = fmt::format("gauss:{}#{}", seed, index); break;
+    case kind::extremes: base = fmt::format("extremes#{}", index); break;
+    case kind::exhaustive: base = fmt::format("exhaustive#{}", index); break;
+  }
+  if (spread != 1.0) base += fmt::format("@{}", spread);
+  return base;
+}
+
+std::optional<corner> parse_corner(std::string_view text, std::string* error) {
+  corner c;
+  auto fail = [&](std::string why) -> std::optional<corner> {
+    if (error) *error = fmt::format("bad corner '{}': {}", text, why);
+    return std::nullopt;
+  };
+  std::string_view s = text;
+  if (auto at = s.find('@'); at != std::string_view::npos) {
+    std::string w(s.substr(at + 1));
+    char* end = nullptr;
+    c.spread = std::strtod(w.c_str(), &end);
+    if (w.empty() || *end || !(c.spread >= 0) || !std::isfinite(c.spread))
+      return fail("the spread after '@' must be a number >= 0");
+    s = s.substr(0, at);
+  }
+  if (s == "min") c.what = corner::kind::min;
+  else if (s == "typ") c.what = corner::kind::typ;
+  else if (s == "max") c.what = corner::kind::max;
+  else if (s.starts_with("random:") || s.starts_with("gauss:")) {
+    c.what = s[0] == 'r' ? corner::kind::random : corner::kind::gauss;
+    s.remove_prefix(s.find(':') + 1);
+    auto hash = s.find('#');
+    if (!parse_u64(s.substr(0, hash), c.seed)) return fail("expected a seed, e.g. random:7 or random:7#3");
+    if (hash != std::string_view::npos && !parse_u64(s.substr(hash + 1), c.index))
+      return fail("expected a corner number after '#'");
+  } else if (s.starts_with("extremes#") || s.starts_with("exhaustive#")) {
+    c.what = s[1] == 'x' && s[2] == 't' ? corner::kind::extremes : corner::kind::exhaustive;
+    if (!parse_u64(s.substr(s.find('#') + 1), c.index)) return fail("expected a corner number after '#'");
+  } else {
+    return fail("expected min, typ, max, random:SEED[#i], gauss:SEED[#i], extremes#k or exhaustive#k");
+  }
+  return c;
+}
+
+void fill_delays(const netlist& n, const corner& c, delay_table& out) {
+  const auto gates = n.gate_count();
+  out.rise.resize(gates);
+  out.fall.resize(gates);
+  for (gate_id g = 0; g < gates; ++g) {
+    const delay_range rise = scaled(n.delay[g].rise, c.spread);
+    const delay_range fall = scaled(n.delay[g].fall, c.spread);
+    auto pick = [&](const delay_range& r, int edge) -> time_fs {
+      switch (c.what) {
+        case corner::kind::min: return r.min;
+        case corner::kind::typ: return r.typ;
+        case corner::kind::max: return r.max;
+        case corner::kind::random: return uniform(draw(c.seed, c.index, g, edge, 0), r.min, r.max);
+        case corner::kind::gauss:
+          return gaussian(draw(c.seed, c.index, g, edge, 0), draw(c.seed, c.index, g, edge, 1), r);
+        case corner::kind::extremes: {
+          // 0 all-min, 1 all-max, 2 typ, then per gate: it at max with the
+          // others at min, and it at min with the others at max.
+          if (c.index == 0) return r.min;
+          if (c.index == 1) return r.max;
+          if (c.index == 2) return r.typ;
+          const auto k = c.index - 3;
+          const bool self = k / 2 == g, slow_self = k % 2 == 0;
+          return self == slow_self ? r.max : r.min;
+        }
+        case corner::kind::exhaustive:
+          return (g < 64 && (c.index >> g & 1)) ? r.max : r.min;
+      }
+      return r.typ;
+    };
+    out.rise[g] = pick(rise, 0);
+    out.fall[g] = pick(fall, 1);
+  }
+}
+
+}  // namespace settle
