@@ -1,0 +1,169 @@
+// VCD writer: timescale choice, identifier codes, same-instant coalescing, scopes (IEEE Std 1364-2005 clause 18).
+#include <catch2/catch.hpp>
+
+#include <set>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include "waves/vcd.hpp"
+
+using namespace settle;
+
+namespace {
+
+// A small netlist: top-level nets a, y and an instance "mon" holding mon.n1
+// and an alias mon.out of y.
+struct fixture {
+  netlist n;
+  net_id a = 0, y = 0, inner = 0;
+  fixture() {
+    n.begin();
+    n.scopes.push_back(scope{"mon", "ring", 0});
+    a = n.add_net("a", 0);
+    y = n.add_net("y", 0);
+    inner = n.add_net("mon.n1", 1);
+    gate_delay d;
+    d.rise = d.fall = {5000, 5000, 5000};
+    n.add_gate(gate_kind::inv, inner, {a}, {}, d);
+    n.add_gate(gate_kind::buf, y, {inner}, {}, d);
+    n.aliases.push_back(net_alias{1, "out", y});
+    n.finish();
+  }
+  std::string dump(const std::vector<change>& changes, time_fs end, vcd_options o = {}) {
+    o.date = "fixed";
+    o.version = "settle test";
+    vcd_writer w(n, o);
+    std::vector<logic> init(n.net_count(), logic::x);
+    init[0] = logic::zero;
+    init[1] = logic::one;
+    w.on_start(init);
+    w.on_changes(changes);
+    w.on_finish(end);
+    return w.str();
+  }
+};
+
+std::vector<std::string> lines(const std::string& s) {
+  std::vector<std::string> out;
+  std::istringstream in(s);
+  for (std::string l; std::getline(in, l);) out.push_back(l);
+  return out;
+}
+
+std::string between(const std::string& s, const std::string& a, const std::string& b) {
+  auto i = s.find(a);
+  if (i == std::string::npos) return "";
+  i += a.size();
+  return s.substr(i, s.find(b, i) - i);
+}
+
+}  // namespace
+
+TEST_CASE("identifier codes are base-94 over printable ASCII", "[waves][vcd]") {
+  // IEEE 1364-2005 18.2.1: an identifier code is one or more printable ASCII
+  // characters, '!' (33) to '~' (126).
+  CHECK(vcd_code(0) == "!");
+  CHECK(vcd_code(93) == "~");
+  CHECK(vcd_code(94) == "!!");
+  CHECK(vcd_code(94 + 94 * 94 - 1) == "~~");
+  CHECK(vcd_code(94 + 94 * 94) == "!!!");
+  std::set<std::string> seen;
+  for (std::uint64_t i = 0; i < 200000; ++i) {
+    const auto c = vcd_code(i);
+    for (char ch : c) REQUIRE((ch >= 33 && ch <= 126));
+    REQUIRE(seen.insert(c).second);
+  }
+}
+
+TEST_CASE("the timescale is the coarsest power of ten dividing every time", "[waves][vcd]") {
+  // IEEE 1364-2005 18.2.3.5: time_number is 1, 10 or 100; units s ms us ns ps fs.
+  fixture f;
+  CHECK(between(f.dump({{5000, f.a, logic::one}, {15000, f.a, logic::zero}}, 20000), "$timescale ", " $end") == "1 ps");
+  CHECK(between(f.dump({{1500, f.a, logic::one}}, 3000), "$timescale ", " $end") == "100 fs");
+  CHECK(between(f.dump({{10'000'000, f.a, logic::one}}, 50'000'000), "$timescale ", " $end") == "10 ns");
+  CHECK(between(f.dump({{7, f.a, logic::one}}, 10), "$timescale ", " $end") == "1 fs");
+  CHECK(between(f.dump({}, 0), "$timescale ", " $end") == "1 fs");
+  CHECK(vcd_timescale(15) == "1 s");
+  CHECK(vcd_timescale(17) == "100 s");
+  // Times are written in the chosen unit: 5ps and 15ps at 1 ps are #5 and #15.
+  const auto v = f.dump({{5000, f.a, logic::one}, {15000, f.a, logic::zero}}, 20000);
+  CHECK(v.find("\n#5\n1!\n#15\n0!\n#20\n") != std::string::npos);
+}
+
+TEST_CASE("same-instant changes keep only the final value", "[waves][vcd]") {
+  fixture f;
+  // a: 0 at time 0 (folds into $dumpvars), then a zero-width pulse at 10ps
+  // (1 then 0 again: nothing written), then 1 at 20ps written once.
+  const auto v = f.dump({{0, f.a, logic::one},
+                         {0, f.a, logic::zero},
+                         {10000, f.a, logic::one},
+                         {10000, f.a, logic::zero},
+                         {20000, f.a, logic::x},
+                         {20000, f.a, logic::one},
+                         {20000, f.y, logic::zero}},
+                        30000);
+  const auto dumpvars = between(v, "$dumpvars\n", "$end");
+  CHECK(dumpvars == "0!\nx\"\nx#\n");
+  const auto body = v.substr(v.find("$dumpvars"));
+  // Times 20ps and 30ps give a 10 ps timescale: #2 and #3; nothing at #1.
+  CHECK(between(v, "$timescale ", " $end") == "10 ps");
+  CHECK(body.find("#1\n") == std::string::npos);
+  CHECK(body.find("#2\n1!\n0\"\n#3\n") != std::string::npos);
+  // Strictly increasing times (IEEE 1364-2005 18.2: the section is time ordered).
+  long last = -1;
+  for (const auto& l : lines(body))
+    if (!l.empty() && l[0] == '#') {
+      const long t = std::stol(l.substr(1));
+      CHECK(t > last);
+      last = t;
+    }
+}
+
+TEST_CASE("scopes follow the instance hierarchy and aliases share codes", "[waves][vcd]") {
+  fixture f;
+  const auto v = f.dump({{5000, f.a, logic::one}}, 10000, vcd_options{"ring.top", "", "", {}});
+  // The top scope name is sanitised ('.' -> '_') and the change noted in $comment.
+  CHECK(v.find("$scope module ring_top $end\n$var wire 1 ! a $end\n$var wire 1 \" y $end\n"
+               "$scope module mon $end\n$var wire 1 # n1 $end\n$var wire 1 \" out $end\n"
+               "$upscope $end\n$upscope $end\n$enddefinitions $end\n") != std::string::npos);
+  CHECK(v.find("$comment\n") != std::string::npos);
+  CHECK(v.find("ring_top = ring.top") != std::string::npos);
+  int depth = 0;
+  for (const auto& l : lines(v)) {
+    if (l.rfind("$scope", 0) == 0) ++depth;
+    if (l.rfind("$upscope", 0) == 0) --depth;
+    CHECK(depth >= 0);
+  }
+  CHECK(depth == 0);
+}
+
+TEST_CASE("only the selected nets are dumped, constants never", "[waves][vcd]") {
+  fixture f;
+  const auto v = f.dump({{5000, f.a, logic::one}, {5000, f.y, logic::one}}, 10000, vcd_options{"t", "", "", {f.y}});
+  CHECK(v.find(" a $end") == std::string::npos);
+  CHECK(v.find("$var wire 1 ! y $end") != std::string::npos);
+  CHECK(v.find("$const") == std::string::npos);
+  CHECK(v.find("#5\n1!\n") != std::string::npos);
+}
+
+TEST_CASE("long runs spill to disk and keep every instant", "[waves][vcd]") {
+  fixture f;
+  // 4 million instants of about 10 bytes each exceed the 32 MiB memory chunk.
+  const std::uint64_t instants = 4'000'000;
+  std::vector<change> c;
+  c.reserve(instants);
+  for (std::uint64_t i = 1; i <= instants; ++i) c.push_back({i * 1000, f.a, i % 2 ? logic::one : logic::zero});
+  const auto v = f.dump(c, (instants + 1) * 1000);
+  CHECK(between(v, "$timescale ", " $end") == "1 ps");
+  std::uint64_t times = 0, last = 0;
+  bool increasing = true;
+  for (std::size_t p = v.find("$dumpvars"); (p = v.find("\n#", p)) != std::string::npos; ++p) {
+    const auto t = std::stoull(v.substr(p + 2, 24));
+    increasing = increasing && t > last;
+    last = t, ++times;
+  }
+  CHECK(increasing);
+  CHECK(times == instants + 1);  // every instant and the end
+  CHECK(last == instants + 1);
+}

@@ -1,0 +1,379 @@
+// VCD writer (IEEE Std 1364-2005 clause 18): buffered formatting, timescale chosen at the end.
+#include "waves/vcd.hpp"
+
+#include <charconv>
+#include <cstdlib>
+#include <cstring>
+#include <ctime>
+#include <unordered_set>
+
+#include <fmt/format.h>
+
+namespace settle {
+namespace {
+
+constexpr std::uint8_t none = 255;
+constexpr std::size_t first_chunk = 1024 * 1024;
+constexpr std::size_t max_chunk = 32 * 1024 * 1024;  // memory kept before spilling
+constexpr std::size_t out_chunk = 4 * 1024 * 1024;   // bytes per fwrite when trimming
+constexpr int max_k = 17;                            // 100 s = 10^17 fs
+
+constexpr time_fs pow10(int k) {
+  time_fs p = 1;
+  for (int i = 0; i < k; ++i) p *= 10;
+  return p;
+}
+constexpr time_fs pow10_table[max_k + 1] = {
+    pow10(0),  pow10(1),  pow10(2),  pow10(3),  pow10(4),  pow10(5),  pow10(6),  pow10(7),  pow10(8),
+    pow10(9),  pow10(10), pow10(11), pow10(12), pow10(13), pow10(14), pow10(15), pow10(16), pow10(17)};
+
+std::string now_text() {
+  std::time_t t = std::time(nullptr);
+  bool utc = false;
+  // Reproducible output when SOURCE_DATE_EPOCH is set (common practice of
+  // reproducible builds, reproducible-builds.org specification).
+  if (const char* e = std::getenv("SOURCE_DATE_EPOCH")) {
+    char* end = nullptr;
+    const long long v = std::strtoll(e, &end, 10);
+    if (end != e && *end == '\0') t = static_cast<std::time_t>(v), utc = true;
+  }
+  std::tm tm{};
+  if (utc) gmtime_r(&t, &tm); else localtime_r(&t, &tm);
+  char text[64];
+  std::strftime(text, sizeof text, "%Y-%m-%d %H:%M:%S", &tm);
+  return text;
+}
+
+}  // namespace
+
+std::string vcd_sanitise(std::string_view name) {
+  std::string s(name);
+  for (char& c : s) {
+    const auto u = static_cast<unsigned char>(c);
+    if (c == '.' || c == '/' || c == '[' || c == ']' || u <= 32 || u >= 127) c = '_';
+  }
+  if (s.empty()) s = "_";
+  return s;
+}
+
+std::string vcd_code(std::uint64_t i) {
+  std::string s;
+  for (;;) {
+    s.push_back(static_cast<char>(33 + i % 94));
+    i /= 94;
+    if (i == 0) break;
+    --i;
+  }
+  return s;
+}
+
+std::string vcd_timescale(int k) {
+  static constexpr const char* units[] = {"fs", "ps", "ns", "us", "ms", "s"};
+  static constexpr int numbers[] = {1, 10, 100};
+  return fmt::format("{} {}", numbers[k % 3], units[k / 3]);
+}
+
+vcd_writer::vcd_writer(const netlist& n, vcd_options opt) : n_(n), opt_(std::move(opt)) {
+  const auto nets = n_.net_count();
+  selected_.assign(nets, 0);
+  if (opt_.only.empty()) {
+    for (net_id i = 2; i < nets; ++i) selected_[i] = 1;
+  } else {
+    for (net_id i : opt_.only)
+      if (i >= 2 && i < nets) selected_[i] = 1;
+  }
+  code_at_.assign(nets, 0);
+  code_len_.assign(nets, 0);
+  std::uint64_t next = 0;
+  for (net_id i = 0; i < nets; ++i) {
+    if (!selected_[i]) continue;
+    const auto c = vcd_code(next++);
+    code_at_[i] = static_cast<std::uint32_t>(codes_.size());
+    code_len_[i] = static_cast<std::uint8_t>(c.size());
+    codes_ += c;
+  }
+  written_.assign(nets, logic::x);
+  pending_.assign(nets, none);
+  initial_.assign(nets, logic::x);
+}
+
+vcd_writer::~vcd_writer() {
+  if (spill_) std::fclose(spill_);
+}
+
+void vcd_writer::on_start(std::span<const logic> initial) {
+  for (std::size_t i = 0; i < initial.size() && i < written_.size(); ++i) written_[i] = initial_[i] = initial[i];
+  started_ = true;
+  now_ = 0;
+}
+
+void vcd_writer::on_changes(std::span<const change> batch) {
+  for (const change& c : batch) {
+    if (c.time != now_) {
+      if (c.time < now_) {  // the kernel promises time order; never write time backwards
+        order_error_ = true;
+        continue;
+      }
+      flush_instant();
+      now_ = c.time;
+    }
+    if (!selected_[c.net]) continue;
+    if (pending_[c.net] == none) touched_.push_back(c.net);
+    pending_[c.net] = static_cast<std::uint8_t>(c.value);
+  }
+}
+
+void vcd_writer::flush_instant() {
+  bool stamped = false;
+  for (net_id n : touched_) {
+    const auto v = static_cast<logic>(pending_[n]);
+    pending_[n] = none;
+    if (v == written_[n]) continue;  // a pulse of zero width, or no change at all
+    written_[n] = v;
+    if (now_ == 0) {
+      initial_[n] = v;
+      continue;
+    }
+    if (!stamped) put_time(now_), stamped = true;
+    put_value(n, v);
+    ++changes_;
+  }
+  touched_.clear();
+}
+
+void vcd_writer::on_finish(time_fs end) {
+  flush_instant();
+  if (end > now_ || (end > 0 && pos_ == 0 && spilled_.empty())) put_time(end);
+  if (pos_ == 0 && spilled_.empty()) k_ = 0;  // nothing after time 0: the kernel's resolution
+  finished_ = true;
+}
+
+void vcd_writer::reserve(std::size_t bytes) {
+  if (pos_ + bytes <= cap_) return;
+  if (cap_ < max_chunk) {
+    const std::size_t cap = std::max(first_chunk, std::min(max_chunk, cap_ * 2));
+    auto grown = std::make_unique_for_overwrite<char[]>(cap);
+    if (pos_) std::memcpy(grown.get(), buf_.get(), pos_);
+    buf_ = std::move(grown);
+    cap_ = cap;
+    if (pos_ + bytes <= cap_) return;
+  }
+  // Spill the chunk: it always ends at a line boundary.
+  if (!spill_) spill_ = std::tmpfile();
+  if (!spill_ || std::fwrite(buf_.get(), 1, pos_, spill_) != pos_) {
+    order_error_ = true;  // reported by write()
+  } else {
+    spilled_.push_back(pos_);
+  }
+  pos_ = 0;
+}
+
+void vcd_writer::put_time(time_fs t) {
+  reserve(24);
+  char* p = buf_.get() + pos_;
+  *p++ = '#';
+  p = std::to_chars(p, p + 21, t).ptr;
+  *p++ = '\n';
+  pos_ = static_cast<std::size_t>(p - buf_.get());
+  while (k_ > 0 && t % pow10_table[k_] != 0) --k_;
+  now_ = t;
+}
+
+void vcd_writer::put_value(net_id n, logic v) {
+  const std::size_t len = code_len_[n];
+  reserve(len + 2);
+  char* p = buf_.get() + pos_;
+  *p = to_char(v);
+  std::memcpy(p + 1, codes_.data() + code_at_[n], len);
+  p[len + 1] = '\n';
+  pos_ += len + 2;
+}
+
+std::string vcd_writer::header() const {
+  std::string h;
+  auto out = std::back_inserter(h);
+  fmt::format_to(out, "$date\n\t{}\n$end\n", opt_.date.empty() ? now_text() : opt_.date);
+  fmt::format_to(out, "$version\n\t{}\n$end\n", opt_.version.empty() ? "settle" : opt_.version);
+
+  // Full dotted path of every scope, and the variables each one declares.
+  const auto scopes = n_.scopes.empty() ? std::size_t{1} : n_.scopes.size();
+  std::vector<std::string> path(scopes);
+  for (std::size_t s = 1; s < scopes; ++s) {
+    std::vector<std::size_t> chain;
+    for (std::size_t q = s; q != 0 && q < scopes && chain.size() <= scopes; q = n_.scopes[q].parent) chain.push_back(q);
+    for (auto it = chain.rbegin(); it != chain.rend(); ++it)
+      path[s] += (path[s].empty() ? "" : ".") + n_.scopes[*it].name;
+  }
+  struct var {
+    net_id net;
+    std::string name;
+  };
+  std::vector<std::vector<var>> vars(scopes);
+  std::unordered_set<std::string> seen;
+  auto key = [](std::size_t s, const std::string& local) { return fmt::format("{}\n{}", s, local); };
+  auto local_name = [&](std::size_t s, const std::string& full) {
+    const auto& p = path[s];
+    if (!p.empty() && full.size() > p.size() && full.compare(0, p.size(), p) == 0 && full[p.size()] == '.')
+      return full.substr(p.size() + 1);
+    return full;
+  };
+  for (net_id i = 2; i < n_.net_count(); ++i) {
+    if (!selected_[i]) continue;
+    std::size_t s = i < n_.net_scope.size() ? n_.net_scope[i] : 0;
+    if (s >= scopes) s = 0;
+    auto local = local_name(s, n_.net_name[i]);
+    if (seen.insert(key(s, local)).second) vars[s].push_back({i, std::move(local)});
+  }
+  for (const auto& a : n_.aliases) {
+    if (a.net >= selected_.size() || !selected_[a.net] || a.scope >= scopes) continue;
+    if (seen.insert(key(a.scope, a.local)).second) vars[a.scope].push_back({a.net, a.local});
+  }
+
+  // Sanitised names, and the map of the ones that changed.
+  std::string renamed;
+  auto clean = [&](const std::string& name, const std::string& where) {
+    auto s = vcd_sanitise(name);
+    if (s != name) renamed += fmt::format("\t{} = {}\n", where.empty() ? s : where + "." + s, where.empty() ? name : where + "." + name);
+    return s;
+  };
+  std::vector<std::string> scope_name(scopes);
+  scope_name[0] = clean(opt_.top.empty() ? std::string("top") : opt_.top, "");
+  for (std::size_t s = 1; s < scopes; ++s) scope_name[s] = clean(n_.scopes[s].name, path[n_.scopes[s].parent < scopes ? n_.scopes[s].parent : 0]);
+  for (std::size_t s = 0; s < scopes; ++s)
+    for (auto& v : vars[s]) v.name = clean(v.name, path[s]);
+
+  // Scopes with something to show, their children, then the declarations.
+  std::vector<std::uint8_t> live(scopes, 0);
+  for (std::size_t s = 0; s < scopes; ++s) {
+    if (vars[s].empty()) continue;
+    for (std::size_t q = s, guard = 0; guard <= scopes; q = n_.scopes[q].parent, ++guard) {
+      if (live[q]) break;
+      live[q] = 1;
+      if (q == 0 || q >= scopes) break;
+    }
+  }
+  live[0] = 1;
+  std::vector<std::vector<std::size_t>> children(scopes);
+  for (std::size_t s = 1; s < scopes; ++s)
+    if (live[s] && n_.scopes[s].parent < scopes) children[n_.scopes[s].parent].push_back(s);
+
+  if (!renamed.empty()) fmt::format_to(out, "$comment\n\tnames changed for VCD (as shown = as written):\n{}$end\n", renamed);
+  fmt::format_to(out, "$timescale {} $end\n", vcd_timescale(k_));
+  // Depth-first with an explicit stack: (scope, next child index).
+  std::vector<std::pair<std::size_t, std::size_t>> stack{{0, 0}};
+  auto open = [&](std::size_t s) {
+    fmt::format_to(out, "$scope module {} $end\n", scope_name[s]);
+    for (const auto& v : vars[s])
+      fmt::format_to(out, "$var wire 1 {} {} $end\n", std::string_view(codes_.data() + code_at_[v.net], code_len_[v.net]), v.name);
+  };
+  open(0);
+  while (!stack.empty()) {
+    auto& [s, next] = stack.back();
+    if (next < children[s].size()) {
+      const auto c = children[s][next++];
+      open(c);
+      stack.emplace_back(c, 0);
+    } else {
+      h += "$upscope $end\n";
+      stack.pop_back();
+    }
+  }
+  h += "$enddefinitions $end\n#0\n$dumpvars\n";
+  for (net_id i = 2; i < n_.net_count(); ++i) {
+    if (!selected_[i]) continue;
+    h += to_char(initial_[i]);
+    h.append(codes_.data() + code_at_[i], code_len_[i]);
+    h += '\n';
+  }
+  h += "$end\n";
+  return h;
+}
+
+bool vcd_writer::emit(std::FILE* f, const char* p, std::size_t len, std::string& out, std::string* err) {
+  auto put = [&](const char* d, std::size_t n) {
+    if (std::fwrite(d, 1, n, f) == n) return true;
+    if (err) *err = std::strerror(errno);
+    return false;
+  };
+  if (k_ == 0) return put(p, len);
+  // Cut k digits before the newline of every "#time" line. A '#' starts a
+  // time line only at the start of a line (identifier codes may contain '#').
+  const char* end = p + len;
+  const char* from = p;  // start of text not yet copied
+  const char* q = p;     // always at the start of a line
+  while (q < end) {
+    if (*q == '#') {
+      const char* nl = static_cast<const char*>(std::memchr(q, '\n', static_cast<std::size_t>(end - q)));
+      out.append(from, static_cast<std::size_t>(nl - k_ - from));
+      from = nl;
+      q = nl + 1;
+      if (out.size() >= out_chunk) {
+        if (!put(out.data(), out.size())) return false;
+        out.clear();
+      }
+      continue;
+    }
+    const char* h = q;
+    for (;;) {
+      h = static_cast<const char*>(std::memchr(h, '#', static_cast<std::size_t>(end - h)));
+      if (!h || h[-1] == '\n') break;
+      ++h;
+    }
+    q = h ? h : end;
+  }
+  out.append(from, static_cast<std::size_t>(end - from));
+  if (out.size() >= out_chunk) {
+    if (!put(out.data(), out.size())) return false;
+    out.clear();
+  }
+  return true;
+}
+
+bool vcd_writer::write(std::FILE* f, std::string* err) {
+  if (!finished_ || order_error_) {
+    if (err) *err = !finished_ ? "the run did not finish" : "value changes out of time order or a failed temporary file";
+    return false;
+  }
+  const auto h = header();
+  if (std::fwrite(h.data(), 1, h.size(), f) != h.size()) {
+    if (err) *err = std::strerror(errno);
+    return false;
+  }
+  std::string out;
+  if (k_ > 0) out.reserve(out_chunk + max_chunk / 8);
+  if (spill_ && !spilled_.empty()) {
+    std::rewind(spill_);
+    auto chunk = std::make_unique_for_overwrite<char[]>(max_chunk);
+    for (auto size : spilled_) {
+      if (std::fread(chunk.get(), 1, size, spill_) != size) {
+        if (err) *err = "cannot read back the temporary value-change file";
+        return false;
+      }
+      if (!emit(f, chunk.get(), size, out, err)) return false;
+    }
+    std::fseek(spill_, 0, SEEK_END);
+  }
+  if (pos_ && !emit(f, buf_.get(), pos_, out, err)) return false;
+  if (!out.empty() && std::fwrite(out.data(), 1, out.size(), f) != out.size()) {
+    if (err) *err = std::strerror(errno);
+    return false;
+  }
+  return true;
+}
+
+std::string vcd_writer::str() {
+  char* data = nullptr;
+  std::size_t size = 0;
+  std::FILE* f = open_memstream(&data, &size);
+  std::string s;
+  if (f) {
+    std::string err;
+    const bool ok = write(f, &err);
+    std::fclose(f);
+    if (ok) s.assign(data, size);
+    std::free(data);
+  }
+  return s;
+}
+
+}  // namespace settle
