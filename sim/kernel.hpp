@@ -75,8 +75,27 @@ struct run_result {
   bool pass() const;
 };
 
+class simulator;
+
+/// Per-run state that survives between runs of one netlist: a worker keeps
+/// one, so a corner costs a delay table and a state reset, nothing else.
+class run_context {
+ public:
+  explicit run_context(const netlist& n);
+  ~run_context();
+  run_context(const run_context&) = delete;
+  run_context& operator=(const run_context&) = delete;
+  simulator& sim() { return *sim_; }
+
+ private:
+  std::unique_ptr<simulator> sim_;
+};
+
 /// Runs the design's stimulus under one delay table. `trace` may be null.
 run_result run_stimulus(const design& d, const delay_table& delays, const run_options& opt,
+                        change_sink* trace = nullptr);
+/// The same, reusing `ctx`'s buffers (ctx must have been made for d.nets).
+run_result run_stimulus(run_context& ctx, const design& d, const delay_table& delays, const run_options& opt,
                         change_sink* trace = nullptr);
 
 }  // namespace settle

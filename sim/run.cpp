@@ -30,8 +30,8 @@ struct clock_state {
 
 class driver {
  public:
-  driver(const design& d, const delay_table& delays, const run_options& opt, change_sink* trace)
-      : d_(d), sim_(d.nets), opt_(opt) {
+  driver(simulator& sim, const design& d, const delay_table& delays, const run_options& opt, change_sink* trace)
+      : d_(d), sim_(sim), opt_(opt) {
     sim_.set_trace(trace);
     sim_.reset(delays);
     const time_fs m = d.nets.largest_max_delay();
@@ -272,7 +272,7 @@ class driver {
   }
 
   const design& d_;
-  simulator sim_;
+  simulator& sim_;
   run_options opt_;
   run_result result_;
   time_fs horizon_ = 0;
@@ -314,8 +314,17 @@ bool run_result::pass() const {
   return std::all_of(steps.begin(), steps.end(), [](const step_result& s) { return s.pass(); });
 }
 
+run_context::run_context(const netlist& n) : sim_(std::make_unique<simulator>(n)) {}
+run_context::~run_context() = default;
+
+run_result run_stimulus(run_context& ctx, const design& d, const delay_table& delays, const run_options& opt,
+                        change_sink* trace) {
+  return driver(ctx.sim(), d, delays, opt, trace).run();
+}
+
 run_result run_stimulus(const design& d, const delay_table& delays, const run_options& opt, change_sink* trace) {
-  return driver(d, delays, opt, trace).run();
+  run_context ctx(d.nets);
+  return run_stimulus(ctx, d, delays, opt, trace);
 }
 
 }  // namespace settle

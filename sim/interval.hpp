@@ -1,0 +1,30 @@
+// Min-max ambiguity simulation: one conservative run that covers every delay
+// assignment within the ranges (Breuer and Friedman 1976; Abramovici, Breuer
+// and Friedman 1990, ch. 3).
+#pragma once
+
+#include <vector>
+
+#include "sim/design.hpp"
+#include "sim/kernel.hpp"
+
+namespace settle {
+
+struct interval_step {
+  std::vector<logic> values;  ///< per reported net at the end of the step
+  step_status status = step_status::settled;
+  /// Every reported net ended binary: the step's outcome is the same for all
+  /// delays in range. Otherwise the run is inconclusive (x is pessimistic).
+  bool proven = false;
+};
+
+struct interval_result {
+  std::vector<net_id> reported;  ///< outputs, then watched nets (as run_stimulus)
+  std::vector<interval_step> steps;
+};
+
+/// Runs the stimulus once with every gate change ambiguous (x) from t + min
+/// until t + max before it takes its new value.
+interval_result run_interval(const design& d, const run_options& opt);
+
+}  // namespace settle
