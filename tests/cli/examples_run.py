@@ -112,7 +112,9 @@ def main():
             if not os.path.exists(vcd):
                 fail(f"{label}: no VCD written at {vcd}")
             else:
-                sigrok_loads(vcd, label)
+                text = sigrok_loads(vcd, label)
+                if text is not None:
+                    docs[label + " vcd"] = text
         example_facts(docs, tmp)
     finally:
         shutil.rmtree(tmp, ignore_errors=True)
@@ -121,6 +123,24 @@ def main():
         return 1
     print(f"ok: {len(found)} examples and {len(STIMS)} stimulus files")
     return 0
+
+
+def sigrok_changes(text):
+    """Value changes per net name from sigrok-cli's VCD output: {name: [(time_fs, value)]}."""
+    unit = {"s": 10**15, "ms": 10**12, "us": 10**9, "ns": 10**6, "ps": 10**3, "fs": 1}
+    scale, names, changes, now = 1, {}, {}, 0
+    m = re.search(r"\$timescale\s+(\d+)\s*(\w+)\s+\$end", text)
+    if m:
+        scale = int(m.group(1)) * unit[m.group(2)]
+    for code, name in re.findall(r"\$var\s+wire\s+1\s+(\S+)\s+(\S+)\s+\$end", text):
+        names[code] = name
+    body = text.split("$enddefinitions", 1)[-1]
+    for tok in body.split():
+        if tok.startswith("#"):
+            now = int(tok[1:]) * scale
+        elif tok[0] in "01xXzZ" and tok[1:] in names:
+            changes.setdefault(names[tok[1:]], []).append((now, tok[0]))
+    return changes
 
 
 def step(doc, i):
@@ -151,12 +171,31 @@ def example_facts(docs, tmp):
         elif not {"tap", "n0"} <= set(s.get("toggling", [])):
             fail(f"delay_ring at {corner}: toggling {s.get('toggling')} lacks tap or n0")
 
+    # The same, read back from the waveform by an independent VCD reader (sigrok-cli, Debian
+    # package sigrok-cli): at typ every rising edge of `tap` in the enabled window follows the
+    # previous one by 2 x (40 + 4 x 25)ps = 280ps (common practice, as above).
+    text = docs.get("delay_ring.settle vcd")
+    if text is not None:
+        window_end = step(docs.get("delay_ring.settle"), 2).get("end_fs", 0)  # before `enable` falls
+        rises = [t for t, v in sigrok_changes(text).get("tap", []) if v == "1" and t <= window_end]
+        gaps = {b - a for a, b in zip(rises, rises[1:])}
+        if len(rises) < 20 or gaps != {280000}:
+            fail(f"delay_ring VCD via sigrok-cli: {len(rises)} rising edges of tap, gaps {sorted(gaps)[:5]} fs, "
+                 "want at least 20, all 280000 fs")
+
     # The debouncer: the bounces never reach the output, so `clean` changes once when the
     # blade lands and once when it is thrown back (handbook behaviour of a set/reset latch).
     doc = docs.get("debounce.settle")
     total = sum(s.get("transitions", {}).get("clean", 0) for s in (doc or {}).get("steps", []))
     if total != 2:
         fail(f"debounce: clean made {total} transitions over the run, want 2")
+
+    # A 20ps spike is shorter than the latch's fastest gate (35ps) and is swallowed by inertial
+    # delay; of the five chattering changes only the first moves `clean` (common practice).
+    doc = docs.get("debounce.settle --stim debounce_chatter.stim")
+    got = [step(doc, i).get("transitions", {}).get("clean") for i in (3, 4)]
+    if got != [0, 1]:
+        fail(f"debounce_chatter: clean transitions in steps 3 and 4 are {got}, want [0, 1]")
 
     # A mutual-exclusion cell grants at most one requester, and here exactly one once both ask
     # (handbook behaviour of a cross-coupled NAND arbiter). Random corners (the same seed always
