@@ -1,0 +1,287 @@
+// The stimulus driver: steps of input changes over a kernel, with settle,
+// oscillation and timeout verdicts and expectation checks. A template over the
+// kernel so the timed kernel and the interval (min-max) kernel share it.
+#pragma once
+
+#include <algorithm>
+#include <limits>
+
+#include <fmt/format.h>
+
+#include "sim/kernel.hpp"
+#include "sim/simulator.hpp"
+
+namespace settle::detail {
+
+inline constexpr time_fs never = std::numeric_limits<time_fs>::max();
+inline constexpr time_fs one_ns = 1'000'000;
+
+struct timed_input {
+  time_fs time;
+  assignment a;
+};
+
+// A free-running input: rises at `rise`, falls `high` later, every `period`.
+struct clock_state {
+  clock_spec spec;
+  time_fs next = never;
+  logic next_value = logic::one;
+  time_fs rise = 0;
+  std::uint64_t edges_left = 0;  // UINT64_MAX: forever
+};
+
+template <class Sim>
+class driver {
+ public:
+  /// `sim` must be freshly reset.
+  driver(Sim& sim, const design& d, const run_options& opt) : d_(d), sim_(sim), opt_(opt) {
+    const time_fs m = d.nets.largest_max_delay();
+    horizon_ = opt.horizon ? opt.horizon : std::max<time_fs>(m > never / 10000 ? never : m * 10000, one_ns);
+    auto report = [&](net_id n) {
+      if (std::find(result_.reported.begin(), result_.reported.end(), n) == result_.reported.end())
+        result_.reported.push_back(n);
+    };
+    for (net_id n : d.nets.outputs) report(n);
+    for (net_id n : d.stim.watch) report(n);
+  }
+
+  run_result run() {
+    static const step_spec initial = [] {
+      step_spec s;
+      s.label = "initial";
+      return s;
+    }();
+    if (d_.stim.steps.empty()) {
+      run_step(initial, 1);
+    } else {
+      for (std::size_t i = 0; i < d_.stim.steps.size() && !stopped_; ++i) run_step(d_.stim.steps[i], i + 1);
+    }
+    result_.events = sim_.events();
+    result_.end = ref_;
+    sim_.finish(ref_);
+    return std::move(result_);
+  }
+
+ private:
+  time_fs next_clock_edge() const {
+    time_fs t = never;
+    for (const auto& c : clocks_) t = std::min(t, c.next);
+    return t;
+  }
+
+  // Clock phases relative to now, part of the full state for repeat detection.
+  void clock_state_words(std::vector<std::uint64_t>& out) const {
+    out.clear();
+    for (const auto& c : clocks_)
+      out.insert(out.end(), {c.next - sim_.now(), static_cast<std::uint64_t>(c.next_value), c.edges_left});
+  }
+
+  void stop_clock(net_id net) {
+    std::erase_if(clocks_, [&](const clock_state& c) { return c.spec.net == net; });
+  }
+
+  void start_clock(const clock_spec& spec, time_fs at) {
+    stop_clock(spec.net);
+    clock_state c;
+    c.spec = spec;
+    c.next = c.rise = at;
+    c.edges_left = spec.cycles ? spec.cycles * 2 : std::numeric_limits<std::uint64_t>::max();
+    clocks_.push_back(c);
+  }
+
+  // Collects the clock edges due at t and advances those clocks.
+  void clock_edges_at(time_fs t, std::vector<assignment>& out) {
+    for (auto& c : clocks_) {
+      if (c.next != t) continue;
+      out.push_back({c.spec.net, c.next_value});
+      if (c.edges_left != std::numeric_limits<std::uint64_t>::max()) --c.edges_left;
+      if (c.next_value == logic::one) {
+        c.next = c.rise + c.spec.high;
+        c.next_value = logic::zero;
+      } else {
+        c.rise += c.spec.period;
+        c.next = c.rise;
+        c.next_value = logic::one;
+      }
+      if (c.edges_left == 0) c.next = never;
+    }
+    std::erase_if(clocks_, [](const clock_state& c) { return c.next == never; });
+  }
+
+  void run_step(const step_spec& spec, std::size_t index) {
+    step_result r;
+    r.index = index;
+    r.label = spec.label;
+    // Lay out the step's input changes in time.
+    pending_.clear();
+    time_fs cursor = ref_;
+    bool first = true;
+    time_fs start = ref_;
+    for (const auto& a : spec.actions) {
+      time_fs t = cursor;
+      if (a.what == stim_action::kind::at) t = std::max(a.time, sim_.now());
+      else if (a.what == stim_action::kind::after) t = cursor + a.time;
+      cursor = t;
+      if (first) start = t, first = false;
+      if (a.what == stim_action::kind::clock) {
+        clock_starts_.push_back({t, a.clock});
+        continue;
+      }
+      for (const auto& as : a.assigns) pending_.push_back({t, as});
+    }
+    std::stable_sort(pending_.begin(), pending_.end(),
+                     [](const timed_input& x, const timed_input& y) { return x.time < y.time; });
+    r.start = start;
+
+    // What the step's expectations and report need counted from its start.
+    const auto& vals = sim_.values();
+    const auto& tog = sim_.toggles();
+    for (net_id n : result_.reported) r.start_values.push_back(vals[n]);
+    std::vector<std::uint32_t> tog_start;
+    for (net_id n : result_.reported) tog_start.push_back(tog[n]);
+    std::vector<std::uint32_t> glitch_tog;
+    std::vector<logic> glitch_start;
+    for (const auto& e : spec.expects)
+      if (e.what == expectation::kind::no_glitch) glitch_tog.push_back(tog[e.net]), glitch_start.push_back(vals[e.net]);
+
+    const bool settle_step = spec.end == step_spec::end_kind::settle;
+    const time_fs limit = settle_step ? (start > never - horizon_ ? never : start + horizon_) : start + spec.run_for;
+    const time_fs change_before = sim_.last_change();
+    std::size_t next_input = 0;
+    // Brent's cycle detection over instants once every input of the step is in.
+    state_snapshot snap;
+    bool have_snap = false;
+    std::uint64_t power = 1, lambda = 0;
+    std::vector<std::uint64_t> extra;
+    std::vector<assignment> inputs;
+    r.status = step_status::settled;
+    r.end = start;
+
+    for (;;) {
+      // Clocks declared in this step start at their reference time.
+      time_fs t = sim_.next_event_time();
+      if (next_input < pending_.size()) t = std::min(t, pending_[next_input].time);
+      for (const auto& [at, spec_c] : clock_starts_) t = std::min(t, at);
+      t = std::min(t, next_clock_edge());
+      if (t == never) {
+        r.status = step_status::settled;
+        break;
+      }
+      if (t > limit) {
+        r.status = settle_step ? step_status::timeout : step_status::running;
+        r.end = limit;
+        break;
+      }
+      inputs.clear();
+      for (auto it = clock_starts_.begin(); it != clock_starts_.end();) {
+        if (it->first == t) start_clock(it->second, t), it = clock_starts_.erase(it);
+        else ++it;
+      }
+      while (next_input < pending_.size() && pending_[next_input].time == t) {
+        stop_clock(pending_[next_input].a.net);
+        inputs.push_back(pending_[next_input++].a);
+      }
+      clock_edges_at(t, inputs);
+      sim_.process_instant(t, inputs);
+      if (opt_.max_events && sim_.events() >= opt_.max_events) {
+        r.status = step_status::event_limit;
+        r.end = t;
+        stopped_ = true;
+        break;
+      }
+      if (!settle_step || next_input < pending_.size() || !clock_starts_.empty()) continue;
+      clock_state_words(extra);
+      if (have_snap && sim_.hash() == snap.hash && sim_.same_state(snap, extra)) {
+        r.status = step_status::oscillating;
+        r.period = t - snap.time;
+        r.end = t;
+        const auto& now_tog = sim_.toggles();
+        for (net_id n = 2; n < now_tog.size(); ++n)
+          if (now_tog[n] != snap.toggles[n]) r.toggling.push_back(n);
+        break;
+      }
+      if (!have_snap || ++lambda == power) {
+        sim_.snapshot(snap, extra);
+        have_snap = true;
+        if (lambda == power) power *= 2;
+        lambda = 0;
+      }
+    }
+
+    const time_fs last = sim_.last_change();
+    r.settle = last > change_before && last >= start ? last - start : 0;
+    if (r.status == step_status::settled) r.end = start + r.settle;
+    if (r.status == step_status::running && sim_.quiet() && pending_.size() == next_input && clocks_.empty())
+      r.status = step_status::settled;
+    for (std::size_t i = 0; i < result_.reported.size(); ++i) {
+      r.values.push_back(sim_.values()[result_.reported[i]]);
+      r.transitions.push_back(sim_.toggles()[result_.reported[i]] - tog_start[i]);
+    }
+    check_expectations(spec, r, glitch_tog, glitch_start);
+    ref_ = r.end;
+    result_.steps.push_back(std::move(r));
+  }
+
+  void check_expectations(const step_spec& spec, step_result& r, const std::vector<std::uint32_t>& glitch_tog,
+                          const std::vector<logic>& glitch_start) {
+    std::size_t glitch_i = 0;
+    for (const auto& e : spec.expects) {
+      expect_result x;
+      x.spec = &e;
+      switch (e.what) {
+        case expectation::kind::value:
+          x.got = sim_.values()[e.net];
+          x.pass = x.got == e.want;
+          if (!x.pass) x.detail = fmt::format("{} is {}, expected {}", e.ref, to_char(x.got), to_char(e.want));
+          break;
+        case expectation::kind::stable:
+          x.pass = r.status == step_status::settled;
+          if (!x.pass) x.detail = fmt::format("step is {}, expected settled", status_name(r.status));
+          break;
+        case expectation::kind::oscillating:
+          x.pass = r.status == step_status::oscillating && (!e.has_range || (r.period >= e.lo && r.period <= e.hi));
+          if (!x.pass)
+            x.detail = r.status != step_status::oscillating
+                           ? fmt::format("step is {}, expected oscillating", status_name(r.status))
+                           : fmt::format("period {} outside {}..{}", format_time(r.period), format_time(e.lo),
+                                         format_time(e.hi));
+          break;
+        case expectation::kind::within:
+          x.pass = r.status == step_status::settled && r.settle <= e.hi;
+          if (!x.pass)
+            x.detail = r.status != step_status::settled
+                           ? fmt::format("step is {}, expected to settle within {}", status_name(r.status),
+                                         format_time(e.hi))
+                           : fmt::format("settled after {}, budget {}", format_time(r.settle), format_time(e.hi));
+          break;
+        case expectation::kind::no_glitch: {
+          const auto toggles = sim_.toggles()[e.net] - glitch_tog[glitch_i];
+          const std::uint32_t needed = sim_.values()[e.net] != glitch_start[glitch_i] ? 1 : 0;
+          ++glitch_i;
+          x.got = sim_.values()[e.net];
+          x.pass = toggles <= needed;
+          if (!x.pass) x.detail = fmt::format("{} changed {} times, its net change needs {}", e.ref, toggles, needed);
+          break;
+        }
+        case expectation::kind::deterministic:
+          // One corner cannot diverge from itself; sweeps judge this across corners.
+          x.pass = true;
+          break;
+      }
+      r.expects.push_back(std::move(x));
+    }
+  }
+
+  const design& d_;
+  Sim& sim_;
+  run_options opt_;
+  run_result result_;
+  time_fs horizon_ = 0;
+  time_fs ref_ = 0;
+  bool stopped_ = false;
+  std::vector<timed_input> pending_;
+  std::vector<std::pair<time_fs, clock_spec>> clock_starts_;
+  std::vector<clock_state> clocks_;
+};
+
+}  // namespace settle::detail
