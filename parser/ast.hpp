@@ -1,0 +1,157 @@
+// The abstract syntax of one .settle statement, as the X3 grammar produces it.
+#pragma once
+
+#include <boost/spirit/home/x3/support/ast/variant.hpp>
+#include <boost/optional.hpp>
+#include <string>
+#include <vector>
+
+namespace settle::ast {
+namespace x3 = boost::spirit::x3;
+
+/// An identifier or a dotted reference; `pos` points into the source text so
+/// diagnostics can name its line and column.
+struct name {
+  std::string text;
+  const char* pos = nullptr;
+};
+
+/// A time literal: the digits as written ("1.5") and the unit as a power of
+/// ten of femtoseconds (ns = 6). Converted exactly by parser/time_literal.hpp.
+struct time_lit {
+  std::string number;
+  int exponent = 0;
+  const char* pos = nullptr;
+};
+
+/// TIME, TIME..TIME or TIME..TIME..TIME.
+struct range {
+  time_lit a;
+  boost::optional<time_lit> b, c;
+};
+
+struct or_expr;
+/// A net, a constant character '0'/'1', or a parenthesised expression.
+struct primary : x3::variant<name, char, x3::forward_ast<or_expr>> {
+  using base_type::base_type;
+  using base_type::operator=;
+};
+struct unary {
+  std::string nots;  ///< the '~' written before the operand
+  primary operand;
+};
+struct and_expr : std::vector<unary> {};
+struct xor_expr : std::vector<and_expr> {};
+struct or_expr : std::vector<xor_expr> {};
+
+/// One argument of a gate call: `a`, `0`, or `set: EXPR`.
+struct arg {
+  boost::optional<name> label;
+  or_expr value;
+};
+struct call {
+  name kind;
+  std::vector<arg> args;
+};
+struct rhs : x3::variant<call, or_expr> {
+  using base_type::base_type;
+  using base_type::operator=;
+};
+
+/// `net = KIND(...)|EXPR [delay ...] [transport]`; one range = both edges,
+/// two = rise then fall.
+struct gate_stmt {
+  name out;
+  rhs value;
+  boost::optional<std::vector<range>> delay;
+  bool transport = false;
+};
+
+/// `input|output|wire|watch name, ...`
+struct decl {
+  std::string keyword;
+  std::vector<name> names;
+};
+
+struct default_stmt {
+  std::vector<range> delay;
+  bool transport = false;
+};
+
+struct port_group {
+  std::string dir;  ///< "in" or "out"
+  std::vector<name> names;
+};
+struct block_head {
+  name id;
+  std::vector<port_group> groups;
+};
+
+struct binding {
+  name port;
+  name target;  ///< a net name, or "0"/"1"
+};
+struct inst_stmt {
+  name id;
+  name block;
+  std::vector<binding> binds;
+};
+
+struct assign {
+  name net;
+  char value = 'x';
+};
+struct init_stmt {
+  std::string keyword;
+  std::vector<assign> assigns;
+};
+/// `at TIME ...` or `after TIME ...`
+struct timed_stmt {
+  std::string keyword;
+  time_lit time;
+  std::vector<assign> assigns;
+};
+struct clock_stmt {
+  name net;
+  time_lit period;
+  boost::optional<time_lit> high;
+  boost::optional<unsigned long long> cycles;
+};
+struct settle_stmt {
+  std::string keyword;
+  boost::optional<time_lit> within;
+};
+struct run_stmt {
+  std::string keyword;
+  time_lit time;
+};
+
+struct expect_within {
+  std::string word;
+  time_lit time;
+};
+struct expect_glitch {
+  std::string word;
+  std::vector<name> nets;
+};
+/// `stable`, `deterministic`, or `oscillating [period A..B]`.
+struct expect_word {
+  std::string word;
+  boost::optional<range> period;
+};
+struct expect_body : x3::variant<std::vector<assign>, expect_within, expect_glitch, expect_word> {
+  using base_type::base_type;
+  using base_type::operator=;
+};
+struct expect_stmt {
+  std::string keyword;
+  expect_body body;
+};
+
+struct statement : x3::variant<gate_stmt, decl, default_stmt, block_head, inst_stmt, init_stmt, timed_stmt,
+                               clock_stmt, settle_stmt, run_stmt, expect_stmt> {
+  using base_type::base_type;
+  using base_type::operator=;
+};
+
+}  // namespace settle::ast

@@ -1,0 +1,28 @@
+// Boost.Fusion adaptation of the AST structs, for the grammar only.
+#pragma once
+
+#include <boost/fusion/include/adapt_struct.hpp>
+
+#include "parser/ast.hpp"
+
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::range, a, b, c)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::unary, nots, operand)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::arg, label, value)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::call, kind, args)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::gate_stmt, out, value, delay, transport)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::decl, keyword, names)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::default_stmt, delay, transport)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::port_group, dir, names)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::block_head, id, groups)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::binding, port, target)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::inst_stmt, id, block, binds)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::assign, net, value)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::init_stmt, keyword, assigns)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::timed_stmt, keyword, time, assigns)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::clock_stmt, net, period, high, cycles)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::settle_stmt, keyword, within)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::run_stmt, keyword, time)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::expect_within, word, time)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::expect_glitch, word, nets)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::expect_word, word, period)
+BOOST_FUSION_ADAPT_STRUCT(settle::ast::expect_stmt, keyword, body)

@@ -1,0 +1,333 @@
+// The statement driver: splits lines into statements, tracks block/stimulus nesting, recovers per statement.
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <deque>
+
+#include "parser/lower.hpp"
+#include "parser/parse.hpp"
+
+namespace settle::ir {
+
+reporter::reporter(std::string_view text, std::string file, diagnostics& out)
+    : text_(text), file_(std::move(file)), out_(out) {
+  line_start_.push_back(0);
+  for (std::size_t i = 0; i < text.size(); ++i)
+    if (text[i] == '\n') line_start_.push_back(static_cast<std::uint32_t>(i + 1));
+}
+
+source_loc reporter::loc_of(const char* p) const {
+  if (!p || p < text_.data() || p > text_.data() + text_.size()) return {};
+  auto off = static_cast<std::uint32_t>(p - text_.data());
+  auto it = std::upper_bound(line_start_.begin(), line_start_.end(), off);
+  auto line = static_cast<std::uint32_t>(it - line_start_.begin());
+  return {line, off - line_start_[line - 1] + 1};
+}
+
+void reporter::report(diagnostic::level lv, source_loc at, const std::string& msg) {
+  if (!seen_.insert(fmt::format("{}:{}:{}", at.line, at.col, msg)).second) return;
+  diagnostic d;
+  d.severity = lv;
+  d.file = file_;
+  d.line = at.line;
+  d.col = at.col;
+  d.message = msg;
+  if (at.line >= 1 && at.line <= line_start_.size()) {
+    std::size_t b = line_start_[at.line - 1];
+    std::size_t e = at.line < line_start_.size() ? line_start_[at.line] - 1 : text_.size();
+    while (e > b && (text_[e - 1] == '\r' || text_[e - 1] == '\n')) --e;
+    d.source_line = std::string(text_.substr(b, e - b));
+  }
+  if (lv == diagnostic::level::error) ++errors_;
+  out_.add(std::move(d));
+}
+
+namespace {
+
+enum class where { top, block, stim };
+
+/// Lowers each parsed statement into the file, checking it is allowed where it stands.
+struct visitor {
+  using result_type = void;
+  file& f;
+  reporter& rep;
+  file_mode mode;
+  where& at;
+  scope_def*& scope;      // the open block, or &f.top
+  stim_block*& stim;      // the open stimulus block
+  std::deque<scope_def>& dead;  // statements of rejected blocks land here
+  const char* start;      // the statement's first character
+  std::string_view text;  // the statement as written
+
+  source_loc loc() const { return rep.loc_of(start); }
+  stim_stmt make(stim_stmt::kind k) const {
+    stim_stmt s;
+    s.what = k;
+    s.text = std::string(text);
+    s.loc = loc();
+    return s;
+  }
+
+  bool design_only(const char* what) {
+    if (mode == file_mode::stimulus_only && at == where::top) {
+      rep.error(loc(), "a stimulus file holds one stimulus { } block and nothing else");
+      return false;
+    }
+    if (at == where::stim) {
+      rep.error(loc(), fmt::format("{} not allowed inside stimulus {{ }}", what));
+      return false;
+    }
+    return true;
+  }
+  bool stim_only(const std::string& kw) {
+    if (at == where::stim) return true;
+    rep.error(loc(), fmt::format("'{}' is only allowed inside stimulus {{ }}", kw));
+    return false;
+  }
+  bool plain(const ast::name& n) {
+    if (n.text.find('.') == std::string::npos) return true;
+    rep.error(rep.loc_of(n.pos), fmt::format("'{}': declared names cannot contain '.'", n.text));
+    return false;
+  }
+
+  void operator()(const ast::gate_stmt& g) {
+    if (!design_only("gates are")) return;
+    gate out;
+    if (lower_gate(g, out, rep)) scope->gates.push_back(std::move(out));
+  }
+  void operator()(const ast::decl& d) {
+    if (d.keyword == "watch") {
+      if (!stim_only(d.keyword)) return;
+      stim_stmt s = make(stim_stmt::kind::watch);
+      for (auto& n : d.names) s.nets.push_back(lower_ref(n, rep));
+      stim->stmts.push_back(std::move(s));
+      return;
+    }
+    if (!design_only(fmt::format("'{}' is", d.keyword).c_str())) return;
+    if (at == where::block && d.keyword != "wire") {
+      rep.error(loc(), fmt::format("'{}' is not allowed inside a block; blocks declare ports in their header",
+                                   d.keyword));
+      return;
+    }
+    auto& list = d.keyword == "input" ? f.top.ins : d.keyword == "output" ? f.top.outs : scope->wires;
+    for (auto& n : d.names)
+      if (plain(n)) list.push_back(lower_ref(n, rep));
+  }
+  void operator()(const ast::default_stmt& d) {
+    if (!design_only("'default' is")) return;
+    gate_delay gd;
+    if (!lower_delay(d.delay, d.transport, gd, rep)) return;
+    if (scope->default_delay) {
+      rep.error(loc(), "a default delay is already set in this scope");
+      return;
+    }
+    scope->default_delay = gd;
+  }
+  void operator()(const ast::block_head& b) {
+    dead.emplace_back();
+    scope_def* target = &dead.back();
+    if (!design_only("'block' is")) {
+    } else if (at == where::block) {
+      rep.error(loc(), fmt::format("blocks cannot be nested; define '{}' at top level", b.id.text));
+    } else {
+      f.blocks.emplace_back();
+      target = &f.blocks.back();
+    }
+    target->id = lower_ref(b.id, rep);
+    for (auto& g : b.groups)
+      for (auto& n : g.names) (g.dir == "in" ? target->ins : target->outs).push_back(lower_ref(n, rep));
+    at = where::block;
+    scope = target;
+  }
+  void operator()(const ast::inst_stmt& i) {
+    if (!design_only("'inst' is")) return;
+    inst out{lower_ref(i.id, rep), lower_ref(i.block, rep), {}};
+    for (auto& b : i.binds) out.binds.push_back({lower_ref(b.port, rep), lower_ref(b.target, rep)});
+    scope->insts.push_back(std::move(out));
+  }
+  void operator()(const ast::init_stmt& i) {
+    if (!design_only("'init' is")) return;
+    for (auto& a : i.assigns) {
+      if (at == where::block && !plain(a.net)) continue;
+      scope->inits.push_back({lower_ref(a.net, rep), lower_value(a.value)});
+    }
+  }
+  void operator()(const ast::timed_stmt& t) {
+    if (!stim_only(t.keyword)) return;
+    stim_stmt s = make(t.keyword == "at" ? stim_stmt::kind::at : stim_stmt::kind::after);
+    if (!lower_time(t.time, s.time, rep)) return;
+    s.has_time = true;
+    for (auto& a : t.assigns) s.nets.push_back(lower_ref(a.net, rep)), s.values.push_back(lower_value(a.value));
+    stim->stmts.push_back(std::move(s));
+  }
+  void operator()(const ast::clock_stmt& c) {
+    if (!stim_only("clock")) return;
+    stim_stmt s = make(stim_stmt::kind::clock);
+    s.nets.push_back(lower_ref(c.net, rep));
+    if (!lower_time(c.period, s.time, rep)) return;
+    if (s.time == 0) return rep.error(rep.loc_of(c.period.pos), "a clock period must be greater than zero");
+    if (c.high) {
+      if (!lower_time(*c.high, s.time2, rep)) return;
+      if (s.time2 == 0 || s.time2 >= s.time)
+        return rep.error(rep.loc_of(c.high->pos), "a clock's high time must be greater than zero and shorter "
+                                                  "than its period");
+      s.has_time2 = true;
+    }
+    s.cycles = c.cycles.value_or(0ULL);
+    stim->stmts.push_back(std::move(s));
+  }
+  void operator()(const ast::settle_stmt& st) {
+    if (!stim_only(st.keyword)) return;
+    stim_stmt s = make(stim_stmt::kind::settle);
+    if (st.within) {
+      if (!lower_time(*st.within, s.time, rep)) return;
+      s.has_time = true;
+    }
+    stim->stmts.push_back(std::move(s));
+  }
+  void operator()(const ast::run_stmt& r) {
+    if (!stim_only(r.keyword)) return;
+    stim_stmt s = make(stim_stmt::kind::run);
+    if (!lower_time(r.time, s.time, rep)) return;
+    s.has_time = true;
+    stim->stmts.push_back(std::move(s));
+  }
+  void operator()(const ast::expect_stmt& e) {
+    if (!stim_only(e.keyword)) return;
+    stim_stmt s = make(stim_stmt::kind::expect_value);
+    if (auto v = boost::get<std::vector<ast::assign>>(&e.body)) {
+      s.what = stim_stmt::kind::expect_value;
+      for (auto& a : *v) s.nets.push_back(lower_ref(a.net, rep)), s.values.push_back(lower_value(a.value));
+    } else if (auto w = boost::get<ast::expect_within>(&e.body)) {
+      s.what = stim_stmt::kind::expect_within;
+      if (!lower_time(w->time, s.time, rep)) return;
+      s.has_time = true;
+    } else if (auto g = boost::get<ast::expect_glitch>(&e.body)) {
+      s.what = stim_stmt::kind::expect_no_glitch;
+      for (auto& n : g->nets) s.nets.push_back(lower_ref(n, rep));
+    } else {
+      auto& word = boost::get<ast::expect_word>(e.body);
+      s.what = word.word == "stable"          ? stim_stmt::kind::expect_stable
+               : word.word == "deterministic" ? stim_stmt::kind::expect_deterministic
+                                              : stim_stmt::kind::expect_oscillating;
+      if (word.period) {
+        auto& r = *word.period;
+        if (s.what != stim_stmt::kind::expect_oscillating)
+          return rep.error(rep.loc_of(r.a.pos), fmt::format("'period' only follows 'oscillating', not '{}'",
+                                                            word.word));
+        if (r.c) return rep.error(rep.loc_of(r.a.pos), "an oscillation period range is written A..B");
+        if (!lower_time(r.a, s.time, rep)) return;
+        s.time2 = s.time;
+        if (r.b && !lower_time(*r.b, s.time2, rep)) return;
+        if (s.time2 < s.time) return rep.error(rep.loc_of(r.a.pos), "an oscillation period range needs A <= B");
+        s.has_time = s.has_time2 = true;
+      }
+    }
+    stim->stmts.push_back(std::move(s));
+  }
+};
+
+bool blank(char c) { return c == ' ' || c == '\t' || c == '\r'; }
+
+/// True when the expression nesting is within the limit; otherwise reports it.
+bool depth_ok(std::string_view s, reporter& rep) {
+  int depth = 0;
+  for (const char& c : s) {
+    if (c == '(' && ++depth > max_expr_depth) {
+      rep.error(rep.loc_of(&c), fmt::format("expression nested deeper than {} levels", max_expr_depth));
+      return false;
+    }
+    if (c == ')') --depth;
+  }
+  return true;
+}
+
+}  // namespace
+
+void parse_file(std::string_view text, file_mode mode, file& f, reporter& rep) {
+  where at = where::top;
+  scope_def* scope = &f.top;
+  stim_block spare;             // a second stimulus block is parsed here and dropped
+  stim_block* stim = &f.stim;
+  std::deque<scope_def> dead;  // blocks in the wrong place are parsed here and dropped
+  source_loc open_loc;
+  std::string open_name;
+
+  const char* p = text.data();
+  const char* const end = text.data() + text.size();
+  ast::statement st;
+  while (p < end) {
+    const char* eol = std::find(p, end, '\n');
+    const char* stop = std::find(p, eol, '#');
+    // Split at ';' outside parentheses (a block header has ';' between its port groups).
+    const char* b = p;
+    int depth = 0;
+    for (const char* q = p;; ++q) {
+      if (q < stop && *q == '(') ++depth;
+      if (q < stop && *q == ')') --depth;
+      if (q < stop && !(*q == ';' && depth <= 0)) continue;
+      const char* s = b;
+      const char* e = q;
+      b = q + 1;
+      while (s < e && blank(*s)) ++s;
+      while (e > s && blank(e[-1])) --e;
+      if (s < e) {
+        std::string_view piece(s, static_cast<std::size_t>(e - s));
+        const auto here = rep.loc_of(s);
+        if (piece == "}") {
+          if (at == where::top) {
+            rep.error(here, "'}' without an open block or stimulus");
+          } else {
+            if (at == where::stim) stim->close_loc = here;
+            at = where::top;
+            scope = &f.top;
+            stim = &f.stim;
+          }
+        } else if (piece.substr(0, 8) == "stimulus" && (piece.size() == 8 || blank(piece[8]) || piece[8] == '{')) {
+          auto rest = piece.substr(8);
+          while (!rest.empty() && blank(rest.front())) rest.remove_prefix(1);
+          if (rest != "{") {
+            rep.error(rest.empty() ? rep.loc_of(s + 8) : rep.loc_of(rest.data()), "expected '{' after 'stimulus'");
+          } else if (at != where::top) {
+            rep.error(here, "a stimulus block belongs at top level");
+          } else {
+            if (f.stim.present) {
+              rep.error(here, "only one stimulus block is allowed");
+              stim = &spare;
+            }
+            stim->present = true;
+            stim->loc = here;
+            at = where::stim;
+            open_loc = here;
+          }
+        } else if (depth_ok(piece, rep)) {
+          grammar::syntax_error err;
+          st = ast::statement{};
+          if (grammar::parse_statement(piece, st, err)) {
+            visitor v{f, rep, mode, at, scope, stim, dead, s, piece};
+            boost::apply_visitor(v, st);
+            if (boost::get<ast::block_head>(&st)) open_loc = here, open_name = scope->id.name;
+          } else {
+            rep.error(rep.loc_of(err.pos), err.message);
+            // A broken block header still opens a block, so its '}' is not reported again.
+            if (piece.back() == '{' && at == where::top) {
+              dead.emplace_back();
+              scope = &dead.back();
+              at = where::block;
+              open_loc = here;
+              open_name.clear();
+            }
+          }
+        }
+      }
+      if (q >= stop) break;
+    }
+    p = eol + 1;
+  }
+  if (at == where::block)
+    rep.error(open_loc, open_name.empty() ? std::string("block is not closed with '}'")
+                                          : fmt::format("block '{}' is not closed with '}}'", open_name));
+  if (at == where::stim) rep.error(open_loc, "stimulus block is not closed with '}'");
+}
+
+}  // namespace settle::ir

@@ -1,0 +1,332 @@
+// Elaboration: IR scopes -> flat netlist, with an explicit work stack (no recursion over the hierarchy).
+#include <fmt/format.h>
+
+#include <unordered_map>
+#include <unordered_set>
+
+#include "parser/ir.hpp"
+
+namespace settle::ir {
+namespace {
+
+std::string at_text(source_loc l) { return fmt::format("{}:{}", l.line, l.col); }
+
+/// One placed scope waiting to be elaborated.
+struct frame {
+  const scope_def* def = nullptr;
+  std::uint32_t scope = 0;
+  std::string prefix;                                     // "deb." for an instance
+  std::vector<std::pair<std::string_view, net_id>> bound;  // port -> parent net
+  bool dry = false;                                       // check an unused block only
+};
+
+class elaborator {
+ public:
+  elaborator(const file& f, reporter& rep) : f_(f), rep_(rep) {}
+
+  void run(netlist& nl) {
+    nl.begin();
+    index_blocks();
+    find_recursion();
+    std::vector<frame> work;
+    work.push_back(frame{&f_.top, 0, "", {}, false});
+    drain(nl, work);
+    nl.finish();
+    top_inits(nl);
+    final_checks(nl);
+    // Blocks never placed are still checked, in a scratch netlist.
+    for (std::size_t b = 0; b < f_.blocks.size(); ++b) {
+      if (used_[b] || duplicate_[b]) continue;
+      rep_.warning(f_.blocks[b].id.loc, fmt::format("block '{}' is never instantiated", f_.blocks[b].id.name));
+      netlist scratch;
+      scratch.begin();
+      std::vector<bool> saved_input;
+      saved_input.swap(is_input_);
+      std::vector<source_loc> saved_decl;
+      saved_decl.swap(decl_loc_);
+      work.push_back(frame{&f_.blocks[b], 0, f_.blocks[b].id.name + ".", {}, true});
+      drain(scratch, work);
+      is_input_.swap(saved_input);
+      decl_loc_.swap(saved_decl);
+    }
+  }
+
+ private:
+  void index_blocks() {
+    used_.assign(f_.blocks.size(), false);
+    duplicate_.assign(f_.blocks.size(), false);
+    for (std::size_t i = 0; i < f_.blocks.size(); ++i) {
+      auto& b = f_.blocks[i];
+      auto [it, fresh] = block_.emplace(b.id.name, static_cast<std::uint32_t>(i));
+      if (!fresh) {
+        rep_.error(b.id.loc, fmt::format("block '{}' is already defined at {}", b.id.name,
+                                         at_text(f_.blocks[it->second].id.loc)));
+        duplicate_[i] = true;
+      }
+    }
+  }
+
+  /// Depth-first search over the block graph with an explicit stack; an edge
+  /// back into the current path is a recursive instantiation.
+  void find_recursion() {
+    enum : std::uint8_t { white, grey, black };
+    std::vector<std::uint8_t> colour(f_.blocks.size(), white);
+    struct item {
+      std::uint32_t block;
+      std::size_t next;
+    };
+    for (std::uint32_t root = 0; root < f_.blocks.size(); ++root) {
+      if (colour[root] != white || duplicate_[root]) continue;
+      std::vector<item> path{{root, 0}};
+      colour[root] = grey;
+      while (!path.empty()) {
+        auto& top = path.back();
+        const auto& insts = f_.blocks[top.block].insts;
+        if (top.next == insts.size()) {
+          colour[top.block] = black;
+          path.pop_back();
+          continue;
+        }
+        const inst& in = insts[top.next++];
+        auto it = block_.find(in.block.name);
+        if (it == block_.end()) continue;
+        if (colour[it->second] == grey) {
+          std::string cycle;
+          bool on = false;
+          for (auto& p : path) {
+            on = on || p.block == it->second;
+            if (on) cycle += f_.blocks[p.block].id.name + " -> ";
+          }
+          rep_.error(in.block.loc, fmt::format("recursive instantiation: {}{}", cycle, in.block.name));
+          recursive_.insert(&in);
+        } else if (colour[it->second] == white) {
+          colour[it->second] = grey;
+          path.push_back({it->second, 0});
+        }
+      }
+    }
+  }
+
+  net_id new_net(netlist& nl, std::string name, std::uint32_t scope, source_loc loc, bool input) {
+    net_id id = nl.add_net(std::move(name), scope);
+    is_input_.resize(nl.net_count(), false);
+    decl_loc_.resize(nl.net_count());
+    is_input_[id] = input;
+    decl_loc_[id] = loc;
+    return id;
+  }
+
+  void drain(netlist& nl, std::vector<frame>& work) {
+    while (!work.empty()) {
+      frame fr = std::move(work.back());
+      work.pop_back();
+      place(nl, fr, work);
+    }
+  }
+
+  /// Elaborates one scope: its names, gates, inits, and pushes its instances.
+  void place(netlist& nl, const frame& fr, std::vector<frame>& work) {
+    const scope_def& d = *fr.def;
+    const bool top = fr.def == &f_.top;
+    std::unordered_map<std::string_view, net_id> local;
+    std::unordered_map<std::string_view, source_loc> taken;
+    std::unordered_set<std::string_view> in_ports;
+    auto claim = [&](const ref& r) {
+      auto [it, fresh] = taken.emplace(r.name, r.loc);
+      if (!fresh) rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name, at_text(it->second)));
+      return fresh;
+    };
+    enum role { as_input, as_output, as_wire };
+    auto declare = [&](const ref& r, role ro) {
+      const bool input = ro == as_input;
+      if (!claim(r)) return;
+      net_id id = new_net(nl, fr.prefix + r.name, fr.scope, r.loc, input);
+      local.emplace(r.name, id);
+      nl.aliases.push_back({fr.scope, r.name, id});
+      if (ro == as_input) nl.inputs.push_back(id);
+      if (ro == as_output) nl.outputs.push_back(id);
+    };
+    if (top) {
+      for (auto& r : d.ins) declare(r, as_input);
+      for (auto& r : d.outs) declare(r, as_output);
+    } else {
+      auto bound = [&](const std::string& port) -> net_id {
+        for (auto& [p, n] : fr.bound)
+          if (p == port) return n;
+        return no_id;
+      };
+      for (int dir = 0; dir < 2; ++dir)
+        for (auto& r : dir == 0 ? d.ins : d.outs) {
+          if (dir == 0) in_ports.insert(r.name);
+          net_id n = bound(r.name);
+          if (n == no_id) {
+            if (claim(r)) {
+              n = new_net(nl, fr.prefix + r.name, fr.scope, r.loc, dir == 0 && fr.dry);
+              local.emplace(r.name, n);
+              nl.aliases.push_back({fr.scope, r.name, n});
+            }
+            continue;
+          }
+          if (!claim(r)) continue;
+          local.emplace(r.name, n);
+          nl.aliases.push_back({fr.scope, r.name, n});
+          nl.by_name.emplace(fr.prefix + r.name, n);
+        }
+    }
+    for (auto& r : d.wires) declare(r, as_wire);
+    for (auto& i : d.insts) claim(i.id);
+
+    auto lookup = [&](const ref& r) -> net_id {
+      if (r.name == "0") return netlist::const0;
+      if (r.name == "1") return netlist::const1;
+      auto it = local.find(r.name);
+      if (it != local.end()) return it->second;
+      rep_.error(r.loc, fmt::format("unknown net '{}'", r.name));
+      return no_id;
+    };
+
+    std::vector<net_id> fanin;
+    for (auto& g : d.gates) {
+      net_id out = lookup(g.out);
+      bool ok = out != no_id;
+      if (ok && out <= netlist::const1) {
+        rep_.error(g.out.loc, "a gate cannot drive a constant");
+        ok = false;
+      }
+      if (ok && in_ports.count(g.out.name)) {
+        rep_.error(g.out.loc, fmt::format("port '{}' is an input of block '{}'; a gate cannot drive it", g.out.name,
+                                          d.id.name));
+        ok = false;
+      } else if (ok && is_input_[out]) {
+        rep_.error(g.out.loc, fmt::format("net '{}' is an input; a gate cannot drive it", nl.net_name[out]));
+        ok = false;
+      } else if (ok && nl.driver[out] != no_id) {
+        rep_.error(g.out.loc, fmt::format("net '{}' has two drivers (the other at {})", nl.net_name[out],
+                                          at_text(nl.gate_loc[nl.driver[out]])));
+        ok = false;
+      }
+      fanin.clear();
+      for (auto& r : g.reads) {
+        net_id n = lookup(r);
+        ok = ok && n != no_id;
+        fanin.push_back(n);
+      }
+      gate_delay delay = g.delay;
+      if (!g.has_delay) {
+        const auto& dflt = d.default_delay ? d.default_delay : f_.top.default_delay;
+        if (!dflt) {
+          rep_.error(g.out.loc, fmt::format("gate '{}' has no delay and no default delay is in scope", g.out.name));
+          ok = false;
+        } else {
+          delay = *dflt;
+          delay.transport = g.delay.transport || dflt->transport;
+        }
+      }
+      if (ok) nl.add_gate(g.kind, out, fanin, g.code, delay, g.out.loc);
+    }
+    for (auto& in : d.inits) {
+      if (top) continue;  // top-level inits may name nets inside instances: applied after elaboration
+      net_id n = lookup(in.net);
+      if (n != no_id) nl.init[n] = in.value;
+    }
+    for (auto& in : d.insts) place_instance(nl, fr, in, lookup, work);
+  }
+
+  template <typename Lookup>
+  void place_instance(netlist& nl, const frame& fr, const inst& in, Lookup& lookup, std::vector<frame>& work) {
+    if (recursive_.count(&in)) return;
+    auto it = block_.find(in.block.name);
+    if (it == block_.end()) {
+      rep_.error(in.block.loc, fmt::format("unknown block '{}'", in.block.name));
+      return;
+    }
+    const scope_def& b = f_.blocks[it->second];
+    used_[it->second] = true;
+    frame child{&b, 0, fr.prefix + in.id.name + ".", {}, fr.dry};
+    bool ok = true;
+    for (auto& bind : in.binds) {
+      bool is_in = false, is_out = false;
+      for (auto& r : b.ins) is_in = is_in || r.name == bind.port.name;
+      for (auto& r : b.outs) is_out = is_out || r.name == bind.port.name;
+      if (!is_in && !is_out) {
+        rep_.error(bind.port.loc, fmt::format("block '{}' has no port '{}'", b.id.name, bind.port.name));
+        ok = false;
+        continue;
+      }
+      bool twice = false;
+      for (auto& [p, n] : child.bound) twice = twice || p == bind.port.name;
+      if (twice) {
+        rep_.error(bind.port.loc, fmt::format("port '{}' is bound twice", bind.port.name));
+        ok = false;
+        continue;
+      }
+      if (is_out && (bind.target.name == "0" || bind.target.name == "1")) {
+        rep_.error(bind.target.loc, fmt::format("output port '{}' cannot be bound to a constant", bind.port.name));
+        ok = false;
+        continue;
+      }
+      net_id n = lookup(bind.target);
+      if (n == no_id) {
+        ok = false;
+        continue;
+      }
+      child.bound.emplace_back(bind.port.name, n);
+    }
+    for (auto& r : b.ins) {
+      bool found = false;
+      for (auto& bind : in.binds) found = found || bind.port.name == r.name;
+      if (!found) {
+        rep_.error(in.id.loc, fmt::format("input port '{}' of block '{}' is not bound", r.name, b.id.name));
+        ok = false;
+      }
+    }
+    if (!ok) return;
+    child.scope = static_cast<std::uint32_t>(nl.scopes.size());
+    nl.scopes.push_back(scope{in.id.name, b.id.name, fr.scope});
+    ++nl.instances;
+    work.push_back(std::move(child));
+  }
+
+  void top_inits(netlist& nl) {
+    for (auto& in : f_.top.inits) {
+      net_id n = nl.find(in.net.name);
+      if (n == no_id || n <= netlist::const1)
+        rep_.error(in.net.loc, fmt::format("unknown net '{}'", in.net.name));
+      else
+        nl.init[n] = in.value;
+    }
+  }
+
+  void final_checks(netlist& nl) {
+    std::vector<bool> is_output(nl.net_count(), false);
+    for (auto n : nl.outputs) is_output[n] = true;
+    for (net_id n = 2; n < nl.net_count(); ++n) {
+      const bool driven = nl.driver[n] != no_id || is_input_[n];
+      const bool read = nl.fanout_begin[n + 1] > nl.fanout_begin[n];
+      const auto& name = nl.net_name[n];
+      if (!driven && is_output[n])
+        rep_.error(decl_loc_[n], fmt::format("output '{}' is never driven", name));
+      else if (!driven && read)
+        rep_.error(decl_loc_[n], fmt::format("net '{}' is read but never driven", name));
+      else if (!driven)
+        rep_.warning(decl_loc_[n], fmt::format("net '{}' is declared but never used", name));
+      else if (!read && !is_output[n])
+        rep_.warning(decl_loc_[n], is_input_[n] ? fmt::format("input '{}' is never read", name)
+                                                 : fmt::format("net '{}' is driven but never read", name));
+    }
+  }
+
+  const file& f_;
+  reporter& rep_;
+  std::unordered_map<std::string_view, std::uint32_t> block_;
+  std::vector<bool> used_, duplicate_;
+  std::unordered_set<const inst*> recursive_;
+  std::vector<bool> is_input_;
+  std::vector<source_loc> decl_loc_;
+};
+
+}  // namespace
+
+void elaborate(const file& f, netlist& nl, reporter& rep) { elaborator(f, rep).run(nl); }
+
+}  // namespace settle::ir

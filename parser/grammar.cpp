@@ -1,0 +1,46 @@
+// The single instantiation of the statement grammar, and the parse_statement facade.
+#include "parser/grammar_def.hpp"
+
+#include "parser/config.hpp"
+#include "parser/error_handler.hpp"
+#include "parser/parse.hpp"
+
+namespace settle::grammar {
+
+BOOST_SPIRIT_INSTANTIATE(statement_type, iterator_type, context_type)
+
+bool parse_statement(std::string_view text, ast::statement& out, syntax_error& err) {
+  iterator_type first = text.data();
+  iterator_type const last = text.data() + text.size();
+  try {
+    bool ok = x3::phrase_parse(first, last, statement(), x3::ascii::blank, out);
+    while (first != last && (*first == ' ' || *first == '\t')) ++first;
+    if (ok && first == last) return true;
+    err.pos = first;
+    if (!ok) {
+      err.message = "unknown statement";
+      return false;
+    }
+    const char* e = first;
+    while (e != last && *e != ' ' && *e != '\t') ++e;
+    err.message = "unexpected '" + std::string(first, e) + "'";
+    return false;
+  } catch (x3::expectation_failure<iterator_type> const& f) {
+    err.pos = f.where();
+    std::string found;
+    const char* e = f.where();
+    while (e != last && *e != ' ' && *e != '\t' && *e != ',' && *e != ')' && *e != '(') ++e;
+    if (e == f.where() && e != last) ++e;
+    found.assign(f.where(), e);
+    err.message = "expected " + describe(f.which());
+    if (found.empty())
+      err.message += " at the end of the statement";
+    else if (is_reserved(found))
+      err.message += ", found keyword '" + found + "'";
+    else
+      err.message += ", found '" + found + "'";
+    return false;
+  }
+}
+
+}  // namespace settle::grammar

@@ -1,0 +1,220 @@
+// The .settle statement grammar (Boost.Spirit X3) and its DEFINE.
+#pragma once
+
+#include <boost/spirit/home/x3.hpp>
+#include <boost/spirit/home/x3/support/ast/variant.hpp>
+#include <string_view>
+
+#include "parser/ast.hpp"
+#include "parser/ast_adapted.hpp"
+#include "parser/grammar.hpp"
+
+namespace settle::grammar {
+namespace x3 = boost::spirit::x3;
+
+///////////////////////////////////////////////////////////////////////////////
+// Keywords: a whole word, not the prefix of an identifier
+///////////////////////////////////////////////////////////////////////////////
+struct kw_parser : x3::parser<kw_parser> {
+  using attribute_type = x3::unused_type;
+  static bool const has_attribute = false;
+  const char* word;
+  constexpr explicit kw_parser(const char* w) : word(w) {}
+
+  template <typename It, typename Ctx, typename RCtx, typename Attr>
+  bool parse(It& first, It const& last, Ctx const& ctx, RCtx&, Attr&) const {
+    x3::skip_over(first, last, ctx);
+    It i = first;
+    for (const char* p = word; *p; ++p, ++i)
+      if (i == last || *i != *p) return false;
+    if (i != last && (std::isalnum(static_cast<unsigned char>(*i)) || *i == '_')) return false;
+    first = i;
+    return true;
+  }
+};
+inline constexpr kw_parser kw(const char* w) { return kw_parser(w); }
+
+/// Words that cannot name a net, block or instance (they begin statements or delays).
+inline bool is_reserved(std::string_view w) {
+  for (const char* k : {"input", "output", "wire", "default", "delay", "rise", "fall", "transport", "block",
+                        "inst", "init", "stimulus", "at", "after", "clock", "settle", "run", "expect", "watch"})
+    if (w == k) return true;
+  return false;
+}
+
+namespace detail {
+using x3::_attr;
+using x3::_pass;
+using x3::_val;
+
+inline auto const set_name = [](auto& ctx) {
+  auto& r = _attr(ctx);
+  _val(ctx).text.assign(r.begin(), r.end());
+  _val(ctx).pos = &*r.begin();
+  // A dotted reference may not start with a keyword; a plain one may not be one.
+  auto dot = _val(ctx).text.find('.');
+  _pass(ctx) = !is_reserved(std::string_view(_val(ctx).text).substr(0, dot));
+};
+inline auto const set_const_name = [](auto& ctx) {
+  auto& r = _attr(ctx);
+  _val(ctx).text.assign(r.begin(), r.end());
+  _val(ctx).pos = &*r.begin();
+};
+inline auto const set_time = [](auto& ctx) {
+  using boost::fusion::at_c;
+  auto& a = _attr(ctx);
+  auto& r = at_c<0>(a);
+  _val(ctx).number.assign(r.begin(), r.end());
+  _val(ctx).pos = &*r.begin();
+  _val(ctx).exponent = at_c<1>(a);
+};
+}  // namespace detail
+
+struct time_units : x3::symbols<int> {
+  time_units() { add("fs", 0)("ps", 3)("ns", 6)("us", 9)("ms", 12); }
+};
+inline time_units const time_unit_table;
+
+template <typename P>
+auto list(P const& p) { return p >> *(',' > p); }
+
+auto const ident_chars = (x3::alpha | '_') >> *(x3::alnum | '_');
+auto const word_end = !(x3::alnum | '_');
+
+///////////////////////////////////////////////////////////////////////////////
+// Rules
+///////////////////////////////////////////////////////////////////////////////
+using raw_range = boost::iterator_range<const char*>;
+x3::rule<class ident_raw, raw_range> const ident_raw = "name_";
+x3::rule<class ref_raw, raw_range> const ref_raw = "ref_";
+x3::rule<class const_raw, raw_range> const const_raw = "target_";
+x3::rule<class number_raw, raw_range> const number_raw = "time_";
+x3::rule<class name_, ast::name> const name_ = "name_";
+x3::rule<class ref_, ast::name> const ref_ = "ref_";
+x3::rule<class const_name, ast::name> const const_name = "target_";
+x3::rule<class target_, ast::name> const target_ = "target_";
+x3::rule<class time_unit, int> const time_unit = "time_unit";
+x3::rule<class time_, ast::time_lit> const time_ = "time_";
+x3::rule<class range_, ast::range> const range_ = "range_";
+x3::rule<class rise_fall, std::vector<ast::range>> const rise_fall = "rise_fall";
+x3::rule<class delay_body, std::vector<ast::range>> const delay_body = "delay_body";
+x3::rule<class or_expr, ast::or_expr> const or_expr = "or_expr";
+x3::rule<class xor_expr, ast::xor_expr> const xor_expr = "xor_expr";
+x3::rule<class and_expr, ast::and_expr> const and_expr = "and_expr";
+x3::rule<class unary, ast::unary> const unary = "unary";
+x3::rule<class primary, ast::primary> const primary = "primary";
+x3::rule<class arg, ast::arg> const arg = "arg";
+x3::rule<class call, ast::call> const call = "call";
+x3::rule<class rhs, ast::rhs> const rhs = "rhs";
+x3::rule<class gate, ast::gate_stmt> const gate = "gate";
+x3::rule<class decl, ast::decl> const decl = "decl";
+x3::rule<class default_, ast::default_stmt> const default_ = "default_";
+x3::rule<class port_group, ast::port_group> const port_group = "port_group";
+x3::rule<class block_head, ast::block_head> const block_head = "block_head";
+x3::rule<class binding, ast::binding> const binding = "binding";
+x3::rule<class inst, ast::inst_stmt> const inst = "inst";
+x3::rule<class value_, char> const value_ = "value_";
+x3::rule<class assign, ast::assign> const assign = "assign";
+x3::rule<class assigns, std::vector<ast::assign>> const assigns = "assigns";
+x3::rule<class init, ast::init_stmt> const init = "init";
+x3::rule<class timed, ast::timed_stmt> const timed = "timed";
+x3::rule<class clock, ast::clock_stmt> const clock = "clock";
+x3::rule<class cycles_count, unsigned long long> const cycles_count = "cycles_count";
+x3::rule<class settle_, ast::settle_stmt> const settle_ = "settle_";
+x3::rule<class run, ast::run_stmt> const run = "run";
+x3::rule<class expect_within, ast::expect_within> const expect_within = "expect_within";
+x3::rule<class expect_glitch, ast::expect_glitch> const expect_glitch = "expect_glitch";
+x3::rule<class expect_word, ast::expect_word> const expect_word = "expect_word";
+x3::rule<class expect_body, ast::expect_body> const expect_body = "expect_body";
+x3::rule<class expect, ast::expect_stmt> const expect = "expect";
+x3::rule<class ref_list, std::vector<ast::name>> const ref_list = "ref_list";
+x3::rule<class name_list, std::vector<ast::name>> const name_list = "name_list";
+x3::rule<class port_groups, std::vector<ast::port_group>> const port_groups = "port_groups";
+x3::rule<class bindings, std::vector<ast::binding>> const bindings = "bindings";
+x3::rule<class args, std::vector<ast::arg>> const args = "args";
+statement_type const statement_rule = "statement";
+auto const ref_list_def = list(ref_);
+auto const name_list_def = list(name_);
+auto const port_groups_def = port_group >> *(';' > port_group);
+auto const bindings_def = binding >> *(',' > binding);
+auto const args_def = arg >> *(',' > arg);
+
+// ---- lexemes
+auto const ident_raw_def = x3::raw[x3::lexeme[ident_chars]];
+auto const ref_raw_def = x3::raw[x3::lexeme[ident_chars >> *('.' >> ident_chars)]];
+auto const const_raw_def = x3::raw[x3::lexeme[x3::char_("01") >> word_end]];
+auto const number_raw_def = x3::raw[x3::lexeme[+x3::digit >> -('.' >> +x3::digit)]];
+auto const name__def = ident_raw[detail::set_name];
+auto const ref__def = ref_raw[detail::set_name];
+auto const const_name_def = const_raw[detail::set_const_name];
+// No semantic action at this level, so the alternative's attribute propagates.
+auto const target__def = ref_ | const_name;
+auto const time_unit_def = x3::lexeme[time_unit_table >> word_end];
+// The fraction needs a digit after the dot, so "35ps..55ps" and "1..2" keep their "..".
+auto const time__def = (number_raw > time_unit)[detail::set_time];
+auto const range__def = time_ >> -(x3::lit("..") > time_) >> -(x3::lit("..") > time_);
+auto const rise_fall_def = kw("rise") > range_ > kw("fall") > range_;
+auto const delay_body_def = rise_fall | x3::repeat(1)[range_];
+
+// ---- expressions: precedence ~ > & > ^ > |
+auto const or_expr_def = xor_expr >> *('|' > xor_expr);
+auto const xor_expr_def = and_expr >> *('^' > and_expr);
+auto const and_expr_def = unary >> *('&' > unary);
+auto const unary_def = *x3::char_('~') > primary;
+auto const primary_def = name_ | x3::lexeme[x3::char_("01") >> word_end] | ('(' > or_expr > ')');
+
+// ---- gates
+// The lookahead keeps a plain net argument from being taken for a label.
+auto const arg_def = -(&(x3::lexeme[ident_chars] >> ':') >> name_ >> ':') >> or_expr;
+auto const call_def = name_ >> '(' > -args > ')';
+auto const rhs_def = call | or_expr;
+auto const gate_def = name_ >> '=' > rhs >> -((kw("delay") > delay_body) | rise_fall) >> x3::matches[kw("transport")];
+
+// ---- declarations and structure
+auto const decl_def = x3::raw[kw("input") | kw("output") | kw("wire") | kw("watch")] > ref_list;
+auto const default__def = kw("default") > kw("delay") > delay_body >> x3::matches[kw("transport")];
+auto const port_group_def = x3::raw[kw("in") | kw("out")] > name_list;
+auto const block_head_def = kw("block") > name_ > '(' > -port_groups > ')' > '{';
+auto const binding_def = name_ > ':' > target_;
+auto const inst_def = kw("inst") > name_ > name_ > '(' > -bindings > ')';
+auto const value__def = x3::lexeme[x3::char_("01xX") >> word_end];
+auto const assign_def = ref_ >> '=' > value_;
+auto const assigns_def = list(assign);
+auto const init_def = x3::raw[kw("init")] > assigns;
+
+// ---- stimulus
+auto const timed_def = x3::raw[kw("at") | kw("after")] > time_ > assigns;
+auto const cycles_count_def = x3::lexeme[x3::ulong_long >> word_end];
+auto const clock_def = kw("clock") > ref_ > kw("period") > time_ > -(kw("high") > time_) >
+                       -(kw("cycles") > cycles_count);
+auto const settle__def = x3::raw[kw("settle")] >> -(kw("within") > time_);
+auto const run_def = x3::raw[kw("run")] > time_;
+auto const expect_within_def = x3::raw[kw("settle")] > kw("within") > time_;
+auto const expect_glitch_def = x3::raw[kw("no")] > kw("glitch") > kw("on") > ref_list;
+auto const expect_word_def =
+    x3::raw[kw("stable") | kw("oscillating") | kw("deterministic")] >> -(kw("period") > range_);
+auto const expect_body_def = assigns | expect_within | expect_glitch | expect_word;
+auto const expect_def = x3::raw[kw("expect")] > expect_body;
+
+auto const statement_rule_def = decl | default_ | block_head | inst | init | timed | clock | settle_ | run |
+                                expect | gate;
+
+BOOST_SPIRIT_DEFINE(ident_raw, ref_raw, const_raw, number_raw, const_name, name_, ref_, target_, time_unit, time_, range_, rise_fall, delay_body, or_expr, xor_expr,
+                    and_expr, unary, primary, arg, call, rhs, gate, decl, default_, port_group, block_head,
+                    binding, inst, value_, assign, assigns, init, timed, clock, cycles_count, settle_, run,
+                    expect_within, expect_glitch, expect_word, expect_body, expect, ref_list, name_list,
+                    port_groups, bindings, args, statement_rule)
+
+}  // namespace settle::grammar
+
+namespace boost::spirit::x3 {
+template <>
+struct get_info<settle::grammar::kw_parser> {
+  using result_type = std::string;
+  std::string operator()(settle::grammar::kw_parser const& p) const { return "'" + std::string(p.word) + "'"; }
+};
+}  // namespace boost::spirit::x3
+
+namespace settle::grammar {
+inline statement_type const& statement() { return statement_rule; }
+}  // namespace settle::grammar

@@ -1,0 +1,118 @@
+// The lowered form of a .settle file: per-scope declarations, gates and stimulus statements (no X3).
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <unordered_set>
+#include <vector>
+
+#include "sim/diagnostic.hpp"
+#include "sim/netlist.hpp"
+#include "sim/stimulus.hpp"
+
+namespace settle::ir {
+
+/// A name as written, with its position.
+struct ref {
+  std::string name;
+  source_loc loc;
+};
+
+/// A gate: reads are the fan-in (arguments in order for primitives, distinct
+/// nets for expr/gc; the names "0" and "1" are the constants).
+struct gate {
+  ref out;
+  gate_kind kind = gate_kind::buf;
+  std::vector<ref> reads;
+  std::vector<std::uint32_t> code;
+  bool has_delay = false;
+  gate_delay delay;
+};
+
+struct binding {
+  ref port, target;
+};
+struct inst {
+  ref id, block;
+  std::vector<binding> binds;
+};
+struct init {
+  ref net;
+  logic value = logic::x;
+};
+
+/// A block definition, or the top level (then ins/outs are inputs/outputs).
+struct scope_def {
+  ref id;
+  std::vector<ref> ins, outs, wires;
+  std::vector<gate> gates;
+  std::vector<inst> insts;
+  std::vector<init> inits;
+  std::optional<gate_delay> default_delay;
+};
+
+/// One statement of a stimulus block, times already in fs.
+struct stim_stmt {
+  enum class kind : std::uint8_t {
+    at, after, clock, settle, run, watch,
+    expect_value, expect_stable, expect_oscillating, expect_within, expect_no_glitch, expect_deterministic,
+  } what = kind::settle;
+  time_fs time = 0, time2 = 0;   ///< at/after/run/within time; clock period+high; oscillating lo+hi
+  bool has_time = false, has_time2 = false;
+  std::uint64_t cycles = 0;
+  std::vector<ref> nets;
+  std::vector<logic> values;
+  std::string text;              ///< the statement as written, trimmed
+  source_loc loc;
+};
+
+struct stim_block {
+  bool present = false;
+  source_loc loc, close_loc;
+  std::vector<stim_stmt> stmts;
+};
+
+struct file {
+  scope_def top;
+  std::vector<scope_def> blocks;
+  stim_block stim;
+};
+
+/// Source text with a line index: turns positions into diagnostics.
+class reporter {
+ public:
+  reporter(std::string_view text, std::string file, diagnostics& out);
+  /// The 1-based line and column of a pointer into the text.
+  source_loc loc_of(const char* p) const;
+  /// Adds a diagnostic once per (position, message).
+  void report(diagnostic::level lv, source_loc at, const std::string& msg);
+  void error(source_loc at, const std::string& msg) { report(diagnostic::level::error, at, msg); }
+  void warning(source_loc at, const std::string& msg) { report(diagnostic::level::warning, at, msg); }
+  std::size_t errors() const { return errors_; }
+
+ private:
+  std::string_view text_;
+  std::string file_;
+  diagnostics& out_;
+  std::vector<std::uint32_t> line_start_;
+  std::unordered_set<std::string> seen_;
+  std::size_t errors_ = 0;
+};
+
+/// What the file may hold: a design (with an optional embedded stimulus), or
+/// only one `stimulus { }` block (a --stim file).
+enum class file_mode : std::uint8_t { design, stimulus_only };
+
+/// Parses the whole text statement by statement into `out`; reports syntax and
+/// structure errors and keeps going on the next statement.
+void parse_file(std::string_view text, file_mode mode, file& out, reporter& rep);
+
+/// Builds the flat netlist from the lowered file; reports elaboration errors.
+void elaborate(const file& f, netlist& nl, reporter& rep);
+
+/// Turns stimulus statements into steps against an elaborated netlist.
+void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, reporter& rep);
+
+}  // namespace settle::ir

@@ -1,0 +1,227 @@
+// Lowering gates and delays: kind and arity checks, postfix programs, exact delay ranges.
+#include "parser/lower.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <unordered_map>
+
+#include "parser/time_literal.hpp"
+
+namespace settle::ir {
+namespace {
+
+struct kind_entry {
+  const char* word;
+  gate_kind kind;
+};
+constexpr kind_entry kinds[] = {
+    {"not", gate_kind::inv},   {"buf", gate_kind::buf},   {"and", gate_kind::and_}, {"or", gate_kind::or_},
+    {"nand", gate_kind::nand}, {"nor", gate_kind::nor},   {"xor", gate_kind::xor_}, {"xnor", gate_kind::xnor},
+    {"mux", gate_kind::mux},   {"maj", gate_kind::maj},   {"c", gate_kind::celem},  {"gc", gate_kind::gc},
+};
+
+/// Finds the position of the first name in an expression (for diagnostics).
+const char* first_pos(const ast::or_expr& e);
+const char* first_pos(const ast::primary& p) {
+  if (auto n = boost::get<ast::name>(&p)) return n->pos;
+  if (auto f = boost::get<boost::spirit::x3::forward_ast<ast::or_expr>>(&p)) return first_pos(f->get());
+  return nullptr;
+}
+const char* first_pos(const ast::or_expr& e) {
+  for (auto& x : e)
+    for (auto& a : x)
+      for (auto& u : a)
+        if (auto p = first_pos(u.operand)) return p;
+  return nullptr;
+}
+
+/// Compiles an expression to postfix code, collecting the distinct nets it reads.
+class compiler {
+ public:
+  compiler(std::vector<ref>& reads, std::vector<std::uint32_t>& code, const reporter& rep)
+      : reads_(reads), code_(code), rep_(rep) {}
+
+  void expr(const ast::or_expr& e) {
+    for (std::size_t i = 0; i < e.size(); ++i) {
+      xor_term(e[i]);
+      if (i) code_.push_back(encode(op::or2));
+    }
+  }
+
+ private:
+  void xor_term(const ast::xor_expr& e) {
+    for (std::size_t i = 0; i < e.size(); ++i) {
+      and_term(e[i]);
+      if (i) code_.push_back(encode(op::xor2));
+    }
+  }
+  void and_term(const ast::and_expr& e) {
+    for (std::size_t i = 0; i < e.size(); ++i) {
+      unary(e[i]);
+      if (i) code_.push_back(encode(op::and2));
+    }
+  }
+  void unary(const ast::unary& u) {
+    if (auto n = boost::get<ast::name>(&u.operand)) {
+      code_.push_back(encode(op::input, index_of(*n)));
+    } else if (auto c = boost::get<char>(&u.operand)) {
+      code_.push_back(encode(*c == '1' ? op::const1 : op::const0));
+    } else {
+      expr(boost::get<boost::spirit::x3::forward_ast<ast::or_expr>>(u.operand).get());
+    }
+    if (u.nots.size() % 2) code_.push_back(encode(op::inv));
+  }
+  std::uint32_t index_of(const ast::name& n) {
+    auto [it, fresh] = index_.emplace(n.text, static_cast<std::uint32_t>(reads_.size()));
+    if (fresh) reads_.push_back(lower_ref(n, rep_));
+    return it->second;
+  }
+
+  std::vector<ref>& reads_;
+  std::vector<std::uint32_t>& code_;
+  const reporter& rep_;
+  std::unordered_map<std::string, std::uint32_t> index_;
+};
+
+/// The single net or constant an argument must be for a primitive gate.
+bool simple_arg(const ast::arg& a, ref& out, const reporter& rep) {
+  if (a.label || a.value.size() != 1 || a.value[0].size() != 1 || a.value[0][0].size() != 1) return false;
+  const auto& u = a.value[0][0][0];
+  if (!u.nots.empty()) return false;
+  if (auto n = boost::get<ast::name>(&u.operand)) {
+    out = lower_ref(*n, rep);
+    return true;
+  }
+  if (auto c = boost::get<char>(&u.operand)) {
+    out = ref{std::string(1, *c), {}};
+    return true;
+  }
+  return false;
+}
+
+bool lower_call(const ast::call& c, gate& out, reporter& rep) {
+  const auto at = rep.loc_of(c.kind.pos);
+  auto k = std::find_if(std::begin(kinds), std::end(kinds), [&](auto& e) { return c.kind.text == e.word; });
+  if (k == std::end(kinds)) {
+    rep.error(at, fmt::format("unknown gate kind '{}'", c.kind.text));
+    return false;
+  }
+  out.kind = k->kind;
+  const auto n = c.args.size();
+  if (out.kind == gate_kind::gc) {
+    const ast::arg* set = nullptr;
+    const ast::arg* reset = nullptr;
+    bool bad = false;
+    for (auto& a : c.args) {
+      if (a.label && a.label->text == "set" && !set) set = &a;
+      else if (a.label && a.label->text == "reset" && !reset) reset = &a;
+      else bad = true;
+    }
+    if (bad || !set || !reset) {
+      rep.error(at, "'gc' takes exactly two arguments, set: EXPR and reset: EXPR");
+      return false;
+    }
+    compiler comp(out.reads, out.code, rep);
+    comp.expr(set->value);
+    comp.expr(reset->value);
+    return true;
+  }
+  for (auto& a : c.args) {
+    ref r;
+    if (!simple_arg(a, r, rep)) {
+      const char* p = a.label ? a.label->pos : first_pos(a.value);
+      rep.error(p ? rep.loc_of(p) : at,
+                fmt::format("arguments of '{}' must be nets or the constants 0 and 1", c.kind.text));
+      return false;
+    }
+    out.reads.push_back(std::move(r));
+  }
+  std::string want;
+  switch (out.kind) {
+    case gate_kind::inv:
+    case gate_kind::buf:
+      if (n != 1) want = "exactly 1 input";
+      break;
+    case gate_kind::mux:
+      if (n != 3) want = "exactly 3 inputs (sel, a0, a1)";
+      break;
+    case gate_kind::maj:
+      if (n < 3 || n % 2 == 0) want = "an odd number of inputs, at least 3";
+      break;
+    default:
+      if (n < 1) want = "at least 1 input";
+  }
+  if (!want.empty()) {
+    rep.error(at, fmt::format("'{}' takes {}, found {}", c.kind.text, want, n));
+    return false;
+  }
+  return true;
+}
+
+bool lower_range(const ast::range& r, delay_range& out, reporter& rep) {
+  time_fs a = 0, b = 0, c = 0;
+  if (!lower_time(r.a, a, rep)) return false;
+  if (r.b && !lower_time(*r.b, b, rep)) return false;
+  if (r.c && !lower_time(*r.c, c, rep)) return false;
+  if (!r.b) {
+    out = {a, a, a};
+  } else if (!r.c) {
+    if (b < a) {
+      rep.error(rep.loc_of(r.a.pos), "delay range needs min <= max");
+      return false;
+    }
+    out = {a, a + (b - a) / 2, b};
+  } else {
+    if (b < a || c < b) {
+      rep.error(rep.loc_of(r.a.pos), "delay range needs min <= typ <= max");
+      return false;
+    }
+    out = {a, b, c};
+  }
+  return true;
+}
+
+}  // namespace
+
+ref lower_ref(const ast::name& n, const reporter& rep) { return ref{n.text, rep.loc_of(n.pos)}; }
+
+logic lower_value(char c) { return c == '0' ? logic::zero : c == '1' ? logic::one : logic::x; }
+
+bool lower_time(const ast::time_lit& t, time_fs& out, reporter& rep) {
+  std::string why;
+  if (time_to_fs(t.number, t.exponent, out, why)) return true;
+  rep.error(rep.loc_of(t.pos), why);
+  return false;
+}
+
+bool lower_delay(const std::vector<ast::range>& ranges, bool transport, gate_delay& out, reporter& rep) {
+  out.transport = transport;
+  if (!lower_range(ranges[0], out.rise, rep)) return false;
+  if (ranges.size() == 1) {
+    out.fall = out.rise;
+    return true;
+  }
+  return lower_range(ranges[1], out.fall, rep);
+}
+
+bool lower_gate(const ast::gate_stmt& g, gate& out, reporter& rep) {
+  out.out = lower_ref(g.out, rep);
+  bool ok = true;
+  if (auto c = boost::get<ast::call>(&g.value)) {
+    ok = lower_call(*c, out, rep);
+  } else {
+    out.kind = gate_kind::expr;
+    compiler comp(out.reads, out.code, rep);
+    comp.expr(boost::get<ast::or_expr>(g.value));
+  }
+  if (g.delay) {
+    out.has_delay = true;
+    ok = lower_delay(*g.delay, g.transport, out.delay, rep) && ok;
+  } else {
+    out.delay.transport = g.transport;
+  }
+  return ok;
+}
+
+}  // namespace settle::ir

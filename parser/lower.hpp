@@ -1,0 +1,23 @@
+// Lowering of parsed statements (AST) into the IR: kinds, fan-in, programs, exact times.
+#pragma once
+
+#include "parser/ast.hpp"
+#include "parser/ir.hpp"
+
+namespace settle::ir {
+
+/// The nesting limit of parenthesised expressions.
+inline constexpr int max_expr_depth = 1000;
+
+/// Lowers one gate statement; false (after reporting) when it is malformed.
+bool lower_gate(const ast::gate_stmt& g, gate& out, reporter& rep);
+/// Converts a delay written as one range (both edges) or two (rise, fall).
+bool lower_delay(const std::vector<ast::range>& ranges, bool transport, gate_delay& out, reporter& rep);
+/// Converts a time literal; false (after reporting) when not exact or too large.
+bool lower_time(const ast::time_lit& t, time_fs& out, reporter& rep);
+/// A name with its position.
+ref lower_ref(const ast::name& n, const reporter& rep);
+/// A value character '0' '1' 'x' 'X'.
+logic lower_value(char c);
+
+}  // namespace settle::ir
