@@ -300,6 +300,8 @@ void parse_file(std::string_view text, file_mode mode, file& f, reporter& rep) {
             at = where::stim;
             open_loc = here;
           }
+        } else if (mode == file_mode::stimulus_only && at == where::top) {
+          rep.error(here, "a stimulus file holds one stimulus { } block and nothing else");
         } else if (depth_ok(piece, rep)) {
           grammar::syntax_error err;
           st = ast::statement{};

@@ -11,6 +11,11 @@ inline std::string describe(const std::string& which) {
   static const std::unordered_map<std::string, std::string> id_map = {
       {"name_", "a name"},
       {"ref_", "a net name"},
+      {"ref_list", "a net name"},
+      {"name_list", "a name"},
+      {"args", "a gate argument"},
+      {"bindings", "a port binding PORT: NET"},
+      {"port_groups", "'in' or 'out' followed by port names"},
       {"target_", "a net, 0 or 1"},
       {"time_", "a time with a unit (fs ps ns us ms)"},
       {"time_unit", "a time unit (fs ps ns us ms)"},

@@ -26,12 +26,14 @@ bool parse_statement(std::string_view text, ast::statement& out, syntax_error& e
     err.message = "unexpected '" + std::string(first, e) + "'";
     return false;
   } catch (x3::expectation_failure<iterator_type> const& f) {
-    err.pos = f.where();
+    const char* w = f.where();
+    while (w != last && (*w == ' ' || *w == '\t')) ++w;
+    err.pos = w;
     std::string found;
-    const char* e = f.where();
+    const char* e = w;
     while (e != last && *e != ' ' && *e != '\t' && *e != ',' && *e != ')' && *e != '(') ++e;
-    if (e == f.where() && e != last) ++e;
-    found.assign(f.where(), e);
+    if (e == w && e != last) ++e;
+    found.assign(w, e);
     err.message = "expected " + describe(f.which());
     if (found.empty())
       err.message += " at the end of the statement";

@@ -166,7 +166,7 @@ auto const primary_def = name_ | x3::lexeme[x3::char_("01") >> word_end] | ('(' 
 // ---- gates
 // The lookahead keeps a plain net argument from being taken for a label.
 auto const arg_def = -(&(x3::lexeme[ident_chars] >> ':') >> name_ >> ':') >> or_expr;
-auto const call_def = name_ >> '(' > -args > ')';
+auto const call_def = name_ >> '(' > -(!x3::lit(')') >> args) > ')';
 auto const rhs_def = call | or_expr;
 auto const gate_def = name_ >> '=' > rhs >> -((kw("delay") > delay_body) | rise_fall) >> x3::matches[kw("transport")];
 
