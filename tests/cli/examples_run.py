@@ -129,9 +129,10 @@ def sigrok_changes(text):
     """Value changes per net name from sigrok-cli's VCD output: {name: [(time_fs, value)]}."""
     unit = {"s": 10**15, "ms": 10**12, "us": 10**9, "ns": 10**6, "ps": 10**3, "fs": 1}
     scale, names, changes, now = 1, {}, {}, 0
-    m = re.search(r"\$timescale\s+(\d+)\s*(\w+)\s+\$end", text)
+    # sigrok-cli may write a decimal time number ("0.100 ps").
+    m = re.search(r"\$timescale\s+([\d.]+)\s*(\w+)\s+\$end", text)
     if m:
-        scale = int(m.group(1)) * unit[m.group(2)]
+        scale = round(float(m.group(1)) * unit[m.group(2)])
     for code, name in re.findall(r"\$var\s+wire\s+1\s+(\S+)\s+(\S+)\s+\$end", text):
         names[code] = name
     body = text.split("$enddefinitions", 1)[-1]
@@ -176,12 +177,31 @@ def example_facts(docs, tmp):
     # previous one by 2 x (40 + 4 x 25)ps = 280ps (common practice, as above).
     text = docs.get("delay_ring.settle vcd")
     if text is not None:
-        window_end = step(docs.get("delay_ring.settle"), 2).get("end_fs", 0)  # before `enable` falls
-        rises = [t for t, v in sigrok_changes(text).get("tap", []) if v == "1" and t <= window_end]
+        window = step(docs.get("delay_ring.settle"), 2)  # from `enable` rising to just before it falls
+        lo, hi = window.get("start_fs", 0), window.get("end_fs", 0)
+        rises = [t for t, v in sigrok_changes(text).get("tap", []) if v == "1" and lo < t <= hi]
         gaps = {b - a for a, b in zip(rises, rises[1:])}
         if len(rises) < 20 or gaps != {280000}:
             fail(f"delay_ring VCD via sigrok-cli: {len(rises)} rising edges of tap, gaps {sorted(gaps)[:5]} fs, "
                  "want at least 20, all 280000 fs")
+
+    # A glitch-free clock switch passes only whole pulses of its input clocks (common practice:
+    # that is what glitch-free means). At typ the and-or gate has one delay for both edges, so
+    # every high pulse of clk_out is a full high phase of clk_fast (1ns) or clk_slow (1.2ns)
+    # and every low phase is at least the shorter low phase of the two (1ns). Read through
+    # sigrok-cli as above.
+    text = docs.get("clock_switch.settle vcd")
+    if text is not None:
+        edges = [(t, v) for t, v in sigrok_changes(text).get("clk_out", []) if v in "01"]
+        edges = [e for i, e in enumerate(edges) if i == 0 or e[1] != edges[i - 1][1]]
+        widths = [(b[0] - a[0], a[1]) for a, b in zip(edges, edges[1:])]
+        highs = {w for w, v in widths if v == "1"}
+        lows = [w for w, v in widths if v == "0"]
+        if not highs or not highs <= {1000000, 1200000} or min(lows, default=0) < 1000000:
+            fail(f"clock_switch VCD via sigrok-cli: high pulses {sorted(highs)} fs, shortest low "
+                 f"{min(lows, default=None)} fs; want only 1000000/1200000 and lows >= 1000000")
+        elif highs != {1000000, 1200000}:
+            fail(f"clock_switch: clk_out showed pulses of only one clock: {sorted(highs)}")
 
     # The debouncer: the bounces never reach the output, so `clean` changes once when the
     # blade lands and once when it is thrown back (handbook behaviour of a set/reset latch).
