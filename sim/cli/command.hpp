@@ -1,6 +1,7 @@
 // The subcommand table of the settle command line and the helpers every command shares.
 #pragma once
 
+#include <cstdio>
 #include <optional>
 #include <vector>
 #include <string>
@@ -52,6 +53,28 @@ std::optional<design> load(const design_options& o);
 /// renamed into place only on success. "-" writes to stdout. On failure prints
 /// a message naming the path and returns false (the command then exits 2).
 bool write_output(const std::string& path, std::string_view text);
+
+/// A file written under a temporary name in its target's folder and renamed
+/// into place by commit(); discarded (unlinked) otherwise. "-" is stdout.
+class atomic_file {
+ public:
+  explicit atomic_file(std::string path) : path_(std::move(path)) {}
+  ~atomic_file() { discard(); }
+  atomic_file(const atomic_file&) = delete;
+  atomic_file& operator=(const atomic_file&) = delete;
+  /// Creates the temporary file; on failure prints a message naming the path.
+  bool open();
+  std::FILE* get() const { return file_; }
+  const std::string& path() const { return path_; }
+  /// Flushes, closes and renames into place; prints a message on failure.
+  bool commit();
+  /// Closes and removes the temporary file (nothing appears at the path).
+  void discard();
+
+ private:
+  std::string path_, temp_;
+  std::FILE* file_ = nullptr;
+};
 
 /// True when colour may be used on this stream (a terminal, NO_COLOR unset).
 bool use_colour(int fd);

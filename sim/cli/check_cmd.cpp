@@ -1,0 +1,124 @@
+// `settle check`: parse, elaborate and lint a design; print its counts and feedback loops.
+#include <algorithm>
+#include <array>
+#include <memory>
+
+#include <CLI/CLI.hpp>
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+
+#include "sim/cli/command.hpp"
+#include "sim/graph.hpp"
+
+namespace settle::cli {
+namespace {
+
+struct check_options {
+  design_options design;
+  std::string json;
+};
+
+struct loop_info {
+  std::size_t size = 0;
+  std::vector<std::string> nets;  // every member's output net, sorted by name
+};
+
+// Loops sorted by size (largest first), then by their first net name.
+std::vector<loop_info> loops_of(const netlist& n) {
+  std::vector<loop_info> loops;
+  for (const auto& scc : feedback_loops(n)) {
+    loop_info l;
+    l.size = scc.size();
+    for (gate_id g : scc) l.nets.push_back(n.gate_name(g));
+    std::sort(l.nets.begin(), l.nets.end());
+    loops.push_back(std::move(l));
+  }
+  std::sort(loops.begin(), loops.end(), [](const loop_info& a, const loop_info& b) {
+    return a.size != b.size ? a.size > b.size : a.nets.front() < b.nets.front();
+  });
+  return loops;
+}
+
+constexpr std::size_t shown_members = 4;
+
+exit_status run_check(const check_options& o) {
+  auto d = load(o.design);
+  if (!d) return exit_status::error;
+  const netlist& n = d->nets;
+  std::array<std::size_t, gate_kind_count> by_kind{};
+  for (auto k : n.kind) ++by_kind[static_cast<int>(k)];
+  const auto loops = loops_of(n);
+  const std::size_t nets = n.net_count() >= 2 ? n.net_count() - 2 : 0;
+  const bool imported = !d->source.format.empty() && d->source.format != "settle";
+
+  if (!o.json.empty()) {
+    nlohmann::ordered_json j;
+    j["tool"] = "settle";
+    j["version"] = SETTLE_VERSION;
+    j["design"] = d->path;
+    j["blocks"] = n.blocks;
+    j["instances"] = n.instances;
+    j["gates"] = n.gate_count();
+    j["nets"] = nets;
+    j["inputs"] = n.inputs.size();
+    j["outputs"] = n.outputs.size();
+    j["by_kind"] = nlohmann::ordered_json::object();
+    for (int k = 0; k < gate_kind_count; ++k)
+      if (by_kind[k]) j["by_kind"][kind_name(static_cast<gate_kind>(k))] = by_kind[k];
+    j["loops"] = nlohmann::ordered_json::array();
+    for (const auto& l : loops) {
+      nlohmann::ordered_json e;
+      e["size"] = l.size;
+      e["nets"] = std::vector<std::string>(l.nets.begin(), l.nets.begin() + std::min(l.nets.size(), shown_members));
+      j["loops"].push_back(std::move(e));
+    }
+    if (imported) {
+      const auto& s = d->source;
+      j["source"] = {{"format", s.format}, {"inputs", s.inputs},         {"outputs", s.outputs}, {"dffs", s.dffs},
+                     {"inverters", s.inverters}, {"buffers", s.buffers}, {"gates", s.gates}};
+    }
+    if (!write_output(o.json, j.dump(2) + "\n")) return exit_status::error;
+    if (o.json == "-") return exit_status::ok;  // stdout carries the JSON alone
+  }
+
+  std::string out = fmt::format("design     {}\n", d->path);
+  out += fmt::format("blocks     {}\ninstances  {}\n", n.blocks, n.instances);
+  std::string kinds;
+  for (int k = 0; k < gate_kind_count; ++k)
+    if (by_kind[k]) kinds += fmt::format("{}{} {}", kinds.empty() ? "" : ", ", kind_name(static_cast<gate_kind>(k)), by_kind[k]);
+  out += fmt::format("gates      {}{}\n", n.gate_count(), kinds.empty() ? "" : "  (" + kinds + ")");
+  out += fmt::format("nets       {}\ninputs     {}\noutputs    {}\n", nets, n.inputs.size(), n.outputs.size());
+  if (loops.empty()) {
+    out += "loops      none\n";
+  } else {
+    out += fmt::format("loops      {}\n", loops.size());
+    for (const auto& l : loops) {
+      std::string members;
+      for (std::size_t i = 0; i < l.nets.size() && i < shown_members; ++i)
+        members += (i ? ", " : "") + l.nets[i];
+      if (l.nets.size() > shown_members) members += fmt::format(", ... ({} more)", l.nets.size() - shown_members);
+      out += fmt::format("  {:>5} gate{}: {}\n", l.size, l.size == 1 ? " " : "s", members);
+    }
+  }
+  if (imported) {
+    const auto& s = d->source;
+    out += fmt::format("source     {}: inputs {}, outputs {}, dffs {}, inverters {}, buffers {}, gates {}\n", s.format,
+                       s.inputs, s.outputs, s.dffs, s.inverters, s.buffers, s.gates);
+  }
+  std::fputs(out.c_str(), stdout);
+  return exit_status::ok;
+}
+
+void add_check(CLI::App& app, exit_status& status) {
+  auto o = std::make_shared<check_options>();
+  auto* cmd = app.add_subcommand("check", "parse, elaborate and lint a design; print counts and feedback loops");
+  add_design_options(*cmd, o->design);
+  cmd->add_option("--json", o->json, "write the counts as JSON to PATH ('-' for stdout)");
+  cmd->callback([o, &status] { status = run_check(*o); });
+}
+
+}  // namespace
+
+SETTLE_COMMAND(check, "check", add_check);
+
+}  // namespace settle::cli

@@ -1,0 +1,157 @@
+// The command table and the helpers every settle command shares (loading, atomic output, colour).
+#include "sim/cli/command.hpp"
+
+#include <fcntl.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <cerrno>
+#include <cstdlib>
+#include <cstring>
+
+#include <CLI/CLI.hpp>
+#include <fmt/format.h>
+#include <spdlog/spdlog.h>
+
+#include "sim/time_parse.hpp"
+
+namespace settle::cli {
+namespace {
+
+std::vector<command>& table() {
+  static std::vector<command> t;
+  return t;
+}
+
+// A command's rank in help: the core commands first, in the order users meet them.
+int rank(std::string_view name) {
+  static constexpr std::string_view order[] = {"check", "run", "sweep", "explore"};
+  for (int i = 0; i < 4; ++i)
+    if (order[i] == name) return i;
+  return 4;
+}
+
+}  // namespace
+
+int register_command(command c) {
+  auto& t = table();
+  t.push_back(c);
+  std::stable_sort(t.begin(), t.end(), [](const command& a, const command& b) {
+    const int ra = rank(a.name), rb = rank(b.name);
+    return ra != rb ? ra < rb : std::string_view(a.name) < std::string_view(b.name);
+  });
+  return static_cast<int>(t.size());
+}
+
+const std::vector<command>& commands() { return table(); }
+
+void add_design_options(CLI::App& cmd, design_options& o) {
+  cmd.add_option("DESIGN", o.path, "design file (.settle, or .bench for ISCAS netlists)")->required();
+  cmd.add_option("--stim", o.stim, "file with one stimulus { } block replacing the design's own");
+  cmd.add_option("--format", o.format, "input format: auto (by extension), settle or bench")
+      ->check(CLI::IsMember({"auto", "settle", "bench"}));
+  cmd.add_option("--dff", o.dff, "imported flip-flops: gates (six NAND gates) or primitive")
+      ->check(CLI::IsMember({"gates", "primitive"}));
+  cmd.add_option("--delay", o.delay, "delay of imported gates: MIN..MAX (e.g. 40ps..60ps)");
+}
+
+std::optional<design> load(const design_options& o) {
+  load_options lo;
+  lo.stim_path = o.stim;
+  lo.format = o.format;
+  lo.dff = o.dff;
+  if (!o.delay.empty()) {
+    std::string err;
+    auto r = parse_delay_range(o.delay, &err);
+    if (!r) {
+      spdlog::error("--delay {}: {}", o.delay, err);
+      return std::nullopt;
+    }
+    lo.bench_delay = *r;
+  }
+  diagnostics diags;
+  auto d = load_design(o.path, lo, diags);
+  for (const auto& item : diags.items) std::fputs(format_diagnostic(item).c_str(), stderr);
+  if (!d || diags.has_errors()) {
+    if (diags.items.empty()) spdlog::error("cannot load '{}'", o.path);
+    return std::nullopt;
+  }
+  return d;
+}
+
+bool atomic_file::open() {
+  if (path_ == "-") {
+    file_ = stdout;
+    return true;
+  }
+  const auto slash = path_.rfind('/');
+  const std::string dir = slash == std::string::npos ? "." : slash == 0 ? "/" : path_.substr(0, slash);
+  const std::string base = slash == std::string::npos ? path_ : path_.substr(slash + 1);
+  std::string templ = fmt::format("{}/.{}.tmp.XXXXXX", dir, base);
+  const int fd = ::mkstemp(templ.data());
+  if (fd < 0) {
+    spdlog::error("cannot write '{}': {}", path_, std::strerror(errno));
+    return false;
+  }
+  // mkstemp creates 0600; give the file the permissions a plain create would.
+  const mode_t mask = ::umask(0);
+  ::umask(mask);
+  ::fchmod(fd, 0666 & ~mask);
+  file_ = ::fdopen(fd, "w");
+  if (!file_) {
+    ::close(fd);
+    ::unlink(templ.c_str());
+    spdlog::error("cannot write '{}': {}", path_, std::strerror(errno));
+    return false;
+  }
+  temp_ = templ;
+  return true;
+}
+
+bool atomic_file::commit() {
+  if (!file_) return false;
+  if (file_ == stdout) {
+    file_ = nullptr;
+    return std::fflush(stdout) == 0;
+  }
+  const bool flushed = std::fflush(file_) == 0 && !std::ferror(file_);
+  const int err = errno;
+  const bool closed = std::fclose(file_) == 0;
+  file_ = nullptr;
+  if (!flushed || !closed || ::rename(temp_.c_str(), path_.c_str()) != 0) {
+    spdlog::error("cannot write '{}': {}", path_, std::strerror(flushed && closed ? errno : err));
+    ::unlink(temp_.c_str());
+    temp_.clear();
+    return false;
+  }
+  temp_.clear();
+  return true;
+}
+
+void atomic_file::discard() {
+  if (file_ && file_ != stdout) std::fclose(file_);
+  file_ = nullptr;
+  if (!temp_.empty()) ::unlink(temp_.c_str());
+  temp_.clear();
+}
+
+bool write_output(const std::string& path, std::string_view text) {
+  atomic_file f(path);
+  if (!f.open()) return false;
+  if (std::fwrite(text.data(), 1, text.size(), f.get()) != text.size()) {
+    spdlog::error("cannot write '{}': {}", path, std::strerror(errno));
+    return false;
+  }
+  return f.commit();
+}
+
+bool use_colour(int fd) {
+  const char* no = std::getenv("NO_COLOR");
+  if (no && *no) return false;  // no-color.org: any non-empty value disables colour
+  const char* term = std::getenv("TERM");
+  if (term && std::strcmp(term, "dumb") == 0) return false;
+  return ::isatty(fd) == 1;
+}
+
+}  // namespace settle::cli

@@ -1,0 +1,266 @@
+// `settle run`: one delay corner through the stimulus; a table per step, JSON and VCD.
+#include <chrono>
+#include <memory>
+
+#include <CLI/CLI.hpp>
+#include <fmt/color.h>
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+#include <spdlog/spdlog.h>
+
+#include "sim/cli/command.hpp"
+#include "sim/kernel.hpp"
+#include "sim/time_parse.hpp"
+#include "waves/vcd.hpp"
+
+namespace settle::cli {
+namespace {
+
+struct run_cli_options {
+  design_options design;
+  std::string corner = "typ";
+  std::string vcd, vcd_nets = "all", json, horizon;
+  std::uint64_t max_events = 0;
+  bool verbose = false, quiet = false;
+};
+
+std::string logic_text(logic v) { return std::string(1, to_char(v)); }
+
+std::uint32_t glitches(const step_result& s, std::size_t i) {
+  const std::uint32_t needed = s.start_values[i] != s.values[i] ? 1 : 0;
+  return s.transitions[i] > needed ? s.transitions[i] - needed : 0;
+}
+
+const char* kind_word(expectation::kind k) {
+  switch (k) {
+    case expectation::kind::value: return "value";
+    case expectation::kind::stable: return "stable";
+    case expectation::kind::oscillating: return "oscillating";
+    case expectation::kind::within: return "within";
+    case expectation::kind::no_glitch: return "no_glitch";
+    case expectation::kind::deterministic: return "deterministic";
+  }
+  return "?";
+}
+
+nlohmann::ordered_json expect_json(const netlist& n, const step_result& s, const expect_result& x) {
+  nlohmann::ordered_json e;
+  const auto& spec = *x.spec;
+  switch (spec.what) {
+    case expectation::kind::value:
+      e["net"] = spec.ref.empty() ? n.net_name[spec.net] : spec.ref;
+      e["want"] = logic_text(spec.want);
+      e["got"] = logic_text(x.got);
+      break;
+    case expectation::kind::no_glitch:
+      e["kind"] = kind_word(spec.what);
+      e["net"] = spec.ref.empty() ? n.net_name[spec.net] : spec.ref;
+      break;
+    case expectation::kind::within:
+      e["kind"] = kind_word(spec.what);
+      e["budget_fs"] = spec.hi;
+      e["got_fs"] = s.settle;
+      break;
+    case expectation::kind::oscillating:
+      e["kind"] = kind_word(spec.what);
+      if (spec.has_range) e["period_min_fs"] = spec.lo, e["period_max_fs"] = spec.hi;
+      if (s.status == step_status::oscillating) e["got_fs"] = s.period;
+      break;
+    default:
+      e["kind"] = kind_word(spec.what);
+  }
+  e["pass"] = x.pass;
+  if (!x.pass && !x.detail.empty()) e["detail"] = x.detail;
+  return e;
+}
+
+std::string result_json(const design& d, const run_result& r, const std::string& corner_name, double wall) {
+  const netlist& n = d.nets;
+  nlohmann::ordered_json j;
+  j["tool"] = "settle";
+  j["version"] = SETTLE_VERSION;
+  j["design"] = d.path;
+  j["corner"] = r.corner.empty() ? corner_name : r.corner;
+  j["events"] = r.events;
+  j["wall_s"] = wall;
+  j["steps"] = nlohmann::ordered_json::array();
+  for (const auto& s : r.steps) {
+    nlohmann::ordered_json st;
+    st["index"] = s.index;
+    st["label"] = s.label;
+    st["start_fs"] = s.start;
+    st["end_fs"] = s.end;
+    st["status"] = status_name(s.status);
+    st["settle_fs"] = s.settle;
+    if (s.status == step_status::oscillating) {
+      st["period_fs"] = s.period;
+      st["toggling"] = nlohmann::ordered_json::array();
+      for (net_id t : s.toggling) st["toggling"].push_back(n.net_name[t]);
+    }
+    st["values"] = nlohmann::ordered_json::object();
+    st["transitions"] = nlohmann::ordered_json::object();
+    for (std::size_t i = 0; i < r.reported.size(); ++i) {
+      const auto& name = n.net_name[r.reported[i]];
+      st["values"][name] = logic_text(s.values[i]);
+      st["transitions"][name] = s.transitions[i];
+    }
+    st["expect"] = nlohmann::ordered_json::array();
+    for (const auto& x : s.expects) st["expect"].push_back(expect_json(n, s, x));
+    j["steps"].push_back(std::move(st));
+  }
+  j["result"] = r.pass() ? "pass" : "findings";
+  return j.dump(2) + "\n";
+}
+
+std::string expect_text(const netlist& n, const step_result& s, const expect_result& x) {
+  const auto& e = *x.spec;
+  const auto ref = e.ref.empty() ? n.net_name[e.net] : e.ref;
+  switch (e.what) {
+    case expectation::kind::value:
+      return fmt::format("expect {} = {}: got {}", ref, to_char(e.want), to_char(x.got));
+    case expectation::kind::stable: return "expect stable";
+    case expectation::kind::within:
+      return fmt::format("settle within {}: took {}", format_time(e.hi), format_time(s.settle));
+    case expectation::kind::oscillating:
+      return e.has_range ? fmt::format("expect oscillating, period {}..{}", format_time(e.lo), format_time(e.hi))
+                         : std::string("expect oscillating");
+    case expectation::kind::no_glitch: return fmt::format("expect no glitch on {}", ref);
+    case expectation::kind::deterministic: return "expect deterministic";
+  }
+  return "expect";
+}
+
+std::string table(const design& d, const run_result& r, const std::string& corner_name, bool colour, bool verbose,
+                  double wall) {
+  const netlist& n = d.nets;
+  auto paint = [colour](std::string text, bool good) {
+    if (!colour) return text;
+    return fmt::format(fmt::fg(good ? fmt::terminal_color::green : fmt::terminal_color::red), "{}", text);
+  };
+  std::string out = fmt::format("design {}, corner {}, {} step{}\n", d.path, r.corner.empty() ? corner_name : r.corner, r.steps.size(),
+                                r.steps.size() == 1 ? "" : "s");
+  std::size_t width = 3;
+  for (net_id id : r.reported) width = std::max(width, n.net_name[id].size());
+  for (const auto& s : r.steps) {
+    out += fmt::format("\nstep {}: {}\n", s.index, s.label.empty() ? "(no input change)" : s.label);
+    const bool good_status = s.status == step_status::settled || s.status == step_status::running;
+    std::string status = status_name(s.status);
+    if (s.status == step_status::settled) status += fmt::format(" after {}", format_time(s.settle));
+    if (s.status == step_status::running) status += fmt::format(", last change after {}", format_time(s.settle));
+    if (s.status == step_status::oscillating) {
+      status += fmt::format(", period {}, toggling", format_time(s.period));
+      for (std::size_t i = 0; i < s.toggling.size() && i < 8; ++i) status += " " + n.net_name[s.toggling[i]];
+      if (s.toggling.size() > 8) status += fmt::format(" ... ({} nets)", s.toggling.size());
+    }
+    if (s.status == step_status::timeout || s.status == step_status::event_limit)
+      status += fmt::format(" at {}", format_time(s.end));
+    out += fmt::format("  status  {}   ({} .. {})\n", paint(status, good_status), format_time(s.start),
+                       format_time(s.end));
+    if (!r.reported.empty()) {
+      out += fmt::format("  {:<{}}  start  end  transitions  glitches\n", "net", width);
+      for (std::size_t i = 0; i < r.reported.size(); ++i)
+        out += fmt::format("  {:<{}}  {:<5}  {:<3}  {:<11}  {}\n", n.net_name[r.reported[i]], width,
+                           to_char(s.start_values[i]), to_char(s.values[i]), s.transitions[i], glitches(s, i));
+    }
+    for (const auto& x : s.expects) {
+      std::string line = expect_text(n, s, x);
+      if (!x.pass && !x.detail.empty()) line += " (" + x.detail + ")";
+      out += fmt::format("  {}  {}\n", paint(x.pass ? "pass" : "FAIL", x.pass), line);
+    }
+  }
+  const bool pass = r.pass();
+  out += fmt::format("\nresult  {}", paint(pass ? "pass" : "findings", pass));
+  std::size_t bad = 0;
+  for (const auto& s : r.steps) bad += s.pass() ? 0 : 1;
+  if (!pass) out += fmt::format(" ({} of {} steps)", bad, r.steps.size());
+  out += "\n";
+  if (verbose)
+    out += fmt::format("events  {} in {:.3f} s ({:.3g} events/s)\n", r.events, wall,
+                       wall > 0 ? static_cast<double>(r.events) / wall : 0.0);
+  return out;
+}
+
+std::string file_stem(const std::string& path) {
+  auto slash = path.rfind('/');
+  std::string base = slash == std::string::npos ? path : path.substr(slash + 1);
+  auto dot = base.rfind('.');
+  if (dot != std::string::npos && dot > 0) base.resize(dot);
+  return base.empty() ? "top" : base;
+}
+
+exit_status run_run(const run_cli_options& o) {
+  if (o.verbose && !o.quiet) spdlog::set_level(spdlog::level::debug);
+  if (o.quiet) spdlog::set_level(spdlog::level::err);
+  std::string err;
+  auto c = parse_corner(o.corner, &err);
+  if (!c) {
+    spdlog::error("--corner {}: {}", o.corner, err);
+    return exit_status::error;
+  }
+  run_options ro;
+  ro.max_events = o.max_events;
+  if (!o.horizon.empty()) {
+    auto h = parse_time(o.horizon, &err);
+    if (!h) {
+      spdlog::error("--horizon: {}", err);
+      return exit_status::error;
+    }
+    ro.horizon = *h;
+  }
+  auto d = load(o.design);
+  if (!d) return exit_status::error;
+
+  delay_table delays;
+  fill_delays(d->nets, *c, delays);
+  std::unique_ptr<vcd_writer> vcd;
+  std::unique_ptr<atomic_file> vcd_file;
+  if (!o.vcd.empty()) {
+    vcd_options vo;
+    vo.top = file_stem(d->path);
+    vo.version = std::string("settle ") + SETTLE_VERSION;
+    if (o.vcd_nets == "outputs") {
+      vo.only = d->nets.outputs;
+      vo.only.insert(vo.only.end(), d->stim.watch.begin(), d->stim.watch.end());
+      if (vo.only.empty()) vo.only.push_back(netlist::const0);  // nothing to show: an empty dump
+    }
+    vcd = std::make_unique<vcd_writer>(d->nets, std::move(vo));
+    vcd_file = std::make_unique<atomic_file>(o.vcd);
+    if (!vcd_file->open()) return exit_status::error;
+  }
+  const auto t0 = std::chrono::steady_clock::now();
+  const run_result r = run_stimulus(*d, delays, ro, vcd.get());
+  const double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+  spdlog::debug("{} events in {:.3f} s", r.events, wall);
+
+  if (vcd && !vcd->write(vcd_file->get(), &err)) {
+    spdlog::error("cannot write '{}': {}", o.vcd, err);
+    return exit_status::error;
+  }
+  if (!o.json.empty() && !write_output(o.json, result_json(*d, r, c->name(), wall))) return exit_status::error;
+  if (vcd_file && !vcd_file->commit()) return exit_status::error;
+  if (!o.quiet && o.json != "-" && o.vcd != "-")
+    std::fputs(table(*d, r, c->name(), use_colour(1), o.verbose, wall).c_str(), stdout);
+  return r.pass() ? exit_status::ok : exit_status::findings;
+}
+
+void add_run(CLI::App& app, exit_status& status) {
+  auto o = std::make_shared<run_cli_options>();
+  auto* cmd = app.add_subcommand("run", "simulate the stimulus under one delay corner");
+  add_design_options(*cmd, o->design);
+  cmd->add_option("--corner", o->corner, "min, typ, max, random:SEED or any corner name (default typ)");
+  cmd->add_option("--vcd", o->vcd, "write the waveforms as IEEE 1364 VCD to PATH");
+  cmd->add_option("--vcd-nets", o->vcd_nets, "nets in the VCD: all (default) or outputs (outputs and watched nets)")
+      ->check(CLI::IsMember({"outputs", "all"}));
+  cmd->add_option("--json", o->json, "write the results as JSON to PATH ('-' for stdout)");
+  cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
+  cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)");
+  cmd->add_flag("-v,--verbose", o->verbose, "also print events and events per second");
+  cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout; errors still go to stderr");
+  cmd->callback([o, &status] { status = run_run(*o); });
+}
+
+}  // namespace
+
+SETTLE_COMMAND(run, "run", add_run);
+
+}  // namespace settle::cli
