@@ -194,10 +194,15 @@ std::vector<packed> analyse(const netlist& n, const state_graph& g, const std::v
 // Answers from ternary simulation alone. A binary outcome over every gate is
 // exact: all gmw stable states equal it and no cycle is reachable (every state
 // of a reachable cycle is covered by B's result, so a varying gate would be x).
-std::vector<packed> from_ternary(const netlist& n, const std::vector<net_id>& reported, explore_step& st) {
+std::vector<packed> from_ternary(const netlist& n, const std::vector<net_id>& reported,
+                                 std::span<const logic> before, explore_step& st) {
   std::vector<packed> rest;
+  // Possible hazards only: A says the net may move, and B does not show a
+  // clean change (it ends where it started, or x). Eichelberger 1965.
   for (net_id r : reported)
-    if (n.driver[r] != no_id && st.ternary_a[r] == logic::x) st.hazards.push_back(r);  // possible only
+    if (n.driver[r] != no_id && st.ternary_a[r] == logic::x &&
+        (st.ternary[r] == logic::x || st.ternary[r] == before[r]))
+      st.hazards.push_back(r);
   bool binary = true;
   for (net_id o : n.gate_out) binary = binary && st.ternary[o] != logic::x;
   if (!binary) return rest;
@@ -290,6 +295,14 @@ std::optional<explore_result> explore_design(const design& d, const explore_opti
     st.inputs = inputs;
 
     // Ternary simulation first: cheap, and it says which nets are already certain.
+    // Inputs without an init value take their first values before anything is
+    // evaluated (as in the kernel), so they do not count as changing. From the
+    // init values, which need not be stable, A still covers every reachable
+    // state and B every reachable stable state and cycle.
+    if (k == 0)
+      for (const auto& a : changes)
+        if (tern[a.net] == logic::x) tern[a.net] = a.value;
+    const std::vector<logic> before = tern;
     auto t = ternary_change(n, tern, changes);
     st.ternary_a = std::move(t.after_a);
     st.ternary = std::move(t.after_b);
@@ -323,7 +336,7 @@ std::optional<explore_result> explore_design(const design& d, const explore_opti
     }
     if (!st.complete) {
       st.hazards.clear();
-      rest = from_ternary(n, res.reported, st);
+      rest = from_ternary(n, res.reported, before, st);
       have_rest = !rest.empty();
     }
     check_expects(n, spec, st);

@@ -54,7 +54,7 @@ struct explore_step {
   std::vector<stable_state> stable;
   answer critical_race = answer::unknown, noncritical_race = answer::unknown;
   answer may_oscillate = answer::unknown, must_oscillate = answer::unknown;
-  std::vector<net_id> hazards;
+  std::vector<net_id> hazards;  ///< from the graph when complete, else possible static hazards from ternary
   std::uint32_t sccs = 0, nontrivial_sccs = 0, terminal_sccs = 0, oscillating_sccs = 0, largest_scc = 0;
   std::vector<logic> ternary_a, ternary;   ///< per net
   std::vector<logic> inputs;               ///< per net: input values during the step

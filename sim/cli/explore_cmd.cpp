@@ -1,0 +1,216 @@
+// `settle explore`: every interleaving under unbounded gate delays, and ternary simulation.
+#include <chrono>
+#include <memory>
+
+#include <CLI/CLI.hpp>
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+#include <spdlog/spdlog.h>
+
+#include "sim/cli/command.hpp"
+#include "sim/explore.hpp"
+#include "waves/dot.hpp"
+
+namespace settle::cli {
+namespace {
+
+constexpr std::uint64_t dot_state_limit = 5000;
+
+struct explore_cli_options {
+  design_options design;
+  std::string model = "gmw";
+  std::uint64_t max_states = 2'000'000;
+  std::string json, dot;
+};
+
+std::string one(logic v) { return std::string(1, to_char(v)); }
+
+nlohmann::ordered_json tri(answer a) {
+  if (a == answer::unknown) return nullptr;
+  return a == answer::yes;
+}
+
+const char* kind_word(expectation::kind k) {
+  switch (k) {
+    case expectation::kind::value: return "value";
+    case expectation::kind::stable: return "stable";
+    case expectation::kind::oscillating: return "oscillating";
+    case expectation::kind::within: return "within";
+    case expectation::kind::no_glitch: return "no_glitch";
+    case expectation::kind::deterministic: return "deterministic";
+  }
+  return "?";
+}
+
+logic stable_value(const netlist& n, const explore_step& s, const stable_state& st, net_id net) {
+  const gate_id g = n.driver[net];
+  return g == no_id ? s.inputs[net] : from_bool(st.gates[g]);
+}
+
+std::string result_json(const design& d, const explore_result& r, double wall) {
+  const netlist& n = d.nets;
+  nlohmann::ordered_json j;
+  j["tool"] = "settle";
+  j["version"] = SETTLE_VERSION;
+  j["design"] = d.path;
+  j["model"] = model_name(r.model);
+  auto& order = j["state_order"] = nlohmann::ordered_json::array();  // the gates behind each "state" character
+  for (gate_id g = 0; g < n.gate_count(); ++g) order.push_back(n.gate_name(g));
+  j["notes"] = r.notes;
+  auto& steps = j["steps"] = nlohmann::ordered_json::array();
+  for (const auto& s : r.steps) {
+    nlohmann::ordered_json js;
+    js["index"] = s.index;
+    js["label"] = s.label;
+    js["states"] = s.states;
+    js["edges"] = s.edges;
+    js["start_states"] = s.start_states;
+    auto& stable = js["stable"] = nlohmann::ordered_json::array();
+    for (const auto& st : s.stable) {
+      nlohmann::ordered_json e;
+      for (net_id net : r.reported) e["values"][n.net_name[net]] = one(stable_value(n, s, st, net));
+      std::string bits;
+      for (auto b : st.gates) bits += b ? '1' : '0';
+      e["state"] = bits;
+      auto& path = e["path"] = nlohmann::ordered_json::array();  // gates fired together, from a start state
+      for (const auto& fired : st.path) {
+        auto& f = path.emplace_back(nlohmann::ordered_json::array());
+        for (gate_id g : fired) f.push_back(n.gate_name(g));
+      }
+      stable.push_back(std::move(e));
+    }
+    js["critical_race"] = tri(s.critical_race);
+    js["noncritical_race"] = tri(s.noncritical_race);
+    js["may_oscillate"] = tri(s.may_oscillate);
+    js["must_oscillate"] = tri(s.must_oscillate);
+    auto& hz = js["hazards"] = nlohmann::ordered_json::array();
+    for (net_id h : s.hazards) hz.push_back(n.net_name[h]);
+    js["hazards_from"] = s.complete ? "graph" : "ternary";  // ternary: possible static hazards only
+    for (net_id net : r.reported) js["ternary"][n.net_name[net]] = one(s.ternary[net]);
+    if (!js.contains("ternary")) js["ternary"] = nlohmann::ordered_json::object();
+    if (s.complete)
+      js["sccs"] = {{"count", s.sccs}, {"nontrivial", s.nontrivial_sccs}, {"terminal", s.terminal_sccs},
+                    {"oscillating", s.oscillating_sccs}, {"largest", s.largest_scc}};
+    js["complete"] = s.complete;
+    js["exact"] = s.exact;
+    if (!s.stop.empty()) js["stopped"] = s.stop;
+    auto& ex = js["expect"] = nlohmann::ordered_json::array();
+    for (const auto& e : s.expects) {
+      nlohmann::ordered_json je;
+      je["kind"] = kind_word(e.spec->what);
+      if (e.spec->what == expectation::kind::value || e.spec->what == expectation::kind::no_glitch)
+        je["net"] = e.spec->ref.empty() ? n.net_name[e.spec->net] : e.spec->ref;
+      if (e.spec->what == expectation::kind::value) {
+        je["want"] = one(e.spec->want);
+        je["got"] = one(e.got);
+      }
+      je["checked"] = e.checked;
+      je["pass"] = e.pass;
+      if (!e.detail.empty()) je["detail"] = e.detail;
+      ex.push_back(std::move(je));
+    }
+    js["pass"] = s.pass();
+    steps.push_back(std::move(js));
+  }
+  j["seconds"] = wall;
+  j["result"] = r.pass() ? "pass" : "findings";
+  return j.dump(2) + "\n";
+}
+
+std::string yes_no(answer a, const char* yes) { return a == answer::unknown ? "?" : a == answer::yes ? yes : "no"; }
+
+std::string table(const design& d, const explore_result& r, double wall) {
+  const netlist& n = d.nets;
+  std::string t = fmt::format("settle explore {} (model {}, {} gates)\n", d.path, model_name(r.model), n.gate_count());
+  for (const auto& note : r.notes) t += fmt::format("  note: {}\n", note);
+  t += fmt::format("{:>4}  {:<28} {:>9} {:>6}  {:<12} {:<12} {:<16} {}\n", "step", "inputs", "states", "stable",
+                   "race", "oscillation", "hazards", "ternary x");
+  for (const auto& s : r.steps) {
+    std::string label = s.label.size() > 28 ? s.label.substr(0, 25) + "..." : s.label;
+    std::string race = s.critical_race == answer::yes      ? "critical"
+                       : s.noncritical_race == answer::yes ? "non-critical"
+                       : s.critical_race == answer::no     ? (s.noncritical_race == answer::no ? "none" : "not critical")
+                                                           : "?";
+    std::string osc = s.must_oscillate == answer::yes  ? "must"
+                      : s.may_oscillate == answer::yes ? "may"
+                                                       : yes_no(s.may_oscillate, "may");
+    std::string hz, tx;
+    for (net_id h : s.hazards) hz += (hz.empty() ? "" : ",") + n.net_name[h];
+    for (net_id net : r.reported)
+      if (s.ternary[net] == logic::x) tx += (tx.empty() ? "" : ",") + n.net_name[net];
+    std::string states = s.explored ? fmt::format("{}{}", s.states, s.complete ? "" : "+") : "-";
+    std::string stable = s.exact ? std::to_string(s.stable.size()) : "?";
+    t += fmt::format("{:>4}  {:<28} {:>9} {:>6}  {:<12} {:<12} {:<16} {}\n", s.index, label, states, stable, race,
+                     osc, hz.empty() ? "-" : hz, tx.empty() ? "-" : tx);
+    const std::size_t shown = std::min<std::size_t>(s.stable.size(), 6);
+    for (std::size_t i = 0; i < shown && s.stable.size() > 1; ++i) {
+      std::string v;
+      for (net_id net : r.reported)
+        v += fmt::format(" {}={}", n.net_name[net], to_char(stable_value(n, s, s.stable[i], net)));
+      t += fmt::format("        stable {}:{}\n", i + 1, v);
+    }
+    if (s.stable.size() > shown) t += fmt::format("        ... and {} more stable states\n", s.stable.size() - shown);
+    if (!s.stop.empty() && s.stop != "ternary model") t += fmt::format("        stopped: {}\n", s.stop);
+    for (const auto& e : s.expects) {
+      if (e.pass && e.checked) continue;
+      const std::string what = e.spec->what == expectation::kind::value
+                                   ? fmt::format("{} = {}", e.spec->ref.empty() ? n.net_name[e.spec->net] : e.spec->ref,
+                                                 to_char(e.spec->want))
+                                   : kind_word(e.spec->what);
+      t += fmt::format("        expect {}: {}{}\n", what, !e.checked ? "not checked" : "FAILED",
+                       e.detail.empty() ? "" : " (" + e.detail + ")");
+    }
+  }
+  t += fmt::format("result: {} ({:.3f} s)\n", r.pass() ? "pass" : "findings", wall);
+  return t;
+}
+
+exit_status run_explore(const explore_cli_options& o) {
+  explore_options eo;
+  eo.model = o.model == "single" ? explore_model::single : o.model == "ternary" ? explore_model::ternary
+                                                                                 : explore_model::gmw;
+  eo.max_states = o.max_states;
+  eo.keep_graphs = !o.dot.empty();
+  if (!o.dot.empty() && eo.model == explore_model::ternary) {
+    spdlog::error("--dot needs a state graph: use --model gmw or single");
+    return exit_status::error;
+  }
+  auto d = load(o.design);
+  if (!d) return exit_status::error;
+  const auto t0 = std::chrono::steady_clock::now();
+  std::string err;
+  auto r = explore_design(*d, eo, &err);
+  if (!r) {
+    spdlog::error("{}", err);
+    return exit_status::error;
+  }
+  const double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+  if (!o.dot.empty() && kept_states(*r) > dot_state_limit) {
+    spdlog::error("--dot: the explored graphs hold {} states; DOT output is for designs up to {} states",
+                  kept_states(*r), dot_state_limit);
+    return exit_status::error;
+  }
+  if (!o.json.empty() && !write_output(o.json, result_json(*d, *r, wall))) return exit_status::error;
+  if (!o.dot.empty() && !write_output(o.dot, state_graph_dot(d->nets, *r, d->path))) return exit_status::error;
+  if (o.json != "-" && o.dot != "-") std::fputs(table(*d, *r, wall).c_str(), stdout);
+  return r->pass() ? exit_status::ok : exit_status::findings;
+}
+
+void add_explore(CLI::App& app, exit_status& status) {
+  auto o = std::make_shared<explore_cli_options>();
+  auto* cmd = app.add_subcommand("explore", "every interleaving under unbounded gate delays, and ternary simulation");
+  add_design_options(*cmd, o->design);
+  cmd->add_option("--model", o->model, "gmw (any subset of excited gates fires, default), single, or ternary")
+      ->check(CLI::IsMember({"gmw", "single", "ternary"}));
+  cmd->add_option("--max-states", o->max_states, "state budget per step (default 2,000,000)")
+      ->check(CLI::PositiveNumber);
+  cmd->add_option("--json", o->json, "write the results as JSON to PATH ('-' for stdout)");
+  cmd->add_option("--dot", o->dot, "write the explored state graphs as Graphviz DOT to PATH");
+  cmd->callback([o, &status] { status = run_explore(*o); });
+}
+
+}  // namespace
+
+SETTLE_COMMAND(explore, "explore", add_explore);
+
+}  // namespace settle::cli
