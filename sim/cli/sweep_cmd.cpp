@@ -1,0 +1,356 @@
+// `settle sweep`: one design under many delay corners; a verdict table per step, JSON and witness VCDs.
+#include <unistd.h>
+
+#include <cctype>
+#include <chrono>
+#include <filesystem>
+#include <memory>
+
+#include <CLI/CLI.hpp>
+#include <fmt/color.h>
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+#include <spdlog/spdlog.h>
+
+#include "sim/cli/command.hpp"
+#include "sim/sweep.hpp"
+#include "sim/time_parse.hpp"
+#include "waves/vcd.hpp"
+
+namespace settle::cli {
+namespace {
+
+struct sweep_cli_options {
+  design_options design;
+  std::string corners = "extremes+random:1000";
+  std::uint64_t seed = 1;
+  unsigned threads = 0;
+  std::string json, vcd_dir, horizon;
+  std::uint64_t max_events = 0;
+  bool quiet = false;
+};
+
+/// The most witness VCDs written for one step.
+constexpr std::size_t vcd_per_step_limit = 32;
+
+std::string logic_text(logic v) { return std::string(1, to_char(v)); }
+
+const char* expect_kind(expectation::kind k) {
+  switch (k) {
+    case expectation::kind::value: return "value";
+    case expectation::kind::stable: return "stable";
+    case expectation::kind::oscillating: return "oscillating";
+    case expectation::kind::within: return "within";
+    case expectation::kind::no_glitch: return "no_glitch";
+    case expectation::kind::deterministic: return "deterministic";
+  }
+  return "?";
+}
+
+std::string expect_words(const netlist& n, const expectation& e) {
+  const auto ref = e.ref.empty() ? n.net_name[e.net] : e.ref;
+  switch (e.what) {
+    case expectation::kind::value: return fmt::format("expect {} = {}", ref, to_char(e.want));
+    case expectation::kind::stable: return "expect stable";
+    case expectation::kind::within: return fmt::format("settle within {}", format_time(e.hi));
+    case expectation::kind::oscillating:
+      return e.has_range ? fmt::format("expect oscillating, period {}..{}", format_time(e.lo), format_time(e.hi))
+                         : std::string("expect oscillating");
+    case expectation::kind::no_glitch: return fmt::format("expect no glitch on {}", ref);
+    case expectation::kind::deterministic: return "expect deterministic";
+  }
+  return "expect";
+}
+
+// A word the shell passes through unchanged, or the word in single quotes.
+std::string shell_word(const std::string& w) {
+  const bool plain = !w.empty() && w.find_first_not_of("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz"
+                                                       "0123456789_./:#@=+,-") == std::string::npos &&
+                     w[0] != '#';
+  if (plain) return w;
+  std::string q = "'";
+  for (char c : w) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
+  return q + "'";
+}
+
+// The command that replays one corner with `settle run`.
+std::string replay_command(const sweep_cli_options& o, const std::string& corner) {
+  std::string cmd = "settle run " + shell_word(o.design.path);
+  if (!o.design.stim.empty()) cmd += " --stim " + shell_word(o.design.stim);
+  if (o.design.format != "auto") cmd += " --format " + o.design.format;
+  if (o.design.dff != "gates") cmd += " --dff " + o.design.dff;
+  if (!o.design.delay.empty()) cmd += " --delay " + shell_word(o.design.delay);
+  cmd += " --corner " + shell_word(corner);
+  if (!o.horizon.empty()) cmd += " --horizon " + shell_word(o.horizon);
+  if (o.max_events) cmd += fmt::format(" --max-events {}", o.max_events);
+  return cmd;
+}
+
+nlohmann::ordered_json values_json(const netlist& n, const std::vector<net_id>& reported,
+                                   const std::vector<logic>& values) {
+  auto j = nlohmann::ordered_json::object();
+  for (std::size_t i = 0; i < reported.size() && i < values.size(); ++i)
+    j[n.net_name[reported[i]]] = logic_text(values[i]);
+  return j;
+}
+
+std::string result_json(const design& d, const sweep_cli_options& o, const sweep_result& r) {
+  const netlist& n = d.nets;
+  nlohmann::ordered_json j;
+  j["tool"] = "settle";
+  j["version"] = SETTLE_VERSION;
+  j["design"] = d.path;
+  j["seed"] = o.seed;
+  j["corners"] = r.corners;
+  j["spec"] = o.corners;
+  j["threads"] = r.threads;
+  j["events"] = r.events;
+  j["wall_s"] = r.wall_s;
+  j["steps"] = nlohmann::ordered_json::array();
+  for (const auto& s : r.steps) {
+    nlohmann::ordered_json st;
+    st["index"] = s.index;
+    st["label"] = s.label;
+    st["verdict"] = verdict_name(s.verdict);
+    st["first_divergence"] = s.first_divergence;
+    if (s.inherits) st["inherits"] = s.inherits;
+    st["outcomes"] = nlohmann::ordered_json::array();
+    for (const auto& out : s.outcomes) {
+      nlohmann::ordered_json e;
+      e["status"] = status_name(out.status);
+      e["values"] = values_json(n, r.reported, out.values);
+      e["count"] = out.count;
+      e["share"] = out.share;
+      e["share_ci95"] = {out.share_ci95.lo, out.share_ci95.hi};
+      e["witness"] = out.witness_name;
+      e["settle_fs"] = {{"min", out.settle.min}, {"median", out.settle.median}, {"max", out.settle.max}};
+      if (out.status == step_status::oscillating) e["period_fs"] = out.period;
+      st["outcomes"].push_back(std::move(e));
+    }
+    if (s.unseen_outcome_bound) st["unseen_outcome_bound"] = *s.unseen_outcome_bound;
+    st["expect"] = nlohmann::ordered_json::array();
+    for (const auto& x : s.expects) {
+      nlohmann::ordered_json e;
+      const auto& spec = *x.spec;
+      e["kind"] = expect_kind(spec.what);
+      if (spec.what == expectation::kind::value || spec.what == expectation::kind::no_glitch)
+        e["net"] = spec.ref.empty() ? n.net_name[spec.net] : spec.ref;
+      if (spec.what == expectation::kind::value) e["want"] = logic_text(spec.want);
+      if (spec.what == expectation::kind::within) e["budget_fs"] = spec.hi;
+      e["failing"] = x.failing;
+      e["pass"] = x.pass();
+      if (!x.pass()) {
+        e["witness"] = x.witness_name;
+        if (!x.detail.empty()) e["detail"] = x.detail;
+      }
+      st["expect"].push_back(std::move(e));
+    }
+    if (s.interval)
+      st["interval"] = {{"values", values_json(n, r.reported, s.interval->values)}, {"proven", s.interval->proven}};
+    j["steps"].push_back(std::move(st));
+  }
+  j["result"] = r.pass() ? "pass" : "findings";
+  return j.dump(2) + "\n";
+}
+
+std::string percent(double share) { return fmt::format("{:.1f}%", 100.0 * share); }
+
+std::string summary(const design& d, const sweep_cli_options& o, const sweep_result& r, bool colour) {
+  const netlist& n = d.nets;
+  auto paint = [colour](std::string text, bool good) {
+    if (!colour) return text;
+    return fmt::format(fmt::fg(good ? fmt::terminal_color::green : fmt::terminal_color::red) | fmt::emphasis::bold,
+                       "{}", text);
+  };
+  std::string out = fmt::format("design   {}\n", d.path);
+  out += fmt::format("corners  {} ({}, seed {}), {} thread{}, {} events, {:.2f} s\n", r.corners, o.corners, o.seed,
+                     r.threads, r.threads == 1 ? "" : "s", r.events, r.wall_s);
+  for (const auto& s : r.steps) {
+    out += fmt::format("\nstep {}: {}\n", s.index, s.label.empty() ? "(no input change)" : s.label);
+    // Findings stand out in capitals, with or without colour.
+    std::string verdict = verdict_name(s.verdict);
+    if (!s.pass)
+      for (auto& c : verdict) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
+    std::string note = fmt::format("{} outcome{} over {} corners", s.outcomes.size(),
+                                   s.outcomes.size() == 1 ? "" : "s", r.corners);
+    if (s.first_divergence) note += "; first divergence";
+    if (s.inherits) note += fmt::format("; inherits the divergence of step {}", s.inherits);
+    if (s.run_step && s.verdict == sweep_verdict::nondeterministic)
+      note += "; a `run` window, not a settled state";
+    out += fmt::format("  {}  {}\n", paint(verdict, s.pass), note);
+    if (s.unseen_outcome_bound)
+      out += fmt::format("  chance of an outcome not seen < {:.3g}% (rule of three over the random corners)\n",
+                         100.0 * *s.unseen_outcome_bound);
+    out += fmt::format("  {:>3}  {:<12} {:>8}  {:>6}  {:<17}  {:<28}  {}\n", "#", "status", "count", "share",
+                       "95% CI", "settle min / median / max", "witness");
+    for (std::size_t i = 0; i < s.outcomes.size(); ++i) {
+      const auto& oc = s.outcomes[i];
+      std::string status = status_name(oc.status);
+      if (oc.status == step_status::oscillating) status += " " + format_time(oc.period);
+      const std::string ci = fmt::format("[{}, {}]", percent(oc.share_ci95.lo), percent(oc.share_ci95.hi));
+      const std::string times = fmt::format("{} / {} / {}", format_time(oc.settle.min),
+                                            format_time(oc.settle.median), format_time(oc.settle.max));
+      out += fmt::format("  {:>3}  {:<12} {:>8}  {:>6}  {:<17}  {:<28}  {}\n", i + 1, status, oc.count,
+                         percent(oc.share), ci, times, oc.witness_name);
+      std::string vals;
+      for (std::size_t k = 0; k < r.reported.size() && k < oc.values.size(); ++k)
+        vals += fmt::format("{}{}={}", k ? " " : "", n.net_name[r.reported[k]], to_char(oc.values[k]));
+      if (!vals.empty()) out += fmt::format("       values  {}\n", vals);
+      out += fmt::format("       replay  {}\n", replay_command(o, oc.witness_name));
+    }
+    for (const auto& x : s.expects) {
+      const std::string what = expect_words(n, *x.spec);
+      if (x.pass()) {
+        out += fmt::format("  {}  {} in every corner\n", paint("pass", true), what);
+      } else {
+        out += fmt::format("  {}  {}: fails in {} of {} corners; first at {}{}\n", paint("FAIL", false), what,
+                           x.failing, r.corners, x.witness_name, x.detail.empty() ? "" : " (" + x.detail + ")");
+        out += fmt::format("       replay  {}\n", replay_command(o, x.witness_name));
+      }
+    }
+    if (s.interval) {
+      if (s.interval->proven) {
+        out += "  interval  proven deterministic for all delays in range\n";
+      } else {
+        std::string xs;
+        std::size_t shown = 0, total = 0;
+        for (std::size_t k = 0; k < r.reported.size() && k < s.interval->values.size(); ++k) {
+          if (s.interval->values[k] != logic::x) continue;
+          ++total;
+          if (shown++ < 8) xs += (xs.empty() ? "" : ", ") + n.net_name[r.reported[k]];
+        }
+        if (total > shown) xs += fmt::format(", ... ({} nets)", total);
+        out += fmt::format("  interval  inconclusive (x on {})\n", xs.empty() ? std::string(status_name(s.interval->status)) : xs);
+      }
+    }
+  }
+  std::size_t bad = 0;
+  for (const auto& s : r.steps) bad += s.pass ? 0 : 1;
+  out += fmt::format("\nresult  {}", paint(r.pass() ? "pass" : "findings", r.pass()));
+  if (bad) out += fmt::format(" ({} of {} steps)", bad, r.steps.size());
+  out += "\n";
+  return out;
+}
+
+std::string file_stem(const std::string& path) {
+  auto slash = path.rfind('/');
+  std::string base = slash == std::string::npos ? path : path.substr(slash + 1);
+  auto dot = base.rfind('.');
+  if (dot != std::string::npos && dot > 0) base.resize(dot);
+  return base.empty() ? "top" : base;
+}
+
+// A corner name as part of a file name: random:1#37 -> random-1-37.
+std::string corner_file_part(std::string name) {
+  for (auto& c : name)
+    if (c == ':' || c == '#' || c == '@' || c == '/') c = '-';
+  return name;
+}
+
+// One VCD per outcome of every step that is not deterministic, replaying its
+// witness: DIR/step<k>_outcome<r>_<witness>.vcd, r the outcome's rank (1 = most corners).
+bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep_plan& plan,
+                        const sweep_result& r, const run_options& ro) {
+  std::error_code ec;
+  std::filesystem::create_directories(o.vcd_dir, ec);
+  if (ec) {
+    spdlog::error("cannot create '{}': {}", o.vcd_dir, ec.message());
+    return false;
+  }
+  delay_table delays;
+  for (const auto& s : r.steps) {
+    if (s.verdict == sweep_verdict::deterministic) continue;
+    if (s.outcomes.size() > vcd_per_step_limit)
+      spdlog::warn("step {}: {} outcomes; writing the VCDs of the first {}", s.index, s.outcomes.size(),
+                   vcd_per_step_limit);
+    for (std::size_t i = 0; i < s.outcomes.size() && i < vcd_per_step_limit; ++i) {
+      const auto& oc = s.outcomes[i];
+      const std::string path = fmt::format("{}/step{}_outcome{}_{}.vcd", o.vcd_dir, s.index, i + 1,
+                                           corner_file_part(oc.witness_name));
+      vcd_options vo;
+      vo.top = file_stem(d.path);
+      vo.version = std::string("settle ") + SETTLE_VERSION;
+      vcd_writer vcd(d.nets, std::move(vo));
+      fill_delays(d.nets, plan.corner_at(oc.witness), delays);
+      run_stimulus(d, delays, ro, &vcd);
+      atomic_file f(path);
+      std::string err;
+      if (!f.open()) return false;
+      if (!vcd.write(f.get(), &err)) {
+        spdlog::error("cannot write '{}': {}", path, err);
+        return false;
+      }
+      if (!f.commit()) return false;
+    }
+  }
+  return true;
+}
+
+// "  1234/5000 corners  2.1k/s  1.8 s left" on one rewritten line.
+void show_progress(std::uint64_t done, std::uint64_t total, std::chrono::steady_clock::time_point t0) {
+  const double el = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+  const double rate = el > 0 ? static_cast<double>(done) / el : 0;
+  const std::string left = rate > 0 ? fmt::format("{:.1f} s left", static_cast<double>(total - done) / rate) : "";
+  std::fputs(fmt::format("\r\033[K  {}/{} corners  {:.0f}/s  {}", done, total, rate, left).c_str(), stderr);
+  std::fflush(stderr);
+}
+
+exit_status run_sweep_cmd(const sweep_cli_options& o) {
+  if (o.quiet) spdlog::set_level(spdlog::level::err);
+  std::string err;
+  run_options ro;
+  ro.max_events = o.max_events;
+  if (!o.horizon.empty()) {
+    auto h = parse_time(o.horizon, &err);
+    if (!h) {
+      spdlog::error("--horizon: {}", err);
+      return exit_status::error;
+    }
+    ro.horizon = *h;
+  }
+  auto d = load(o.design);
+  if (!d) return exit_status::error;
+  auto plan = plan_sweep(o.corners, o.seed, d->nets.gate_count(), &err);
+  if (!plan) {
+    spdlog::error("{}", err);
+    return exit_status::error;
+  }
+  sweep_options so;
+  so.threads = o.threads;
+  so.run = ro;
+  const bool progress = !o.quiet && ::isatty(2) == 1;
+  const auto t0 = std::chrono::steady_clock::now();
+  if (progress) so.progress = [t0](std::uint64_t done, std::uint64_t total) { show_progress(done, total, t0); };
+  const sweep_result r = run_sweep(*d, *plan, so);
+  if (progress) std::fputs("\r\033[K", stderr);
+
+  if (!o.json.empty() && !write_output(o.json, result_json(*d, o, r))) return exit_status::error;
+  if (!o.vcd_dir.empty() && !write_witness_vcds(*d, o, *plan, r, ro)) return exit_status::error;
+  if (!o.quiet && o.json != "-") std::fputs(summary(*d, o, r, use_colour(1)).c_str(), stdout);
+  return r.pass() ? exit_status::ok : exit_status::findings;
+}
+
+void add_sweep(CLI::App& app, exit_status& status) {
+  auto o = std::make_shared<sweep_cli_options>();
+  auto* cmd = app.add_subcommand("sweep", "run the stimulus under many delay corners and judge every step");
+  add_design_options(*cmd, o->design);
+  cmd->add_option("--corners", o->corners,
+                  "corner spec: extremes, exhaustive, random:N, gauss:N, interval joined by '+' "
+                  "(default extremes+random:1000)");
+  cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)");
+  cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)")->check(CLI::PositiveNumber);
+  cmd->add_option("--json", o->json, "write the results as JSON to PATH ('-' for stdout)");
+  cmd->add_option("--vcd-dir", o->vcd_dir,
+                  "write one VCD per outcome of every step that is not deterministic, replaying its witness, "
+                  "as DIR/step<k>_outcome<r>_<corner>.vcd");
+  cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
+  cmd->add_option("--max-events", o->max_events, "stop each corner after N events (0: no limit)");
+  cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout and no progress; errors still go to stderr");
+  cmd->callback([o, &status] { status = run_sweep_cmd(*o); });
+}
+
+}  // namespace
+
+SETTLE_COMMAND(sweep, "sweep", add_sweep);
+
+}  // namespace settle::cli

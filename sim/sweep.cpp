@@ -1,0 +1,313 @@
+// The sweep engine: a worker pool over corners, outcome grouping, verdicts and statistics per step.
+#include "sim/sweep.hpp"
+
+#include <algorithm>
+#include <atomic>
+#include <chrono>
+#include <cstring>
+#include <exception>
+#include <mutex>
+#include <thread>
+#include <unordered_map>
+
+#include <fmt/format.h>
+
+namespace settle {
+namespace {
+
+// An outcome as bytes: status, period (oscillating only), then the values.
+std::string key_of(step_status status, time_fs period, const std::vector<logic>& values) {
+  std::string k(1 + sizeof(time_fs) + values.size(), '\0');
+  k[0] = static_cast<char>(status);
+  if (status != step_status::oscillating) period = 0;
+  std::memcpy(k.data() + 1, &period, sizeof period);
+  for (std::size_t i = 0; i < values.size(); ++i) k[1 + sizeof(time_fs) + i] = static_cast<char>(values[i]);
+  return k;
+}
+
+void decode_key(const std::string& k, sweep_outcome& o) {
+  o.status = static_cast<step_status>(k[0]);
+  std::memcpy(&o.period, k.data() + 1, sizeof o.period);
+  for (std::size_t i = 1 + sizeof(time_fs); i < k.size(); ++i) o.values.push_back(static_cast<logic>(k[i]));
+}
+
+bool settles(step_status s) { return s == step_status::settled || s == step_status::running; }
+
+// What one worker learns about one expectation of one step.
+struct expect_acc {
+  std::uint64_t failing = 0;
+  std::uint64_t first = UINT64_MAX;
+  std::string detail;
+};
+
+// Outcome numbering shared by the workers. Ids are internal: the final order
+// comes from counts and witnesses, so it does not depend on which worker saw
+// an outcome first.
+class outcome_registry {
+ public:
+  explicit outcome_registry(std::size_t steps) : ids_(steps), keys_(steps) {}
+  std::uint32_t id(std::size_t step, const std::string& key) {
+    std::lock_guard lock(mutex_);
+    auto [it, fresh] = ids_[step].try_emplace(key, static_cast<std::uint32_t>(keys_[step].size()));
+    if (fresh) keys_[step].push_back(key);
+    return it->second;
+  }
+  const std::vector<std::string>& keys(std::size_t step) const { return keys_[step]; }
+
+ private:
+  std::mutex mutex_;
+  std::vector<std::unordered_map<std::string, std::uint32_t>> ids_;
+  std::vector<std::vector<std::string>> keys_;
+};
+
+struct worker_state {
+  std::uint64_t events = 0;
+  std::vector<net_id> reported;
+  bool have_reported = false;
+  std::vector<std::vector<expect_acc>> expects;  // [step][expectation]
+  std::vector<std::unordered_map<std::string, std::uint32_t>> cache;  // [step] key -> id
+  std::exception_ptr error;
+};
+
+struct shared_run {
+  const design& d;
+  const sweep_plan& plan;
+  const run_options& opt;
+  std::size_t steps;
+  std::vector<std::uint32_t>& outcome_of;  // [corner * steps + step]
+  std::vector<time_fs>& settle_of;         // [corner * steps + step]
+  outcome_registry& registry;
+  std::atomic<std::uint64_t>& next;
+  std::atomic<std::uint64_t>& done;
+};
+
+const step_spec* spec_of(const design& d, std::size_t step) {
+  return step < d.stim.steps.size() ? &d.stim.steps[step] : nullptr;
+}
+
+void work(shared_run& s, worker_state& w) {
+  try {
+    run_context ctx(s.d.nets);
+    delay_table table;
+    w.cache.resize(s.steps);
+    w.expects.resize(s.steps);
+    for (std::size_t k = 0; k < s.steps; ++k) {
+      const step_spec* spec = spec_of(s.d, k);
+      w.expects[k].resize(spec ? spec->expects.size() : 0);
+    }
+    std::vector<logic> unknown;
+    for (;;) {
+      const std::uint64_t i = s.next.fetch_add(1, std::memory_order_relaxed);
+      if (i >= s.plan.corners) break;
+      fill_delays(s.d.nets, s.plan.corner_at(i), table);
+      const run_result r = run_stimulus(ctx, s.d, table, s.opt);
+      w.events += r.events;
+      if (!w.have_reported) w.reported = r.reported, w.have_reported = true;
+      unknown.assign(r.reported.size(), logic::x);
+      for (std::size_t k = 0; k < s.steps; ++k) {
+        const bool ran = k < r.steps.size();
+        // A run stopped by --max-events has no later steps: they count as stopped.
+        const std::string key = ran ? key_of(r.steps[k].status, r.steps[k].period, r.steps[k].values)
+                                    : key_of(step_status::event_limit, 0, unknown);
+        auto& cache = w.cache[k];
+        auto it = cache.find(key);
+        const std::uint32_t id = it != cache.end() ? it->second : cache.emplace(key, s.registry.id(k, key)).first->second;
+        s.outcome_of[i * s.steps + k] = id;
+        s.settle_of[i * s.steps + k] = ran ? r.steps[k].settle : 0;
+        auto& accs = w.expects[k];
+        for (std::size_t e = 0; e < accs.size(); ++e) {
+          const bool pass = ran && e < r.steps[k].expects.size() && r.steps[k].expects[e].pass;
+          if (pass) continue;
+          ++accs[e].failing;
+          if (i < accs[e].first) {
+            accs[e].first = i;
+            accs[e].detail = ran ? r.steps[k].expects[e].detail : "the run stopped before this step (event limit)";
+          }
+        }
+      }
+      s.done.fetch_add(1, std::memory_order_relaxed);
+    }
+  } catch (...) {
+    w.error = std::current_exception();
+  }
+}
+
+sweep_verdict verdict_of(const std::vector<sweep_outcome>& outs) {
+  bool settled = false, osc = false, other = false;
+  for (const auto& o : outs) {
+    if (settles(o.status)) settled = true;
+    else if (o.status == step_status::oscillating) osc = true;
+    else other = true;
+  }
+  if (!osc && !other) return outs.size() == 1 ? sweep_verdict::deterministic : sweep_verdict::nondeterministic;
+  if (!settled && !other) return sweep_verdict::oscillating;
+  if (!settled && !osc) return sweep_verdict::timeout;
+  return sweep_verdict::mixed;
+}
+
+// Groups step k's corners into outcomes, ordered by count, then witness.
+std::vector<sweep_outcome> group_step(const sweep_plan& plan, std::size_t steps, std::size_t k,
+                                      const std::vector<std::uint32_t>& outcome_of,
+                                      const std::vector<time_fs>& settle_of, const outcome_registry& reg,
+                                      std::size_t& sampled_outcomes) {
+  const auto& keys = reg.keys(k);
+  std::vector<sweep_outcome> outs(keys.size());
+  std::vector<std::vector<time_fs>> times(keys.size());
+  std::vector<std::uint8_t> seen_sampled(keys.size(), 0);
+  for (std::size_t id = 0; id < keys.size(); ++id) decode_key(keys[id], outs[id]);
+  for (std::uint64_t i = 0; i < plan.corners; ++i) {
+    const std::uint32_t id = outcome_of[i * steps + k];
+    if (outs[id].count++ == 0) outs[id].witness = i;  // ascending: the first seen is the lowest
+    times[id].push_back(settle_of[i * steps + k]);
+    if (plan.is_sampled(i)) seen_sampled[id] = 1;
+  }
+  sampled_outcomes = 0;
+  for (std::size_t id = 0; id < keys.size(); ++id) {
+    auto& o = outs[id];
+    auto& t = times[id];
+    sampled_outcomes += seen_sampled[id];
+    std::sort(t.begin(), t.end());
+    o.settle = {t.front(), t[(t.size() - 1) / 2], t.back()};
+    o.share = static_cast<double>(o.count) / static_cast<double>(plan.corners);
+    o.share_ci95 = wilson_interval(o.count, plan.corners, 0.95);
+    o.witness_name = plan.corner_at(o.witness).name();
+  }
+  std::sort(outs.begin(), outs.end(), [](const sweep_outcome& a, const sweep_outcome& b) {
+    return a.count != b.count ? a.count > b.count : a.witness < b.witness;
+  });
+  return outs;
+}
+
+// Findings of a step: its verdict, then every expectation over every corner.
+bool step_passes(const sweep_step& st) {
+  for (const auto& e : st.expects)
+    if (!e.pass()) return false;
+  switch (st.verdict) {
+    case sweep_verdict::deterministic: return true;
+    case sweep_verdict::nondeterministic: return st.run_step;  // a `run` window samples a moving circuit
+    case sweep_verdict::oscillating:
+      return std::any_of(st.expects.begin(), st.expects.end(),
+                         [](const sweep_expect& e) { return e.spec->what == expectation::kind::oscillating; });
+    default: return false;
+  }
+}
+
+}  // namespace
+
+const char* verdict_name(sweep_verdict v) {
+  switch (v) {
+    case sweep_verdict::deterministic: return "deterministic";
+    case sweep_verdict::nondeterministic: return "nondeterministic";
+    case sweep_verdict::oscillating: return "oscillating";
+    case sweep_verdict::mixed: return "mixed";
+    case sweep_verdict::timeout: return "timeout";
+  }
+  return "?";
+}
+
+bool sweep_result::pass() const {
+  return std::all_of(steps.begin(), steps.end(), [](const sweep_step& s) { return s.pass; });
+}
+
+sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_options& opt) {
+  const auto started = std::chrono::steady_clock::now();
+  sweep_result res;
+  res.corners = plan.corners;
+  const std::size_t steps = d.stim.steps.empty() ? 1 : d.stim.steps.size();
+  unsigned threads = opt.threads ? opt.threads : std::max(1u, std::thread::hardware_concurrency());
+  if (plan.corners < threads) threads = static_cast<unsigned>(std::max<std::uint64_t>(plan.corners, 1));
+  res.threads = threads;
+
+  std::vector<std::uint32_t> outcome_of(plan.corners * steps);
+  std::vector<time_fs> settle_of(plan.corners * steps);
+  outcome_registry registry(steps);
+  std::atomic<std::uint64_t> next{0}, done{0};
+  std::atomic<unsigned> finished{0};
+  shared_run shared{d, plan, opt.run, steps, outcome_of, settle_of, registry, next, done};
+  std::vector<worker_state> workers(threads);
+  {
+    std::vector<std::thread> pool;
+    pool.reserve(threads);
+    for (unsigned t = 0; t < threads; ++t)
+      pool.emplace_back([&, t] {
+        work(shared, workers[t]);
+        finished.fetch_add(1);
+      });
+    if (opt.progress) {
+      auto last = std::chrono::steady_clock::now();
+      while (finished.load() < threads) {
+        std::this_thread::sleep_for(std::chrono::milliseconds(20));
+        const auto now = std::chrono::steady_clock::now();
+        if (std::chrono::duration<double>(now - last).count() >= opt.progress_every_s) {
+          opt.progress(done.load(), plan.corners);
+          last = now;
+        }
+      }
+      opt.progress(done.load(), plan.corners);
+    }
+    for (auto& th : pool) th.join();
+  }
+  for (auto& w : workers)
+    if (w.error) std::rethrow_exception(w.error);
+  for (auto& w : workers) {
+    res.events += w.events;
+    if (w.have_reported && res.reported.empty()) res.reported = w.reported;
+  }
+
+  std::optional<interval_result> iv;
+  if (plan.interval) iv = run_interval(d, opt.run);
+
+  std::size_t divergence = 0;
+  for (std::size_t k = 0; k < steps; ++k) {
+    sweep_step st;
+    st.index = k + 1;
+    const step_spec* spec = spec_of(d, k);
+    st.label = spec ? spec->label : "initial";
+    st.run_step = spec && spec->end == step_spec::end_kind::run;
+    std::size_t sampled_outcomes = 0;
+    st.outcomes = group_step(plan, steps, k, outcome_of, settle_of, registry, sampled_outcomes);
+    st.verdict = verdict_of(st.outcomes);
+    if (divergence) st.inherits = divergence;
+    else if (st.verdict != sweep_verdict::deterministic) st.first_divergence = true, divergence = st.index;
+    if (plan.sampled > 0 && sampled_outcomes == 1) st.unseen_outcome_bound = rule_of_three(plan.sampled);
+
+    const std::size_t n_expects = spec ? spec->expects.size() : 0;
+    for (std::size_t e = 0; e < n_expects; ++e) {
+      sweep_expect x;
+      x.spec = &spec->expects[e];
+      if (x.spec->what == expectation::kind::deterministic) {
+        // Judged across corners: the corners outside the most common outcome fail it.
+        if (st.verdict != sweep_verdict::deterministic) {
+          const bool several = st.outcomes.size() > 1;
+          x.failing = several ? plan.corners - st.outcomes[0].count : plan.corners;
+          x.witness = st.outcomes[several ? 1 : 0].witness;
+          for (std::size_t o = 1; o < st.outcomes.size(); ++o) x.witness = std::min(x.witness, st.outcomes[o].witness);
+          x.witness_name = plan.corner_at(x.witness).name();
+          x.detail = fmt::format("the step is {} across corners", verdict_name(st.verdict));
+        }
+      } else {
+        expect_acc acc;
+        for (const auto& w : workers) {
+          if (k >= w.expects.size() || e >= w.expects[k].size()) continue;
+          const auto& a = w.expects[k][e];
+          acc.failing += a.failing;
+          if (a.first < acc.first) acc.first = a.first, acc.detail = a.detail;
+        }
+        x.failing = acc.failing;
+        if (acc.failing) {
+          x.witness = acc.first;
+          x.witness_name = plan.corner_at(acc.first).name();
+          x.detail = acc.detail;
+        }
+      }
+      st.expects.push_back(std::move(x));
+    }
+    if (iv && k < iv->steps.size()) st.interval = iv->steps[k];
+    st.pass = step_passes(st);
+    res.steps.push_back(std::move(st));
+  }
+  res.wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+  return res;
+}
+
+}  // namespace settle

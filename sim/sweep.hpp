@@ -1,0 +1,137 @@
+// Corner sweeps: one design under many delay corners, grouped into outcomes with a verdict per step.
+#pragma once
+
+#include <cstdint>
+#include <functional>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "sim/corner.hpp"
+#include "sim/interval.hpp"
+#include "sim/kernel.hpp"
+#include "sim/stats.hpp"
+
+namespace settle {
+
+/// The most corners `exhaustive` enumerates (2^20); above it the spec is refused.
+inline constexpr std::uint64_t exhaustive_limit = std::uint64_t{1} << 20;
+/// The most corners one sweep may hold in total.
+inline constexpr std::uint64_t sweep_corner_limit = std::uint64_t{1} << 26;
+
+/// The corners of a sweep, in SPEC order. Corner i's delays follow from
+/// (seed, i) alone: corner_at(i) builds its name without enumerating the rest.
+struct sweep_plan {
+  /// One `+`-separated item of the spec (interval is not a corner).
+  struct item {
+    corner::kind what = corner::kind::random;
+    std::uint64_t first = 0;   ///< global number of its first corner
+    std::uint64_t count = 0;
+    std::uint64_t offset = 0;  ///< corner index of its first corner (random/gauss continue across items)
+  };
+  std::string spec;
+  std::uint64_t seed = 1;
+  std::vector<item> items;
+  std::uint64_t corners = 0;   ///< total, interval excluded
+  std::uint64_t sampled = 0;   ///< corners from random:N and gauss:N items
+  bool interval = false;       ///< the spec asks for the min-max ambiguity run
+
+  /// The i-th corner of the sweep (0 <= i < corners).
+  corner corner_at(std::uint64_t i) const;
+  /// True when corner i comes from a random or gauss item.
+  bool is_sampled(std::uint64_t i) const;
+};
+
+/// Parses SPEC (`extremes`, `exhaustive`, `random:N`, `gauss:N`, `interval`,
+/// joined by `+`) for a design of `gates` gates. `extremes` gives 3 + 2g
+/// corners `extremes#k`; `exhaustive` 2^g corners `exhaustive#k` (refused
+/// above 2^20); `random:N` corners `random:S#i`; `gauss:N` corners
+/// `gauss:S#i`. A second random (or gauss) item continues the numbering of
+/// the first, so no corner repeats. On error returns nullopt and sets *error.
+std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, std::size_t gates,
+                                     std::string* error);
+
+/// A step's verdict across all corners.
+enum class sweep_verdict : std::uint8_t {
+  deterministic,     ///< one settled outcome
+  nondeterministic,  ///< more than one settled outcome: a critical race
+  oscillating,       ///< every corner oscillates
+  mixed,             ///< some corners settle, others oscillate or time out (or a mix of the two)
+  timeout,           ///< every corner timed out (or hit the event limit)
+};
+/// "deterministic", "nondeterministic", "oscillating", "mixed", "timeout".
+const char* verdict_name(sweep_verdict v);
+
+/// Minimum, lower median (the ((n-1)/2)-th of n sorted values) and maximum.
+struct time_summary {
+  time_fs min = 0, median = 0, max = 0;
+};
+
+/// Corners of one step that ended the same way.
+struct sweep_outcome {
+  step_status status = step_status::settled;
+  std::vector<logic> values;   ///< per reported net
+  time_fs period = 0;          ///< oscillating only
+  std::uint64_t count = 0;
+  double share = 0;            ///< count / corners
+  proportion_interval share_ci95;  ///< Wilson score interval
+  std::uint64_t witness = 0;   ///< the lowest-numbered corner with this outcome
+  std::string witness_name;
+  time_summary settle;         ///< settle times over its corners
+};
+
+/// An expectation of a step judged over every corner.
+struct sweep_expect {
+  const expectation* spec = nullptr;
+  std::uint64_t failing = 0;   ///< corners in which it fails
+  std::uint64_t witness = 0;   ///< the first failing corner (when failing > 0)
+  std::string witness_name;
+  std::string detail;          ///< why it fails at the witness
+  bool pass() const { return failing == 0; }
+};
+
+struct sweep_step {
+  std::size_t index = 0;       ///< 1-based
+  std::string label;
+  bool run_step = false;       ///< ended by `run` (a sample in time, not a settled state)
+  sweep_verdict verdict = sweep_verdict::deterministic;
+  bool first_divergence = false;
+  std::size_t inherits = 0;    ///< index of the first divergent step before this one; 0 = none
+  std::vector<sweep_outcome> outcomes;  ///< by count descending, then witness
+  std::vector<sweep_expect> expects;
+  /// 3/N when the N random and gauss corners all gave one outcome (rule of three).
+  std::optional<double> unseen_outcome_bound;
+  std::optional<interval_step> interval;  ///< when the spec has `interval`
+  /// No finding: deterministic (or an expected oscillation, or a `run` step
+  /// that settles or keeps running without `expect deterministic`) and every
+  /// expectation holds in every corner.
+  bool pass = true;
+};
+
+struct sweep_result {
+  std::uint64_t corners = 0;
+  unsigned threads = 1;
+  std::uint64_t events = 0;      ///< value changes, summed over corners
+  double wall_s = 0;
+  std::vector<net_id> reported;  ///< outputs, then watched nets
+  std::vector<sweep_step> steps;
+  bool pass() const;
+};
+
+struct sweep_options {
+  unsigned threads = 0;          ///< 0: std::thread::hardware_concurrency()
+  run_options run;
+  /// Called on the calling thread about every `progress_every_s` with
+  /// (corners done, total) while the workers run; may be empty.
+  std::function<void(std::uint64_t, std::uint64_t)> progress;
+  double progress_every_s = 0.25;
+};
+
+/// Runs every corner of `plan` over `d` on a pool of worker threads (dynamic
+/// scheduling through an atomic counter; one run_context and delay table per
+/// worker; results stored per corner), then groups outcomes per step. The
+/// result is the same whatever the thread count, apart from wall_s and threads.
+sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_options& opt);
+
+}  // namespace settle
