@@ -25,7 +25,7 @@ if not os.path.isdir(iscas):
 sys.path.insert(0, os.path.join(src, "scripts"))
 from bench_reference import Circuit, clocked_run  # noqa: E402
 
-CIRCUITS = ["s27", "s208", "s298", "s344", "s386", "s1196"]
+CIRCUITS = ["s27", "s208", "s298", "s344", "s386", "s1196", "s5378", "s38417"]
 CYCLES = 24
 failures = []
 

@@ -1,6 +1,7 @@
 // The .bench importer against the published ISCAS figures, its flip-flop expansion and its errors.
 #include <catch2/catch.hpp>
 
+#include <algorithm>
 #include <filesystem>
 #include <fstream>
 #include <map>
@@ -91,6 +92,15 @@ TEST_CASE("every shared .bench file loads with the published line counts", "[par
   }
   auto rows = read_stats();
   CHECK(rows.size() >= 30);
+  // Every shared file has its row, so none escapes the check.
+  std::size_t files = 0;
+  for (const auto& e : std::filesystem::directory_iterator(iscas_dir)) {
+    if (e.path().extension() != ".bench") continue;
+    ++files;
+    const auto stem = e.path().stem().string();
+    CHECK(std::any_of(rows.begin(), rows.end(), [&](const stats_row& r) { return r.name == stem; }));
+  }
+  CHECK(files == rows.size());
   for (const auto& row : rows) {
     INFO(row.name);
     const auto path = iscas_dir + "/" + row.name + ".bench";
