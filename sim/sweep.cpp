@@ -157,8 +157,10 @@ std::vector<sweep_outcome> group_step(const sweep_plan& plan, std::size_t steps,
   for (std::size_t id = 0; id < keys.size(); ++id) decode_key(keys[id], outs[id]);
   for (std::uint64_t i = 0; i < plan.corners; ++i) {
     const std::uint32_t id = outcome_of[i * steps + k];
+    const time_fs t = settle_of[i * steps + k];
     if (outs[id].count++ == 0) outs[id].witness = i;  // ascending: the first seen is the lowest
-    times[id].push_back(settle_of[i * steps + k]);
+    if (times[id].empty() || t > outs[id].settle.max) outs[id].slowest = i, outs[id].settle.max = t;
+    times[id].push_back(t);
     if (plan.is_sampled(i)) seen_sampled[id] = 1;
   }
   sampled_outcomes = 0;

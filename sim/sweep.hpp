@@ -79,6 +79,7 @@ struct sweep_outcome {
   std::uint64_t witness = 0;   ///< the lowest-numbered corner with this outcome
   std::string witness_name;
   time_summary settle;         ///< settle times over its corners
+  std::uint64_t slowest = 0;   ///< the lowest-numbered corner whose settle time is settle.max
 };
 
 /// An expectation of a step judged over every corner.
