@@ -77,7 +77,9 @@ bool state_graph::explore(const netlist& n, std::span<const logic> inputs, race_
                          size(), i, lim.max_states);
       break;
     }
-    if (lim.max_bytes && (i & 1023) == 0 && bytes() > lim.max_bytes) {
+    // bytes() is a few capacity reads, so the guard is checked at every state:
+    // one gmw state can add up to 2^20 edges.
+    if ((lim.max_bytes && bytes() > lim.max_bytes) || edge_to.size() > UINT32_MAX - (std::size_t{1} << 21)) {
       stop = fmt::format("memory guard reached: {} MiB in use after {} states ({} explored); the guard is {} MiB",
                          bytes() >> 20, size(), i, lim.max_bytes >> 20);
       break;
