@@ -205,18 +205,19 @@ class elaborator {
                                           at_text(nl.gate_loc[nl.driver[out]])));
         ok = false;
       }
+      // A gate with an unknown input is still placed (reading constant 0) so
+      // that its output does not also show up as undriven; the design is
+      // rejected anyway.
       fanin.clear();
       for (auto& r : g.reads) {
         net_id n = lookup(r);
-        ok = ok && n != no_id;
-        fanin.push_back(n);
+        fanin.push_back(n == no_id ? netlist::const0 : n);
       }
       gate_delay delay = g.delay;
       if (!g.has_delay) {
         const auto& dflt = d.default_delay ? d.default_delay : f_.top.default_delay;
         if (!dflt) {
           rep_.error(g.out.loc, fmt::format("gate '{}' has no delay and no default delay is in scope", g.out.name));
-          ok = false;
         } else {
           delay = *dflt;
           delay.transport = g.delay.transport || dflt->transport;

@@ -294,6 +294,7 @@ stimulus {
   expect settle within 1ns
   expect oscillating
   after 1ns en = x
+}
 )", "t.settle", load_options{}, diags);
   REQUIRE(d);
   const auto& nl = d->nets;

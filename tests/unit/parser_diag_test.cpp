@@ -54,9 +54,9 @@ TEST_CASE("syntax errors on several lines are all reported in one run", "[parser
         "fifo.settle:5:1: error: 'settle' is only allowed inside stimulus { }\n"
         "settle\n"
         "^\n"
-        "fifo.settle:6:24: error: expected a time unit (fs ps ns us ms) at the end of the statement\n"
+        "fifo.settle:6:25: error: expected a time unit (fs ps ns us ms) at the end of the statement\n"
         "done = buf(req) delay 10\n"
-        "                       ^\n");
+        "                        ^\n");
 }
 
 TEST_CASE("elaboration errors are reported together, in source order", "[parser][diag]") {
@@ -88,10 +88,10 @@ TEST_CASE("a driven net nobody reads is a warning, not an error", "[parser][diag
 }
 
 TEST_CASE("the caret keeps tabs so it lines up", "[parser][diag]") {
-  CHECK(messages("input a\noutput q\n\tq = buf(b) delay 1ps\n") ==
-        "fifo.settle:3:10: error: unknown net 'b'\n"
-        "\tq = buf(b) delay 1ps\n"
-        "\t        ^\n");
+  CHECK(messages("input a\noutput q\n\tq = and(a, b) delay 1ps\n") ==
+        "fifo.settle:3:13: error: unknown net 'b'\n"
+        "\tq = and(a, b) delay 1ps\n"
+        "\t           ^\n");
 }
 
 TEST_CASE("a hierarchy 10,000 blocks deep elaborates without deep recursion", "[parser]") {
