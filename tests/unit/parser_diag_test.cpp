@@ -120,7 +120,7 @@ TEST_CASE("expression nesting is capped with a diagnostic", "[parser][diag]") {
   CHECK(d2.items[0].message == "expression nested deeper than 1000 levels");
 }
 
-TEST_CASE("--stim replaces the embedded stimulus, parsed against the design's nets", "[parser][stim]") {
+TEST_CASE("a stimulus file (--stim) replaces the embedded stimulus, parsed against the design's nets", "[parser][stim]") {
   auto design_path = write_temp("host.settle",
                                 "default delay 40ps..60ps\ninput contact_a, contact_b\noutput clean\nwire clean_n\n"
                                 "clean = nand(contact_a, clean_n)\nclean_n = nand(contact_b, clean)\n"
