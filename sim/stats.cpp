@@ -29,7 +29,11 @@ proportion_interval wilson_interval(std::uint64_t k, std::uint64_t n, double con
   const double denom = 1.0 + z2 / nn;
   const double centre = (p + z2 / (2.0 * nn)) / denom;
   const double half = z / denom * std::sqrt(p * (1.0 - p) / nn + z2 / (4.0 * nn * nn));
-  return {std::max(0.0, centre - half), std::min(1.0, centre + half)};
+  // The bounds are exactly 0 at k = 0 and exactly 1 at k = n (centre = half there);
+  // say so rather than leave rounding residue.
+  const double lo = k == 0 ? 0.0 : std::max(0.0, centre - half);
+  const double hi = k >= n ? 1.0 : std::min(1.0, centre + half);
+  return {lo, hi};
 }
 
 double rule_of_three(std::uint64_t n) { return n == 0 ? 1.0 : std::min(1.0, 3.0 / static_cast<double>(n)); }

@@ -338,7 +338,7 @@ void add_sweep(CLI::App& app, exit_status& status) {
                   "corner spec: extremes, exhaustive, random:N, gauss:N, interval joined by '+' "
                   "(default extremes+random:1000)");
   cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)");
-  cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)")->check(CLI::PositiveNumber);
+  cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)")->check(CLI::Range(1u, 4096u));
   cmd->add_option("--json", o->json, "write the results as JSON to PATH ('-' for stdout)");
   cmd->add_option("--vcd-dir", o->vcd_dir,
                   "write one VCD per outcome of every step that is not deterministic, replaying its witness, "
