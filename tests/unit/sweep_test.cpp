@@ -302,6 +302,16 @@ TEST_CASE("soundness: no sampled corner contradicts a binary interval value (exa
     const design d = load_file(e.path().string());
     check_sound(d, sweep(d, "extremes+random:200+gauss:100+interval"), checked);
   }
+  // The examples' replacement stimuli, on the designs they belong to.
+  for (const auto& [settle_file, stim] : {std::pair{"debounce.settle", "debounce_chatter.stim"},
+                                          std::pair{"delay_ring.settle", "delay_ring_free.stim"}}) {
+    load_options lo;
+    lo.stim_path = std::string(SETTLE_SOURCE_DIR "/examples/") + stim;
+    diagnostics diags;
+    auto d = load_design(std::string(SETTLE_SOURCE_DIR "/examples/") + settle_file, lo, diags);
+    REQUIRE(d);
+    check_sound(*d, sweep(*d, "extremes+random:200+interval"), checked);
+  }
   CHECK(files >= 4);
   CHECK(checked > 20);  // 68 binary interval values when written
 }
