@@ -93,7 +93,7 @@ struct visitor {
   void operator()(const ast::gate_stmt& g) {
     if (!design_only("gates are")) return;
     gate out;
-    if (lower_gate(g, out, rep)) scope->gates.push_back(std::move(out));
+    if (lower_gate(g, out, *scope, rep)) scope->gates.push_back(std::move(out));
   }
   void operator()(const ast::decl& d) {
     if (d.keyword == "watch") {

@@ -26,6 +26,7 @@ class elaborator {
 
   void run(netlist& nl) {
     nl.begin();
+    reserve(nl);
     index_blocks();
     find_recursion();
     std::vector<frame> work;
@@ -107,6 +108,36 @@ class elaborator {
     }
   }
 
+  /// A top-level net name must not repeat one already in the netlist.
+  bool claim_net_top(const netlist& nl, const ref& r) {
+    auto it = nl.by_name.find(r.name);
+    if (it == nl.by_name.end()) return true;
+    rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name, at_text(decl_loc_[it->second])));
+    return false;
+  }
+
+  /// Sizes the netlist's arrays for the top level, which holds most gates of big flat files.
+  void reserve(netlist& nl) {
+    const auto nets = f_.top.ins.size() + f_.top.outs.size() + f_.top.wires.size() + 2;
+    const auto gates = f_.top.gates.size();
+    nl.by_name.reserve(nets);
+    nl.net_name.reserve(nets);
+    nl.driver.reserve(nets);
+    nl.init.reserve(nets);
+    nl.net_scope.reserve(nets);
+    nl.aliases.reserve(nets);
+    is_input_.reserve(nets);
+    decl_loc_.reserve(nets);
+    nl.kind.reserve(gates);
+    nl.gate_out.reserve(gates);
+    nl.fanin_begin.reserve(gates + 1);
+    nl.code_begin.reserve(gates + 1);
+    nl.delay.reserve(gates);
+    nl.gate_loc.reserve(gates);
+    nl.fanin.reserve(f_.top.read_pool.size());
+    nl.code.reserve(f_.top.code_pool.size());
+  }
+
   net_id new_net(netlist& nl, std::string name, std::uint32_t scope, source_loc loc, bool input) {
     net_id id = nl.add_net(std::move(name), scope);
     is_input_.resize(nl.net_count(), false);
@@ -131,7 +162,16 @@ class elaborator {
     std::unordered_map<std::string_view, net_id> local;
     std::unordered_map<std::string_view, source_loc> taken;
     std::unordered_set<std::string_view> in_ports;
+    // At top level the netlist's own name table doubles as the scope's (the
+    // full name is the local name), which saves two big hash tables.
     auto claim = [&](const ref& r) {
+      if (top) {
+        auto it = nl.by_name.find(r.name);
+        if (it != nl.by_name.end()) {
+          rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name, at_text(decl_loc_[it->second])));
+          return false;
+        }
+      }
       auto [it, fresh] = taken.emplace(r.name, r.loc);
       if (!fresh) rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name, at_text(it->second)));
       return fresh;
@@ -139,9 +179,9 @@ class elaborator {
     enum role { as_input, as_output, as_wire };
     auto declare = [&](const ref& r, role ro) {
       const bool input = ro == as_input;
-      if (!claim(r)) return;
+      if (top ? !claim_net_top(nl, r) : !claim(r)) return;
       net_id id = new_net(nl, fr.prefix + r.name, fr.scope, r.loc, input);
-      local.emplace(r.name, id);
+      if (!top) local.emplace(r.name, id);
       nl.aliases.push_back({fr.scope, r.name, id});
       if (ro == as_input) nl.inputs.push_back(id);
       if (ro == as_output) nl.outputs.push_back(id);
@@ -179,13 +219,19 @@ class elaborator {
     auto lookup = [&](const ref& r) -> net_id {
       if (r.name == "0") return netlist::const0;
       if (r.name == "1") return netlist::const1;
-      auto it = local.find(r.name);
-      if (it != local.end()) return it->second;
+      if (top) {
+        auto it = nl.by_name.find(r.name);
+        if (it != nl.by_name.end()) return it->second;
+      } else {
+        auto it = local.find(r.name);
+        if (it != local.end()) return it->second;
+      }
       rep_.error(r.loc, fmt::format("unknown net '{}'", r.name));
       return no_id;
     };
 
     std::vector<net_id> fanin;
+    std::vector<std::uint32_t> program;
     for (auto& g : d.gates) {
       net_id out = lookup(g.out);
       bool ok = out != no_id;
@@ -209,8 +255,8 @@ class elaborator {
       // that its output does not also show up as undriven; the design is
       // rejected anyway.
       fanin.clear();
-      for (auto& r : g.reads) {
-        net_id n = lookup(r);
+      for (auto i = g.reads_begin; i < g.reads_end; ++i) {
+        net_id n = lookup(d.read_pool[i]);
         fanin.push_back(n == no_id ? netlist::const0 : n);
       }
       gate_delay delay = g.delay;
@@ -223,7 +269,8 @@ class elaborator {
           delay.transport = g.delay.transport || dflt->transport;
         }
       }
-      if (ok) nl.add_gate(g.kind, out, fanin, g.code, delay, g.out.loc);
+      program.assign(d.code_pool.begin() + g.code_begin, d.code_pool.begin() + g.code_end);
+      if (ok) nl.add_gate(g.kind, out, fanin, program, delay, g.out.loc);
     }
     for (auto& in : d.inits) {
       if (top) continue;  // top-level inits may name nets inside instances: applied after elaboration

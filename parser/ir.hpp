@@ -20,13 +20,14 @@ struct ref {
   source_loc loc;
 };
 
-/// A gate: reads are the fan-in (arguments in order for primitives, distinct
-/// nets for expr/gc; the names "0" and "1" are the constants).
+/// A gate. Its reads (the fan-in: arguments in order for primitives, distinct
+/// nets for expr/gc; the names "0" and "1" are the constants) and its program
+/// are ranges of its scope's pools, so a gate costs no heap block of its own.
 struct gate {
   ref out;
   gate_kind kind = gate_kind::buf;
-  std::vector<ref> reads;
-  std::vector<std::uint32_t> code;
+  std::uint32_t reads_begin = 0, reads_end = 0;
+  std::uint32_t code_begin = 0, code_end = 0;
   bool has_delay = false;
   gate_delay delay;
 };
@@ -48,6 +49,8 @@ struct scope_def {
   ref id;
   std::vector<ref> ins, outs, wires;
   std::vector<gate> gates;
+  std::vector<ref> read_pool;             ///< every gate's reads, back to back
+  std::vector<std::uint32_t> code_pool;   ///< every gate's program, back to back
   std::vector<inst> insts;
   std::vector<init> inits;
   std::optional<gate_delay> default_delay;

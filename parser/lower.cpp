@@ -40,7 +40,7 @@ const char* first_pos(const ast::or_expr& e) {
 class compiler {
  public:
   compiler(std::vector<ref>& reads, std::vector<std::uint32_t>& code, const reporter& rep)
-      : reads_(reads), code_(code), rep_(rep) {}
+      : reads_(reads), code_(code), rep_(rep), base_(reads.size()) {}
 
   void expr(const ast::or_expr& e) {
     for (std::size_t i = 0; i < e.size(); ++i) {
@@ -73,7 +73,7 @@ class compiler {
     if (u.nots.size() % 2) code_.push_back(encode(op::inv));
   }
   std::uint32_t index_of(const ast::name& n) {
-    auto [it, fresh] = index_.emplace(n.text, static_cast<std::uint32_t>(reads_.size()));
+    auto [it, fresh] = index_.emplace(n.text, static_cast<std::uint32_t>(reads_.size() - base_));
     if (fresh) reads_.push_back(lower_ref(n, rep_));
     return it->second;
   }
@@ -81,6 +81,7 @@ class compiler {
   std::vector<ref>& reads_;
   std::vector<std::uint32_t>& code_;
   const reporter& rep_;
+  std::size_t base_;
   std::unordered_map<std::string, std::uint32_t> index_;
 };
 
@@ -100,7 +101,7 @@ bool simple_arg(const ast::arg& a, ref& out, const reporter& rep) {
   return false;
 }
 
-bool lower_call(const ast::call& c, gate& out, reporter& rep) {
+bool lower_call(const ast::call& c, gate& out, scope_def& pools, reporter& rep) {
   const auto at = rep.loc_of(c.kind.pos);
   auto k = std::find_if(std::begin(kinds), std::end(kinds), [&](auto& e) { return c.kind.text == e.word; });
   if (k == std::end(kinds)) {
@@ -122,7 +123,7 @@ bool lower_call(const ast::call& c, gate& out, reporter& rep) {
       rep.error(at, "'gc' takes exactly two arguments, set: EXPR and reset: EXPR");
       return false;
     }
-    compiler comp(out.reads, out.code, rep);
+    compiler comp(pools.read_pool, pools.code_pool, rep);
     comp.expr(set->value);
     comp.expr(reset->value);
     return true;
@@ -135,7 +136,7 @@ bool lower_call(const ast::call& c, gate& out, reporter& rep) {
                 fmt::format("arguments of '{}' must be nets or the constants 0 and 1", c.kind.text));
       return false;
     }
-    out.reads.push_back(std::move(r));
+    pools.read_pool.push_back(std::move(r));
   }
   std::string want;
   switch (out.kind) {
@@ -205,21 +206,29 @@ bool lower_delay(const std::vector<ast::range>& ranges, bool transport, gate_del
   return lower_range(ranges[1], out.fall, rep);
 }
 
-bool lower_gate(const ast::gate_stmt& g, gate& out, reporter& rep) {
+bool lower_gate(const ast::gate_stmt& g, gate& out, scope_def& pools, reporter& rep) {
   out.out = lower_ref(g.out, rep);
+  out.reads_begin = static_cast<std::uint32_t>(pools.read_pool.size());
+  out.code_begin = static_cast<std::uint32_t>(pools.code_pool.size());
   bool ok = true;
   if (auto c = boost::get<ast::call>(&g.value)) {
-    ok = lower_call(*c, out, rep);
+    ok = lower_call(*c, out, pools, rep);
   } else {
     out.kind = gate_kind::expr;
-    compiler comp(out.reads, out.code, rep);
+    compiler comp(pools.read_pool, pools.code_pool, rep);
     comp.expr(boost::get<ast::or_expr>(g.value));
   }
+  out.reads_end = static_cast<std::uint32_t>(pools.read_pool.size());
+  out.code_end = static_cast<std::uint32_t>(pools.code_pool.size());
   if (g.delay) {
     out.has_delay = true;
     ok = lower_delay(*g.delay, g.transport, out.delay, rep) && ok;
   } else {
     out.delay.transport = g.transport;
+  }
+  if (!ok) {
+    pools.read_pool.resize(out.reads_begin);
+    pools.code_pool.resize(out.code_begin);
   }
   return ok;
 }

@@ -9,8 +9,9 @@ namespace settle::ir {
 /// The nesting limit of parenthesised expressions.
 inline constexpr int max_expr_depth = 1000;
 
-/// Lowers one gate statement; false (after reporting) when it is malformed.
-bool lower_gate(const ast::gate_stmt& g, gate& out, reporter& rep);
+/// Lowers one gate statement, appending its reads and program to the scope's
+/// pools; false (after reporting, pools restored) when it is malformed.
+bool lower_gate(const ast::gate_stmt& g, gate& out, scope_def& pools, reporter& rep);
 /// Converts a delay written as one range (both edges) or two (rise, fall).
 bool lower_delay(const std::vector<ast::range>& ranges, bool transport, gate_delay& out, reporter& rep);
 /// Converts a time literal; false (after reporting) when not exact or too large.
