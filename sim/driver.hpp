@@ -181,7 +181,7 @@ class driver {
         stop_clock(pending_[next_input].a.net);
         inputs.push_back(pending_[next_input++].a);
       }
-      clock_edges_at(t, inputs);
+      if (!clocks_.empty()) clock_edges_at(t, inputs);
       sim_.process_instant(t, inputs);
       if (opt_.max_events && sim_.events() >= opt_.max_events) {
         r.status = step_status::event_limit;

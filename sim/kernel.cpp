@@ -26,35 +26,130 @@ std::pair<std::uint64_t, std::uint64_t> pending_key(time_fs rel, gate_id g, logi
 
 }  // namespace
 
-void radix_queue::clear() {
-  for (auto& b : buckets_) b.clear();
-  last_ = 0;
-  size_ = 0;
+namespace {
+constexpr auto later = [](const queued_event& a, const queued_event& b) { return a.time > b.time; };
 }
 
-time_fs radix_queue::min_time() {
-  if (buckets_[0].empty()) {
-    int i = 1;
-    while (buckets_[i].empty()) ++i;
-    auto& b = buckets_[i];
-    time_fs m = std::numeric_limits<time_fs>::max();
-    for (const auto& e : b) m = std::min(m, e.time);
-    last_ = m;
-    // Every entry lands in a lower bucket relative to the new minimum.
-    for (const auto& e : b) buckets_[bucket(e.time)].push_back(e);
-    b.clear();
+event_queue::event_queue(time_fs largest_delay) : wheel_(slots) {
+  // The wheel spans 2^(width_bits + 12) fs >= 2 x the largest delay.
+  while ((time_fs{1} << (width_bits_ + slot_bits)) < 2 * largest_delay && width_bits_ < 40) ++width_bits_;
+}
+
+void event_queue::clear() {
+  for (std::size_t w = 0; w < occupied_.size(); ++w)
+    for (auto bits = occupied_[w]; bits; bits &= bits - 1) wheel_[w * 64 + __builtin_ctzll(bits)].clear();
+  occupied_.fill(0);
+  far_.clear();
+  base_ = floor_ = 0;
+  pos_ = size_ = in_wheel_ = 0;
+  sorted_ = false;
+}
+
+void event_queue::put(const queued_event& e) {
+  const auto slot = static_cast<std::size_t>((e.time >> width_bits_) & (slots - 1));
+  auto& v = wheel_[slot];
+  if (slot == cursor_slot() && sorted_) {
+    // The slot under the cursor is sorted from pos_ on: insert in order.
+    auto it = std::upper_bound(v.begin() + static_cast<std::ptrdiff_t>(pos_), v.end(), e,
+                               [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
+    v.insert(it, e);
+  } else {
+    v.push_back(e);
   }
-  return last_;
+  occupied_[slot / 64] |= std::uint64_t{1} << (slot % 64);
+  ++in_wheel_;
 }
 
-void radix_queue::take_front(std::vector<queued_event>& out) {
+void event_queue::push(const queued_event& e) {
+  ++size_;
+  if (!in_wheel(e.time)) {
+    far_.push_back(e);
+    std::push_heap(far_.begin(), far_.end(), later);
+    return;
+  }
+  if (e.time < base_) {
+    // The cursor looked ahead over empty slots and an earlier instant (an
+    // input change) scheduled before it. Every wheel entry lies within the
+    // window of floor_, so turning the cursor back keeps the circular order.
+    base_ = (e.time >> width_bits_) << width_bits_;
+    pos_ = 0;
+    sorted_ = false;
+  }
+  put(e);
+}
+
+// Pulls the far events that now fall within the wheel onto it.
+void event_queue::migrate() {
+  while (!far_.empty() && in_wheel(far_.front().time)) {
+    std::pop_heap(far_.begin(), far_.end(), later);
+    put(far_.back());
+    far_.pop_back();
+  }
+}
+
+time_fs event_queue::min_time() {
+  for (;;) {
+    auto& cur = wheel_[cursor_slot()];
+    if (pos_ < cur.size()) {
+      if (!sorted_) {
+        std::sort(cur.begin() + static_cast<std::ptrdiff_t>(pos_), cur.end(),
+                  [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
+        sorted_ = true;
+      }
+      return cur[pos_].time;
+    }
+    // Nothing on the wheel: the earliest far event, without moving (a peek).
+    if (in_wheel_ == 0) return far_.front().time;
+    cur.clear();
+    pos_ = 0;
+    sorted_ = false;
+    occupied_[cursor_slot() / 64] &= ~(std::uint64_t{1} << (cursor_slot() % 64));
+    // The next occupied slot, found through the bitmap.
+    const std::size_t s = cursor_slot();
+    std::size_t step = 1;
+    for (;; ++step) {
+      const std::size_t k = (s + step) & (slots - 1);
+      const std::uint64_t bits = occupied_[k / 64] >> (k % 64);
+      if (bits) {
+        step += __builtin_ctzll(bits);
+        break;
+      }
+      step += 63 - k % 64;  // skip the rest of this word
+    }
+    base_ += step << width_bits_;
+  }
+}
+
+void event_queue::take_front(std::vector<queued_event>& out) {
   out.clear();
-  std::swap(out, buckets_[0]);
+  time_fs t = min_time();
+  if (in_wheel_ == 0) {
+    // The wheel ran dry: move it to the earliest far event.
+    wheel_[cursor_slot()].clear();
+    occupied_[cursor_slot() / 64] &= ~(std::uint64_t{1} << (cursor_slot() % 64));
+    base_ = (t >> width_bits_) << width_bits_;
+    pos_ = 0;
+    sorted_ = false;
+  }
+  const bool turned = (t >> width_bits_) != (floor_ >> width_bits_);
+  floor_ = t;
+  if (turned && !far_.empty()) {
+    migrate();
+    t = min_time();
+  } else if (!sorted_) {
+    t = min_time();
+  }
+  auto& v = wheel_[cursor_slot()];
+  const std::size_t from = pos_;
+  while (pos_ < v.size() && v[pos_].time == t) ++pos_;
+  out.assign(v.begin() + static_cast<std::ptrdiff_t>(from), v.begin() + static_cast<std::ptrdiff_t>(pos_));
   size_ -= out.size();
+  in_wheel_ -= out.size();
 }
 
-simulator::simulator(const netlist& n) : n_(n) {
+simulator::simulator(const netlist& n) : n_(n), queue_(n.largest_max_delay()) {
   const auto nets = n.net_count(), gates = n.gate_count();
+  build_fast_paths();
   val_.resize(nets);
   toggles_.resize(nets);
   pend_val_.resize(gates);
@@ -63,6 +158,62 @@ simulator::simulator(const netlist& n) : n_(n) {
   mark_.assign(gates, 0);
   for (gate_id g = 0; g < gates; ++g)
     if (n.delay[g].transport) slot_[g] = static_cast<std::uint32_t>(tq_.size()), tq_.emplace_back();
+}
+
+// Gates of one or two inputs (and two-input C-elements) evaluate by one table
+// lookup; the tables are the exact ternary evaluation of each kind, taken from
+// eval_gate itself on a probe netlist, so both paths agree by construction.
+void simulator::build_fast_paths() {
+  netlist probe;
+  probe.begin();
+  const net_id a = probe.add_net("a", 0), b = probe.add_net("b", 0);
+  std::vector<net_id> y;
+  for (int k = 0; k < gate_kind_count; ++k) y.push_back(probe.add_net("y" + std::to_string(k), 0));
+  const gate_id first_two = gate_kind_count;
+  for (int k = 0; k < gate_kind_count; ++k) probe.add_gate(static_cast<gate_kind>(k), y[k], {a}, {}, {});
+  for (int k = 0; k < gate_kind_count; ++k) probe.add_gate(static_cast<gate_kind>(k), y[k], {a, b}, {}, {});
+  probe.finish();
+  std::vector<logic> v(probe.net_count(), logic::x);
+  v[0] = logic::zero, v[1] = logic::one;
+  const logic levels[] = {logic::zero, logic::one, logic::x};
+  for (int k = 0; k < gate_kind_count; ++k) {
+    const auto kind = static_cast<gate_kind>(k);
+    const bool one_ok = kind == gate_kind::buf || kind == gate_kind::inv || kind == gate_kind::and_ ||
+                        kind == gate_kind::nand || kind == gate_kind::or_ || kind == gate_kind::nor ||
+                        kind == gate_kind::xor_ || kind == gate_kind::xnor;
+    const bool two_ok = one_ok && kind != gate_kind::buf && kind != gate_kind::inv;
+    for (int i = 0; i < 3; ++i) {
+      v[a] = levels[i];
+      if (one_ok) tables_.one[k][i] = eval_gate(probe, static_cast<gate_id>(k), v.data(), logic::x);
+      for (int j = 0; j < 3; ++j) {
+        v[b] = levels[j];
+        if (two_ok) tables_.two[k][i * 3 + j] = eval_gate(probe, first_two + k, v.data(), logic::x);
+        if (kind == gate_kind::celem)
+          for (int q = 0; q < 3; ++q)
+            tables_.c2[i * 9 + j * 3 + q] = eval_gate(probe, first_two + k, v.data(), levels[q]);
+      }
+    }
+  }
+  fast_.resize(n_.gate_count());
+  for (gate_id g = 0; g < n_.gate_count(); ++g) {
+    gate_fast& f = fast_[g];
+    const auto k = n_.kind[g];
+    const auto fan = n_.fanin_begin[g + 1] - n_.fanin_begin[g];
+    f.out = n_.gate_out[g];
+    f.kind = static_cast<std::uint8_t>(k);
+    f.in0 = fan > 0 ? n_.fanin[n_.fanin_begin[g]] : 0;
+    f.in1 = fan > 1 ? n_.fanin[n_.fanin_begin[g] + 1] : 0;
+    const bool simple = k != gate_kind::mux && k != gate_kind::maj && k != gate_kind::gc && k != gate_kind::expr &&
+                        !n_.enumerate[g];
+    f.mode = gate_fast::general;
+    if (simple && k == gate_kind::celem) {
+      if (fan == 2) f.mode = gate_fast::c2;
+    } else if (simple && fan == 1) {
+      f.mode = gate_fast::one;
+    } else if (simple && fan == 2 && k != gate_kind::buf && k != gate_kind::inv) {
+      f.mode = gate_fast::two;
+    }
+  }
 }
 
 void simulator::reset(const delay_table& delays) {
@@ -132,10 +283,23 @@ void simulator::apply(net_id net, logic v, time_fs t) {
   }
 }
 
+logic simulator::eval_fast(gate_id g) const {
+  const gate_fast& f = fast_[g];
+  switch (f.mode) {
+    case gate_fast::one: return tables_.one[f.kind][static_cast<int>(val_[f.in0])];
+    case gate_fast::two:
+      return tables_.two[f.kind][static_cast<int>(val_[f.in0]) * 3 + static_cast<int>(val_[f.in1])];
+    case gate_fast::c2:
+      return tables_.c2[static_cast<int>(val_[f.in0]) * 9 + static_cast<int>(val_[f.in1]) * 3 +
+                        static_cast<int>(val_[f.out])];
+    default: return eval_gate(n_, g, val_.data(), val_[f.out]);
+  }
+}
+
 void simulator::evaluate(gate_id g, time_fs t) {
-  const net_id out = n_.gate_out[g];
+  const net_id out = fast_[g].out;
   const logic present = val_[out];
-  const logic v = eval_gate(n_, g, val_.data(), present);
+  const logic v = eval_fast(g);
   if (slot_[g] == no_id) {
     // Inertial: one pending change per output (pulses shorter than the delay vanish).
     const logic p = pend_val_[g];
@@ -156,30 +320,30 @@ void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
   now_ = t;
   if (++stamp_ == 0) std::fill(mark_.begin(), mark_.end(), 0), stamp_ = 1;
   dirty_.clear();
-  changes_.clear();
-  for (const auto& a : inputs) changes_.emplace_back(a.net, a.value);
-  if (!queue_.empty() && live_ && queue_.min_time() == t) {
+  // First every change due at t takes effect, then the gates they feed are
+  // evaluated: nothing depends on the order of events within an instant.
+  for (const auto& a : inputs) apply(a.net, a.value, t);
+  if (live_ && queue_.min_time() == t) {
     queue_.take_front(front_);
     for (const auto& e : front_) {
       const gate_id g = e.gate;
       if (slot_[g] == no_id) {
         if (pend_val_[g] == none || gen_[g] != e.gen) continue;
-        changes_.emplace_back(n_.gate_out[g], pend_val_[g]);
+        const logic v = pend_val_[g];
         pend_val_[g] = none;
         --live_;
+        apply(fast_[g].out, v, t);
       } else {
         auto& q = tq_[slot_[g]];
         if (q.empty() || q.front().id != e.gen) continue;
-        changes_.emplace_back(n_.gate_out[g], q.front().value);
+        const logic v = q.front().value;
         q.erase(q.begin());
         --live_;
         if (!q.empty()) queue_.push({q.front().time, g, q.front().id});
+        apply(n_.gate_out[g], v, t);
       }
     }
   }
-  // First every change due at t takes effect, then the gates they feed are
-  // evaluated: nothing depends on the order of events within an instant.
-  for (const auto& [net, v] : changes_) apply(net, v, t);
   if (eval_all_) {
     eval_all_ = false;
     for (gate_id g = 0; g < n_.gate_count(); ++g) evaluate(g, t);

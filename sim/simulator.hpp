@@ -20,17 +20,22 @@ struct queued_event {
   std::uint32_t gen;
 };
 
-/// A monotone priority queue for integer times: a radix heap (Ahuja, Mehlhorn,
-/// Orlin and Tarjan 1990). Insert is O(1), popping an instant is O(log C)
-/// amortised; buckets are vectors that keep their capacity, so a run in
-/// steady state allocates nothing. Times pushed must be >= the last popped.
-class radix_queue {
+/// The event queue: a timing wheel (Ulrich 1969; Varghese and Lauck 1987)
+/// of 4096 slots, each 2^k fs wide with k chosen so the wheel spans at least
+/// twice the largest gate delay, plus a binary heap for the rare event beyond
+/// the wheel. Insert is O(1); the slot under the cursor is sorted when the
+/// cursor reaches it (a handful of entries), and a bitmap of occupied slots
+/// finds the next one with a few word scans. Slots are vectors that keep their
+/// capacity, so a run in steady state allocates nothing, and the live part of
+/// the wheel stays in cache. Times pushed must be >= the last taken instant;
+/// min_time() may look ahead, and a later push before that point turns the
+/// cursor back.
+class event_queue {
  public:
+  /// Sizes the slots for delays up to `largest_delay`.
+  explicit event_queue(time_fs largest_delay = 0);
   void clear();
-  void push(const queued_event& e) {
-    buckets_[bucket(e.time)].push_back(e);
-    ++size_;
-  }
+  void push(const queued_event& e);
   bool empty() const { return size_ == 0; }
   std::size_t size() const { return size_; }
   /// The earliest time in the queue (the queue must not be empty).
@@ -40,15 +45,29 @@ class radix_queue {
   /// Calls f on every entry (any order).
   template <class F>
   void for_each(F&& f) const {
-    for (const auto& b : buckets_)
-      for (const auto& e : b) f(e);
+    for (std::size_t i = 0; i < slots; ++i) {
+      const auto& v = wheel_[i];
+      for (std::size_t k = i == cursor_slot() ? pos_ : 0; k < v.size(); ++k) f(v[k]);
+    }
+    for (const auto& e : far_) f(e);
   }
 
  private:
-  int bucket(time_fs t) const { return t == last_ ? 0 : 64 - __builtin_clzll(t ^ last_); }
-  std::array<std::vector<queued_event>, 65> buckets_;
-  time_fs last_ = 0;
-  std::size_t size_ = 0;
+  static constexpr std::size_t slot_bits = 12, slots = std::size_t{1} << slot_bits;
+  std::size_t cursor_slot() const { return static_cast<std::size_t>((base_ >> width_bits_) & (slots - 1)); }
+  bool in_wheel(time_fs t) const { return (t >> width_bits_) - (floor_ >> width_bits_) < slots; }
+  void put(const queued_event& e);
+  void migrate();
+
+  std::vector<std::vector<queued_event>> wheel_;
+  std::array<std::uint64_t, slots / 64> occupied_{};
+  std::vector<queued_event> far_;  // a min-heap on time
+  unsigned width_bits_ = 0;
+  time_fs base_ = 0;               // start of the slot under the cursor
+  time_fs floor_ = 0;              // the last instant taken: no push is earlier
+  std::size_t pos_ = 0;            // next entry of the (sorted) cursor slot
+  std::size_t size_ = 0, in_wheel_ = 0;
+  bool sorted_ = false;
 };
 
 /// The state needed to recognise a repeated full state: net values and the
@@ -97,6 +116,8 @@ class simulator {
  private:
   static constexpr logic none = static_cast<logic>(3);
 
+  void build_fast_paths();
+  logic eval_fast(gate_id g) const;
   void schedule(gate_id g, logic v, time_fs t);
   void apply(net_id net, logic v, time_fs t);
   void evaluate(gate_id g, time_fs t);
@@ -122,9 +143,21 @@ class simulator {
   std::vector<std::vector<transport_event>> tq_;
   std::uint32_t next_id_ = 0;
 
-  radix_queue queue_;
+  event_queue queue_;
   std::vector<queued_event> front_;
-  std::vector<std::pair<net_id, logic>> changes_;
+
+  // Per-gate evaluation shortcut: inputs and output inline, table row by kind.
+  struct gate_fast {
+    enum : std::uint8_t { general, one, two, c2 };
+    net_id in0 = 0, in1 = 0, out = 0;
+    std::uint8_t mode = general, kind = 0;
+  };
+  std::vector<gate_fast> fast_;
+  struct {
+    logic one[gate_kind_count][3];
+    logic two[gate_kind_count][9];
+    logic c2[27];  // (a, b, present)
+  } tables_{};
   std::vector<gate_id> dirty_;
   std::vector<std::uint32_t> mark_;
   std::uint32_t stamp_ = 0;

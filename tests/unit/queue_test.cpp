@@ -1,0 +1,52 @@
+// The timing-wheel event queue against a plain ordered multiset.
+#include <catch2/catch.hpp>
+
+#include <map>
+#include <random>
+
+#include "sim/simulator.hpp"
+
+using namespace settle;
+
+TEST_CASE("the event queue returns instants in time order, like an ordered multiset", "[kernel][queue]") {
+  for (time_fs largest : {time_fs{0}, time_fs{1000}, time_fs{60000}, time_fs{5000000}}) {
+    std::mt19937_64 rng(largest + 7);
+    event_queue q(largest);
+    std::multimap<time_fs, gate_id> ref;
+    time_fs now = 0;
+    std::vector<queued_event> front;
+    gate_id next = 0;
+    for (int round = 0; round < 20000; ++round) {
+      // A peek may move the cursor ahead; later pushes may still be earlier
+      // (as input changes are), down to the last instant taken.
+      if (!ref.empty() && rng() % 3 == 0) REQUIRE(q.min_time() == ref.begin()->first);
+      const int pushes = static_cast<int>(rng() % 4);
+      for (int k = 0; k < pushes; ++k) {
+        // Mostly within the largest delay, sometimes zero, sometimes far beyond.
+        const auto r = rng() % 100;
+        const time_fs d = r < 5 ? 0 : r < 90 ? rng() % (largest + 1) : rng() % (50 * largest + 1000000);
+        q.push({now + d, next, 0});
+        ref.emplace(now + d, next);
+        ++next;
+      }
+      if (ref.empty()) continue;
+      REQUIRE_FALSE(q.empty());
+      const time_fs t = q.min_time();
+      REQUIRE(t == ref.begin()->first);
+      q.take_front(front);
+      auto [lo, hi] = ref.equal_range(t);
+      std::vector<gate_id> want, got;
+      for (auto it = lo; it != hi; ++it) want.push_back(it->second);
+      for (auto& e : front) {
+        REQUIRE(e.time == t);
+        got.push_back(e.gate);
+      }
+      std::sort(want.begin(), want.end());
+      std::sort(got.begin(), got.end());
+      REQUIRE(got == want);
+      ref.erase(lo, hi);
+      REQUIRE(q.size() == ref.size());
+      now = t;
+    }
+  }
+}
