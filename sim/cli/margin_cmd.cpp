@@ -1,0 +1,333 @@
+// `settle margin`: the delay-spread margin of every step, settle-time margins, baselines and JUnit XML.
+#include <unistd.h>
+
+#include <filesystem>
+#include <fstream>
+#include <memory>
+#include <sstream>
+
+#include <CLI/CLI.hpp>
+#include <fmt/color.h>
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+#include <spdlog/spdlog.h>
+
+#include "sim/baseline.hpp"
+#include "sim/cli/command.hpp"
+#include "sim/margin.hpp"
+#include "sim/time_parse.hpp"
+#include "waves/junit.hpp"
+
+namespace settle::cli {
+namespace {
+
+using json = nlohmann::ordered_json;
+
+struct margin_cli_options {
+  design_options design;
+  std::string corners = "extremes+random:200";
+  std::uint64_t seed = 1;
+  unsigned threads = 0;
+  double resolution = 1.0, ceiling = 100.0, tolerance = 2.0;
+  std::string json, baseline, junit, horizon;
+  bool update_baseline = false, no_culprits = false, quiet = false;
+};
+
+std::string replay(const margin_cli_options& o, const std::string& corner) {
+  return replay_command(o.design, corner, o.horizon);
+}
+
+std::string pct_words(double w, bool at_least) { return (at_least ? ">= " : "") + spread_percent(w); }
+
+json failure_json(const design& d, const margin_cli_options& o, const margin_failure& f) {
+  json j;
+  j["spread_pct"] = 100.0 * f.spread;
+  j["step"] = f.step;
+  if (f.expect_index && f.step <= d.stim.steps.size()) {
+    j["kind"] = "expectation";
+    j["expectation"] = expectation_words(d.nets, d.stim.steps[f.step - 1].expects[*f.expect_index]);
+  } else {
+    j["kind"] = f.verdict == sweep_verdict::nondeterministic ? "divergence" : "verdict";
+  }
+  j["verdict"] = verdict_name(f.verdict);
+  j["witness"] = f.witness;
+  if (!f.other_witness.empty()) j["other_witness"] = f.other_witness;
+  if (!f.detail.empty()) j["detail"] = f.detail;
+  j["failing"] = f.failing;
+  j["corners"] = f.corners;
+  j["replay"] = replay(o, f.witness);
+  if (f.culprits) {
+    json c = culprit_json(d.nets, *f.culprits);
+    j["culprits"] = c["culprits"];
+    j["paths"] = c["paths"];
+    j["race"] = {{"corners", c["corners"]}, {"differing_gates", c["differing_gates"]}, {"tests", c["tests"]},
+                 {"minimal", c["minimal"]}};
+  }
+  return j;
+}
+
+json baseline_json(const std::string& file, bool updated, const baseline_comparison* cmp) {
+  json j;
+  j["file"] = file;
+  j["updated"] = updated;
+  j["compared"] = cmp != nullptr;
+  j["regressions"] = json::array();
+  j["changes"] = json::array();
+  if (cmp) {
+    for (const auto& c : cmp->changes)
+      j[c.regression ? "regressions" : "changes"].push_back(
+          {{"what", c.what}, {"before_pct", c.before_pct}, {"after_pct", c.after_pct}, {"drop_pct", c.before_pct - c.after_pct}});
+    j["notes"] = cmp->notes;
+  }
+  return j;
+}
+
+std::string result_json(const design& d, const margin_cli_options& o, const margin_result& r, const json& base,
+                        bool pass) {
+  json j;
+  j["tool"] = "settle";
+  j["version"] = SETTLE_VERSION;
+  j["design"] = d.path;
+  j["spec"] = o.corners;
+  j["seed"] = o.seed;
+  j["corners_per_probe"] = r.corners_per_probe;
+  j["resolution_pct"] = o.resolution;
+  j["ceiling_pct"] = o.ceiling;
+  j["margin_pct"] = 100.0 * r.margin;
+  j["at_least"] = r.at_ceiling;
+  j["fails_at_zero"] = r.fails_at_zero;
+  j["exact"] = r.exact;
+  j["confidence"] = r.confidence_note();
+  j["corner_runs"] = r.corner_runs;
+  j["culprit_runs"] = r.culprit_runs;
+  j["wall_s"] = r.wall_s;
+  j["probes"] = json::array();
+  for (const auto& p : r.probes) j["probes"].push_back({{"spread_pct", 100.0 * p.spread}, {"pass", p.pass}});
+  if (r.failure) j["failure"] = failure_json(d, o, *r.failure);
+  j["steps"] = json::array();
+  for (const auto& s : r.steps) {
+    json st;
+    st["index"] = s.index;
+    st["label"] = s.label;
+    st["margin_pct"] = 100.0 * s.margin;
+    st["at_least"] = s.at_ceiling;
+    st["fails_at_zero"] = s.fails_at_zero;
+    if (s.failure) st["failure"] = failure_json(d, o, *s.failure);
+    j["steps"].push_back(std::move(st));
+  }
+  j["settle_within"] = json::array();
+  for (const auto& w : r.within) {
+    json e = {{"step", w.step}, {"budget_fs", w.budget}, {"worst_fs", w.worst}, {"worst_corner", w.worst_corner},
+              {"margin_fs", w.margin_fs}, {"unsettled", w.unsettled}};
+    if (!w.worst_corner.empty()) e["replay"] = replay(o, w.worst_corner);
+    j["settle_within"].push_back(std::move(e));
+  }
+  if (!base.is_null()) j["baseline"] = base;
+  j["result"] = pass ? "pass" : "findings";
+  return j.dump(2) + "\n";
+}
+
+std::string failure_text(const design& d, const margin_cli_options& o, const margin_failure& f, const std::string& in) {
+  std::string what;
+  if (f.expect_index && f.step <= d.stim.steps.size())
+    what = fmt::format("{}: fails in {} of {} corners", expectation_words(d.nets, d.stim.steps[f.step - 1].expects[*f.expect_index]),
+                       f.failing, f.corners);
+  else
+    what = fmt::format("{} ({} of {} corners off the main outcome)", verdict_name(f.verdict), f.failing, f.corners);
+  std::string out = fmt::format("{}step {}, {}{}\n", in, f.step, what, f.detail.empty() ? "" : "; " + f.detail);
+  out += fmt::format("{}  witness  {}\n{}  replay   {}\n", in, f.witness, in, replay(o, f.witness));
+  if (!f.other_witness.empty())
+    out += fmt::format("{}  other    {}\n{}  replay   {}\n", in, f.other_witness, in, replay(o, f.other_witness));
+  if (f.culprits) out += culprit_text(d.nets, *f.culprits, in + "  ");
+  return out;
+}
+
+std::string summary(const design& d, const margin_cli_options& o, const margin_result& r,
+                    const baseline_comparison* cmp, bool updated, bool pass, bool colour) {
+  auto paint = [colour](std::string text, bool good) {
+    if (!colour) return text;
+    return fmt::format(fmt::fg(good ? fmt::terminal_color::green : fmt::terminal_color::red) | fmt::emphasis::bold,
+                       "{}", text);
+  };
+  std::string out = fmt::format("design   {}\n", d.path);
+  out += fmt::format("corners  {} per probe ({}, seed {}), {} probes, {} corner runs", r.corners_per_probe, o.corners,
+                     o.seed, r.probes.size(), r.corner_runs);
+  if (r.culprit_runs) out += fmt::format(" + {} culprit runs", r.culprit_runs);
+  out += fmt::format(", {:.2f} s\n", r.wall_s);
+  out += fmt::format("margin   {} of the written delay spread (searched 0%..{}, resolution {})\n",
+                     paint(pct_words(r.margin, r.at_ceiling), r.margin >= 1.0 || r.at_ceiling), spread_percent(r.ceiling),
+                     spread_percent(r.resolution));
+  out += fmt::format("         {}\n", r.confidence_note());
+  if (r.fails_at_zero) out += "         fails with every gate at its typical delay\n";
+  if (r.failure) {
+    out += fmt::format("\nfirst failure just above the margin, at {}:\n", spread_percent(r.failure->spread));
+    out += failure_text(d, o, *r.failure, "  ");
+  }
+  out += fmt::format("\n  {:>3}  {:<10}  {}\n", "#", "margin", "step");
+  for (const auto& s : r.steps)
+    out += fmt::format("  {:>3}  {:<10}  {}\n", s.index, pct_words(s.margin, s.at_ceiling),
+                       s.label.empty() ? "(no input change)" : s.label);
+  for (const auto& s : r.steps)
+    if (s.failure && r.failure && s.index != r.failure->step) {
+      out += fmt::format("\nstep {} fails at {}:\n", s.index, spread_percent(s.failure->spread));
+      out += failure_text(d, o, *s.failure, "  ");
+    }
+  if (!r.within.empty()) {
+    out += "\nsettle-time margins at the written spread:\n";
+    for (const auto& w : r.within) {
+      std::string m = w.margin_fs >= 0 ? format_time(static_cast<time_fs>(w.margin_fs))
+                                       : "-" + format_time(static_cast<time_fs>(-w.margin_fs));
+      out += fmt::format("  step {}  budget {}  worst {} at {}  margin {}{}\n", w.step, format_time(w.budget),
+                         format_time(w.worst), w.worst_corner.empty() ? "-" : w.worst_corner,
+                         paint(m, w.margin_fs >= 0 && !w.unsettled),
+                         w.unsettled ? fmt::format("  ({} corners do not settle)", w.unsettled) : "");
+    }
+  }
+  if (cmp || updated) {
+    out += fmt::format("\nbaseline {}{}\n", o.baseline, updated ? " (updated)" : "");
+    if (cmp) {
+      for (const auto& c : cmp->changes)
+        out += fmt::format("  {}  {}: {} -> {} ({:+.2f} points)\n", paint(c.regression ? "SHRANK" : "moved", !c.regression),
+                           c.what, fmt::format("{:g}%", c.before_pct), fmt::format("{:g}%", c.after_pct),
+                           c.after_pct - c.before_pct);
+      for (const auto& n : cmp->notes) out += fmt::format("  note  {}\n", n);
+      if (cmp->changes.empty()) out += "  no margin moved\n";
+    }
+  }
+  out += fmt::format("\nresult  {}\n", paint(pass ? "pass" : "findings", pass));
+  return out;
+}
+
+std::optional<std::string> read_file(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) return std::nullopt;
+  std::ostringstream ss;
+  ss << in.rdbuf();
+  return ss.str();
+}
+
+exit_status run_margin_cmd(const margin_cli_options& o) {
+  if (o.quiet) spdlog::set_level(spdlog::level::err);
+  if (o.update_baseline && o.baseline.empty()) {
+    spdlog::error("--update-baseline needs --baseline FILE to write to");
+    return exit_status::error;
+  }
+  if (!(o.tolerance >= 0)) {
+    spdlog::error("--tolerance must be >= 0 percentage points");
+    return exit_status::error;
+  }
+  std::string err;
+  margin_options mo;
+  mo.spec = o.corners;
+  mo.seed = o.seed;
+  mo.threads = o.threads;
+  mo.resolution_pct = o.resolution;
+  mo.ceiling_pct = o.ceiling;
+  mo.culprits = !o.no_culprits;
+  if (!o.horizon.empty()) {
+    auto h = parse_time(o.horizon, &err);
+    if (!h) {
+      spdlog::error("--horizon: {}", err);
+      return exit_status::error;
+    }
+    mo.run.horizon = *h;
+  }
+  // Read the baseline before the search, so a bad file fails fast.
+  std::optional<baseline_file> before;
+  if (!o.baseline.empty()) {
+    auto text = read_file(o.baseline);
+    if (text) {
+      before = parse_baseline(*text, &err);
+      if (!before) {
+        spdlog::error("{}: {}", o.baseline, err);
+        return exit_status::error;
+      }
+    } else if (!o.update_baseline) {
+      spdlog::error("cannot read baseline '{}'; write one with --update-baseline", o.baseline);
+      return exit_status::error;
+    }
+  }
+  auto d = load(o.design);
+  if (!d) return exit_status::error;
+  if (!o.quiet && ::isatty(2) == 1)
+    mo.progress = [](double w, std::uint64_t corners, bool pass) {
+      std::fputs(fmt::format("\r\033[K  spread {}: {} corners, {}", spread_percent(w), corners, pass ? "pass" : "fails").c_str(),
+                 stderr);
+      std::fflush(stderr);
+    };
+  auto r = find_margin(*d, mo, &err);
+  if (mo.progress) std::fputs("\r\033[K", stderr);
+  if (!r) {
+    spdlog::error("{}", err);
+    return exit_status::error;
+  }
+
+  const baseline_entry now = baseline_of(*d, o.design.path, o.design.stim, mo, *r);
+  std::optional<baseline_comparison> cmp;
+  if (before) {
+    if (const auto* old = find_entry(*before, o.design.path, o.design.stim)) {
+      cmp = compare_baseline(*old, now, o.tolerance);
+    } else if (!o.update_baseline) {
+      spdlog::error("baseline '{}' has no entry for {}{}; add one with --update-baseline", o.baseline, o.design.path,
+                    o.design.stim.empty() ? "" : " with --stim " + o.design.stim);
+      return exit_status::error;
+    }
+  }
+  if (o.update_baseline) {
+    baseline_file f = before ? *before : baseline_file{};
+    f.format_version = baseline_format_version;  // older files are rewritten in the current format
+    f.written_by = std::string("settle ") + SETTLE_VERSION;
+    merge_entry(f, now);
+    if (!write_output(o.baseline, baseline_text(f))) return exit_status::error;
+  }
+  const bool regressed = cmp && !o.update_baseline && cmp->regressed();
+  const bool pass = r->passes_as_written() && !regressed;
+
+  const json base = o.baseline.empty() ? json() : baseline_json(o.baseline, o.update_baseline, cmp ? &*cmp : nullptr);
+  if (!o.json.empty() && !write_output(o.json, result_json(*d, o, *r, base, pass))) return exit_status::error;
+  if (!o.junit.empty()) {
+    std::vector<std::pair<std::string, std::string>> shrank;
+    if (regressed)
+      for (const auto& c : cmp->changes)
+        if (c.regression)
+          shrank.emplace_back(c.what, fmt::format("{} margin fell from {:g}% to {:g}% ({:.2f} points, tolerance {:g})",
+                                                  c.what, c.before_pct, c.after_pct, c.before_pct - c.after_pct,
+                                                  o.tolerance));
+    const auto suite = junit_of_margin(*d, *r, [&](const std::string& c) { return replay(o, c); }, shrank);
+    if (!write_output(o.junit, junit_xml({suite}))) return exit_status::error;
+  }
+  if (!o.quiet && o.json != "-" && o.junit != "-")
+    std::fputs(summary(*d, o, *r, cmp && !o.update_baseline ? &*cmp : nullptr, o.update_baseline, pass, use_colour(1))
+                   .c_str(),
+               stdout);
+  return pass ? exit_status::ok : exit_status::findings;
+}
+
+void add_margin(CLI::App& app, exit_status& status) {
+  auto o = std::make_shared<margin_cli_options>();
+  auto* cmd = app.add_subcommand("margin", "find how far every gate's delay range can widen before a step fails");
+  add_design_options(*cmd, o->design);
+  cmd->add_option("--corners", o->corners,
+                  "corners run at every probed spread: extremes, exhaustive, random:N, gauss:N joined by '+' "
+                  "(default extremes+random:200)");
+  cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)");
+  cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)")->check(CLI::PositiveNumber);
+  cmd->add_option("--resolution", o->resolution, "stop bisecting when the bracket is PCT percentage points wide (default 1)");
+  cmd->add_option("--up-to", o->ceiling,
+                  "largest spread searched, in percent of the written one (default 100; a pass there reports >= PCT)");
+  cmd->add_option("--json", o->json, "write the results as JSON to PATH ('-' for stdout)");
+  cmd->add_option("--baseline", o->baseline, "compare the margins with this baseline file (exit 1 when one shrank)");
+  cmd->add_flag("--update-baseline", o->update_baseline, "write this run's margins into the --baseline file instead");
+  cmd->add_option("--tolerance", o->tolerance, "percentage points a margin may fall before it counts (default 2)");
+  cmd->add_option("--junit", o->junit, "write a JUnit-style XML report to PATH");
+  cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest written gate delay)");
+  cmd->add_flag("--no-culprits", o->no_culprits, "skip the search for the gates that decide a race");
+  cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout; errors still go to stderr");
+  cmd->callback([o, &status] { status = run_margin_cmd(*o); });
+}
+
+}  // namespace
+
+SETTLE_COMMAND(margin, "margin", add_margin);
+
+}  // namespace settle::cli
