@@ -146,6 +146,28 @@ bool write_output(const std::string& path, std::string_view text) {
   return f.commit();
 }
 
+std::string replay_command(const design_options& o, const std::string& corner, const std::string& horizon,
+                           std::uint64_t max_events) {
+  auto word = [](const std::string& w) {
+    const bool plain = !w.empty() && w[0] != '#' &&
+                       w.find_first_not_of("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz"
+                                           "0123456789_./:#@=+,-") == std::string::npos;
+    if (plain) return w;
+    std::string q = "'";
+    for (char c : w) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
+    return q + "'";
+  };
+  std::string cmd = "settle run " + word(o.path);
+  if (!o.stim.empty()) cmd += " --stim " + word(o.stim);
+  if (o.format != "auto") cmd += " --format " + o.format;
+  if (o.dff != "gates") cmd += " --dff " + o.dff;
+  if (!o.delay.empty()) cmd += " --delay " + word(o.delay);
+  cmd += " --corner " + word(corner);
+  if (!horizon.empty()) cmd += " --horizon " + word(horizon);
+  if (max_events) cmd += fmt::format(" --max-events {}", max_events);
+  return cmd;
+}
+
 bool use_colour(int fd) {
   const char* no = std::getenv("NO_COLOR");
   if (no && *no) return false;  // no-color.org: any non-empty value disables colour

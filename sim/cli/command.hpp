@@ -45,6 +45,12 @@ struct design_options {
 };
 void add_design_options(CLI::App& cmd, design_options& o);
 
+/// The `settle run` command line that replays `corner` of this design (words
+/// the shell would change are single-quoted); empty `horizon` and zero
+/// `max_events` are left out.
+std::string replay_command(const design_options& o, const std::string& corner, const std::string& horizon = "",
+                           std::uint64_t max_events = 0);
+
 /// Loads the design; prints diagnostics (file:line:col, caret) on stderr.
 /// Returns nullopt when there was an error (the command then exits 2).
 std::optional<design> load(const design_options& o);
