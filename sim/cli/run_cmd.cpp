@@ -11,6 +11,7 @@
 #include "sim/cli/command.hpp"
 #include "sim/kernel.hpp"
 #include "sim/time_parse.hpp"
+#include "waves/junit.hpp"
 #include "waves/vcd.hpp"
 
 namespace settle::cli {
@@ -20,6 +21,7 @@ struct run_cli_options {
   design_options design;
   std::string corner = "typ";
   std::string vcd, vcd_nets = "all", json, horizon;
+  std::string junit;
   std::uint64_t max_events = 0;
   bool verbose = false, quiet = false;
 };
@@ -237,8 +239,14 @@ exit_status run_run(const run_cli_options& o) {
     return exit_status::error;
   }
   if (!o.json.empty() && !write_output(o.json, result_json(*d, r, c->name(), wall))) return exit_status::error;
+  if (!o.junit.empty()) {
+    const auto replay = [&](const std::string& corner) {
+      return replay_command(o.design, corner, o.horizon, o.max_events);
+    };
+    if (!write_output(o.junit, junit_xml({junit_of_run(*d, r, c->name(), replay, wall)}))) return exit_status::error;
+  }
   if (vcd_file && !vcd_file->commit()) return exit_status::error;
-  if (!o.quiet && o.json != "-" && o.vcd != "-")
+  if (!o.quiet && o.json != "-" && o.vcd != "-" && o.junit != "-")
     std::fputs(table(*d, r, c->name(), use_colour(1), o.verbose, wall).c_str(), stdout);
   return r.pass() ? exit_status::ok : exit_status::findings;
 }
@@ -254,6 +262,7 @@ void add_run(CLI::App& app, exit_status& status) {
   cmd->add_option("--json", o->json, "write the results as JSON to PATH ('-' for stdout)");
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
   cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)");
+  cmd->add_option("--junit", o->junit, "write a JUnit-style XML report to PATH");
   cmd->add_flag("-v,--verbose", o->verbose, "also print events and events per second");
   cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout; errors still go to stderr");
   cmd->callback([o, &status] { status = run_run(*o); });
