@@ -13,8 +13,10 @@
 #include <spdlog/spdlog.h>
 
 #include "sim/cli/command.hpp"
+#include "sim/culprit.hpp"
 #include "sim/sweep.hpp"
 #include "sim/time_parse.hpp"
+#include "waves/junit.hpp"
 #include "waves/vcd.hpp"
 
 namespace settle::cli {
@@ -26,6 +28,7 @@ struct sweep_cli_options {
   std::uint64_t seed = 1;
   unsigned threads = 0;
   std::string json, vcd_dir, horizon;
+  std::string junit;
   std::uint64_t max_events = 0;
   bool quiet = false;
 };
@@ -94,7 +97,8 @@ nlohmann::ordered_json values_json(const netlist& n, const std::vector<net_id>& 
   return j;
 }
 
-std::string result_json(const design& d, const sweep_cli_options& o, const sweep_result& r) {
+std::string result_json(const design& d, const sweep_cli_options& o, const sweep_result& r,
+                        const std::vector<culprit_report>& races = {}) {
   const netlist& n = d.nets;
   nlohmann::ordered_json j;
   j["tool"] = "settle";
@@ -147,6 +151,14 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
     }
     if (s.interval)
       st["interval"] = {{"values", values_json(n, r.reported, s.interval->values)}, {"proven", s.interval->proven}};
+    for (const auto& race : races)
+      if (race.step == s.index) {
+        auto cj = culprit_json(n, race);
+        st["culprits"] = cj["culprits"];
+        st["paths"] = cj["paths"];
+        st["race"] = {{"corners", cj["corners"]}, {"differing_gates", cj["differing_gates"]}, {"tests", cj["tests"]},
+                      {"minimal", cj["minimal"]}};
+      }
     j["steps"].push_back(std::move(st));
   }
   j["result"] = r.pass() ? "pass" : "findings";
@@ -155,7 +167,8 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
 
 std::string percent(double share) { return fmt::format("{:.1f}%", 100.0 * share); }
 
-std::string summary(const design& d, const sweep_cli_options& o, const sweep_result& r, bool colour) {
+std::string summary(const design& d, const sweep_cli_options& o, const sweep_result& r, bool colour,
+                    const std::vector<culprit_report>& races = {}) {
   const netlist& n = d.nets;
   auto paint = [colour](std::string text, bool good) {
     if (!colour) return text;
@@ -208,6 +221,8 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
         out += fmt::format("       replay  {}\n", replay_command(o, x.witness_name));
       }
     }
+    for (const auto& race : races)
+      if (race.step == s.index) out += culprit_text(n, race, "  ");
     if (s.interval) {
       if (s.interval->proven) {
         out += "  interval  proven deterministic for all delays in range\n";
@@ -324,9 +339,25 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   const sweep_result r = run_sweep(*d, *plan, so);
   if (progress) std::fputs("\r\033[K", stderr);
 
-  if (!o.json.empty() && !write_output(o.json, result_json(*d, o, r))) return exit_status::error;
+  // The gates that decide each first divergence between two settled outcomes (ddmin).
+  std::vector<culprit_report> races;
+  for (const auto& s : r.steps) {
+    if (!s.first_divergence || s.run_step) continue;
+    std::vector<const sweep_outcome*> settled;  // the two most common settled outcomes race
+    for (const auto& oc : s.outcomes)
+      if (oc.status == step_status::settled && settled.size() < 2) settled.push_back(&oc);
+    if (settled.size() < 2) continue;
+    auto race = find_culprits(*d, ro, s.index, plan->corner_at(settled[0]->witness),
+                              plan->corner_at(settled[1]->witness));
+    if (!race.gates.empty()) races.push_back(std::move(race));
+  }
+
+  if (!o.json.empty() && !write_output(o.json, result_json(*d, o, r, races))) return exit_status::error;
+  if (!o.junit.empty() &&
+      !write_output(o.junit, junit_xml({junit_of_sweep(*d, r, [&](const std::string& c) { return replay_command(o, c); })})))
+    return exit_status::error;
   if (!o.vcd_dir.empty() && !write_witness_vcds(*d, o, *plan, r, ro)) return exit_status::error;
-  if (!o.quiet && o.json != "-") std::fputs(summary(*d, o, r, use_colour(1)).c_str(), stdout);
+  if (!o.quiet && o.json != "-" && o.junit != "-") std::fputs(summary(*d, o, r, use_colour(1), races).c_str(), stdout);
   return r.pass() ? exit_status::ok : exit_status::findings;
 }
 
@@ -345,6 +376,7 @@ void add_sweep(CLI::App& app, exit_status& status) {
                   "as DIR/step<k>_outcome<r>_<corner>.vcd");
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
   cmd->add_option("--max-events", o->max_events, "stop each corner after N events (0: no limit)");
+  cmd->add_option("--junit", o->junit, "write a JUnit-style XML report to PATH");
   cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout and no progress; errors still go to stderr");
   cmd->callback([o, &status] { status = run_sweep_cmd(*o); });
 }
