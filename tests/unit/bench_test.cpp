@@ -307,7 +307,7 @@ TEST_CASE("a net read but defined nowhere floats as an extra input, with a warni
   CHECK(d->source.inputs == 1);  // the counts stay those of the file's lines
 }
 
-TEST_CASE("--dff primitive is refused with a clear message", "[parser][bench]") {
+TEST_CASE("the primitive flip-flop option is refused with a clear message", "[parser][bench]") {
   load_options opt;
   opt.dff = "primitive";
   diagnostics diags;
