@@ -170,6 +170,7 @@ std::vector<sweep_outcome> group_step(const sweep_plan& plan, std::size_t steps,
     sampled_outcomes += seen_sampled[id];
     std::sort(t.begin(), t.end());
     o.settle = {t.front(), t[(t.size() - 1) / 2], t.back()};
+    o.settle_times = std::move(t);
     o.share = static_cast<double>(o.count) / static_cast<double>(plan.corners);
     o.share_ci95 = wilson_interval(o.count, plan.corners, 0.95);
     o.witness_name = plan.corner_at(o.witness).name();

@@ -80,6 +80,7 @@ struct sweep_outcome {
   std::string witness_name;
   time_summary settle;         ///< settle times over its corners
   std::uint64_t slowest = 0;   ///< the lowest-numbered corner whose settle time is settle.max
+  std::vector<time_fs> settle_times;  ///< its corners' settle times, ascending (for histograms)
 };
 
 /// An expectation of a step judged over every corner.
