@@ -53,7 +53,7 @@ int main(int argc, char** argv) {
   if (take_flag(args, "--usage")) {
     fmt::print("settle_bench [--data DIR] [--iscas DIR] [--quick] [google benchmark options]\n"
                "  --data DIR   generated designs (scripts/bench writes random100k.settle, random1m.settle,\n"
-               "               latches300.settle, pipe12.settle)\n"
+               "               pipe500.settle, pipe12.settle)\n"
                "  --iscas DIR  folder holding s38417.bench (default: ../shared/data/iscas)\n"
                "  --quick      one or a few iterations per benchmark\n"
                "  --cycles N   clock cycles of the s38417 run (default 1000)\n");

@@ -89,13 +89,13 @@ void sweep_setup(benchmark::State& st, std::string path) {
 }  // namespace
 
 void register_sweep(const config& c) {
-  const std::string p = c.path("latches300.settle");
+  const std::string p = c.path("pipe500.settle");
   for (unsigned t : {1u, 2u})
-    benchmark::RegisterBenchmark(("sweep/latches_300/threads:" + std::to_string(t)).c_str(), sweep_threads, p, t)
+    benchmark::RegisterBenchmark(("sweep/pipeline_500/threads:" + std::to_string(t)).c_str(), sweep_threads, p, t)
         ->Unit(benchmark::kMillisecond)
         ->UseRealTime()
         ->Iterations(c.iterations(5, 1));
-  benchmark::RegisterBenchmark("sweep_setup/latches_300", sweep_setup, p)
+  benchmark::RegisterBenchmark("sweep_setup/pipeline_500", sweep_setup, p)
       ->Unit(benchmark::kMillisecond)
       ->UseRealTime()
       ->Iterations(c.iterations(3, 1));

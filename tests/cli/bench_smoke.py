@@ -71,8 +71,8 @@ def with_bench_binary(tmp):
     want = {
         "kernel/random_100k": "events_per_s", "kernel/random_1m": "events_per_s",
         "load/random_1m": "rss_bytes_per_gate", "vcd/random_100k": "bytes_per_second",
-        "sweep/latches_300/threads:1": "corners_per_s", "sweep/latches_300/threads:2": "corners_per_s",
-        "sweep_setup/latches_300": "setup_share", "explore/pipeline_12": "states_per_s",
+        "sweep/pipeline_500/threads:1": "corners_per_s", "sweep/pipeline_500/threads:2": "corners_per_s",
+        "sweep_setup/pipeline_500": "setup_share", "explore/pipeline_12": "states_per_s",
         "iscas/s38417/cycles:10": "events_per_s",
     }
     for name, key in want.items():
@@ -98,7 +98,7 @@ def with_bench_binary(tmp):
 
 def with_settle_binary(tmp):
     rnd = gen(tmp, "random.settle", "random", "--gates", "2000", "--depth", "10")
-    lat = gen(tmp, "latches.settle", "latches", "--latches", "10", "--inputs", "8")
+    lat = gen(tmp, "pipe20.settle", "pipeline", "--stages", "20")
     pipe = gen(tmp, "pipe.settle", "pipeline", "--stages", "4")
 
     r = settle_json("run random", "run", rnd, "--corner", "random:1", "-q")
@@ -130,7 +130,7 @@ def with_settle_binary(tmp):
     if sweeps[1].get("events") != sweeps[2].get("events") or sweeps[1].get("steps") != sweeps[2].get("steps"):
         fail("sweep: 1 and 2 threads disagree on events or steps")
 
-    e = settle_json("explore pipeline", "explore", pipe, "-q")
+    e = settle_json("explore pipeline", "explore", pipe)
     steps = e.get("steps", [])
     if not steps or sum(s.get("states", 0) for s in steps) <= 0:
         fail(f"explore pipeline: no states explored: {str(steps)[:200]}")
