@@ -1,0 +1,52 @@
+// libFuzzer target: the .settle parser and elaborator, the .bench importer, diagnostics and a bounded run.
+#include <cstddef>
+#include <cstdint>
+#include <string>
+#include <string_view>
+
+#include "parser/load.hpp"
+#include "sim/corner.hpp"
+#include "sim/kernel.hpp"
+
+namespace {
+
+// Formats every diagnostic (the caret code indexes the source line by column).
+std::size_t format_all(const settle::diagnostics& diags) {
+  std::size_t n = 0;
+  for (const auto& d : diags.items) n += settle::format_diagnostic(d).size();
+  return n;
+}
+
+// A small design that loaded is also run once, bounded, so the elaborated
+// netlist is exercised by the kernel the way `settle run` would.
+void run_small(const settle::design& d) {
+  if (d.nets.gate_count() > 200) return;
+  settle::delay_table delays;
+  settle::fill_delays(d.nets, settle::corner{}, delays);
+  settle::run_options opt;
+  opt.max_events = 5000;
+  (void)settle::run_stimulus(d, delays, opt);
+}
+
+}  // namespace
+
+extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
+  const std::string_view text(reinterpret_cast<const char*>(data), size);
+  {
+    settle::diagnostics diags;
+    settle::load_options opt;
+    opt.format = "settle";
+    auto d = settle::load_design_text(text, "fuzz.settle", opt, diags);
+    format_all(diags);
+    if (d) run_small(*d);
+  }
+  {
+    settle::diagnostics diags;
+    settle::load_options opt;
+    opt.format = "bench";
+    auto d = settle::load_bench_text(text, "fuzz.bench", opt, diags);
+    format_all(diags);
+    if (d) run_small(*d);
+  }
+  return 0;
+}
