@@ -13,9 +13,11 @@
 #include <spdlog/spdlog.h>
 
 #include "sim/cli/command.hpp"
+#include "sim/cli/interrupt.hpp"
 #include "sim/culprit.hpp"
 #include "sim/sweep.hpp"
 #include "sim/time_parse.hpp"
+#include "waves/html.hpp"
 #include "waves/junit.hpp"
 #include "waves/vcd.hpp"
 
@@ -28,10 +30,21 @@ struct sweep_cli_options {
   std::uint64_t seed = 1;
   unsigned threads = 0;
   std::string json, vcd_dir, horizon;
-  std::string junit;
+  std::string junit, html;
   std::uint64_t max_events = 0;
+  double timeout_s = 0;  ///< --timeout: wall-clock budget in seconds (0: none)
   bool quiet = false;
 };
+
+/// Why the sweep stopped early, in words ("" when it ran every corner).
+std::string stop_words(const sweep_result& r) {
+  switch (r.stopped) {
+    case sweep_stop::interrupted: return fmt::format("interrupted by {}", interrupt_signal_name());
+    case sweep_stop::timeout: return "stopped by --timeout";
+    case sweep_stop::none: break;
+  }
+  return "";
+}
 
 /// The most witness VCDs written for one step.
 constexpr std::size_t vcd_per_step_limit = 32;
@@ -106,6 +119,12 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
   j["design"] = d.path;
   j["seed"] = o.seed;
   j["corners"] = r.corners;
+  if (r.stopped != sweep_stop::none) {
+    // The steps below cover the finished corners only.
+    j["corners_planned"] = r.planned;
+    j["stop_reason"] = r.stopped == sweep_stop::timeout ? "timeout" : "signal";
+  }
+  j["interrupted"] = r.stopped != sweep_stop::none;
   j["spec"] = o.corners;
   j["threads"] = r.threads;
   j["events"] = r.events;
@@ -178,6 +197,9 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
   std::string out = fmt::format("design   {}\n", d.path);
   out += fmt::format("corners  {} ({}, seed {}), {} thread{}, {} events, {:.2f} s\n", r.corners, o.corners, o.seed,
                      r.threads, r.threads == 1 ? "" : "s", r.events, r.wall_s);
+  if (r.stopped != sweep_stop::none)
+    out += fmt::format("{}  {}: {} of {} corners finished; the verdicts below cover those only\n",
+                       paint("STOPPED", false), stop_words(r), r.corners, r.planned);
   for (const auto& s : r.steps) {
     out += fmt::format("\nstep {}: {}\n", s.index, s.label.empty() ? "(no input change)" : s.label);
     // Findings stand out in capitals, with or without colour.
@@ -333,6 +355,9 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   sweep_options so;
   so.threads = o.threads;
   so.run = ro;
+  install_interrupt_handlers();
+  so.stop = interrupt_flag();
+  so.timeout_s = o.timeout_s;
   const bool progress = !o.quiet && ::isatty(2) == 1;
   const auto t0 = std::chrono::steady_clock::now();
   if (progress) so.progress = [t0](std::uint64_t done, std::uint64_t total) { show_progress(done, total, t0); };
@@ -342,6 +367,7 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   // The gates that decide each first divergence between two settled outcomes (ddmin).
   std::vector<culprit_report> races;
   for (const auto& s : r.steps) {
+    if (r.stopped != sweep_stop::none) break;  // a stopped sweep reports what it has, at once
     if (!s.first_divergence || s.run_step) continue;
     std::vector<const sweep_outcome*> settled;  // the two most common settled outcomes race
     for (const auto& oc : s.outcomes)
@@ -356,8 +382,13 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   if (!o.junit.empty() &&
       !write_output(o.junit, junit_xml({junit_of_sweep(*d, r, [&](const std::string& c) { return replay_command(o, c); })})))
     return exit_status::error;
-  if (!o.vcd_dir.empty() && !write_witness_vcds(*d, o, *plan, r, ro)) return exit_status::error;
-  if (!o.quiet && o.json != "-" && o.junit != "-") std::fputs(summary(*d, o, r, use_colour(1), races).c_str(), stdout);
+  if (r.stopped != sweep_stop::none) spdlog::warn("{}: {} of {} corners finished", stop_words(r), r.corners, r.planned);
+  if (!o.vcd_dir.empty() && r.stopped == sweep_stop::none && !write_witness_vcds(*d, o, *plan, r, ro)) return exit_status::error;
+  if (!o.html.empty() &&
+      !write_output(o.html, html_report_sweep(*d, r, ro, {"sweep", result_json(*d, o, r, races), ""})))
+    return exit_status::error;
+  if (!o.quiet && o.json != "-" && o.junit != "-" && o.html != "-") std::fputs(summary(*d, o, r, use_colour(1), races).c_str(), stdout);
+  if (r.stopped == sweep_stop::interrupted) return exit_status::interrupted;
   return r.pass() ? exit_status::ok : exit_status::findings;
 }
 
@@ -376,7 +407,12 @@ void add_sweep(CLI::App& app, exit_status& status) {
                   "as DIR/step<k>_outcome<r>_<corner>.vcd");
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
   cmd->add_option("--max-events", o->max_events, "stop each corner after N events (0: no limit)");
+  cmd->add_option("--timeout", o->timeout_s,
+                  "wall-clock budget in seconds: past it the sweep stops, reports the corners finished and "
+                  "exits 1 (0: none)")
+      ->check(CLI::NonNegativeNumber);
   cmd->add_option("--junit", o->junit, "write a JUnit-style XML report to PATH");
+  cmd->add_option("--html", o->html, "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH");
   cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout and no progress; errors still go to stderr");
   cmd->callback([o, &status] { status = run_sweep_cmd(*o); });
 }
