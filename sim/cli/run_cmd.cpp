@@ -11,6 +11,7 @@
 #include "sim/cli/command.hpp"
 #include "sim/kernel.hpp"
 #include "sim/time_parse.hpp"
+#include "waves/html.hpp"
 #include "waves/junit.hpp"
 #include "waves/vcd.hpp"
 
@@ -21,7 +22,7 @@ struct run_cli_options {
   design_options design;
   std::string corner = "typ";
   std::string vcd, vcd_nets = "all", json, horizon;
-  std::string junit;
+  std::string junit, html;
   std::uint64_t max_events = 0;
   bool verbose = false, quiet = false;
 };
@@ -245,8 +246,10 @@ exit_status run_run(const run_cli_options& o) {
     };
     if (!write_output(o.junit, junit_xml({junit_of_run(*d, r, c->name(), replay, wall)}))) return exit_status::error;
   }
+  if (!o.html.empty() && !write_output(o.html, html_report_run(*d, *c, ro, {"run", result_json(*d, r, c->name(), wall), ""})))
+    return exit_status::error;
   if (vcd_file && !vcd_file->commit()) return exit_status::error;
-  if (!o.quiet && o.json != "-" && o.vcd != "-" && o.junit != "-")
+  if (!o.quiet && o.json != "-" && o.vcd != "-" && o.junit != "-" && o.html != "-")
     std::fputs(table(*d, r, c->name(), use_colour(1), o.verbose, wall).c_str(), stdout);
   return r.pass() ? exit_status::ok : exit_status::findings;
 }
@@ -263,6 +266,7 @@ void add_run(CLI::App& app, exit_status& status) {
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
   cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)");
   cmd->add_option("--junit", o->junit, "write a JUnit-style XML report to PATH");
+  cmd->add_option("--html", o->html, "write a self-contained HTML report with the waveforms of every step to PATH");
   cmd->add_flag("-v,--verbose", o->verbose, "also print events and events per second");
   cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout; errors still go to stderr");
   cmd->callback([o, &status] { status = run_run(*o); });
