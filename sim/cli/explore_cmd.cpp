@@ -9,6 +9,7 @@
 
 #include "sim/cli/command.hpp"
 #include "sim/explore.hpp"
+#include "waves/html.hpp"
 #include "waves/dot.hpp"
 
 namespace settle::cli {
@@ -20,7 +21,7 @@ struct explore_cli_options {
   design_options design;
   std::string model = "gmw";
   std::uint64_t max_states = 2'000'000;
-  std::string json, dot;
+  std::string json, dot, html;
 };
 
 std::string one(logic v) { return std::string(1, to_char(v)); }
@@ -170,7 +171,7 @@ exit_status run_explore(const explore_cli_options& o) {
   eo.model = o.model == "single" ? explore_model::single : o.model == "ternary" ? explore_model::ternary
                                                                                  : explore_model::gmw;
   eo.max_states = o.max_states;
-  eo.keep_graphs = !o.dot.empty();
+  eo.keep_graphs = !o.dot.empty() || !o.html.empty();
   if (!o.dot.empty() && eo.model == explore_model::ternary) {
     spdlog::error("--dot needs a state graph: use --model gmw or single");
     return exit_status::error;
@@ -192,7 +193,9 @@ exit_status run_explore(const explore_cli_options& o) {
   }
   if (!o.json.empty() && !write_output(o.json, result_json(*d, *r, wall))) return exit_status::error;
   if (!o.dot.empty() && !write_output(o.dot, state_graph_dot(d->nets, *r, d->path))) return exit_status::error;
-  if (o.json != "-" && o.dot != "-") std::fputs(table(*d, *r, wall).c_str(), stdout);
+  if (!o.html.empty() && !write_output(o.html, html_report_explore(*d, *r, {"explore", result_json(*d, *r, wall), ""})))
+    return exit_status::error;
+  if (o.json != "-" && o.dot != "-" && o.html != "-") std::fputs(table(*d, *r, wall).c_str(), stdout);
   return r->pass() ? exit_status::ok : exit_status::findings;
 }
 
@@ -206,6 +209,7 @@ void add_explore(CLI::App& app, exit_status& status) {
       ->check(CLI::PositiveNumber);
   cmd->add_option("--json", o->json, "write the results as JSON to PATH ('-' for stdout)");
   cmd->add_option("--dot", o->dot, "write the explored state graphs as Graphviz DOT to PATH");
+  cmd->add_option("--html", o->html, "write a self-contained HTML report (stable states, small state graphs) to PATH");
   cmd->callback([o, &status] { status = run_explore(*o); });
 }
 
