@@ -16,6 +16,7 @@
 #include "sim/cli/command.hpp"
 #include "sim/margin.hpp"
 #include "sim/time_parse.hpp"
+#include "waves/html.hpp"
 #include "waves/junit.hpp"
 
 namespace settle::cli {
@@ -29,7 +30,7 @@ struct margin_cli_options {
   std::uint64_t seed = 1;
   unsigned threads = 0;
   double resolution = 1.0, ceiling = 100.0, tolerance = 2.0;
-  std::string json, baseline, junit, horizon;
+  std::string json, baseline, junit, horizon, html;
   bool update_baseline = false, no_culprits = false, quiet = false;
 };
 
@@ -296,7 +297,10 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
     const auto suite = junit_of_margin(*d, *r, [&](const std::string& c) { return replay(o, c); }, shrank);
     if (!write_output(o.junit, junit_xml({suite}))) return exit_status::error;
   }
-  if (!o.quiet && o.json != "-" && o.junit != "-")
+  if (!o.html.empty() &&
+      !write_output(o.html, html_report_margin(*d, *r, mo.run, {"margin", result_json(*d, o, *r, base, pass), ""})))
+    return exit_status::error;
+  if (!o.quiet && o.json != "-" && o.junit != "-" && o.html != "-")
     std::fputs(summary(*d, o, *r, cmp && !o.update_baseline ? &*cmp : nullptr, o.update_baseline, pass, use_colour(1))
                    .c_str(),
                stdout);
@@ -320,6 +324,7 @@ void add_margin(CLI::App& app, exit_status& status) {
   cmd->add_flag("--update-baseline", o->update_baseline, "write this run's margins into the --baseline file instead");
   cmd->add_option("--tolerance", o->tolerance, "percentage points a margin may fall before it counts (default 2)");
   cmd->add_option("--junit", o->junit, "write a JUnit-style XML report to PATH");
+  cmd->add_option("--html", o->html, "write a self-contained HTML report (margins, culprits, witness waveforms) to PATH");
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest written gate delay)");
   cmd->add_flag("--no-culprits", o->no_culprits, "skip the search for the gates that decide a race");
   cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout; errors still go to stderr");
