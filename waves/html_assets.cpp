@@ -61,6 +61,8 @@ svg.hist text,svg.graph text,svg.probes text{font-family:var(--mono);font-size:1
 .figure small{font-size:14px;font-weight:500;color:var(--soft);margin-left:8px}
 .graph-box{overflow-x:auto;border:1px solid var(--rule);border-radius:5px;background:#fcfaf5;margin-top:8px}
 .noscript{padding:20px}
+details.fold>summary{cursor:pointer;padding:6px 14px;color:var(--soft);font-size:12.5px}
+details.fold[open]>summary{border-bottom:1px dashed var(--rule)}
 )SETTLE";
 
 const char* const html_script = R"SETTLE((function () {
@@ -393,7 +395,13 @@ const char* const html_script = R"SETTLE((function () {
         body.appendChild(el('p', { text: 'interval run: ' + (st.interval.proven ? 'proven deterministic for all delays in range' : 'inconclusive') }));
       var w = (D.waves || []).filter(function (x) { return x.step === st.index; })[0];
       if (w) { body.appendChild(el('h3', { text: 'witness waveforms' })); body.appendChild(wavePanel(w, D.nets)); }
-      sec.appendChild(body);
+      // A passing deterministic step folds away so the races stay in view.
+      var quiet = st.verdict === 'deterministic' && (st.expect || []).every(function (e) { return e.pass; });
+      if (quiet) {
+        var det = el('details', { cls: 'fold' }, [el('summary', { text: 'outcome, settle times and expectations' })]);
+        det.appendChild(body);
+        sec.appendChild(det);
+      } else sec.appendChild(body);
       target.appendChild(sec);
     });
   }
