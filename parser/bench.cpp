@@ -350,7 +350,7 @@ class builder {
     // The ports alias the nets outside, as block ports do in the .settle language.
     for (auto [local, id] : {std::pair{"d", d}, std::pair{"ck", clock_}, std::pair{"q", q}}) {
       n_.aliases.push_back(net_alias{scope_index, local, id});
-      n_.by_name.emplace(q_name + "." + local, id);
+      n_.add_name(q_name + "." + local, id);
     }
     const auto loc = g.out.loc;
     n_.add_gate(gate_kind::nand, n1, {n4, n2}, {}, delay_, loc);

@@ -38,8 +38,20 @@ void reporter::report(diagnostic::level lv, source_loc at, const std::string& ms
     while (e > b && (text_[e - 1] == '\r' || text_[e - 1] == '\n')) --e;
     d.source_line = std::string(text_.substr(b, e - b));
   }
+  if (holding_) {
+    held_.push_back(std::move(d));
+    return;
+  }
   if (lv == diagnostic::level::error) ++errors_;
   out_.add(std::move(d));
+}
+
+void reporter::release() {
+  for (auto& d : held_) {
+    if (d.severity == diagnostic::level::error) ++errors_;
+    out_.add(std::move(d));
+  }
+  held_.clear();
 }
 
 namespace {
@@ -228,6 +240,33 @@ struct visitor {
 };
 
 bool blank(char c) { return c == ' ' || c == '\t' || c == '\r'; }
+bool ident_start(char c) { return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || c == '_'; }
+bool ident_char(char c) { return ident_start(c) || (c >= '0' && c <= '9'); }
+
+/// True for `NAME[.NAME...] = ...` whose first word is not a keyword: only a
+/// gate statement can parse from it (every other statement starts with a
+/// keyword). A piece ending in '{' is left to the full driver, which opens a
+/// block for a broken header.
+bool looks_like_gate(std::string_view piece) {
+  std::size_t i = 0;
+  const std::size_t n = piece.size();
+  if (n == 0 || piece.back() == '{' || !ident_start(piece[0])) return false;
+  while (i < n && ident_char(piece[i])) ++i;
+  if (grammar::is_reserved_word(piece.substr(0, i))) return false;
+  while (i < n && piece[i] == '.' && i + 1 < n && ident_start(piece[i + 1])) {
+    ++i;
+    while (i < n && ident_char(piece[i])) ++i;
+  }
+  while (i < n && blank(piece[i])) ++i;
+  return i < n && piece[i] == '=';
+}
+
+/// An upper bound of the nets a gate statement reads.
+std::size_t reads_bound(std::string_view piece) {
+  std::size_t k = 1;
+  for (char c : piece) k += c == ',' || c == '&' || c == '|' || c == '^';
+  return k;
+}
 
 /// True when the expression nesting is within the limit; otherwise reports it.
 bool depth_ok(std::string_view s, reporter& rep) {
@@ -245,6 +284,11 @@ bool depth_ok(std::string_view s, reporter& rep) {
 }  // namespace
 
 void parse_file(std::string_view text, file_mode mode, file& f, reporter& rep) {
+  if (text.size() >= UINT32_MAX) {
+    rep.error({}, "the file is too large (4 GB or more)");
+    return;
+  }
+  f.text = text;
   where at = where::top;
   scope_def* scope = &f.top;
   stim_block spare;             // a second stimulus block is parsed here and dropped
@@ -302,13 +346,16 @@ void parse_file(std::string_view text, file_mode mode, file& f, reporter& rep) {
           }
         } else if (mode == file_mode::stimulus_only && at == where::top) {
           rep.error(here, "a stimulus file holds one stimulus { } block and nothing else");
+        } else if (at == where::top && looks_like_gate(piece)) {
+          f.top_gates.push_back({static_cast<std::uint32_t>(s - text.data()), static_cast<std::uint32_t>(e - s)});
+          f.top_reads += reads_bound(piece);
         } else if (depth_ok(piece, rep)) {
           grammar::syntax_error err;
           st = ast::statement{};
           if (grammar::parse_statement(piece, st, err)) {
             visitor v{f, rep, mode, at, scope, stim, dead, s, piece};
             boost::apply_visitor(v, st);
-            if (boost::get<ast::block_head>(&st)) open_loc = here, open_name = scope->id.name;
+            if (boost::get<ast::block_head>(&st)) open_loc = here, open_name = std::string(scope->id.name);
           } else {
             rep.error(rep.loc_of(err.pos), err.message);
             // A broken block header still opens a block, so its '}' is not reported again.
@@ -330,6 +377,38 @@ void parse_file(std::string_view text, file_mode mode, file& f, reporter& rep) {
     rep.error(open_loc, open_name.empty() ? std::string("block is not closed with '}'")
                                           : fmt::format("block '{}' is not closed with '}}'", open_name));
   if (at == where::stim) rep.error(open_loc, "stimulus block is not closed with '}'");
+}
+
+}  // namespace settle::ir
+
+namespace settle::ir {
+
+bool parse_top_gate(const file& f, piece p, gate& out, scope_def& pools, reporter& rep) {
+  const std::string_view text = f.text.substr(p.begin, p.size);
+  if (lower_simple_gate(text, rep.loc_of(text.data()), out, pools)) return true;
+  if (!depth_ok(text, rep)) return false;
+  ast::statement st;
+  grammar::syntax_error err;
+  if (!grammar::parse_statement(text, st, err)) {
+    rep.error(rep.loc_of(err.pos), err.message);
+    return false;
+  }
+  auto* g = boost::get<ast::gate_stmt>(&st);
+  if (!g) {
+    rep.error(rep.loc_of(text.data()), "unknown statement");
+    return false;
+  }
+  return lower_gate(*g, out, pools, rep);
+}
+
+void check_top_gates(const file& f, reporter& rep) {
+  scope_def pools;
+  for (auto p : f.top_gates) {
+    gate g;
+    pools.read_pool.clear();
+    pools.code_pool.clear();
+    parse_top_gate(f, p, g, pools, rep);
+  }
 }
 
 }  // namespace settle::ir

@@ -11,6 +11,13 @@ namespace {
 
 std::string at_text(source_loc l) { return fmt::format("{}:{}", l.line, l.col); }
 
+std::string cat(std::string_view a, std::string_view b, std::string_view c = {}) {
+  std::string s;
+  s.reserve(a.size() + b.size() + c.size());
+  s.append(a).append(b).append(c);
+  return s;
+}
+
 /// One placed scope waiting to be elaborated.
 struct frame {
   const scope_def* def = nullptr;
@@ -22,7 +29,7 @@ struct frame {
 
 class elaborator {
  public:
-  elaborator(const file& f, reporter& rep) : f_(f), rep_(rep) {}
+  elaborator(file& f, reporter& rep) : f_(f), rep_(rep) {}
 
   void run(netlist& nl) {
     nl.begin();
@@ -32,6 +39,7 @@ class elaborator {
     std::vector<frame> work;
     work.push_back(frame{&f_.top, 0, "", {}, false});
     drain(nl, work);
+    if (aborted_) return;
     nl.finish();
     top_inits(nl);
     final_checks(nl);
@@ -45,7 +53,7 @@ class elaborator {
       saved_input.swap(is_input_);
       std::vector<source_loc> saved_decl;
       saved_decl.swap(decl_loc_);
-      work.push_back(frame{&f_.blocks[b], 0, f_.blocks[b].id.name + ".", {}, true});
+      work.push_back(frame{&f_.blocks[b], 0, cat(f_.blocks[b].id.name, "."), {}, true});
       drain(scratch, work);
       is_input_.swap(saved_input);
       decl_loc_.swap(saved_decl);
@@ -96,7 +104,7 @@ class elaborator {
           bool on = false;
           for (auto& p : path) {
             on = on || p.block == it->second;
-            if (on) cycle += f_.blocks[p.block].id.name + " -> ";
+            if (on) cycle += cat(f_.blocks[p.block].id.name, " -> ");
           }
           rep_.error(in.block.loc, fmt::format("recursive instantiation: {}{}", cycle, in.block.name));
           recursive_.insert(&in);
@@ -110,21 +118,17 @@ class elaborator {
 
   /// A top-level net name must not repeat one already in the netlist.
   bool claim_net_top(const netlist& nl, const ref& r) {
-    auto it = nl.by_name.find(r.name);
-    if (it == nl.by_name.end()) return true;
-    rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name, at_text(decl_loc_[it->second])));
+    const net_id n = nl.find(r.name);
+    if (n == no_id) return true;
+    rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name, at_text(decl_loc_[n])));
     return false;
   }
 
   /// Sizes the netlist's arrays for the top level, which holds most gates of big flat files.
   void reserve(netlist& nl) {
     const auto nets = f_.top.ins.size() + f_.top.outs.size() + f_.top.wires.size() + 2;
-    const auto gates = f_.top.gates.size();
-    nl.by_name.reserve(nets);
-    nl.net_name.reserve(nets);
-    nl.driver.reserve(nets);
-    nl.init.reserve(nets);
-    nl.net_scope.reserve(nets);
+    const auto gates = f_.top_gates.size();
+    nl.reserve_nets(nets);
     nl.aliases.reserve(nets);
     is_input_.reserve(nets);
     decl_loc_.reserve(nets);
@@ -134,8 +138,7 @@ class elaborator {
     nl.code_begin.reserve(gates + 1);
     nl.delay.reserve(gates);
     nl.gate_loc.reserve(gates);
-    nl.fanin.reserve(f_.top.read_pool.size());
-    nl.code.reserve(f_.top.code_pool.size());
+    nl.fanin.reserve(f_.top_reads);
   }
 
   net_id new_net(netlist& nl, std::string name, std::uint32_t scope, source_loc loc, bool input) {
@@ -166,9 +169,9 @@ class elaborator {
     // full name is the local name), which saves two big hash tables.
     auto claim = [&](const ref& r) {
       if (top) {
-        auto it = nl.by_name.find(r.name);
-        if (it != nl.by_name.end()) {
-          rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name, at_text(decl_loc_[it->second])));
+        const net_id n = nl.find(r.name);
+        if (n != no_id) {
+          rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name, at_text(decl_loc_[n])));
           return false;
         }
       }
@@ -180,9 +183,9 @@ class elaborator {
     auto declare = [&](const ref& r, role ro) {
       const bool input = ro == as_input;
       if (top ? !claim_net_top(nl, r) : !claim(r)) return;
-      net_id id = new_net(nl, fr.prefix + r.name, fr.scope, r.loc, input);
+      net_id id = new_net(nl, cat(fr.prefix, r.name), fr.scope, r.loc, input);
       if (!top) local.emplace(r.name, id);
-      nl.aliases.push_back({fr.scope, r.name, id});
+      nl.aliases.push_back({fr.scope, std::string(r.name), id});
       if (ro == as_input) nl.inputs.push_back(id);
       if (ro == as_output) nl.outputs.push_back(id);
     };
@@ -190,7 +193,7 @@ class elaborator {
       for (auto& r : d.ins) declare(r, as_input);
       for (auto& r : d.outs) declare(r, as_output);
     } else {
-      auto bound = [&](const std::string& port) -> net_id {
+      auto bound = [&](std::string_view port) -> net_id {
         for (auto& [p, n] : fr.bound)
           if (p == port) return n;
         return no_id;
@@ -201,27 +204,31 @@ class elaborator {
           net_id n = bound(r.name);
           if (n == no_id) {
             if (claim(r)) {
-              n = new_net(nl, fr.prefix + r.name, fr.scope, r.loc, dir == 0 && fr.dry);
+              n = new_net(nl, cat(fr.prefix, r.name), fr.scope, r.loc, dir == 0 && fr.dry);
               local.emplace(r.name, n);
-              nl.aliases.push_back({fr.scope, r.name, n});
+              nl.aliases.push_back({fr.scope, std::string(r.name), n});
             }
             continue;
           }
           if (!claim(r)) continue;
           local.emplace(r.name, n);
-          nl.aliases.push_back({fr.scope, r.name, n});
-          nl.by_name.emplace(fr.prefix + r.name, n);
+          nl.aliases.push_back({fr.scope, std::string(r.name), n});
+          nl.add_name(cat(fr.prefix, r.name), n);
         }
     }
     for (auto& r : d.wires) declare(r, as_wire);
     for (auto& i : d.insts) claim(i.id);
+    if (top) {
+      // The declarations are in the netlist now; their list can go.
+      f_.top.wires = {};
+    }
 
     auto lookup = [&](const ref& r) -> net_id {
       if (r.name == "0") return netlist::const0;
       if (r.name == "1") return netlist::const1;
       if (top) {
-        auto it = nl.by_name.find(r.name);
-        if (it != nl.by_name.end()) return it->second;
+        const net_id n = nl.find(r.name);
+        if (n != no_id) return n;
       } else {
         auto it = local.find(r.name);
         if (it != local.end()) return it->second;
@@ -232,7 +239,7 @@ class elaborator {
 
     std::vector<net_id> fanin;
     std::vector<std::uint32_t> program;
-    for (auto& g : d.gates) {
+    auto place_gate = [&](const gate& g, const scope_def& pools) {
       net_id out = lookup(g.out);
       bool ok = out != no_id;
       if (ok && out <= netlist::const1) {
@@ -256,7 +263,7 @@ class elaborator {
       // rejected anyway.
       fanin.clear();
       for (auto i = g.reads_begin; i < g.reads_end; ++i) {
-        net_id n = lookup(d.read_pool[i]);
+        net_id n = lookup(pools.read_pool[i]);
         fanin.push_back(n == no_id ? netlist::const0 : n);
       }
       gate_delay delay = g.delay;
@@ -269,9 +276,11 @@ class elaborator {
           delay.transport = g.delay.transport || dflt->transport;
         }
       }
-      program.assign(d.code_pool.begin() + g.code_begin, d.code_pool.begin() + g.code_end);
+      program.assign(pools.code_pool.begin() + g.code_begin, pools.code_pool.begin() + g.code_end);
       if (ok) nl.add_gate(g.kind, out, fanin, program, delay, g.out.loc);
-    }
+    };
+    for (auto& g : d.gates) place_gate(g, d);
+    if (top && !stream_top_gates(place_gate)) return;
     for (auto& in : d.inits) {
       if (top) continue;  // top-level inits may name nets inside instances: applied after elaboration
       net_id n = lookup(in.net);
@@ -290,7 +299,7 @@ class elaborator {
     }
     const scope_def& b = f_.blocks[it->second];
     used_[it->second] = true;
-    frame child{&b, 0, fr.prefix + in.id.name + ".", {}, fr.dry};
+    frame child{&b, 0, cat(fr.prefix, in.id.name, "."), {}, fr.dry};
     bool ok = true;
     for (auto& bind : in.binds) {
       bool is_in = false, is_out = false;
@@ -330,9 +339,41 @@ class elaborator {
     }
     if (!ok) return;
     child.scope = static_cast<std::uint32_t>(nl.scopes.size());
-    nl.scopes.push_back(scope{in.id.name, b.id.name, fr.scope});
+    nl.scopes.push_back(scope{std::string(in.id.name), std::string(b.id.name), fr.scope});
     ++nl.instances;
     work.push_back(std::move(child));
+  }
+
+  /// Parses each top-level gate statement and places it at once, so that no
+  /// form of the whole file's gates is ever held. Syntax errors among them
+  /// mean, as for any syntax error, that the design is not elaborated: the
+  /// elaboration errors found on the way are then dropped.
+  template <typename Place>
+  bool stream_top_gates(Place& place_gate) {
+    const auto before = rep_.errors();
+    scope_def pools;
+    gate g;
+    constexpr std::size_t release_step = std::size_t(8) << 20;
+    std::size_t released = 0;
+    for (auto p : f_.top_gates) {
+      if (f_.release_text && p.begin >= released + release_step) f_.release_text(released = p.begin);
+      pools.read_pool.clear();
+      pools.code_pool.clear();
+      g = gate{};
+      const bool parsed = parse_top_gate(f_, p, g, pools, rep_);
+      if (!parsed || rep_.errors() != before) continue;
+      rep_.hold(true);
+      place_gate(g, pools);
+      rep_.hold(false);
+    }
+    f_.top_gates = {};
+    if (rep_.errors() != before) {
+      rep_.drop();
+      aborted_ = true;
+      return false;
+    }
+    rep_.release();
+    return true;
   }
 
   void top_inits(netlist& nl) {
@@ -364,8 +405,9 @@ class elaborator {
     }
   }
 
-  const file& f_;
+  file& f_;
   reporter& rep_;
+  bool aborted_ = false;
   std::unordered_map<std::string_view, std::uint32_t> block_;
   std::vector<bool> used_, duplicate_;
   std::unordered_set<const inst*> recursive_;
@@ -375,6 +417,6 @@ class elaborator {
 
 }  // namespace
 
-void elaborate(const file& f, netlist& nl, reporter& rep) { elaborator(f, rep).run(nl); }
+void elaborate(file& f, netlist& nl, reporter& rep) { elaborator(f, rep).run(nl); }
 
 }  // namespace settle::ir

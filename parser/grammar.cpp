@@ -9,6 +9,8 @@ namespace settle::grammar {
 
 BOOST_SPIRIT_INSTANTIATE(statement_type, iterator_type, context_type)
 
+bool is_reserved_word(std::string_view w) { return is_reserved(w); }
+
 bool parse_statement(std::string_view text, ast::statement& out, syntax_error& err) {
   iterator_type first = text.data();
   iterator_type const last = text.data() + text.size();

@@ -2,6 +2,7 @@
 #pragma once
 
 #include <cstdint>
+#include <functional>
 #include <optional>
 #include <string>
 #include <string_view>
@@ -14,9 +15,9 @@
 
 namespace settle::ir {
 
-/// A name as written, with its position.
+/// A name as written (a view into the source text, which outlives the IR), with its position.
 struct ref {
-  std::string name;
+  std::string_view name;
   source_loc loc;
 };
 
@@ -77,10 +78,22 @@ struct stim_block {
   std::vector<stim_stmt> stmts;
 };
 
+/// Where a top-level gate statement stands in the text: the bulk of a large
+/// file, kept as offsets and parsed again straight into the netlist.
+struct piece {
+  std::uint32_t begin = 0, size = 0;
+};
+
 struct file {
-  scope_def top;
+  std::string_view text;        ///< the source text the pieces and refs point into
+  scope_def top;                ///< top-level gates are in top_gates, not top.gates
+  std::vector<piece> top_gates;
+  std::size_t top_reads = 0;    ///< an upper bound of the top-level gates' reads
   std::vector<scope_def> blocks;
   stim_block stim;
+  /// When set, may drop the resident pages of the text before an offset (a
+  /// mapped file reads them again if a diagnostic needs them).
+  std::function<void(std::size_t)> release_text;
 };
 
 /// Source text with a line index: turns positions into diagnostics.
@@ -94,6 +107,10 @@ class reporter {
   void error(source_loc at, const std::string& msg) { report(diagnostic::level::error, at, msg); }
   void warning(source_loc at, const std::string& msg) { report(diagnostic::level::warning, at, msg); }
   std::size_t errors() const { return errors_; }
+  /// While holding, diagnostics wait aside (and do not count) until release() or drop().
+  void hold(bool on) { holding_ = on; }
+  void release();
+  void drop() { held_.clear(); }
 
  private:
   std::string_view text_;
@@ -102,6 +119,8 @@ class reporter {
   std::vector<std::uint32_t> line_start_;
   std::unordered_set<std::string> seen_;
   std::size_t errors_ = 0;
+  bool holding_ = false;
+  std::vector<diagnostic> held_;
 };
 
 /// What the file may hold: a design (with an optional embedded stimulus), or
@@ -109,11 +128,22 @@ class reporter {
 enum class file_mode : std::uint8_t { design, stimulus_only };
 
 /// Parses the whole text statement by statement into `out`; reports syntax and
-/// structure errors and keeps going on the next statement.
+/// structure errors and keeps going on the next statement. Top-level gate
+/// statements are only located (out.top_gates): elaborate() parses them.
 void parse_file(std::string_view text, file_mode mode, file& out, reporter& rep);
 
-/// Builds the flat netlist from the lowered file; reports elaboration errors.
-void elaborate(const file& f, netlist& nl, reporter& rep);
+/// Parses and lowers one top-level gate statement located by parse_file, its
+/// reads and program into `pools`; false (after reporting) when malformed.
+bool parse_top_gate(const file& f, piece p, gate& out, scope_def& pools, reporter& rep);
+
+/// Reports the syntax errors of the top-level gate statements (when the file
+/// has other errors and is not elaborated).
+void check_top_gates(const file& f, reporter& rep);
+
+/// Builds the flat netlist from the lowered file, parsing the top-level gate
+/// statements on the way; reports their syntax errors and, when there are
+/// none, elaboration errors. Releases the file's top-level lists as it goes.
+void elaborate(file& f, netlist& nl, reporter& rep);
 
 /// Turns stimulus statements into steps against an elaborated netlist.
 void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, reporter& rep);

@@ -6,29 +6,77 @@
 #include <algorithm>
 #include <cerrno>
 #include <cstring>
-#include <fstream>
-#include <sstream>
+#include <fcntl.h>
+#include <sys/mman.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include "parser/ir.hpp"
 
 namespace settle {
 namespace {
 
-bool read_file(const std::string& path, std::string& text, diagnostics& diags) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) {
-    diags.add({diagnostic::level::error, path, 0, 0, fmt::format("cannot open file: {}", std::strerror(errno)), ""});
+/// A file's text: mapped when it is a regular file (so that its pages can be
+/// dropped once read), otherwise read into memory.
+class source_text {
+ public:
+  source_text() = default;
+  source_text(const source_text&) = delete;
+  source_text& operator=(const source_text&) = delete;
+  ~source_text() {
+    if (map_) ::munmap(map_, size_);
+  }
+
+  bool open(const std::string& path, diagnostics& diags) {
+    int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
+    if (fd < 0) return fail(path, diags, fmt::format("cannot open file: {}", std::strerror(errno)));
+    struct stat st {};
+    if (::fstat(fd, &st) == 0 && S_ISREG(st.st_mode) && st.st_size > 0) {
+      void* p = ::mmap(nullptr, static_cast<std::size_t>(st.st_size), PROT_READ, MAP_PRIVATE, fd, 0);
+      if (p != MAP_FAILED) {
+        ::close(fd);
+        map_ = p;
+        size_ = static_cast<std::size_t>(st.st_size);
+        return true;
+      }
+    }
+    // Pipes, devices, empty files, or no mapping: read it all.
+    char buf[1 << 16];
+    for (;;) {
+      auto n = ::read(fd, buf, sizeof buf);
+      if (n < 0 && errno == EINTR) continue;
+      if (n < 0) {
+        ::close(fd);
+        return fail(path, diags, "cannot read file");
+      }
+      if (n == 0) break;
+      data_.append(buf, static_cast<std::size_t>(n));
+    }
+    ::close(fd);
+    return true;
+  }
+
+  std::string_view view() const {
+    return map_ ? std::string_view(static_cast<const char*>(map_), size_) : std::string_view(data_);
+  }
+
+  /// Drops the resident pages before `upto` (mapped files only).
+  void release(std::size_t upto) {
+    if (!map_) return;
+    const auto page = static_cast<std::size_t>(::sysconf(_SC_PAGESIZE));
+    upto = std::min(upto, size_) / page * page;
+    if (upto) ::madvise(map_, upto, MADV_DONTNEED);
+  }
+
+ private:
+  static bool fail(const std::string& path, diagnostics& diags, std::string why) {
+    diags.add({diagnostic::level::error, path, 0, 0, std::move(why), ""});
     return false;
   }
-  std::ostringstream ss;
-  ss << in.rdbuf();
-  if (in.bad()) {
-    diags.add({diagnostic::level::error, path, 0, 0, "cannot read file", ""});
-    return false;
-  }
-  text = std::move(ss).str();
-  return true;
-}
+  void* map_ = nullptr;
+  std::size_t size_ = 0;
+  std::string data_;
+};
 
 bool ends_with(const std::string& s, std::string_view suffix) {
   return s.size() >= suffix.size() && s.compare(s.size() - suffix.size(), suffix.size(), suffix) == 0;
@@ -45,8 +93,9 @@ void sort_from(diagnostics& diags, std::size_t first) {
 
 /// Parses a --stim file and rebuilds the design's stimulus from it.
 bool apply_stim_file(design& d, const std::string& path, diagnostics& diags) {
-  std::string text;
-  if (!read_file(path, text, diags)) return false;
+  source_text src;
+  if (!src.open(path, diags)) return false;
+  const std::string_view text = src.view();
   const auto first = diags.items.size();
   ir::reporter rep(text, path, diags);
   ir::file f;
@@ -57,20 +106,25 @@ bool apply_stim_file(design& d, const std::string& path, diagnostics& diags) {
   return rep.errors() == 0;
 }
 
-}  // namespace
-
-std::optional<design> load_design_text(std::string_view text, const std::string& name, const load_options& opt,
-                                       diagnostics& diags) {
-  if (opt.format == "bench") return load_bench_text(text, name, opt, diags);
+/// Parses and elaborates a .settle text; `src`, when given, is the mapped file
+/// the text views, whose pages are dropped once read.
+std::optional<design> load_settle(std::string_view text, const std::string& name, diagnostics& diags,
+                                  source_text* src) {
   const auto first = diags.items.size();
   ir::reporter rep(text, name, diags);
   ir::file f;
   ir::parse_file(text, ir::file_mode::design, f, rep);
+  if (src) {
+    src->release(text.size());
+    f.release_text = [src](std::size_t upto) { src->release(upto); };
+  }
   design d;
   d.path = name;
   if (!rep.errors()) {
     ir::elaborate(f, d.nets, rep);
     if (!rep.errors()) ir::build_stimulus(f.stim, d.nets, d.stim, rep);
+  } else {
+    ir::check_top_gates(f, rep);
   }
   sort_from(diags, first);
   if (rep.errors()) return std::nullopt;
@@ -82,17 +136,26 @@ std::optional<design> load_design_text(std::string_view text, const std::string&
   return d;
 }
 
+}  // namespace
+
+std::optional<design> load_design_text(std::string_view text, const std::string& name, const load_options& opt,
+                                       diagnostics& diags) {
+  if (opt.format == "bench") return load_bench_text(text, name, opt, diags);
+  return load_settle(text, name, diags, nullptr);
+}
+
 std::optional<design> load_design(const std::string& path, const load_options& opt, diagnostics& diags) {
   if (opt.format != "auto" && opt.format != "settle" && opt.format != "bench") {
     diags.add({diagnostic::level::error, path, 0, 0,
                fmt::format("unknown format '{}' (use auto, settle or bench)", opt.format), ""});
     return std::nullopt;
   }
-  std::string text;
-  if (!read_file(path, text, diags)) return std::nullopt;
+  source_text src;
+  if (!src.open(path, diags)) return std::nullopt;
+  const std::string_view text = src.view();
   load_options o = opt;
   if (o.format == "auto") o.format = ends_with(path, ".bench") ? "bench" : "settle";
-  auto d = o.format == "bench" ? load_bench_text(text, path, o, diags) : load_design_text(text, path, o, diags);
+  auto d = o.format == "bench" ? load_bench_text(text, path, o, diags) : load_settle(text, path, diags, &src);
   if (!d) return d;
   d->path = path;
   if (!opt.stim_path.empty() && !apply_stim_file(*d, opt.stim_path, diags)) return std::nullopt;

@@ -6,6 +6,7 @@
 #include <algorithm>
 #include <unordered_map>
 
+#include "parser/parse.hpp"
 #include "parser/time_literal.hpp"
 
 namespace settle::ir {
@@ -20,6 +21,25 @@ constexpr kind_entry kinds[] = {
     {"nand", gate_kind::nand}, {"nor", gate_kind::nor},   {"xor", gate_kind::xor_}, {"xnor", gate_kind::xnor},
     {"mux", gate_kind::mux},   {"maj", gate_kind::maj},   {"c", gate_kind::celem},  {"gc", gate_kind::gc},
 };
+
+/// What a primitive of kind `k` with `n` inputs lacks ("exactly 1 input"), or null when n is right.
+const char* arity_problem(gate_kind k, std::size_t n) {
+  switch (k) {
+    case gate_kind::inv:
+    case gate_kind::buf:
+      return n != 1 ? "exactly 1 input" : nullptr;
+    case gate_kind::mux:
+      return n != 3 ? "exactly 3 inputs (sel, a0, a1)" : nullptr;
+    case gate_kind::maj:
+      return n < 3 || n % 2 == 0 ? "an odd number of inputs, at least 3" : nullptr;
+    default:
+      return n < 1 ? "at least 1 input" : nullptr;
+  }
+}
+
+bool is_blank(char c) { return c == ' ' || c == '\t'; }
+bool is_ident_start(char c) { return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || c == '_'; }
+bool is_ident_char(char c) { return is_ident_start(c) || (c >= '0' && c <= '9'); }
 
 /// Finds the position of the first name in an expression (for diagnostics).
 const char* first_pos(const ast::or_expr& e);
@@ -95,7 +115,7 @@ bool simple_arg(const ast::arg& a, ref& out, const reporter& rep) {
     return true;
   }
   if (auto c = boost::get<char>(&u.operand)) {
-    out = ref{std::string(1, *c), {}};
+    out = ref{*c == '1' ? std::string_view("1") : std::string_view("0"), {}};
     return true;
   }
   return false;
@@ -138,22 +158,8 @@ bool lower_call(const ast::call& c, gate& out, scope_def& pools, reporter& rep) 
     }
     pools.read_pool.push_back(std::move(r));
   }
-  std::string want;
-  switch (out.kind) {
-    case gate_kind::inv:
-    case gate_kind::buf:
-      if (n != 1) want = "exactly 1 input";
-      break;
-    case gate_kind::mux:
-      if (n != 3) want = "exactly 3 inputs (sel, a0, a1)";
-      break;
-    case gate_kind::maj:
-      if (n < 3 || n % 2 == 0) want = "an odd number of inputs, at least 3";
-      break;
-    default:
-      if (n < 1) want = "at least 1 input";
-  }
-  if (!want.empty()) {
+  const char* want = arity_problem(out.kind, n);
+  if (want) {
     rep.error(at, fmt::format("'{}' takes {}, found {}", c.kind.text, want, n));
     return false;
   }
@@ -185,7 +191,11 @@ bool lower_range(const ast::range& r, delay_range& out, reporter& rep) {
 
 }  // namespace
 
-ref lower_ref(const ast::name& n, const reporter& rep) { return ref{n.text, rep.loc_of(n.pos)}; }
+// The name's characters are the source's own (the grammar takes them raw), so
+// the ref views the source text, which outlives the IR.
+ref lower_ref(const ast::name& n, const reporter& rep) {
+  return ref{std::string_view(n.pos, n.text.size()), rep.loc_of(n.pos)};
+}
 
 logic lower_value(char c) { return c == '0' ? logic::zero : c == '1' ? logic::one : logic::x; }
 
@@ -231,6 +241,80 @@ bool lower_gate(const ast::gate_stmt& g, gate& out, scope_def& pools, reporter& 
     pools.code_pool.resize(out.code_begin);
   }
   return ok;
+}
+
+}  // namespace settle::ir
+
+namespace settle::ir {
+
+// The grammar's reading of this form, done by hand: blanks are spaces and
+// tabs, names are (alpha | _) (alnum | _)* and not keywords, a constant is a
+// lone 0 or 1. Anything else (labels, expressions, dotted names, a delay,
+// transport, a wrong arity, an unknown kind) is left to the grammar, which
+// also words the diagnostics.
+bool lower_simple_gate(std::string_view text, source_loc at, gate& out, scope_def& pools) {
+  const char* const b = text.data();
+  const char* p = b;
+  const char* const e = b + text.size();
+  auto skip = [&] {
+    while (p < e && is_blank(*p)) ++p;
+  };
+  auto word = [&]() -> std::string_view {
+    const char* s = p;
+    if (p == e || !is_ident_start(*p)) return {};
+    while (p < e && is_ident_char(*p)) ++p;
+    return std::string_view(s, static_cast<std::size_t>(p - s));
+  };
+  auto loc = [&](const char* q) { return source_loc{at.line, at.col + static_cast<std::uint32_t>(q - b)}; };
+  const auto reads = pools.read_pool.size();
+  auto fail = [&] {
+    pools.read_pool.resize(reads);
+    return false;
+  };
+  const char* out_pos = p;
+  const auto out_name = word();
+  if (out_name.empty() || grammar::is_reserved_word(out_name)) return false;
+  skip();
+  if (p == e || *p != '=') return false;
+  ++p;
+  skip();
+  const auto kind = word();
+  if (kind.empty() || kind == "gc" || grammar::is_reserved_word(kind)) return false;
+  auto k = std::find_if(std::begin(kinds), std::end(kinds), [&](auto& x) { return kind == x.word; });
+  if (k == std::end(kinds)) return false;
+  skip();
+  if (p == e || *p != '(') return false;
+  ++p;
+  for (;;) {
+    skip();
+    if (p == e) return fail();
+    const char* s = p;
+    if (*p == '0' || *p == '1') {
+      ++p;
+      if (p < e && is_ident_char(*p)) return fail();
+      pools.read_pool.push_back(ref{*s == '1' ? std::string_view("1") : std::string_view("0"), {}});
+    } else {
+      const auto w = word();
+      if (w.empty() || grammar::is_reserved_word(w)) return fail();
+      pools.read_pool.push_back(ref{w, loc(s)});
+    }
+    skip();
+    if (p == e) return fail();
+    if (*p == ')') break;
+    if (*p != ',') return fail();
+    ++p;
+  }
+  ++p;
+  skip();
+  if (p != e || arity_problem(k->kind, pools.read_pool.size() - reads)) return fail();
+  out.out = ref{out_name, loc(out_pos)};
+  out.kind = k->kind;
+  out.reads_begin = static_cast<std::uint32_t>(reads);
+  out.reads_end = static_cast<std::uint32_t>(pools.read_pool.size());
+  out.code_begin = out.code_end = static_cast<std::uint32_t>(pools.code_pool.size());
+  out.has_delay = false;
+  out.delay = gate_delay{};
+  return true;
 }
 
 }  // namespace settle::ir

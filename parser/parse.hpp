@@ -18,4 +18,7 @@ struct syntax_error {
 /// Returns false and fills `err` when it is not a complete statement.
 bool parse_statement(std::string_view text, ast::statement& out, syntax_error& err);
 
+/// True for the words that cannot name a net, block or instance.
+bool is_reserved_word(std::string_view w);
+
 }  // namespace settle::grammar

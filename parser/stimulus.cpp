@@ -122,7 +122,7 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
           net_id n = net_of(s.nets[i]);
           if (st && n != no_id)
 {
-            st->expects.push_back(make_expect(expectation::kind::value, n, s.nets[i].name, s.nets[i].loc));
+            st->expects.push_back(make_expect(expectation::kind::value, n, std::string(s.nets[i].name), s.nets[i].loc));
             st->expects.back().want = s.values[i];
           }
         }
@@ -133,7 +133,7 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
         for (auto& r : s.nets) {
           net_id n = net_of(r);
           if (st && n != no_id)
-            st->expects.push_back(make_expect(expectation::kind::no_glitch, n, r.name, r.loc));
+            st->expects.push_back(make_expect(expectation::kind::no_glitch, n, std::string(r.name), r.loc));
         }
         break;
       }

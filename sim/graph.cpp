@@ -7,7 +7,8 @@ namespace settle {
 
 std::vector<std::vector<std::uint32_t>> strongly_connected(std::uint32_t nodes,
                                                            const std::vector<std::uint32_t>& begin,
-                                                           const std::vector<std::uint32_t>& next) {
+                                                           const std::vector<std::uint32_t>& next,
+                                                           bool trivial) {
   constexpr std::uint32_t unvisited = UINT32_MAX;
   std::vector<std::uint32_t> index(nodes, unvisited), low(nodes, 0), edge(nodes, 0);
   std::vector<char> on_stack(nodes, 0);
@@ -36,7 +37,11 @@ std::vector<std::vector<std::uint32_t>> strongly_connected(std::uint32_t nodes,
       }
       call.pop_back();
       if (!call.empty()) low[call.back()] = std::min(low[call.back()], low[v]);
-      if (low[v] == index[v]) {
+      if (low[v] == index[v] && !trivial && stack.back() == v &&
+          std::find(next.begin() + begin[v], next.begin() + begin[v + 1], v) == next.begin() + begin[v + 1]) {
+        stack.pop_back();
+        on_stack[v] = 0;
+      } else if (low[v] == index[v]) {
         std::vector<std::uint32_t> comp;
         std::uint32_t w;
         do {
@@ -56,6 +61,7 @@ std::vector<std::vector<gate_id>> feedback_loops(const netlist& n) {
   const auto gates = static_cast<std::uint32_t>(n.gate_count());
   std::vector<std::uint32_t> begin(gates + 1, 0), next;
   std::vector<char> self(gates, 0);
+  next.reserve(n.fanout.size());
   for (gate_id g = 0; g < gates; ++g) {
     const net_id out = n.gate_out[g];
     for (auto i = n.fanout_begin[out]; i < n.fanout_begin[out + 1]; ++i) {
@@ -65,7 +71,7 @@ std::vector<std::vector<gate_id>> feedback_loops(const netlist& n) {
     begin[g + 1] = static_cast<std::uint32_t>(next.size());
   }
   std::vector<std::vector<gate_id>> loops;
-  for (auto& c : strongly_connected(gates, begin, next)) {
+  for (auto& c : strongly_connected(gates, begin, next, false)) {
     if (c.size() == 1 && !self[c[0]]) continue;
     std::sort(c.begin(), c.end());
     loops.push_back(std::move(c));

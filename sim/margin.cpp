@@ -148,9 +148,12 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
   auto probe = [&](double w) -> const probe_outcome& {
     auto it = cache.find(w);
     if (it != cache.end()) return it->second;
-    for (gate_id g = 0; g < d.nets.gate_count(); ++g) {
-      scaled_d.nets.delay[g].rise = scaled(d.nets.delay[g].rise, w);
-      scaled_d.nets.delay[g].fall = scaled(d.nets.delay[g].fall, w);
+    // Gates share delay records; scaling each record scales every gate.
+    const auto& from = d.nets.delay.records();
+    auto& to = scaled_d.nets.delay.records();
+    for (std::size_t r = 0; r < from.size(); ++r) {
+      to[r].rise = scaled(from[r].rise, w);
+      to[r].fall = scaled(from[r].fall, w);
     }
     probe_outcome p;
     p.sweep = run_sweep(scaled_d, *plan, so);

@@ -2,6 +2,7 @@
 #include "sim/netlist.hpp"
 
 #include <algorithm>
+#include <functional>
 
 namespace settle {
 
@@ -11,10 +12,57 @@ const char* kind_name(gate_kind k) {
   return names[static_cast<int>(k)];
 }
 
+std::size_t gate_delays::hash(const gate_delay& d) {
+  std::size_t h = d.transport ? 0x9e3779b97f4a7c15ULL : 0;
+  for (time_fs t : {d.rise.min, d.rise.typ, d.rise.max, d.fall.min, d.fall.typ, d.fall.max})
+    h = (h ^ std::hash<time_fs>{}(t)) * 0x100000001b3ULL + (h >> 29);
+  return h;
+}
+
+void gate_delays::push_back(const gate_delay& d) {
+  // Consecutive gates usually share a record: try the last one first.
+  if (!index_.empty() && records_[index_.back()] == d) {
+    index_.push_back(index_.back());
+    return;
+  }
+  const auto h = hash(d);
+  auto r = lookup_.find(h, [&](std::uint32_t i) { return records_[i] == d; });
+  if (r == no_id) {
+    r = static_cast<std::uint32_t>(records_.size());
+    records_.push_back(d);
+    lookup_.insert(h, r, [&](std::uint32_t i) { return hash(records_[i]); });
+  }
+  index_.push_back(r);
+}
+
 time_fs netlist::largest_max_delay() const {
   time_fs m = 0;
-  for (const auto& d : delay) m = std::max({m, d.rise.max, d.fall.max});
+  if (delay.empty()) return m;
+  for (const auto& d : delay.records()) m = std::max({m, d.rise.max, d.fall.max});
   return m;
+}
+
+net_id netlist::find(std::string_view name) const {
+  const auto v = names_.find(std::hash<std::string_view>{}(name), [&](std::uint32_t v) { return key_of(v) == name; });
+  if (v == no_id) return no_id;
+  return v & extra_bit ? extra_names_[v & ~extra_bit].second : v;
+}
+
+bool netlist::add_name(std::string full_name, net_id id) {
+  const auto h = std::hash<std::string_view>{}(full_name);
+  if (names_.find(h, [&](std::uint32_t v) { return key_of(v) == full_name; }) != no_id) return false;
+  const auto v = static_cast<std::uint32_t>(extra_names_.size()) | extra_bit;
+  extra_names_.emplace_back(std::move(full_name), id);
+  names_.insert(h, v, [&](std::uint32_t x) { return std::hash<std::string_view>{}(key_of(x)); });
+  return true;
+}
+
+void netlist::reserve_nets(std::size_t nets) {
+  names_.reserve(nets, [&](std::uint32_t x) { return std::hash<std::string_view>{}(key_of(x)); });
+  net_name.reserve(nets);
+  driver.reserve(nets);
+  init.reserve(nets);
+  net_scope.reserve(nets);
 }
 
 void netlist::begin() {
@@ -29,8 +77,10 @@ void netlist::begin() {
 
 net_id netlist::add_net(std::string full_name, std::uint32_t scope_index) {
   auto id = static_cast<net_id>(net_name.size());
-  by_name.emplace(full_name, id);
+  const auto h = std::hash<std::string_view>{}(full_name);
+  const bool known = names_.find(h, [&](std::uint32_t v) { return key_of(v) == full_name; }) != no_id;
   net_name.push_back(std::move(full_name));
+  if (!known) names_.insert(h, id, [&](std::uint32_t x) { return std::hash<std::string_view>{}(key_of(x)); });
   driver.push_back(no_id);
   init.push_back(logic::x);
   net_scope.push_back(scope_index);
@@ -83,20 +133,26 @@ void netlist::finish() {
   if (code_begin.empty()) code_begin.push_back(0);
   const auto nets = net_name.size();
   mark_enumerated_gates();
-  std::vector<std::uint32_t> count(nets + 1, 0);
   // Each gate appears once per distinct input net, so a net read twice by one
-  // gate wakes it once.
+  // gate wakes it once: `last` remembers the last gate counted for each net.
+  // The counts become the CSR offsets in place, and the lists fill from the
+  // back (gates in reverse), so no second array of offsets is needed.
   std::vector<gate_id> last(nets, no_id);
+  fanout_begin.assign(nets + 1, 0);
   for (gate_id g = 0; g < gate_count(); ++g)
     for (auto i = fanin_begin[g]; i < fanin_begin[g + 1]; ++i)
-      if (last[fanin[i]] != g) last[fanin[i]] = g, ++count[fanin[i] + 1];
-  for (std::size_t i = 0; i < nets; ++i) count[i + 1] += count[i];
-  fanout_begin = count;
-  fanout.assign(count[nets], 0);
+      if (last[fanin[i]] != g) last[fanin[i]] = g, ++fanout_begin[fanin[i] + 1];
+  for (std::size_t i = 0; i < nets; ++i) fanout_begin[i + 1] += fanout_begin[i];
+  fanout.assign(fanout_begin[nets], 0);
   std::fill(last.begin(), last.end(), no_id);
-  for (gate_id g = 0; g < gate_count(); ++g)
+  // fanout_begin[n + 1] is the end of net n's list; filling it from the back
+  // moves it down to the list's start, which is net n's begin.
+  for (gate_id g = static_cast<gate_id>(gate_count()); g-- > 0;)
     for (auto i = fanin_begin[g]; i < fanin_begin[g + 1]; ++i)
-      if (last[fanin[i]] != g) last[fanin[i]] = g, fanout[count[fanin[i]]++] = g;
+      if (last[fanin[i]] != g) last[fanin[i]] = g, fanout[--fanout_begin[fanin[i] + 1]] = g;
+  // Now fanout_begin[n + 1] holds net n's begin: shift down by one.
+  for (std::size_t i = 0; i < nets; ++i) fanout_begin[i] = fanout_begin[i + 1];
+  fanout_begin[nets] = static_cast<std::uint32_t>(fanout.size());
 }
 
 }  // namespace settle

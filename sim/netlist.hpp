@@ -1,9 +1,12 @@
 // The elaborated, flat, immutable netlist shared read-only by every run.
 #pragma once
 
+#include <algorithm>
 #include <cstdint>
 #include <string>
+#include <string_view>
 #include <unordered_map>
+#include <utility>
 #include <vector>
 
 #include "sim/logic.hpp"
@@ -39,6 +42,78 @@ struct delay_range {
 struct gate_delay {
   delay_range rise, fall;
   bool transport = false;  ///< transport gates propagate every change
+  friend bool operator==(const gate_delay&, const gate_delay&) = default;
+};
+
+/// An open-addressing hash set of 32-bit ids whose keys live elsewhere (4
+/// bytes a slot, at most half full). The caller supplies hashes and equality.
+class id_table {
+ public:
+  /// The stored id with hash `h` for which `same(id)` holds, or no_id.
+  template <typename Same>
+  std::uint32_t find(std::size_t h, Same same) const {
+    if (slots_.empty()) return no_id;
+    const std::size_t mask = slots_.size() - 1;
+    for (std::size_t i = h & mask;; i = (i + 1) & mask) {
+      const std::uint32_t v = slots_[i];
+      if (v == no_id || same(v)) return v;
+    }
+  }
+  /// Stores `id` (not yet present) with hash `h`; `hash_of(id)` rehashes stored ids when the table grows.
+  template <typename HashOf>
+  void insert(std::size_t h, std::uint32_t id, HashOf hash_of) {
+    if ((used_ + 1) * 2 > slots_.size()) rebuild(std::max<std::size_t>(16, slots_.size() * 2), hash_of);
+    place(h, id);
+    ++used_;
+  }
+  /// Makes room for `n` ids without growing.
+  template <typename HashOf>
+  void reserve(std::size_t n, HashOf hash_of) {
+    std::size_t cap = 16;
+    while (cap < 2 * n) cap *= 2;
+    if (cap > slots_.size()) rebuild(cap, hash_of);
+  }
+  std::size_t size() const { return used_; }
+
+ private:
+  void place(std::size_t h, std::uint32_t id) {
+    const std::size_t mask = slots_.size() - 1;
+    std::size_t i = h & mask;
+    while (slots_[i] != no_id) i = (i + 1) & mask;
+    slots_[i] = id;
+  }
+  template <typename HashOf>
+  void rebuild(std::size_t cap, HashOf hash_of) {
+    std::vector<std::uint32_t> old(cap, no_id);
+    old.swap(slots_);
+    for (auto v : old)
+      if (v != no_id) place(hash_of(v), v);
+  }
+  std::vector<std::uint32_t> slots_;
+  std::size_t used_ = 0;
+};
+
+/// Gates' delays, each distinct record stored once (designs have few):
+/// `delay[g]` is gate g's record; a gate costs one index.
+class gate_delays {
+ public:
+  const gate_delay& operator[](gate_id g) const { return records_[index_[g]]; }
+  std::size_t size() const { return index_.size(); }
+  bool empty() const { return index_.empty(); }
+  void reserve(std::size_t gates) { index_.reserve(gates); }
+  /// Appends the next gate's delay, sharing an equal record when there is one.
+  void push_back(const gate_delay& d);
+  /// The distinct records; changing one changes every gate that shares it.
+  std::vector<gate_delay>& records() { return records_; }
+  const std::vector<gate_delay>& records() const { return records_; }
+  /// The record gate g uses.
+  std::uint32_t record_of(gate_id g) const { return index_[g]; }
+
+ private:
+  static std::size_t hash(const gate_delay& d);
+  std::vector<gate_delay> records_;
+  std::vector<std::uint32_t> index_;
+  id_table lookup_;
 };
 
 /// Programs of complex gates are postfix code over the gate's fan-in list.
@@ -81,7 +156,6 @@ struct netlist {
   std::vector<net_alias> aliases;           ///< every (scope, name) -> net, ports included
   std::vector<scope> scopes;                ///< scopes[0] is the top level
   std::vector<std::uint32_t> net_scope;     ///< scope where each net was declared
-  std::unordered_map<std::string, net_id> by_name;  ///< full names and aliases ("deb.q")
 
   // ---- gates (structure of arrays)
   std::vector<gate_kind> kind;
@@ -90,7 +164,7 @@ struct netlist {
   std::vector<net_id> fanin;
   std::vector<std::uint32_t> code_begin;   ///< CSR over gates: programs of expr/gc gates
   std::vector<std::uint32_t> code;
-  std::vector<gate_delay> delay;
+  gate_delays delay;                       ///< delay[g]: gate g's delays
   std::vector<source_loc> gate_loc;        ///< where each gate was written
   /// Set by finish(): gates whose exact ternary value needs enumeration of
   /// their x inputs (complex gates, and primitives that read a net twice or
@@ -107,17 +181,20 @@ struct netlist {
   std::size_t gate_count() const { return kind.size(); }
   /// A gate's name is its output net's name.
   const std::string& gate_name(gate_id g) const { return net_name[gate_out[g]]; }
-  /// The net for a full or hierarchical name, or no_id.
-  net_id find(const std::string& name) const {
-    auto it = by_name.find(name);
-    return it == by_name.end() ? no_id : it->second;
-  }
+  /// The net for a full or hierarchical name (a net's own or an added name), or no_id.
+  net_id find(std::string_view name) const;
+  /// Also finds net `id` under `full_name` ("deb.q" for a port of instance
+  /// deb); a name already known keeps its net. False when it was known.
+  bool add_name(std::string full_name, net_id id);
+  /// Sizes the name index (and the net arrays) for `nets` nets.
+  void reserve_nets(std::size_t nets);
   /// Largest max delay over all gates and edges (0 for an empty netlist).
   time_fs largest_max_delay() const;
 
   /// Creates the two constant nets (ids 0 and 1) and the top scope; call first.
   void begin();
-  /// Adds a net with its full name in `scope`; registers the name. Returns its id.
+  /// Adds a net with its full name in `scope`; registers the name (unless it is
+  /// already known: then find() keeps the earlier net). Returns its id.
   net_id add_net(std::string full_name, std::uint32_t scope_index);
   /// Adds a gate (fan-in, program) and records it as the driver of `out`.
   gate_id add_gate(gate_kind k, net_id out, const std::vector<net_id>& fanin,
@@ -127,6 +204,14 @@ struct netlist {
 
  private:
   void mark_enumerated_gates();
+  /// The name index: net ids (keyed by net_name) and, with the top bit set,
+  /// indexes into extra_names_ (names that are not a net's own).
+  std::string_view key_of(std::uint32_t v) const {
+    return v & extra_bit ? std::string_view(extra_names_[v & ~extra_bit].first) : std::string_view(net_name[v]);
+  }
+  static constexpr std::uint32_t extra_bit = 0x80000000u;
+  id_table names_;
+  std::vector<std::pair<std::string, net_id>> extra_names_;
 };
 
 }  // namespace settle
