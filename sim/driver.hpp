@@ -183,7 +183,8 @@ class driver {
       }
       if (!clocks_.empty()) clock_edges_at(t, inputs);
       sim_.process_instant(t, inputs);
-      if (opt_.max_events && sim_.events() >= opt_.max_events) {
+      if ((opt_.max_events && sim_.events() >= opt_.max_events) ||
+          (opt_.stop && opt_.stop->load(std::memory_order_relaxed))) {
         r.status = step_status::event_limit;
         r.end = t;
         stopped_ = true;

@@ -1,6 +1,7 @@
 // The discrete-event kernel and the stimulus driver built on it.
 #pragma once
 
+#include <atomic>
 #include <cstdint>
 #include <memory>
 #include <span>
@@ -64,6 +65,9 @@ struct step_result {
 struct run_options {
   time_fs horizon = 0;          ///< 0: 10,000 x the largest gate max delay
   std::uint64_t max_events = 0; ///< 0: unlimited
+  /// When set and true, the run stops at the next instant as if the event
+  /// limit were reached (interruption, wall-clock timeout); may be null.
+  const std::atomic<bool>* stop = nullptr;
 };
 
 struct run_result {

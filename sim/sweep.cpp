@@ -76,6 +76,8 @@ struct shared_run {
   std::size_t steps;
   std::vector<std::uint32_t>& outcome_of;  // [corner * steps + step]
   std::vector<time_fs>& settle_of;         // [corner * steps + step]
+  std::vector<std::uint8_t>& finished;     // [corner]: 1 once its results are stored
+  const std::atomic<bool>& halt;           // stop taking corners, drop the one running
   outcome_registry& registry;
   std::atomic<std::uint64_t>& next;
   std::atomic<std::uint64_t>& done;
@@ -98,9 +100,10 @@ void work(shared_run& s, worker_state& w) {
     std::vector<logic> unknown;
     for (;;) {
       const std::uint64_t i = s.next.fetch_add(1, std::memory_order_relaxed);
-      if (i >= s.plan.corners) break;
+      if (i >= s.plan.corners || s.halt.load(std::memory_order_relaxed)) break;
       fill_delays(s.d.nets, s.plan.corner_at(i), table);
       const run_result r = run_stimulus(ctx, s.d, table, s.opt);
+      if (s.halt.load(std::memory_order_relaxed)) break;  // possibly cut short: not a result
       w.events += r.events;
       if (!w.have_reported) w.reported = r.reported, w.have_reported = true;
       unknown.assign(r.reported.size(), logic::x);
@@ -125,6 +128,7 @@ void work(shared_run& s, worker_state& w) {
           }
         }
       }
+      s.finished[i] = 1;
       s.done.fetch_add(1, std::memory_order_relaxed);
     }
   } catch (...) {
@@ -133,6 +137,7 @@ void work(shared_run& s, worker_state& w) {
 }
 
 sweep_verdict verdict_of(const std::vector<sweep_outcome>& outs) {
+  if (outs.empty()) return sweep_verdict::timeout;  // a stopped sweep that finished no corner
   bool settled = false, osc = false, other = false;
   for (const auto& o : outs) {
     if (settles(o.status)) settled = true;
@@ -149,6 +154,7 @@ sweep_verdict verdict_of(const std::vector<sweep_outcome>& outs) {
 std::vector<sweep_outcome> group_step(const sweep_plan& plan, std::size_t steps, std::size_t k,
                                       const std::vector<std::uint32_t>& outcome_of,
                                       const std::vector<time_fs>& settle_of, const outcome_registry& reg,
+                                      const std::vector<std::uint8_t>& finished, std::uint64_t corners,
                                       std::size_t& sampled_outcomes) {
   const auto& keys = reg.keys(k);
   std::vector<sweep_outcome> outs(keys.size());
@@ -156,6 +162,7 @@ std::vector<sweep_outcome> group_step(const sweep_plan& plan, std::size_t steps,
   std::vector<std::uint8_t> seen_sampled(keys.size(), 0);
   for (std::size_t id = 0; id < keys.size(); ++id) decode_key(keys[id], outs[id]);
   for (std::uint64_t i = 0; i < plan.corners; ++i) {
+    if (!finished[i]) continue;
     const std::uint32_t id = outcome_of[i * steps + k];
     const time_fs t = settle_of[i * steps + k];
     if (outs[id].count++ == 0) outs[id].witness = i;  // ascending: the first seen is the lowest
@@ -171,8 +178,8 @@ std::vector<sweep_outcome> group_step(const sweep_plan& plan, std::size_t steps,
     std::sort(t.begin(), t.end());
     o.settle = {t.front(), t[(t.size() - 1) / 2], t.back()};
     o.settle_times = std::move(t);
-    o.share = static_cast<double>(o.count) / static_cast<double>(plan.corners);
-    o.share_ci95 = wilson_interval(o.count, plan.corners, 0.95);
+    o.share = static_cast<double>(o.count) / static_cast<double>(corners);
+    o.share_ci95 = wilson_interval(o.count, corners, 0.95);
     o.witness_name = plan.corner_at(o.witness).name();
   }
   std::sort(outs.begin(), outs.end(), [](const sweep_outcome& a, const sweep_outcome& b) {
@@ -209,13 +216,13 @@ const char* verdict_name(sweep_verdict v) {
 }
 
 bool sweep_result::pass() const {
-  return std::all_of(steps.begin(), steps.end(), [](const sweep_step& s) { return s.pass; });
+  return stopped == sweep_stop::none && std::all_of(steps.begin(), steps.end(), [](const sweep_step& s) { return s.pass; });
 }
 
 sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_options& opt) {
   const auto started = std::chrono::steady_clock::now();
   sweep_result res;
-  res.corners = plan.corners;
+  res.planned = plan.corners;
   const std::size_t steps = d.stim.steps.empty() ? 1 : d.stim.steps.size();
   unsigned threads = opt.threads ? opt.threads : std::max(1u, std::thread::hardware_concurrency());
   if (plan.corners < threads) threads = static_cast<unsigned>(std::max<std::uint64_t>(plan.corners, 1));
@@ -223,10 +230,16 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
 
   std::vector<std::uint32_t> outcome_of(plan.corners * steps);
   std::vector<time_fs> settle_of(plan.corners * steps);
+  std::vector<std::uint8_t> finished_corner(plan.corners, 0);
   outcome_registry registry(steps);
   std::atomic<std::uint64_t> next{0}, done{0};
   std::atomic<unsigned> finished{0};
-  shared_run shared{d, plan, opt.run, steps, outcome_of, settle_of, registry, next, done};
+  // The workers and their kernels poll `halt`; this thread raises it on the
+  // caller's stop flag or when the wall-clock budget is spent.
+  std::atomic<bool> halt{false};
+  run_options ro = opt.run;
+  ro.stop = &halt;
+  shared_run shared{d, plan, ro, steps, outcome_of, settle_of, finished_corner, halt, registry, next, done};
   std::vector<worker_state> workers(threads);
   {
     std::vector<std::thread> pool;
@@ -236,17 +249,21 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
         work(shared, workers[t]);
         finished.fetch_add(1);
       });
-    if (opt.progress) {
+    const bool watch = opt.stop || opt.timeout_s > 0;
+    if (opt.progress || watch) {
       auto last = std::chrono::steady_clock::now();
       while (finished.load() < threads) {
         std::this_thread::sleep_for(std::chrono::milliseconds(20));
         const auto now = std::chrono::steady_clock::now();
-        if (std::chrono::duration<double>(now - last).count() >= opt.progress_every_s) {
+        if (!halt.load() && opt.stop && opt.stop->load()) res.stopped = sweep_stop::interrupted, halt.store(true);
+        if (!halt.load() && opt.timeout_s > 0 && std::chrono::duration<double>(now - started).count() >= opt.timeout_s)
+          res.stopped = sweep_stop::timeout, halt.store(true);
+        if (opt.progress && std::chrono::duration<double>(now - last).count() >= opt.progress_every_s) {
           opt.progress(done.load(), plan.corners);
           last = now;
         }
       }
-      opt.progress(done.load(), plan.corners);
+      if (opt.progress) opt.progress(done.load(), plan.corners);
     }
     for (auto& th : pool) th.join();
   }
@@ -256,9 +273,15 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
     res.events += w.events;
     if (w.have_reported && res.reported.empty()) res.reported = w.reported;
   }
+  res.corners = done.load();
+  std::uint64_t sampled = plan.sampled;
+  if (res.stopped != sweep_stop::none) {
+    sampled = 0;
+    for (std::uint64_t i = 0; i < plan.corners; ++i) sampled += finished_corner[i] && plan.is_sampled(i);
+  }
 
   std::optional<interval_result> iv;
-  if (plan.interval) iv = run_interval(d, opt.run);
+  if (plan.interval && res.stopped == sweep_stop::none) iv = run_interval(d, opt.run);
 
   std::size_t divergence = 0;
   for (std::size_t k = 0; k < steps; ++k) {
@@ -268,11 +291,12 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
     st.label = spec ? spec->label : "initial";
     st.run_step = spec && spec->end == step_spec::end_kind::run;
     std::size_t sampled_outcomes = 0;
-    st.outcomes = group_step(plan, steps, k, outcome_of, settle_of, registry, sampled_outcomes);
+    st.outcomes = group_step(plan, steps, k, outcome_of, settle_of, registry, finished_corner, res.corners,
+                             sampled_outcomes);
     st.verdict = verdict_of(st.outcomes);
     if (divergence) st.inherits = divergence;
     else if (st.verdict != sweep_verdict::deterministic) st.first_divergence = true, divergence = st.index;
-    if (plan.sampled > 0 && sampled_outcomes == 1) st.unseen_outcome_bound = rule_of_three(plan.sampled);
+    if (sampled > 0 && sampled_outcomes == 1) st.unseen_outcome_bound = rule_of_three(sampled);
 
     const std::size_t n_expects = spec ? spec->expects.size() : 0;
     for (std::size_t e = 0; e < n_expects; ++e) {
@@ -280,9 +304,9 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
       x.spec = &spec->expects[e];
       if (x.spec->what == expectation::kind::deterministic) {
         // Judged across corners: the corners outside the most common outcome fail it.
-        if (st.verdict != sweep_verdict::deterministic) {
+        if (st.verdict != sweep_verdict::deterministic && !st.outcomes.empty()) {
           const bool several = st.outcomes.size() > 1;
-          x.failing = several ? plan.corners - st.outcomes[0].count : plan.corners;
+          x.failing = several ? res.corners - st.outcomes[0].count : res.corners;
           x.witness = st.outcomes[several ? 1 : 0].witness;
           for (std::size_t o = 1; o < st.outcomes.size(); ++o) x.witness = std::min(x.witness, st.outcomes[o].witness);
           x.witness_name = plan.corner_at(x.witness).name();

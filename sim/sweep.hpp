@@ -1,6 +1,7 @@
 // Corner sweeps: one design under many delay corners, grouped into outcomes with a verdict per step.
 #pragma once
 
+#include <atomic>
 #include <cstdint>
 #include <functional>
 #include <optional>
@@ -111,8 +112,13 @@ struct sweep_step {
   bool pass = true;
 };
 
+/// Why a sweep stopped before running every corner.
+enum class sweep_stop : std::uint8_t { none, interrupted, timeout };
+
 struct sweep_result {
-  std::uint64_t corners = 0;
+  std::uint64_t corners = 0;     ///< corners run to the end (all of the plan unless stopped)
+  std::uint64_t planned = 0;     ///< corners in the plan
+  sweep_stop stopped = sweep_stop::none;  ///< the steps then cover the finished corners only
   unsigned threads = 1;
   std::uint64_t events = 0;      ///< value changes, summed over corners
   double wall_s = 0;
@@ -128,6 +134,14 @@ struct sweep_options {
   /// (corners done, total) while the workers run; may be empty.
   std::function<void(std::uint64_t, std::uint64_t)> progress;
   double progress_every_s = 0.25;
+  /// Polled by the workers (between instants and between corners): when it
+  /// becomes true the sweep stops within a few milliseconds, drops the corners
+  /// it was running and groups the finished ones. May be null. The command
+  /// line passes settle::cli::interrupt_flag() (SIGINT/SIGTERM).
+  const std::atomic<bool>* stop = nullptr;
+  /// Wall-clock budget in seconds (0: none); past it the sweep stops the same
+  /// way and reports sweep_stop::timeout.
+  double timeout_s = 0;
 };
 
 /// Runs every corner of `plan` over `d` on a pool of worker threads (dynamic

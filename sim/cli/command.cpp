@@ -34,6 +34,25 @@ int rank(std::string_view name) {
 
 }  // namespace
 
+void print_diagnostics(const diagnostics& diags, std::size_t max_errors, std::size_t max_warnings) {
+  // A generated netlist can hold 100,000 unread nets: show the first few of
+  // each kind, then one line with how many more there were.
+  std::size_t errors = 0, warnings = 0;
+  std::string out;
+  bool shown = false;  // a note follows the item it belongs to
+  for (const auto& item : diags.items) {
+    if (item.severity != diagnostic::level::note) {
+      const bool error = item.severity == diagnostic::level::error;
+      shown = ++(error ? errors : warnings) <= (error ? max_errors : max_warnings);
+    }
+    if (shown) out += format_diagnostic(item);
+    if (out.size() > 1 << 16) std::fputs(out.c_str(), stderr), out.clear();
+  }
+  if (errors > max_errors) out += fmt::format("settle: {} more errors not shown\n", errors - max_errors);
+  if (warnings > max_warnings) out += fmt::format("settle: {} more warnings not shown\n", warnings - max_warnings);
+  std::fputs(out.c_str(), stderr);
+}
+
 int register_command(command c) {
   auto& t = table();
   t.push_back(c);
@@ -72,7 +91,7 @@ std::optional<design> load(const design_options& o) {
   }
   diagnostics diags;
   auto d = load_design(o.path, lo, diags);
-  for (const auto& item : diags.items) std::fputs(format_diagnostic(item).c_str(), stderr);
+  print_diagnostics(diags);
   if (!d || diags.has_errors()) {
     if (diags.items.empty()) spdlog::error("cannot load '{}'", o.path);
     return std::nullopt;
@@ -85,10 +104,30 @@ bool atomic_file::open() {
     file_ = stdout;
     return true;
   }
-  const auto slash = path_.rfind('/');
-  const std::string dir = slash == std::string::npos ? "." : slash == 0 ? "/" : path_.substr(0, slash);
-  const std::string base = slash == std::string::npos ? path_ : path_.substr(slash + 1);
-  std::string templ = fmt::format("{}/.{}.tmp.XXXXXX", dir, base);
+  target_ = path_;
+  struct stat st {};
+  if (::lstat(path_.c_str(), &st) == 0 && S_ISLNK(st.st_mode)) {
+    // Replace what the link points at, not the link.
+    if (char* real = ::realpath(path_.c_str(), nullptr)) target_ = real, std::free(real);
+  }
+  if (::stat(target_.c_str(), &st) == 0 && !S_ISREG(st.st_mode)) {
+    if (S_ISDIR(st.st_mode)) {
+      spdlog::error("cannot write '{}': it is a directory", path_);
+      return false;
+    }
+    file_ = std::fopen(target_.c_str(), "w");  // a device or FIFO: no temporary, no rename
+    if (!file_) {
+      spdlog::error("cannot write '{}': {}", path_, std::strerror(errno));
+      return false;
+    }
+    direct_ = true;
+    return true;
+  }
+  const auto slash = target_.rfind('/');
+  const std::string dir = slash == std::string::npos ? "." : slash == 0 ? "/" : target_.substr(0, slash);
+  const std::string base = slash == std::string::npos ? target_ : target_.substr(slash + 1);
+  // The temporary's name stays within NAME_MAX however long the target's is.
+  std::string templ = fmt::format("{}/.{}.tmp.XXXXXX", dir, base.substr(0, 200));
   const int fd = ::mkstemp(templ.data());
   if (fd < 0) {
     spdlog::error("cannot write '{}': {}", path_, std::strerror(errno));
@@ -113,13 +152,21 @@ bool atomic_file::commit() {
   if (!file_) return false;
   if (file_ == stdout) {
     file_ = nullptr;
-    return std::fflush(stdout) == 0;
+    if (std::fflush(stdout) == 0 && !std::ferror(stdout)) return true;
+    spdlog::error("cannot write '-' (standard output): {}", std::strerror(errno));
+    return false;
   }
   const bool flushed = std::fflush(file_) == 0 && !std::ferror(file_);
   const int err = errno;
   const bool closed = std::fclose(file_) == 0;
   file_ = nullptr;
-  if (!flushed || !closed || ::rename(temp_.c_str(), path_.c_str()) != 0) {
+  if (direct_) {
+    direct_ = false;
+    if (flushed && closed) return true;
+    spdlog::error("cannot write '{}': {}", path_, std::strerror(flushed ? errno : err));
+    return false;
+  }
+  if (!flushed || !closed || ::rename(temp_.c_str(), target_.c_str()) != 0) {
     spdlog::error("cannot write '{}': {}", path_, std::strerror(flushed && closed ? errno : err));
     ::unlink(temp_.c_str());
     temp_.clear();
@@ -132,6 +179,7 @@ bool atomic_file::commit() {
 void atomic_file::discard() {
   if (file_ && file_ != stdout) std::fclose(file_);
   file_ = nullptr;
+  direct_ = false;
   if (!temp_.empty()) ::unlink(temp_.c_str());
   temp_.clear();
 }

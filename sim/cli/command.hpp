@@ -51,6 +51,11 @@ void add_design_options(CLI::App& cmd, design_options& o);
 std::string replay_command(const design_options& o, const std::string& corner, const std::string& horizon = "",
                            std::uint64_t max_events = 0);
 
+/// Prints diagnostics on stderr: at most `max_errors` errors and
+/// `max_warnings` warnings (with their notes), then one line per kind saying
+/// how many more were not shown ("settle: N more warnings not shown").
+void print_diagnostics(const diagnostics& diags, std::size_t max_errors = 50, std::size_t max_warnings = 20);
+
 /// Loads the design; prints diagnostics (file:line:col, caret) on stderr.
 /// Returns nullopt when there was an error (the command then exits 2).
 std::optional<design> load(const design_options& o);
@@ -61,7 +66,9 @@ std::optional<design> load(const design_options& o);
 bool write_output(const std::string& path, std::string_view text);
 
 /// A file written under a temporary name in its target's folder and renamed
-/// into place by commit(); discarded (unlinked) otherwise. "-" is stdout.
+/// into place by commit(); discarded (unlinked) otherwise. "-" is stdout. A
+/// target that is a device or FIFO is written in place (renaming would
+/// replace the device); a symbolic link is followed, so the link stays.
 class atomic_file {
  public:
   explicit atomic_file(std::string path) : path_(std::move(path)) {}
@@ -78,8 +85,9 @@ class atomic_file {
   void discard();
 
  private:
-  std::string path_, temp_;
+  std::string path_, temp_, target_;
   std::FILE* file_ = nullptr;
+  bool direct_ = false;  ///< a device or FIFO (/dev/null, /dev/full): written in place, never replaced
 };
 
 /// True when colour may be used on this stream (a terminal, NO_COLOR unset).
