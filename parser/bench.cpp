@@ -331,6 +331,13 @@ class builder {
   // It is stable once CK = 0 is applied, whatever D then is: D = 1 only
   // moves n4 to 0 and n1 to 1, which n2 and n3 ignore while CK = 0.
   bool add_flip_flop(const gate_line& g) {
+    if (opt_.dff == "primitive") {
+      // One edge-triggered primitive instead (speed comparisons); it starts at 0.
+      const net_id q = net_of(g.out.text);
+      n_.add_gate(gate_kind::dff, q, {net_of(g.args[0].text), clock_}, {}, delay_, g.out.loc);
+      n_.init[q] = logic::zero;
+      return true;
+    }
     const std::string q_name(g.out.text);
     const auto scope_index = static_cast<std::uint32_t>(n_.scopes.size());
     n_.scopes.push_back(scope{q_name, "dff", 0});
@@ -400,12 +407,10 @@ source_counts count_lines(const bench_file& f) {
 
 std::optional<design> load_bench_text(std::string_view text, const std::string& name,
                                       const load_options& opt, diagnostics& diags) {
-  if (opt.dff != "gates") {
+  if (opt.dff != "gates" && opt.dff != "primitive") {
     diagnostic d;
     d.file = name;
-    d.message = opt.dff == "primitive"
-                    ? std::string("--dff primitive is not supported yet")
-                    : fmt::format("unknown --dff mode '{}' (expected gates or primitive)", opt.dff);
+    d.message = fmt::format("unknown --dff mode '{}' (expected gates or primitive)", opt.dff);
     diags.add(std::move(d));
     return std::nullopt;
   }

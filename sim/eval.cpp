@@ -106,6 +106,13 @@ logic eval_direct(const netlist& n, gate_id g, Value&& input, logic present) {
       return 2 * c.one > c.n ? logic::one : 2 * c.zero > c.n ? logic::zero : logic::x;
     }
     case gate_kind::celem: return c_element(count(), present);
+    case gate_kind::dff: {
+      // Without the clock's history a flip-flop can only be bounded: it holds
+      // while CK is 0 and may have taken D otherwise. The timed kernel knows
+      // the edges and evaluates it exactly (simulator::eval_fast).
+      const logic ck = input(1);
+      return ck == logic::zero ? present : lub(present, input(0));
+    }
     case gate_kind::gc:
     case gate_kind::expr: {
       std::array<logic, max_stack> stack;

@@ -252,6 +252,12 @@ std::uint64_t default_memory_guard() {
 
 std::optional<explore_result> explore_design(const design& d, const explore_options& o, std::string* error) {
   const netlist& n = d.nets;
+  if (std::find(n.kind.begin(), n.kind.end(), gate_kind::dff) != n.kind.end()) {
+    // An edge-triggered primitive has no state-graph meaning without its
+    // clock's history; the six-NAND flip-flop does.
+    if (error) *error = "explore does not take edge-triggered flip-flop primitives; import with --dff gates";
+    return std::nullopt;
+  }
   explore_result res;
   res.model = o.model;
   res.reported = n.outputs;

@@ -204,9 +204,11 @@ void simulator::build_fast_paths() {
     f.in0 = fan > 0 ? n_.fanin[n_.fanin_begin[g]] : 0;
     f.in1 = fan > 1 ? n_.fanin[n_.fanin_begin[g] + 1] : 0;
     const bool simple = k != gate_kind::mux && k != gate_kind::maj && k != gate_kind::gc && k != gate_kind::expr &&
-                        !n_.enumerate[g];
+                        k != gate_kind::dff && !n_.enumerate[g];
     f.mode = gate_fast::general;
-    if (simple && k == gate_kind::celem) {
+    if (k == gate_kind::dff) {
+      f.mode = gate_fast::edge;
+    } else if (simple && k == gate_kind::celem) {
       if (fan == 2) f.mode = gate_fast::c2;
     } else if (simple && fan == 1) {
       f.mode = gate_fast::one;
@@ -219,6 +221,9 @@ void simulator::build_fast_paths() {
 void simulator::reset(const delay_table& delays) {
   delays_ = &delays;
   std::copy(n_.init.begin(), n_.init.end(), val_.begin());
+  clock_seen_.assign(n_.gate_count(), logic::x);
+  for (gate_id g = 0; g < n_.gate_count(); ++g)
+    if (fast_[g].mode == gate_fast::edge) clock_seen_[g] = n_.init[fast_[g].in1];
   std::fill(toggles_.begin(), toggles_.end(), 0);
   std::fill(pend_val_.begin(), pend_val_.end(), none);
   for (auto& q : tq_) q.clear();
@@ -283,9 +288,19 @@ void simulator::apply(net_id net, logic v, time_fs t) {
   }
 }
 
-logic simulator::eval_fast(gate_id g) const {
+logic simulator::eval_fast(gate_id g) {
   const gate_fast& f = fast_[g];
   switch (f.mode) {
+    case gate_fast::edge: {
+      // A flip-flop is evaluated whenever CK or D changes, so the CK it saw
+      // last time tells a rising edge (0 -> 1) from anything else.
+      const logic ck = val_[f.in1], before = clock_seen_[g];
+      clock_seen_[g] = ck;
+      const logic present = val_[f.out], d = val_[f.in0];
+      if (before == logic::zero && ck == logic::one) return d;
+      const bool may_rise = before != logic::one && ck != logic::zero && before != ck;
+      return may_rise ? lub(present, d) : present;
+    }
     case gate_fast::one: return tables_.one[f.kind][static_cast<int>(val_[f.in0])];
     case gate_fast::two:
       return tables_.two[f.kind][static_cast<int>(val_[f.in0]) * 3 + static_cast<int>(val_[f.in1])];

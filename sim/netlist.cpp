@@ -8,7 +8,7 @@ namespace settle {
 
 const char* kind_name(gate_kind k) {
   static constexpr const char* names[gate_kind_count] = {
-      "buf", "not", "and", "nand", "or", "nor", "xor", "xnor", "mux", "maj", "c", "gc", "expr"};
+      "buf", "not", "and", "nand", "or", "nor", "xor", "xnor", "mux", "maj", "c", "gc", "expr", "dff"};
   return names[static_cast<int>(k)];
 }
 

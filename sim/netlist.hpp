@@ -19,17 +19,21 @@ inline constexpr std::uint32_t no_id = UINT32_MAX;
 
 /// Gate kinds. `expr` is a complex gate (one delay, any ~ & | ^ expression);
 /// `celem` is the Muller C-element; `gc` the generalised C-element whose set
-/// and reset functions are programs.
+/// and reset functions are programs; `dff` an edge-triggered flip-flop
+/// primitive (fan-in D, CK: Q takes D at each rising edge of CK), made only by
+/// the .bench importer with `--dff primitive`.
 enum class gate_kind : std::uint8_t {
-  buf, inv, and_, nand, or_, nor, xor_, xnor, mux, maj, celem, gc, expr,
+  buf, inv, and_, nand, or_, nor, xor_, xnor, mux, maj, celem, gc, expr, dff,
 };
-inline constexpr int gate_kind_count = 13;
+inline constexpr int gate_kind_count = 14;
 
 /// The name users write for a kind: "buf", "not", "and", ... "gc", "expr".
 const char* kind_name(gate_kind k);
 
 /// True for kinds whose next output depends on their present output.
-constexpr bool holds_state(gate_kind k) { return k == gate_kind::celem || k == gate_kind::gc; }
+constexpr bool holds_state(gate_kind k) {
+  return k == gate_kind::celem || k == gate_kind::gc || k == gate_kind::dff;
+}
 
 /// A delay range; typ lies in [min, max].
 struct delay_range {

@@ -117,7 +117,7 @@ class simulator {
   static constexpr logic none = static_cast<logic>(3);
 
   void build_fast_paths();
-  logic eval_fast(gate_id g) const;
+  logic eval_fast(gate_id g);
   void schedule(gate_id g, logic v, time_fs t);
   void apply(net_id net, logic v, time_fs t);
   void evaluate(gate_id g, time_fs t);
@@ -148,11 +148,12 @@ class simulator {
 
   // Per-gate evaluation shortcut: inputs and output inline, table row by kind.
   struct gate_fast {
-    enum : std::uint8_t { general, one, two, c2 };
+    enum : std::uint8_t { general, one, two, c2, edge };
     net_id in0 = 0, in1 = 0, out = 0;
     std::uint8_t mode = general, kind = 0;
   };
   std::vector<gate_fast> fast_;
+  std::vector<logic> clock_seen_;  // flip-flop primitives: CK at their last evaluation
   struct {
     logic one[gate_kind_count][3];
     logic two[gate_kind_count][9];
