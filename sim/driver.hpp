@@ -30,6 +30,11 @@ struct clock_state {
   std::uint64_t edges_left = 0;  // UINT64_MAX: forever
 };
 
+// Time is a 64-bit count of femtoseconds; a stimulus whose times add up past
+// it is clamped to the last representable instant (the step then times out)
+// instead of wrapping around.
+constexpr time_fs add_saturating(time_fs a, time_fs b) { return a > never - 1 - b ? never - 1 : a + b; }
+
 template <class Sim>
 class driver {
  public:
@@ -120,7 +125,7 @@ class driver {
     for (const auto& a : spec.actions) {
       time_fs t = cursor;
       if (a.what == stim_action::kind::at) t = std::max(a.time, sim_.now());
-      else if (a.what == stim_action::kind::after) t = cursor + a.time;
+      else if (a.what == stim_action::kind::after) t = add_saturating(cursor, a.time);
       cursor = t;
       if (first) start = t, first = false;
       if (a.what == stim_action::kind::clock) {
@@ -132,6 +137,21 @@ class driver {
     std::stable_sort(pending_.begin(), pending_.end(),
                      [](const timed_input& x, const timed_input& y) { return x.time < y.time; });
     r.start = start;
+    if (cursor == never - 1 || (!pending_.empty() && pending_.back().time == never - 1)) {
+      // The stimulus ran past the end of representable time: nothing of this
+      // step can happen, so it ends as a timeout and the run stops here.
+      r.status = step_status::timeout;
+      r.end = never - 1;
+      for (std::size_t i = 0; i < result_.reported.size(); ++i) {
+        r.start_values.push_back(sim_.values()[result_.reported[i]]);
+        r.values.push_back(sim_.values()[result_.reported[i]]);
+        r.transitions.push_back(0);
+      }
+      stopped_ = true;
+      ref_ = r.end;
+      result_.steps.push_back(std::move(r));
+      return;
+    }
 
     // What the step's expectations and report need counted from its start.
     const auto& vals = sim_.values();
@@ -145,7 +165,7 @@ class driver {
       if (e.what == expectation::kind::no_glitch) glitch_tog.push_back(tog[e.net]), glitch_start.push_back(vals[e.net]);
 
     const bool settle_step = spec.end == step_spec::end_kind::settle;
-    const time_fs limit = settle_step ? (start > never - horizon_ ? never : start + horizon_) : start + spec.run_for;
+    const time_fs limit = add_saturating(start, settle_step ? horizon_ : spec.run_for);
     const time_fs change_before = sim_.last_change();
     std::size_t next_input = 0;
     // Brent's cycle detection over instants once every input of the step is
