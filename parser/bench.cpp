@@ -98,7 +98,7 @@ class reader {
     d.line = loc.line;
     d.col = loc.col;
     d.message = std::move(message);
-    if (loc.line >= 1 && loc.line <= f.lines.size()) d.source_line = std::string(f.lines[loc.line - 1]);
+    if (loc.line >= 1 && loc.line <= f.lines.size()) set_source_line(d, f.lines[loc.line - 1]);
     diags_.add(std::move(d));
   }
 
@@ -294,7 +294,7 @@ class builder {
     d.line = loc.line;
     d.col = loc.col;
     d.message = std::move(message);
-    if (loc.line >= 1 && loc.line <= f_.lines.size()) d.source_line = std::string(f_.lines[loc.line - 1]);
+    if (loc.line >= 1 && loc.line <= f_.lines.size()) set_source_line(d, f_.lines[loc.line - 1]);
     diags_.add(std::move(d));
   }
 

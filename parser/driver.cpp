@@ -36,7 +36,7 @@ void reporter::report(diagnostic::level lv, source_loc at, const std::string& ms
     std::size_t b = line_start_[at.line - 1];
     std::size_t e = at.line < line_start_.size() ? line_start_[at.line] - 1 : text_.size();
     while (e > b && (text_[e - 1] == '\r' || text_[e - 1] == '\n')) --e;
-    d.source_line = std::string(text_.substr(b, e - b));
+    set_source_line(d, text_.substr(b, e - b));
   }
   if (holding_) {
     held_.push_back(std::move(d));

@@ -3,6 +3,7 @@
 
 #include <cstdint>
 #include <string>
+#include <string_view>
 #include <vector>
 
 namespace settle {
@@ -12,8 +13,13 @@ struct diagnostic {
   std::string file;
   std::uint32_t line = 0, col = 0;  ///< 1-based; 0 when there is no position
   std::string message;
-  std::string source_line;          ///< the text of that line, without its newline
+  std::string source_line;          ///< the text of that line (or a window of it), without its newline
+  std::uint32_t source_col = 1;     ///< the column where source_line starts (> 1: a window)
 };
+
+/// Sets d.source_line from the whole line, keeping only a window around d.col
+/// when the line is long, so a 10 MB line does not cost 10 MB per diagnostic.
+void set_source_line(diagnostic& d, std::string_view line);
 
 /// Diagnostics collected while loading a design.
 struct diagnostics {
