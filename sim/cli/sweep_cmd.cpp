@@ -17,6 +17,7 @@
 #include "sim/culprit.hpp"
 #include "sim/sweep.hpp"
 #include "sim/time_parse.hpp"
+#include "waves/html.hpp"
 #include "waves/junit.hpp"
 #include "waves/vcd.hpp"
 
@@ -29,7 +30,7 @@ struct sweep_cli_options {
   std::uint64_t seed = 1;
   unsigned threads = 0;
   std::string json, vcd_dir, horizon;
-  std::string junit;
+  std::string junit, html;
   std::uint64_t max_events = 0;
   double timeout_s = 0;  ///< --timeout: wall-clock budget in seconds (0: none)
   bool quiet = false;
@@ -385,7 +386,10 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
     std::fputs(fmt::format("settle: {}: {} of {} corners finished\n", stop_words(r), r.corners, r.planned).c_str(),
                stderr);
   if (!o.vcd_dir.empty() && r.stopped == sweep_stop::none && !write_witness_vcds(*d, o, *plan, r, ro)) return exit_status::error;
-  if (!o.quiet && o.json != "-" && o.junit != "-") std::fputs(summary(*d, o, r, use_colour(1), races).c_str(), stdout);
+  if (!o.html.empty() &&
+      !write_output(o.html, html_report_sweep(*d, r, ro, {"sweep", result_json(*d, o, r, races), ""})))
+    return exit_status::error;
+  if (!o.quiet && o.json != "-" && o.junit != "-" && o.html != "-") std::fputs(summary(*d, o, r, use_colour(1), races).c_str(), stdout);
   if (r.stopped == sweep_stop::interrupted) return exit_status::interrupted;
   return r.pass() ? exit_status::ok : exit_status::findings;
 }
@@ -410,6 +414,7 @@ void add_sweep(CLI::App& app, exit_status& status) {
                   "exits 1 (0: none)")
       ->check(CLI::NonNegativeNumber);
   cmd->add_option("--junit", o->junit, "write a JUnit-style XML report to PATH");
+  cmd->add_option("--html", o->html, "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH");
   cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout and no progress; errors still go to stderr");
   cmd->callback([o, &status] { status = run_sweep_cmd(*o); });
 }
