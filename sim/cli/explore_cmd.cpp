@@ -8,6 +8,7 @@
 #include <spdlog/spdlog.h>
 
 #include "sim/cli/command.hpp"
+#include "sim/cli/report_common.hpp"
 #include "sim/explore.hpp"
 #include "waves/html.hpp"
 #include "waves/dot.hpp"
@@ -24,23 +25,9 @@ struct explore_cli_options {
   std::string json, dot, html;
 };
 
-std::string one(logic v) { return std::string(1, to_char(v)); }
-
 nlohmann::ordered_json tri(answer a) {
   if (a == answer::unknown) return nullptr;
   return a == answer::yes;
-}
-
-const char* kind_word(expectation::kind k) {
-  switch (k) {
-    case expectation::kind::value: return "value";
-    case expectation::kind::stable: return "stable";
-    case expectation::kind::oscillating: return "oscillating";
-    case expectation::kind::within: return "within";
-    case expectation::kind::no_glitch: return "no_glitch";
-    case expectation::kind::deterministic: return "deterministic";
-  }
-  return "?";
 }
 
 logic stable_value(const netlist& n, const explore_step& s, const stable_state& st, net_id net) {
@@ -69,7 +56,7 @@ std::string result_json(const design& d, const explore_result& r, double wall) {
     auto& stable = js["stable"] = nlohmann::ordered_json::array();
     for (const auto& st : s.stable) {
       nlohmann::ordered_json e;
-      for (net_id net : r.reported) e["values"][n.net_name[net]] = one(stable_value(n, s, st, net));
+      for (net_id net : r.reported) e["values"][n.net_name[net]] = logic_text(stable_value(n, s, st, net));
       std::string bits;
       for (auto b : st.gates) bits += b ? '1' : '0';
       e["state"] = bits;
@@ -87,7 +74,7 @@ std::string result_json(const design& d, const explore_result& r, double wall) {
     auto& hz = js["hazards"] = nlohmann::ordered_json::array();
     for (net_id h : s.hazards) hz.push_back(n.net_name[h]);
     js["hazards_from"] = s.complete ? "graph" : "ternary";  // ternary: possible static hazards only
-    for (net_id net : r.reported) js["ternary"][n.net_name[net]] = one(s.ternary[net]);
+    for (net_id net : r.reported) js["ternary"][n.net_name[net]] = logic_text(s.ternary[net]);
     if (!js.contains("ternary")) js["ternary"] = nlohmann::ordered_json::object();
     if (s.complete)
       js["sccs"] = {{"count", s.sccs}, {"nontrivial", s.nontrivial_sccs}, {"terminal", s.terminal_sccs},
@@ -98,12 +85,12 @@ std::string result_json(const design& d, const explore_result& r, double wall) {
     auto& ex = js["expect"] = nlohmann::ordered_json::array();
     for (const auto& e : s.expects) {
       nlohmann::ordered_json je;
-      je["kind"] = kind_word(e.spec->what);
+      je["kind"] = expect_kind_word(e.spec->what);
       if (e.spec->what == expectation::kind::value || e.spec->what == expectation::kind::no_glitch)
         je["net"] = e.spec->ref.empty() ? n.net_name[e.spec->net] : e.spec->ref;
       if (e.spec->what == expectation::kind::value) {
-        je["want"] = one(e.spec->want);
-        je["got"] = one(e.got);
+        je["want"] = logic_text(e.spec->want);
+        je["got"] = logic_text(e.got);
       }
       je["checked"] = e.checked;
       je["pass"] = e.pass;
@@ -157,7 +144,7 @@ std::string table(const design& d, const explore_result& r, double wall) {
       const std::string what = e.spec->what == expectation::kind::value
                                    ? fmt::format("{} = {}", e.spec->ref.empty() ? n.net_name[e.spec->net] : e.spec->ref,
                                                  to_char(e.spec->want))
-                                   : kind_word(e.spec->what);
+                                   : expect_kind_word(e.spec->what);
       t += fmt::format("        expect {}: {}{}\n", what, !e.checked ? "not checked" : "FAILED",
                        e.detail.empty() ? "" : " (" + e.detail + ")");
     }
@@ -185,7 +172,7 @@ exit_status run_explore(const explore_cli_options& o) {
     spdlog::error("{}", err);
     return exit_status::error;
   }
-  const double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+  const double wall = seconds_since(t0);
   if (!o.dot.empty() && kept_states(*r) > dot_state_limit) {
     spdlog::error("--dot: the explored graphs hold {} states; DOT output is for designs up to {} states",
                   kept_states(*r), dot_state_limit);

@@ -14,6 +14,7 @@
 
 #include "sim/baseline.hpp"
 #include "sim/cli/command.hpp"
+#include "sim/cli/report_common.hpp"
 #include "sim/margin.hpp"
 #include "sim/time_parse.hpp"
 #include "waves/html.hpp"
@@ -199,7 +200,11 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
   return out;
 }
 
+// Baselines are small regular files; anything else (a device, a FIFO, a
+// folder) is refused rather than read until memory runs out.
 std::optional<std::string> read_file(const std::string& path) {
+  std::error_code ec;
+  if (!std::filesystem::is_regular_file(path, ec)) return std::nullopt;
   std::ifstream in(path, std::ios::binary);
   if (!in) return std::nullopt;
   std::ostringstream ss;
@@ -225,14 +230,7 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   mo.resolution_pct = o.resolution;
   mo.ceiling_pct = o.ceiling;
   mo.culprits = !o.no_culprits;
-  if (!o.horizon.empty()) {
-    auto h = parse_time(o.horizon, &err);
-    if (!h) {
-      spdlog::error("--horizon: {}", err);
-      return exit_status::error;
-    }
-    mo.run.horizon = *h;
-  }
+  if (!parse_horizon_option(o.horizon, mo.run.horizon)) return exit_status::error;
   // Read the baseline before the search, so a bad file fails fast.
   std::optional<baseline_file> before;
   if (!o.baseline.empty()) {

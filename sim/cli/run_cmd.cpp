@@ -9,6 +9,7 @@
 #include <spdlog/spdlog.h>
 
 #include "sim/cli/command.hpp"
+#include "sim/cli/report_common.hpp"
 #include "sim/kernel.hpp"
 #include "sim/time_parse.hpp"
 #include "waves/html.hpp"
@@ -27,23 +28,9 @@ struct run_cli_options {
   bool verbose = false, quiet = false;
 };
 
-std::string logic_text(logic v) { return std::string(1, to_char(v)); }
-
 std::uint32_t glitches(const step_result& s, std::size_t i) {
   const std::uint32_t needed = s.start_values[i] != s.values[i] ? 1 : 0;
   return s.transitions[i] > needed ? s.transitions[i] - needed : 0;
-}
-
-const char* kind_word(expectation::kind k) {
-  switch (k) {
-    case expectation::kind::value: return "value";
-    case expectation::kind::stable: return "stable";
-    case expectation::kind::oscillating: return "oscillating";
-    case expectation::kind::within: return "within";
-    case expectation::kind::no_glitch: return "no_glitch";
-    case expectation::kind::deterministic: return "deterministic";
-  }
-  return "?";
 }
 
 nlohmann::ordered_json expect_json(const netlist& n, const step_result& s, const expect_result& x) {
@@ -56,21 +43,21 @@ nlohmann::ordered_json expect_json(const netlist& n, const step_result& s, const
       e["got"] = logic_text(x.got);
       break;
     case expectation::kind::no_glitch:
-      e["kind"] = kind_word(spec.what);
+      e["kind"] = expect_kind_word(spec.what);
       e["net"] = spec.ref.empty() ? n.net_name[spec.net] : spec.ref;
       break;
     case expectation::kind::within:
-      e["kind"] = kind_word(spec.what);
+      e["kind"] = expect_kind_word(spec.what);
       e["budget_fs"] = spec.hi;
       e["got_fs"] = s.settle;
       break;
     case expectation::kind::oscillating:
-      e["kind"] = kind_word(spec.what);
+      e["kind"] = expect_kind_word(spec.what);
       if (spec.has_range) e["period_min_fs"] = spec.lo, e["period_max_fs"] = spec.hi;
       if (s.status == step_status::oscillating) e["got_fs"] = s.period;
       break;
     default:
-      e["kind"] = kind_word(spec.what);
+      e["kind"] = expect_kind_word(spec.what);
   }
   e["pass"] = x.pass;
   if (!x.pass && !x.detail.empty()) e["detail"] = x.detail;
@@ -183,14 +170,6 @@ std::string table(const design& d, const run_result& r, const std::string& corne
   return out;
 }
 
-std::string file_stem(const std::string& path) {
-  auto slash = path.rfind('/');
-  std::string base = slash == std::string::npos ? path : path.substr(slash + 1);
-  auto dot = base.rfind('.');
-  if (dot != std::string::npos && dot > 0) base.resize(dot);
-  return base.empty() ? "top" : base;
-}
-
 exit_status run_run(const run_cli_options& o) {
   if (o.verbose && !o.quiet) spdlog::set_level(spdlog::level::debug);
   if (o.quiet) spdlog::set_level(spdlog::level::err);
@@ -202,14 +181,7 @@ exit_status run_run(const run_cli_options& o) {
   }
   run_options ro;
   ro.max_events = o.max_events;
-  if (!o.horizon.empty()) {
-    auto h = parse_time(o.horizon, &err);
-    if (!h) {
-      spdlog::error("--horizon: {}", err);
-      return exit_status::error;
-    }
-    ro.horizon = *h;
-  }
+  if (!parse_horizon_option(o.horizon, ro.horizon)) return exit_status::error;
   auto d = load(o.design);
   if (!d) return exit_status::error;
 
@@ -232,7 +204,7 @@ exit_status run_run(const run_cli_options& o) {
   }
   const auto t0 = std::chrono::steady_clock::now();
   const run_result r = run_stimulus(*d, delays, ro, vcd.get());
-  const double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+  const double wall = seconds_since(t0);
   spdlog::debug("{} events in {:.3f} s", r.events, wall);
 
   if (vcd && !vcd->write(vcd_file->get(), &err)) {

@@ -1,0 +1,48 @@
+// Small helpers the report-writing commands (run, sweep, explore, margin) share.
+#include "sim/cli/report_common.hpp"
+
+#include <spdlog/spdlog.h>
+
+#include "sim/time_parse.hpp"
+
+namespace settle::cli {
+
+std::string logic_text(logic v) { return std::string(1, to_char(v)); }
+
+const char* expect_kind_word(expectation::kind k) {
+  switch (k) {
+    case expectation::kind::value: return "value";
+    case expectation::kind::stable: return "stable";
+    case expectation::kind::oscillating: return "oscillating";
+    case expectation::kind::within: return "within";
+    case expectation::kind::no_glitch: return "no_glitch";
+    case expectation::kind::deterministic: return "deterministic";
+  }
+  return "?";
+}
+
+std::string file_stem(const std::string& path) {
+  auto slash = path.rfind('/');
+  std::string base = slash == std::string::npos ? path : path.substr(slash + 1);
+  auto dot = base.rfind('.');
+  if (dot != std::string::npos && dot > 0) base.resize(dot);
+  return base.empty() ? "top" : base;
+}
+
+bool parse_horizon_option(const std::string& text, time_fs& out) {
+  if (text.empty()) return true;
+  std::string err;
+  auto h = parse_time(text, &err);
+  if (!h) {
+    spdlog::error("--horizon: {}", err);
+    return false;
+  }
+  out = *h;
+  return true;
+}
+
+double seconds_since(std::chrono::steady_clock::time_point t0) {
+  return std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+}
+
+}  // namespace settle::cli
