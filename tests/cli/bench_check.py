@@ -11,18 +11,14 @@ import os
 import subprocess
 import sys
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import fail, failures  # noqa: E402
+
 settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
 iscas = os.path.normpath(os.path.join(src, "..", "shared", "data", "iscas"))
 if not os.path.isfile(os.path.join(iscas, "stats.csv")):
     print(f"SKIP: {iscas} is absent; the ISCAS checks need the shared benchmark folder")
     sys.exit(77)
-
-failures = []
-
-
-def fail(msg):
-    failures.append(msg)
-    print("FAIL: " + msg)
 
 
 with open(os.path.join(iscas, "stats.csv"), newline="") as f:

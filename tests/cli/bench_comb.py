@@ -14,6 +14,9 @@ import subprocess
 import sys
 import tempfile
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import fail, failures  # noqa: E402
+
 settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
 iscas = os.path.normpath(os.path.join(src, "..", "shared", "data", "iscas"))
 if not os.path.isdir(iscas):
@@ -27,12 +30,6 @@ from sympy.logic.boolalg import Xnor  # noqa: E402
 OPS = {"AND": And, "OR": Or, "NAND": Nand, "NOR": Nor, "XOR": Xor, "XNOR": Xnor}
 CIRCUITS = ["c17", "c432", "c499", "c880", "c1355", "c1908"]
 VECTORS = 8
-failures = []
-
-
-def fail(msg):
-    failures.append(msg)
-    print("FAIL: " + msg)
 
 
 def random_vector(inputs, k):

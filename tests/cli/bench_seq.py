@@ -17,6 +17,9 @@ import subprocess
 import sys
 import tempfile
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import fail, failures  # noqa: E402
+
 settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
 iscas = os.path.normpath(os.path.join(src, "..", "shared", "data", "iscas"))
 if not os.path.isdir(iscas):
@@ -27,12 +30,6 @@ from bench_reference import Circuit, clocked_run  # noqa: E402
 
 CIRCUITS = ["s27", "s208", "s298", "s344", "s386", "s1196", "s5378", "s38417"]
 CYCLES = 24
-failures = []
-
-
-def fail(msg):
-    failures.append(msg)
-    print("FAIL: " + msg)
 
 
 def stimulus(c, vectors):

@@ -12,17 +12,14 @@ import subprocess
 import sys
 import tempfile
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import fail, failures  # noqa: E402
+
 settle, src = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
 build = os.path.dirname(os.path.dirname(settle))
 bench_bin = os.path.join(build, "bench", "settle_bench")
 iscas = os.path.normpath(os.path.join(src, "..", "shared", "data", "iscas"))
 s38417 = os.path.join(iscas, "s38417.bench")
-failures = []
-
-
-def fail(msg):
-    failures.append(msg)
-    print("FAIL: " + msg)
 
 
 def positive(doc, key, what):

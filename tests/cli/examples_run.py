@@ -11,14 +11,11 @@ import subprocess
 import sys
 import tempfile
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import fail, failures  # noqa: E402
+
 settle, src = sys.argv[1], sys.argv[2]
 examples = os.path.join(src, "examples")
-failures = []
-
-
-def fail(msg):
-    failures.append(msg)
-    print("FAIL: " + msg)
 
 
 # What each example intends at the default corner of `settle run` (typ).

@@ -11,16 +11,13 @@ import subprocess
 import sys
 import tempfile
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import fail, failures  # noqa: E402
+
 settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
 if not shutil.which("dot") or not shutil.which("xmllint"):
     print("SKIP: graphviz (dot) and libxml2-utils (xmllint) are needed")
     sys.exit(77)
-failures = []
-
-
-def fail(msg):
-    failures.append(msg)
-    print("FAIL: " + msg)
 
 
 with tempfile.TemporaryDirectory() as tmp:

@@ -14,6 +14,9 @@ import subprocess
 import sys
 import tempfile
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import fail, failures  # noqa: E402
+
 try:
     import networkx as nx
 except ImportError:
@@ -24,14 +27,8 @@ settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
 designs = ["tests/data/explore_contacts.settle", "tests/data/explore_handshake.settle",
            "tests/data/explore_monitor_ring.settle", "examples/arbiter.settle", "examples/delay_ring.settle",
            "examples/fifo_stage.settle", "examples/debounce.settle", "examples/strobe_pulse.settle"]
-failures = []
 NODE = re.compile(r'^\s*(s(\d+)_\d+) \[label="([01]*)"(.*)\];$')
 EDGE = re.compile(r'^\s*(s(\d+)_\d+) -> (s\d+_\d+) \[label="([^"]*)"\];$')
-
-
-def fail(msg):
-    failures.append(msg)
-    print("FAIL: " + msg)
 
 
 def read_dot(path):

@@ -22,19 +22,14 @@ import subprocess
 import sys
 import tempfile
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import check, failures  # noqa: E402
+
 CHROMIUM = "/usr/bin/chromium"
 settle, src = sys.argv[1], sys.argv[2]
 if not os.path.exists(CHROMIUM):
     print("SKIP: /usr/bin/chromium is absent (Debian package chromium; scripts/deps installs it)")
     sys.exit(77)
-
-failures = []
-
-
-def check(cond, what):
-    if not cond:
-        failures.append(what)
-        print("FAIL:", what)
 
 
 tmp = tempfile.mkdtemp(prefix="settle-html-")

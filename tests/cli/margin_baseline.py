@@ -4,23 +4,16 @@ gate's margin (exit 1 naming the step), versions, atomic write, errors (exit 2).
 import json
 import os
 import shutil
-import subprocess
 import sys
 import tempfile
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import check, failures, runner  # noqa: E402
+
 settle, src = sys.argv[1], sys.argv[2]
-failures = []
 
 
-def check(cond, what):
-    if not cond:
-        failures.append(what)
-        print("FAIL:", what)
-
-
-def run(*args):
-    p = subprocess.run([settle, *args], capture_output=True, text=True, timeout=300)
-    return p.returncode, p.stdout, p.stderr
+run = runner(settle, 300)
 
 
 tmp = tempfile.mkdtemp(prefix="settle-margin-baseline-")

@@ -9,24 +9,18 @@ import sys
 import tempfile
 import xml.etree.ElementTree as ET
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import check, failures, runner  # noqa: E402
+
 settle, src = sys.argv[1], sys.argv[2]
 if not shutil.which("xmllint"):
     print("xmllint (libxml2-utils) not installed: skipped")
     sys.exit(77)
 data = os.path.join(src, "tests", "data")
 race = os.path.join(data, "margin_race.settle")
-failures = []
 
 
-def check(cond, what):
-    if not cond:
-        failures.append(what)
-        print("FAIL:", what)
-
-
-def run(*args):
-    p = subprocess.run([settle, *args], capture_output=True, text=True, timeout=300)
-    return p.returncode, p.stdout, p.stderr
+run = runner(settle, 300)
 
 
 def well_formed(path):

@@ -3,25 +3,18 @@
 witness with settle run, the settle-time margin, and race culprits in sweep and margin JSON."""
 import json
 import os
-import subprocess
 import sys
 from fractions import Fraction
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import check, failures, runner  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 race = os.path.join(src, "tests", "data", "margin_race.settle")
 planted = os.path.join(src, "tests", "data", "margin_planted.settle")
-failures = []
 
 
-def check(cond, what):
-    if not cond:
-        failures.append(what)
-        print("FAIL:", what)
-
-
-def run(*args):
-    p = subprocess.run([settle, *args], capture_output=True, text=True, timeout=300)
-    return p.returncode, p.stdout, p.stderr
+run = runner(settle, 300)
 
 
 # Hand arithmetic, stated in tests/data/margin_race.settle: at spread w the

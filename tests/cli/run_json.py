@@ -3,25 +3,18 @@
 import json
 import os
 import re
-import subprocess
 import sys
 import tempfile
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import check, failures, runner  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 data = os.path.join(src, "tests", "data")
 design = os.path.join(data, "lamp_panel.settle")
-failures = []
 
 
-def check(cond, what):
-    if not cond:
-        failures.append(what)
-        print("FAIL:", what)
-
-
-def run(*args):
-    p = subprocess.run([settle, *args], capture_output=True, text=True, timeout=120)
-    return p.returncode, p.stdout, p.stderr
+run = runner(settle, 120)
 
 
 tmp = tempfile.mkdtemp(prefix="settle-run-json-")

@@ -9,21 +9,15 @@
 import csv
 import json
 import os
-import subprocess
 import sys
 import tempfile
 
-failures = []
-
-
-def fail(msg):
-    failures.append(msg)
-    print("FAIL:", msg)
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import fail, run_settle, summary  # noqa: E402
 
 
 def settle(binary, *args):
-    p = subprocess.run([binary, *args], capture_output=True, text=True, timeout=600)
-    return p.returncode, p.stdout, p.stderr
+    return run_settle(binary, *args, timeout=600)
 
 
 def corners(binary, design, spec, *extra):
@@ -97,11 +91,7 @@ def main():
         if rc != 2 or "--corners" not in err:
             fail(f"--corners {bad}: exit {rc}, stderr {err.strip()[:200]}; expected 2 and a message")
 
-    if failures:
-        print(f"{len(failures)} failure(s)")
-        return 1
-    print("ok")
-    return 0
+    return summary()
 
 
 if __name__ == "__main__":

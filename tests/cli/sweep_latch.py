@@ -13,17 +13,8 @@ import subprocess
 import sys
 import tempfile
 
-failures = []
-
-
-def fail(msg):
-    failures.append(msg)
-    print("FAIL:", msg)
-
-
-def settle(binary, *args):
-    p = subprocess.run([binary, *args], capture_output=True, text=True, timeout=300)
-    return p.returncode, p.stdout, p.stderr
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import fail, run_settle as settle, summary  # noqa: E402
 
 
 # A cabinet-door interlock latch (our own scenario): both active-low controls
@@ -182,11 +173,7 @@ def main():
         equal(binary, tmp)
     finally:
         shutil.rmtree(tmp, ignore_errors=True)
-    if failures:
-        print(f"{len(failures)} failure(s)")
-        return 1
-    print("ok")
-    return 0
+    return summary()
 
 
 if __name__ == "__main__":

@@ -9,12 +9,8 @@ import os
 import subprocess
 import sys
 
-failures = []
-
-
-def fail(msg):
-    failures.append(msg)
-    print("FAIL:", msg)
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import fail, summary  # noqa: E402
 
 
 def sweep(binary, args, threads):
@@ -54,11 +50,7 @@ def main():
             fail(f"{args}: the JSON differs between --threads 1 and --threads 2")
         if one["events"] <= 0 or one["corners"] <= 0:
             fail(f"{args}: no events or corners: {one['events']} {one['corners']}")
-    if failures:
-        print(f"{len(failures)} failure(s)")
-        return 1
-    print("ok")
-    return 0
+    return summary()
 
 
 if __name__ == "__main__":

@@ -11,18 +11,14 @@ import os
 import subprocess
 import sys
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import fail, summary  # noqa: E402
+
 try:
     from statsmodels.stats.proportion import proportion_confint
 except ImportError:
     print("SKIP: python3-statsmodels is not installed (scripts/deps installs it)")
     sys.exit(77)
-
-failures = []
-
-
-def fail(msg):
-    failures.append(msg)
-    print("FAIL:", msg)
 
 
 def main():
@@ -64,11 +60,7 @@ def main():
         fail(f"too few (count, corners) pairs to be a table: {sorted(pairs)}")
     else:
         print(f"{len(pairs)} (count, corners) pairs compared, {len(inner)} strictly inside (0, 1)")
-    if failures:
-        print(f"{len(failures)} failure(s)")
-        return 1
-    print("ok")
-    return 0
+    return summary()
 
 
 if __name__ == "__main__":
