@@ -141,6 +141,8 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
   sweep_options so;
   so.threads = o.threads;
   so.run = o.run;
+  so.stop = o.stop;
+  struct halted {};  // a probe was stopped part-way: its verdicts are not used
   if (!so.run.horizon) so.run.horizon = default_horizon(d.nets);
   const std::size_t steps = d.stim.steps.empty() ? 1 : d.stim.steps.size();
 
@@ -156,7 +158,19 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
       to[r].fall = scaled(from[r].fall, w);
     }
     probe_outcome p;
+    if (o.timeout_s > 0) {
+      const double left = o.timeout_s - std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+      if (left <= 0) {
+        res.stopped = sweep_stop::timeout;
+        throw halted{};
+      }
+      so.timeout_s = left;
+    }
     p.sweep = run_sweep(scaled_d, *plan, so);
+    if (p.sweep.stopped != sweep_stop::none) {
+      res.stopped = p.sweep.stopped;
+      throw halted{};
+    }
     res.corner_runs += plan->corners;
     bool all = true;
     for (const auto& s : p.sweep.steps) {
@@ -185,41 +199,46 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
   const auto K = static_cast<std::int64_t>(std::llround(o.ceiling_pct / o.resolution_pct));
   auto w_of = [&](std::int64_t k) { return k == K ? res.ceiling : static_cast<double>(k) * o.resolution_pct / 100.0; };
   std::vector<std::int64_t> lo(steps, -1), hi(steps, -1);
-  {
-    const auto& top = probe(w_of(K));
-    for (std::size_t k = 0; k < steps; ++k) (top.pass[k] ? lo : hi)[k] = K;
+  try {
+    {
+      const auto& top = probe(w_of(K));
+      for (std::size_t k = 0; k < steps; ++k) (top.pass[k] ? lo : hi)[k] = K;
+    }
+    if (std::any_of(hi.begin(), hi.end(), [](std::int64_t h) { return h >= 0; })) {
+      const auto& zero = probe(0.0);
+      for (std::size_t k = 0; k < steps; ++k)
+        if (hi[k] >= 0) (zero.pass[k] ? lo[k] = 0 : hi[k] = 0);
+    }
+    for (;;) {
+      std::size_t pick = steps;
+      for (std::size_t k = 0; k < steps; ++k)
+        if (lo[k] >= 0 && hi[k] > lo[k] + 1) {
+          pick = k;
+          break;
+        }
+      if (pick == steps) break;
+      const std::int64_t mid = (lo[pick] + hi[pick]) / 2;
+      const auto& p = probe(w_of(mid));
+      for (std::size_t k = 0; k < steps; ++k)
+        if (lo[k] >= 0 && lo[k] < mid && mid < hi[k]) (p.pass[k] ? lo[k] : hi[k]) = mid;
+    }
+  } catch (const halted&) {
+    // Keep what the finished probes bracketed.
   }
-  if (std::any_of(hi.begin(), hi.end(), [](std::int64_t h) { return h >= 0; })) {
-    const auto& zero = probe(0.0);
-    for (std::size_t k = 0; k < steps; ++k)
-      if (hi[k] >= 0) (zero.pass[k] ? lo[k] = 0 : hi[k] = 0);
-  }
-  for (;;) {
-    std::size_t pick = steps;
-    for (std::size_t k = 0; k < steps; ++k)
-      if (lo[k] >= 0 && hi[k] > lo[k] + 1) {
-        pick = k;
-        break;
-      }
-    if (pick == steps) break;
-    const std::int64_t mid = (lo[pick] + hi[pick]) / 2;
-    const auto& p = probe(w_of(mid));
-    for (std::size_t k = 0; k < steps; ++k)
-      if (lo[k] >= 0 && lo[k] < mid && mid < hi[k]) (p.pass[k] ? lo[k] : hi[k]) = mid;
-  }
+  const bool stopped = res.stopped != sweep_stop::none;
 
   // Per-step results, their failures just above the margin, and culprits.
   for (std::size_t k = 0; k < steps; ++k) {
     step_margin sm;
     sm.index = k + 1;
     sm.label = k < d.stim.steps.size() ? d.stim.steps[k].label : "initial";
-    sm.at_ceiling = hi[k] < 0;
+    sm.at_ceiling = hi[k] < 0 && lo[k] >= 0;
     sm.fails_at_zero = hi[k] == 0;
     sm.margin = lo[k] >= 0 ? w_of(lo[k]) : 0.0;
     if (hi[k] >= 0) {
       const auto& p = cache.at(w_of(hi[k]));
       margin_failure f = p.failure[k];
-      if (o.culprits && p.race[k] && p.first_divergence[k]) {
+      if (o.culprits && !stopped && p.race[k] && p.first_divergence[k]) {
         const auto& [a, b] = *p.race[k];
         culprit_report rep = find_culprits(d, so.run, k + 1, a, b, o.culprit_tests);
         res.culprit_runs += rep.tests + 2;
@@ -238,7 +257,11 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
   if (worst) res.failure = worst->failure;
 
   // Settle-time margins of every `settle within T` at the written spread.
-  const auto& written = probe(1.0);
+  if (stopped && !cache.count(1.0)) {
+    res.wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+    return res;
+  }
+  const auto& written = stopped ? cache.at(1.0) : probe(1.0);
   res.written = written.sweep;
   for (std::size_t k = 0; k < d.stim.steps.size() && k < written.sweep.steps.size(); ++k) {
     const auto& spec = d.stim.steps[k];

@@ -1,6 +1,7 @@
 // Delay margins: the largest scaling of every gate's delay range that keeps each step passing, and settle-time margins.
 #pragma once
 
+#include <atomic>
 #include <cstdint>
 #include <functional>
 #include <optional>
@@ -24,6 +25,10 @@ struct margin_options {
   std::size_t culprit_tests = 4096;
   /// Called after every probe with (spread, corners, every step passed); may be empty.
   std::function<void(double, std::uint64_t, bool)> progress;
+  /// When set and true the search stops at once (interruption); may be null.
+  const std::atomic<bool>* stop = nullptr;
+  /// Wall-clock budget for the whole search in seconds (0: none).
+  double timeout_s = 0;
 };
 
 /// Why a step fails at some spread.
@@ -85,6 +90,10 @@ struct margin_result {
   bool sampled = false;                     ///< the spec draws random or gauss corners
   bool exact = false;                       ///< the spec is exhaustive without sampled corners
   double wall_s = 0;
+  /// The search was stopped (signal or --timeout): margins then come only
+  /// from the probes that finished, each still a valid lower bound (0 for a
+  /// step no finished probe bracketed), and no culprits are sought.
+  sweep_stop stopped = sweep_stop::none;
   /// Plain words on how far the number can be trusted.
   std::string confidence_note() const;
   /// True when every step passes at the written spread (w = 1).
