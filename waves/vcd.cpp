@@ -5,7 +5,8 @@
 #include <cstdlib>
 #include <cstring>
 #include <ctime>
-#include <unordered_set>
+#include <deque>
+#include <string_view>
 
 #include <fmt/format.h>
 
@@ -52,7 +53,7 @@ std::string vcd_sanitise(std::string_view name) {
     const auto u = static_cast<unsigned char>(c);
     if (c == '.' || c == '/' || c == '[' || c == ']' || u <= 32 || u >= 127) c = '_';
   }
-  if (s.empty()) s = "_";
+  if (s.empty()) s.push_back('_');
   return s;
 }
 
@@ -84,14 +85,24 @@ vcd_writer::vcd_writer(const netlist& n, vcd_options opt) : n_(n), opt_(std::mov
   }
   code_at_.assign(nets, 0);
   code_len_.assign(nets, 0);
+  // Every code, once, into one contiguous array (same numerals as vcd_code),
+  // padded by 8 bytes for the fixed-size copies of flush_instant.
+  codes_.reserve(static_cast<std::size_t>(nets) * 4 + 8);
   std::uint64_t next = 0;
   for (net_id i = 0; i < nets; ++i) {
     if (!selected_[i]) continue;
-    const auto c = vcd_code(next++);
     code_at_[i] = static_cast<std::uint32_t>(codes_.size());
-    code_len_[i] = static_cast<std::uint8_t>(c.size());
-    codes_ += c;
+    std::uint8_t len = 0;
+    for (std::uint64_t v = next++;; ++len) {
+      codes_.push_back(static_cast<char>(33 + v % 94));
+      v /= 94;
+      if (v == 0) break;
+      --v;
+    }
+    code_len_[i] = ++len;
+    if (len > max_code_) max_code_ = len;
   }
+  codes_.append(8, '\0');
   written_.assign(nets, logic::x);
   pending_.assign(nets, none);
   initial_.assign(nets, logic::x);
@@ -124,21 +135,57 @@ void vcd_writer::on_changes(std::span<const change> batch) {
 }
 
 void vcd_writer::flush_instant() {
-  bool stamped = false;
+  if (touched_.empty()) return;
+  if (now_ == 0) {
+    for (net_id n : touched_) {
+      const auto v = static_cast<logic>(pending_[n]);
+      pending_[n] = none;
+      if (v != written_[n]) written_[n] = initial_[n] = v;
+    }
+    touched_.clear();
+    return;
+  }
+  // One reservation per instant: the time line, every value line, and the
+  // slack of the fixed 8-byte code copies (codes_ is padded by 8 bytes too).
+  const std::size_t bound = 24 + touched_.size() * (max_code_ + 2) + 8;
+  if (bound > max_chunk / 2) {  // a huge instant: line by line, each reserved alone
+    bool stamped = false;
+    for (net_id n : touched_) {
+      const auto v = static_cast<logic>(pending_[n]);
+      pending_[n] = none;
+      if (v == written_[n]) continue;
+      written_[n] = v;
+      if (!stamped) put_time(now_), stamped = true;
+      put_value(n, v);
+      ++changes_;
+    }
+    touched_.clear();
+    return;
+  }
+  reserve(bound);
+  char* p = buf_.get() + pos_;
+  *p++ = '#';
+  p = std::to_chars(p, p + 21, now_).ptr;
+  *p++ = '\n';
+  std::uint64_t written = 0;
+  const char* codes = codes_.data();
   for (net_id n : touched_) {
     const auto v = static_cast<logic>(pending_[n]);
     pending_[n] = none;
     if (v == written_[n]) continue;  // a pulse of zero width, or no change at all
     written_[n] = v;
-    if (now_ == 0) {
-      initial_[n] = v;
-      continue;
-    }
-    if (!stamped) put_time(now_), stamped = true;
-    put_value(n, v);
-    ++changes_;
+    const std::size_t len = code_len_[n];
+    *p = to_char(v);
+    std::memcpy(p + 1, codes + code_at_[n], 8);
+    p[len + 1] = '\n';
+    p += len + 2;
+    ++written;
   }
   touched_.clear();
+  if (written == 0) return;  // nothing changed at this instant: no time line
+  changes_ += written;
+  pos_ = static_cast<std::size_t>(p - buf_.get());
+  while (k_ > 0 && now_ % pow10_table[k_] != 0) --k_;
 }
 
 void vcd_writer::on_finish(time_fs end) {
@@ -191,9 +238,11 @@ void vcd_writer::put_value(net_id n, logic v) {
 
 std::string vcd_writer::header() const {
   std::string h;
-  auto out = std::back_inserter(h);
-  fmt::format_to(out, "$date\n\t{}\n$end\n", opt_.date.empty() ? now_text() : opt_.date);
-  fmt::format_to(out, "$version\n\t{}\n$end\n", opt_.version.empty() ? "settle" : opt_.version);
+  h.reserve(4096);
+  auto put = [&h](std::string_view a) { h.append(a.data(), a.size()); };
+  put("$date\n\t"), put(opt_.date.empty() ? now_text() : opt_.date), put("\n$end\n");
+  put("$version\n\t"), put(opt_.version.empty() ? std::string_view("settle") : std::string_view(opt_.version)),
+      put("\n$end\n");
 
   // Full dotted path of every scope, and the variables each one declares.
   const auto scopes = n_.scopes.empty() ? std::size_t{1} : n_.scopes.size();
@@ -201,18 +250,22 @@ std::string vcd_writer::header() const {
   for (std::size_t s = 1; s < scopes; ++s) {
     std::vector<std::size_t> chain;
     for (std::size_t q = s; q != 0 && q < scopes && chain.size() <= scopes; q = n_.scopes[q].parent) chain.push_back(q);
-    for (auto it = chain.rbegin(); it != chain.rend(); ++it)
-      path[s] += (path[s].empty() ? "" : ".") + n_.scopes[*it].name;
+    for (auto it = chain.rbegin(); it != chain.rend(); ++it) {
+      if (!path[s].empty()) path[s] += '.';
+      path[s] += n_.scopes[*it].name;
+    }
   }
+  // Candidates in declaration order (nets, then aliases); names are views into
+  // the netlist, which outlives this call. The first of each (scope, name) wins.
   struct var {
+    std::uint32_t scope;
     net_id net;
-    std::string name;
+    std::string_view name;
   };
-  std::vector<std::vector<var>> vars(scopes);
-  std::unordered_set<std::string> seen;
-  auto key = [](std::size_t s, const std::string& local) { return fmt::format("{}\n{}", s, local); };
-  auto local_name = [&](std::size_t s, const std::string& full) {
-    const auto& p = path[s];
+  std::vector<var> cand;
+  cand.reserve(n_.net_count() + n_.aliases.size());
+  auto local_name = [&](std::size_t s, std::string_view full) {
+    const std::string_view p = path[s];
     if (!p.empty() && full.size() > p.size() && full.compare(0, p.size(), p) == 0 && full[p.size()] == '.')
       return full.substr(p.size() + 1);
     return full;
@@ -221,31 +274,71 @@ std::string vcd_writer::header() const {
     if (!selected_[i]) continue;
     std::size_t s = i < n_.net_scope.size() ? n_.net_scope[i] : 0;
     if (s >= scopes) s = 0;
-    auto local = local_name(s, n_.net_name[i]);
-    if (seen.insert(key(s, local)).second) vars[s].push_back({i, std::move(local)});
+    cand.push_back({static_cast<std::uint32_t>(s), i, local_name(s, n_.net_name[i])});
   }
   for (const auto& a : n_.aliases) {
     if (a.net >= selected_.size() || !selected_[a.net] || a.scope >= scopes) continue;
-    if (seen.insert(key(a.scope, a.local)).second) vars[a.scope].push_back({a.net, a.local});
+    cand.push_back({a.scope, a.net, a.local});
+  }
+  // Open-addressing set of candidate indices keyed by (scope, name).
+  std::size_t slots = 16;
+  while (slots < 2 * cand.size()) slots *= 2;
+  std::vector<std::uint32_t> table(slots, 0);  // candidate index + 1; 0 is empty
+  std::vector<std::uint8_t> keep(cand.size(), 0);
+  std::vector<std::uint32_t> per_scope(scopes + 1, 0);
+  for (std::size_t c = 0; c < cand.size(); ++c) {
+    const auto& v = cand[c];
+    std::size_t at = (std::hash<std::string_view>{}(v.name) ^ (v.scope * 0x9E3779B97F4A7C15ull)) & (slots - 1);
+    bool dup = false;
+    for (; table[at] != 0; at = (at + 1) & (slots - 1)) {
+      const auto& o = cand[table[at] - 1];
+      if (o.scope == v.scope && o.name == v.name) {
+        dup = true;
+        break;
+      }
+    }
+    if (dup) continue;
+    table[at] = static_cast<std::uint32_t>(c + 1);
+    keep[c] = 1;
+    ++per_scope[v.scope + 1];
+  }
+  // Group by scope, keeping declaration order within a scope (counting sort).
+  for (std::size_t s = 0; s < scopes; ++s) per_scope[s + 1] += per_scope[s];
+  std::vector<var> vars(per_scope[scopes]);
+  {
+    std::vector<std::uint32_t> fill(per_scope.begin(), per_scope.end() - 1);
+    for (std::size_t c = 0; c < cand.size(); ++c)
+      if (keep[c]) vars[fill[cand[c].scope]++] = cand[c];
   }
 
-  // Sanitised names, and the map of the ones that changed.
+  // Sanitised names (only those that change are copied), and the map of them.
   std::string renamed;
-  auto clean = [&](const std::string& name, const std::string& where) {
-    auto s = vcd_sanitise(name);
-    if (s != name) renamed += fmt::format("\t{} = {}\n", where.empty() ? s : where + "." + s, where.empty() ? name : where + "." + name);
+  std::deque<std::string> cleaned;  // stable storage for rewritten names
+  auto clean = [&](std::string_view name, std::string_view where) -> std::string_view {
+    bool bad = name.empty();
+    for (char c : name) {
+      const auto u = static_cast<unsigned char>(c);
+      bad |= c == '.' || c == '/' || c == '[' || c == ']' || u <= 32 || u >= 127;
+    }
+    if (!bad) return name;
+    const std::string_view s = cleaned.emplace_back(vcd_sanitise(name));
+    renamed += '\t';
+    if (!where.empty()) renamed.append(where), renamed += '.';
+    renamed.append(s), renamed += " = ";
+    if (!where.empty()) renamed.append(where), renamed += '.';
+    renamed.append(name), renamed += '\n';
     return s;
   };
-  std::vector<std::string> scope_name(scopes);
-  scope_name[0] = clean(opt_.top.empty() ? std::string("top") : opt_.top, "");
+  std::vector<std::string_view> scope_name(scopes);
+  scope_name[0] = clean(opt_.top.empty() ? std::string_view("top") : std::string_view(opt_.top), "");
   for (std::size_t s = 1; s < scopes; ++s) scope_name[s] = clean(n_.scopes[s].name, path[n_.scopes[s].parent < scopes ? n_.scopes[s].parent : 0]);
   for (std::size_t s = 0; s < scopes; ++s)
-    for (auto& v : vars[s]) v.name = clean(v.name, path[s]);
+    for (auto j = per_scope[s]; j < per_scope[s + 1]; ++j) vars[j].name = clean(vars[j].name, path[s]);
 
   // Scopes with something to show, their children, then the declarations.
   std::vector<std::uint8_t> live(scopes, 0);
   for (std::size_t s = 0; s < scopes; ++s) {
-    if (vars[s].empty()) continue;
+    if (per_scope[s] == per_scope[s + 1]) continue;
     for (std::size_t q = s, guard = 0; guard <= scopes; q = n_.scopes[q].parent, ++guard) {
       if (live[q]) break;
       live[q] = 1;
@@ -257,14 +350,24 @@ std::string vcd_writer::header() const {
   for (std::size_t s = 1; s < scopes; ++s)
     if (live[s] && n_.scopes[s].parent < scopes) children[n_.scopes[s].parent].push_back(s);
 
-  if (!renamed.empty()) fmt::format_to(out, "$comment\n\tnames changed for VCD (as shown = as written):\n{}$end\n", renamed);
-  fmt::format_to(out, "$timescale {} $end\n", vcd_timescale(k_));
+  // Room for everything still to come, so the appends below never reallocate.
+  std::size_t room = h.size() + renamed.size() + 256 + codes_.size();
+  for (const auto& v : vars) room += v.name.size() + code_len_[v.net] + 20;
+  for (std::size_t s = 0; s < scopes; ++s) room += live[s] ? scope_name[s].size() + 40 : 0;
+  room += 3 * n_.net_count();
+  h.reserve(room);
+
+  if (!renamed.empty()) put("$comment\n\tnames changed for VCD (as shown = as written):\n"), put(renamed), put("$end\n");
+  put("$timescale "), put(vcd_timescale(k_)), put(" $end\n");
   // Depth-first with an explicit stack: (scope, next child index).
   std::vector<std::pair<std::size_t, std::size_t>> stack{{0, 0}};
   auto open = [&](std::size_t s) {
-    fmt::format_to(out, "$scope module {} $end\n", scope_name[s]);
-    for (const auto& v : vars[s])
-      fmt::format_to(out, "$var wire 1 {} {} $end\n", std::string_view(codes_.data() + code_at_[v.net], code_len_[v.net]), v.name);
+    put("$scope module "), put(scope_name[s]), put(" $end\n");
+    for (auto j = per_scope[s]; j < per_scope[s + 1]; ++j) {
+      const auto& v = vars[j];
+      put("$var wire 1 "), put(std::string_view(codes_.data() + code_at_[v.net], code_len_[v.net]));
+      h += ' ', put(v.name), put(" $end\n");
+    }
   };
   open(0);
   while (!stack.empty()) {
@@ -274,18 +377,18 @@ std::string vcd_writer::header() const {
       open(c);
       stack.emplace_back(c, 0);
     } else {
-      h += "$upscope $end\n";
+      put("$upscope $end\n");
       stack.pop_back();
     }
   }
-  h += "$enddefinitions $end\n#0\n$dumpvars\n";
+  put("$enddefinitions $end\n#0\n$dumpvars\n");
   for (net_id i = 2; i < n_.net_count(); ++i) {
     if (!selected_[i]) continue;
     h += to_char(initial_[i]);
     h.append(codes_.data() + code_at_[i], code_len_[i]);
     h += '\n';
   }
-  h += "$end\n";
+  put("$end\n");
   return h;
 }
 

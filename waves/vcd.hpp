@@ -76,7 +76,8 @@ class vcd_writer final : public change_sink {
   std::vector<std::uint8_t> selected_;   // per net
   std::vector<std::uint32_t> code_at_;   // per net: offset into codes_
   std::vector<std::uint8_t> code_len_;   // per net
-  std::string codes_;
+  std::string codes_;                    // every code back to back, then 8 bytes of padding
+  std::size_t max_code_ = 1;             // longest code
   std::vector<logic> written_;           // per net: last value written
   std::vector<std::uint8_t> pending_;    // per net: value due at this instant, or 255
   std::vector<net_id> touched_;
