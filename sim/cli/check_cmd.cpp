@@ -8,6 +8,7 @@
 #include <nlohmann/json.hpp>
 
 #include "sim/cli/command.hpp"
+#include "sim/cli/report_common.hpp"
 #include "sim/graph.hpp"
 
 namespace settle::cli {
@@ -52,10 +53,7 @@ exit_status run_check(const check_options& o) {
   const bool imported = !d->source.format.empty() && d->source.format != "settle";
 
   if (!o.json.empty()) {
-    nlohmann::ordered_json j;
-    j["tool"] = "settle";
-    j["version"] = SETTLE_VERSION;
-    j["design"] = d->path;
+    nlohmann::ordered_json j = report_head(d->path);
     j["blocks"] = n.blocks;
     j["instances"] = n.instances;
     j["gates"] = n.gate_count();

@@ -37,10 +37,7 @@ logic stable_value(const netlist& n, const explore_step& s, const stable_state& 
 
 std::string result_json(const design& d, const explore_result& r, double wall) {
   const netlist& n = d.nets;
-  nlohmann::ordered_json j;
-  j["tool"] = "settle";
-  j["version"] = SETTLE_VERSION;
-  j["design"] = d.path;
+  nlohmann::ordered_json j = report_head(d.path);
   j["model"] = model_name(r.model);
   auto& order = j["state_order"] = nlohmann::ordered_json::array();  // the gates behind each "state" character
   for (gate_id g = 0; g < n.gate_count(); ++g) order.push_back(n.gate_name(g));
@@ -194,7 +191,7 @@ void add_explore(CLI::App& app, exit_status& status) {
       ->check(CLI::IsMember({"gmw", "single", "ternary"}));
   cmd->add_option("--max-states", o->max_states, "state budget per step (default 2,000,000)")
       ->check(CLI::PositiveNumber);
-  cmd->add_option("--json", o->json, "write the results as JSON to PATH ('-' for stdout)");
+  add_json_option(*cmd, o->json);
   cmd->add_option("--dot", o->dot, "write the explored state graphs as Graphviz DOT to PATH");
   cmd->add_option("--html", o->html, "write a self-contained HTML report (stable states, small state graphs) to PATH");
   cmd->callback([o, &status] { status = run_explore(*o); });

@@ -86,10 +86,7 @@ json baseline_json(const std::string& file, bool updated, const baseline_compari
 
 std::string result_json(const design& d, const margin_cli_options& o, const margin_result& r, const json& base,
                         bool pass) {
-  json j;
-  j["tool"] = "settle";
-  j["version"] = SETTLE_VERSION;
-  j["design"] = d.path;
+  json j = report_head(d.path);
   j["spec"] = o.corners;
   j["seed"] = o.seed;
   j["corners_per_probe"] = r.corners_per_probe;
@@ -317,15 +314,15 @@ void add_margin(CLI::App& app, exit_status& status) {
   cmd->add_option("--resolution", o->resolution, "stop bisecting when the bracket is PCT percentage points wide (default 1)");
   cmd->add_option("--up-to", o->ceiling,
                   "largest spread searched, in percent of the written one (default 100; a pass there reports >= PCT)");
-  cmd->add_option("--json", o->json, "write the results as JSON to PATH ('-' for stdout)");
+  add_json_option(*cmd, o->json);
   cmd->add_option("--baseline", o->baseline, "compare the margins with this baseline file (exit 1 when one shrank)");
   cmd->add_flag("--update-baseline", o->update_baseline, "write this run's margins into the --baseline file instead");
   cmd->add_option("--tolerance", o->tolerance, "percentage points a margin may fall before it counts (default 2)");
-  cmd->add_option("--junit", o->junit, "write a JUnit-style XML report to PATH");
+  add_junit_option(*cmd, o->junit);
   cmd->add_option("--html", o->html, "write a self-contained HTML report (margins, culprits, witness waveforms) to PATH");
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest written gate delay)");
   cmd->add_flag("--no-culprits", o->no_culprits, "skip the search for the gates that decide a race");
-  cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout; errors still go to stderr");
+  add_quiet_flag(*cmd, o->quiet);
   cmd->callback([o, &status] { status = run_margin_cmd(*o); });
 }
 

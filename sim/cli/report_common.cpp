@@ -1,6 +1,7 @@
 // Small helpers the report-writing commands (run, sweep, explore, margin) share.
 #include "sim/cli/report_common.hpp"
 
+#include <CLI/CLI.hpp>
 #include <spdlog/spdlog.h>
 
 #include "sim/time_parse.hpp"
@@ -43,6 +44,26 @@ bool parse_horizon_option(const std::string& text, time_fs& out) {
 
 double seconds_since(std::chrono::steady_clock::time_point t0) {
   return std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+}
+
+nlohmann::ordered_json report_head(const std::string& design_path) {
+  nlohmann::ordered_json j;
+  j["tool"] = "settle";
+  j["version"] = SETTLE_VERSION;
+  j["design"] = design_path;
+  return j;
+}
+
+void add_json_option(CLI::App& cmd, std::string& path) {
+  cmd.add_option("--json", path, "write the results as JSON to PATH ('-' for stdout)");
+}
+
+void add_junit_option(CLI::App& cmd, std::string& path) {
+  cmd.add_option("--junit", path, "write a JUnit-style XML report to PATH");
+}
+
+void add_quiet_flag(CLI::App& cmd, bool& quiet) {
+  cmd.add_flag("-q,--quiet", quiet, "print nothing on stdout; errors still go to stderr");
 }
 
 }  // namespace settle::cli

@@ -4,8 +4,14 @@
 #include <chrono>
 #include <string>
 
+#include <nlohmann/json.hpp>
+
 #include "sim/stimulus.hpp"
 #include "sim/logic.hpp"
+
+namespace CLI {
+class App;
+}
 
 namespace settle::cli {
 
@@ -26,5 +32,15 @@ bool parse_horizon_option(const std::string& text, time_fs& out);
 
 /// Seconds of wall-clock time since `t0`.
 double seconds_since(std::chrono::steady_clock::time_point t0);
+
+/// The first fields of every JSON report: "tool", "version" and "design".
+nlohmann::ordered_json report_head(const std::string& design_path);
+
+/// --json PATH: "write the results as JSON to PATH ('-' for stdout)".
+void add_json_option(CLI::App& cmd, std::string& path);
+/// --junit PATH: "write a JUnit-style XML report to PATH".
+void add_junit_option(CLI::App& cmd, std::string& path);
+/// -q,--quiet: "print nothing on stdout; errors still go to stderr".
+void add_quiet_flag(CLI::App& cmd, bool& quiet);
 
 }  // namespace settle::cli

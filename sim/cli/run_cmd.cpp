@@ -66,10 +66,7 @@ nlohmann::ordered_json expect_json(const netlist& n, const step_result& s, const
 
 std::string result_json(const design& d, const run_result& r, const std::string& corner_name, double wall) {
   const netlist& n = d.nets;
-  nlohmann::ordered_json j;
-  j["tool"] = "settle";
-  j["version"] = SETTLE_VERSION;
-  j["design"] = d.path;
+  nlohmann::ordered_json j = report_head(d.path);
   j["corner"] = r.corner.empty() ? corner_name : r.corner;
   j["events"] = r.events;
   j["wall_s"] = wall;
@@ -234,13 +231,13 @@ void add_run(CLI::App& app, exit_status& status) {
   cmd->add_option("--vcd", o->vcd, "write the waveforms as IEEE 1364 VCD to PATH");
   cmd->add_option("--vcd-nets", o->vcd_nets, "nets in the VCD: all (default) or outputs (outputs and watched nets)")
       ->check(CLI::IsMember({"outputs", "all"}));
-  cmd->add_option("--json", o->json, "write the results as JSON to PATH ('-' for stdout)");
+  add_json_option(*cmd, o->json);
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
   cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)");
-  cmd->add_option("--junit", o->junit, "write a JUnit-style XML report to PATH");
+  add_junit_option(*cmd, o->junit);
   cmd->add_option("--html", o->html, "write a self-contained HTML report with the waveforms of every step to PATH");
   cmd->add_flag("-v,--verbose", o->verbose, "also print events and events per second");
-  cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout; errors still go to stderr");
+  add_quiet_flag(*cmd, o->quiet);
   cmd->callback([o, &status] { status = run_run(*o); });
 }
 
