@@ -14,6 +14,7 @@
 
 #include "sim/cli/command.hpp"
 #include "sim/cli/interrupt.hpp"
+#include "sim/cli/report_common.hpp"
 #include "sim/culprit.hpp"
 #include "sim/sweep.hpp"
 #include "sim/time_parse.hpp"
@@ -49,20 +50,6 @@ std::string stop_words(const sweep_result& r) {
 /// The most witness VCDs written for one step.
 constexpr std::size_t vcd_per_step_limit = 32;
 
-std::string logic_text(logic v) { return std::string(1, to_char(v)); }
-
-const char* expect_kind(expectation::kind k) {
-  switch (k) {
-    case expectation::kind::value: return "value";
-    case expectation::kind::stable: return "stable";
-    case expectation::kind::oscillating: return "oscillating";
-    case expectation::kind::within: return "within";
-    case expectation::kind::no_glitch: return "no_glitch";
-    case expectation::kind::deterministic: return "deterministic";
-  }
-  return "?";
-}
-
 std::string expect_words(const netlist& n, const expectation& e) {
   const auto ref = e.ref.empty() ? n.net_name[e.net] : e.ref;
   switch (e.what) {
@@ -78,28 +65,9 @@ std::string expect_words(const netlist& n, const expectation& e) {
   return "expect";
 }
 
-// A word the shell passes through unchanged, or the word in single quotes.
-std::string shell_word(const std::string& w) {
-  const bool plain = !w.empty() && w.find_first_not_of("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz"
-                                                       "0123456789_./:#@=+,-") == std::string::npos &&
-                     w[0] != '#';
-  if (plain) return w;
-  std::string q = "'";
-  for (char c : w) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
-  return q + "'";
-}
-
 // The command that replays one corner with `settle run`.
-std::string replay_command(const sweep_cli_options& o, const std::string& corner) {
-  std::string cmd = "settle run " + shell_word(o.design.path);
-  if (!o.design.stim.empty()) cmd += " --stim " + shell_word(o.design.stim);
-  if (o.design.format != "auto") cmd += " --format " + o.design.format;
-  if (o.design.dff != "gates") cmd += " --dff " + o.design.dff;
-  if (!o.design.delay.empty()) cmd += " --delay " + shell_word(o.design.delay);
-  cmd += " --corner " + shell_word(corner);
-  if (!o.horizon.empty()) cmd += " --horizon " + shell_word(o.horizon);
-  if (o.max_events) cmd += fmt::format(" --max-events {}", o.max_events);
-  return cmd;
+std::string replay(const sweep_cli_options& o, const std::string& corner) {
+  return replay_command(o.design, corner, o.horizon, o.max_events);
 }
 
 nlohmann::ordered_json values_json(const netlist& n, const std::vector<net_id>& reported,
@@ -113,10 +81,7 @@ nlohmann::ordered_json values_json(const netlist& n, const std::vector<net_id>& 
 std::string result_json(const design& d, const sweep_cli_options& o, const sweep_result& r,
                         const std::vector<culprit_report>& races = {}) {
   const netlist& n = d.nets;
-  nlohmann::ordered_json j;
-  j["tool"] = "settle";
-  j["version"] = SETTLE_VERSION;
-  j["design"] = d.path;
+  nlohmann::ordered_json j = report_head(d.path);
   j["seed"] = o.seed;
   j["corners"] = r.corners;
   if (r.stopped != sweep_stop::none) {
@@ -155,7 +120,7 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
     for (const auto& x : s.expects) {
       nlohmann::ordered_json e;
       const auto& spec = *x.spec;
-      e["kind"] = expect_kind(spec.what);
+      e["kind"] = expect_kind_word(spec.what);
       if (spec.what == expectation::kind::value || spec.what == expectation::kind::no_glitch)
         e["net"] = spec.ref.empty() ? n.net_name[spec.net] : spec.ref;
       if (spec.what == expectation::kind::value) e["want"] = logic_text(spec.want);
@@ -231,7 +196,7 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
       for (std::size_t k = 0; k < r.reported.size() && k < oc.values.size(); ++k)
         vals += fmt::format("{}{}={}", k ? " " : "", n.net_name[r.reported[k]], to_char(oc.values[k]));
       if (!vals.empty()) out += fmt::format("       values  {}\n", vals);
-      out += fmt::format("       replay  {}\n", replay_command(o, oc.witness_name));
+      out += fmt::format("       replay  {}\n", replay(o, oc.witness_name));
     }
     for (const auto& x : s.expects) {
       const std::string what = expect_words(n, *x.spec);
@@ -240,7 +205,7 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
       } else {
         out += fmt::format("  {}  {}: fails in {} of {} corners; first at {}{}\n", paint("FAIL", false), what,
                            x.failing, r.corners, x.witness_name, x.detail.empty() ? "" : " (" + x.detail + ")");
-        out += fmt::format("       replay  {}\n", replay_command(o, x.witness_name));
+        out += fmt::format("       replay  {}\n", replay(o, x.witness_name));
       }
     }
     for (const auto& race : races)
@@ -267,14 +232,6 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
   if (bad) out += fmt::format(" ({} of {} steps)", bad, r.steps.size());
   out += "\n";
   return out;
-}
-
-std::string file_stem(const std::string& path) {
-  auto slash = path.rfind('/');
-  std::string base = slash == std::string::npos ? path : path.substr(slash + 1);
-  auto dot = base.rfind('.');
-  if (dot != std::string::npos && dot > 0) base.resize(dot);
-  return base.empty() ? "top" : base;
 }
 
 // A corner name as part of a file name: random:1#37 -> random-1-37.
@@ -325,7 +282,7 @@ bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep
 
 // "  1234/5000 corners  2.1k/s  1.8 s left" on one rewritten line.
 void show_progress(std::uint64_t done, std::uint64_t total, std::chrono::steady_clock::time_point t0) {
-  const double el = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+  const double el = seconds_since(t0);
   const double rate = el > 0 ? static_cast<double>(done) / el : 0;
   const std::string left = rate > 0 ? fmt::format("{:.1f} s left", static_cast<double>(total - done) / rate) : "";
   std::fputs(fmt::format("\r\033[K  {}/{} corners  {:.0f}/s  {}", done, total, rate, left).c_str(), stderr);
@@ -337,14 +294,7 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   std::string err;
   run_options ro;
   ro.max_events = o.max_events;
-  if (!o.horizon.empty()) {
-    auto h = parse_time(o.horizon, &err);
-    if (!h) {
-      spdlog::error("--horizon: {}", err);
-      return exit_status::error;
-    }
-    ro.horizon = *h;
-  }
+  if (!parse_horizon_option(o.horizon, ro.horizon)) return exit_status::error;
   auto d = load(o.design);
   if (!d) return exit_status::error;
   auto plan = plan_sweep(o.corners, o.seed, d->nets.gate_count(), &err);
@@ -380,7 +330,7 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
 
   if (!o.json.empty() && !write_output(o.json, result_json(*d, o, r, races))) return exit_status::error;
   if (!o.junit.empty() &&
-      !write_output(o.junit, junit_xml({junit_of_sweep(*d, r, [&](const std::string& c) { return replay_command(o, c); })})))
+      !write_output(o.junit, junit_xml({junit_of_sweep(*d, r, [&](const std::string& c) { return replay(o, c); })})))
     return exit_status::error;
   if (r.stopped != sweep_stop::none)  // on stderr even with -q: the report is partial
     std::fputs(fmt::format("settle: {}: {} of {} corners finished\n", stop_words(r), r.corners, r.planned).c_str(),
@@ -403,7 +353,7 @@ void add_sweep(CLI::App& app, exit_status& status) {
                   "(default extremes+random:1000)");
   cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)");
   cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)")->check(CLI::Range(1u, 4096u));
-  cmd->add_option("--json", o->json, "write the results as JSON to PATH ('-' for stdout)");
+  add_json_option(*cmd, o->json);
   cmd->add_option("--vcd-dir", o->vcd_dir,
                   "write one VCD per outcome of every step that is not deterministic, replaying its witness, "
                   "as DIR/step<k>_outcome<r>_<corner>.vcd");
@@ -413,7 +363,7 @@ void add_sweep(CLI::App& app, exit_status& status) {
                   "wall-clock budget in seconds: past it the sweep stops, reports the corners finished and "
                   "exits 1 (0: none)")
       ->check(CLI::NonNegativeNumber);
-  cmd->add_option("--junit", o->junit, "write a JUnit-style XML report to PATH");
+  add_junit_option(*cmd, o->junit);
   cmd->add_option("--html", o->html, "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH");
   cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout and no progress; errors still go to stderr");
   cmd->callback([o, &status] { status = run_sweep_cmd(*o); });
