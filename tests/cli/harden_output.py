@@ -10,17 +10,13 @@ import subprocess
 import sys
 import tempfile
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import check, failures  # noqa: E402
+
 settle, src = sys.argv[1], sys.argv[2]
 data = os.path.join(src, "tests", "data")
 lamp = os.path.join(data, "lamp_panel.settle")
 contacts = os.path.join(data, "explore_contacts.settle")
-failures = []
-
-
-def check(cond, what):
-    if not cond:
-        failures.append(what)
-        print("FAIL:", what)
 
 
 def run(args, **kw):

@@ -10,16 +10,12 @@ import subprocess
 import sys
 import tempfile
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import check, failures  # noqa: E402
+
 settle, src = sys.argv[1], sys.argv[2]
 lamp = os.path.join(src, "tests", "data", "lamp_panel.settle")
-failures = []
 mounted = []
-
-
-def check(cond, what):
-    if not cond:
-        failures.append(what)
-        print("FAIL:", what)
 
 
 def run(args):

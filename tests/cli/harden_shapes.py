@@ -12,15 +12,11 @@ import sys
 import tempfile
 import time
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import check, failures  # noqa: E402
+
 settle, src = sys.argv[1], sys.argv[2]
-failures = []
 tmp = tempfile.mkdtemp(prefix="settle-harden-shapes-")
-
-
-def check(cond, what):
-    if not cond:
-        failures.append(what)
-        print("FAIL:", what)
 
 
 def write(name, text):

@@ -8,15 +8,11 @@ import subprocess
 import sys
 import tempfile
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import check, failures  # noqa: E402
+
 settle, src = sys.argv[1], sys.argv[2]
-failures = []
 tmp = tempfile.mkdtemp(prefix="settle-harden-warn-")
-
-
-def check(cond, what):
-    if not cond:
-        failures.append(what)
-        print("FAIL:", what)
 
 
 n = 100000
