@@ -6,8 +6,9 @@
 
 #include <nlohmann/json.hpp>
 
-#include "sim/stimulus.hpp"
 #include "sim/logic.hpp"
+#include "sim/netlist.hpp"
+#include "sim/stimulus.hpp"
 
 namespace CLI {
 class App;
@@ -21,6 +22,10 @@ std::string logic_text(logic v);
 /// The JSON word of an expectation kind: "value", "stable", "oscillating",
 /// "within", "no_glitch" or "deterministic".
 const char* expect_kind_word(expectation::kind k);
+
+/// An expectation in words as the tables print it: "expect q = 1",
+/// "settle within 2ns", "expect oscillating, period 1ns..2ns", ...
+std::string expect_words(const netlist& n, const expectation& e);
 
 /// The design file's name without folder and extension ("top" when that is
 /// empty): the scope name of a VCD dump.

@@ -101,20 +101,10 @@ std::string result_json(const design& d, const run_result& r, const std::string&
 
 std::string expect_text(const netlist& n, const step_result& s, const expect_result& x) {
   const auto& e = *x.spec;
-  const auto ref = e.ref.empty() ? n.net_name[e.net] : e.ref;
-  switch (e.what) {
-    case expectation::kind::value:
-      return fmt::format("expect {} = {}: got {}", ref, to_char(e.want), to_char(x.got));
-    case expectation::kind::stable: return "expect stable";
-    case expectation::kind::within:
-      return fmt::format("settle within {}: took {}", format_time(e.hi), format_time(s.settle));
-    case expectation::kind::oscillating:
-      return e.has_range ? fmt::format("expect oscillating, period {}..{}", format_time(e.lo), format_time(e.hi))
-                         : std::string("expect oscillating");
-    case expectation::kind::no_glitch: return fmt::format("expect no glitch on {}", ref);
-    case expectation::kind::deterministic: return "expect deterministic";
-  }
-  return "expect";
+  const std::string words = expect_words(n, e);
+  if (e.what == expectation::kind::value) return fmt::format("{}: got {}", words, to_char(x.got));
+  if (e.what == expectation::kind::within) return fmt::format("{}: took {}", words, format_time(s.settle));
+  return words;
 }
 
 std::string table(const design& d, const run_result& r, const std::string& corner_name, bool colour, bool verbose,

@@ -50,21 +50,6 @@ std::string stop_words(const sweep_result& r) {
 /// The most witness VCDs written for one step.
 constexpr std::size_t vcd_per_step_limit = 32;
 
-std::string expect_words(const netlist& n, const expectation& e) {
-  const auto ref = e.ref.empty() ? n.net_name[e.net] : e.ref;
-  switch (e.what) {
-    case expectation::kind::value: return fmt::format("expect {} = {}", ref, to_char(e.want));
-    case expectation::kind::stable: return "expect stable";
-    case expectation::kind::within: return fmt::format("settle within {}", format_time(e.hi));
-    case expectation::kind::oscillating:
-      return e.has_range ? fmt::format("expect oscillating, period {}..{}", format_time(e.lo), format_time(e.hi))
-                         : std::string("expect oscillating");
-    case expectation::kind::no_glitch: return fmt::format("expect no glitch on {}", ref);
-    case expectation::kind::deterministic: return "expect deterministic";
-  }
-  return "expect";
-}
-
 // The command that replays one corner with `settle run`.
 std::string replay(const sweep_cli_options& o, const std::string& corner) {
   return replay_command(o.design, corner, o.horizon, o.max_events);
