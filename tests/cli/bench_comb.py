@@ -7,15 +7,13 @@
 # Xnor), built from the same file, evaluated with zero delay by `subs` of each vector.
 # Whatever the gate delays, a combinational circuit settles to its Boolean function of
 # the inputs (common practice), so every corner must agree with the zero-delay values.
-import json
 import os
 import random
-import subprocess
 import sys
 import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import fail, failures  # noqa: E402
+from settle_test import fail, failures, json_steps  # noqa: E402
 
 settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
 iscas = os.path.normpath(os.path.join(src, "..", "shared", "data", "iscas"))
@@ -102,15 +100,9 @@ with tempfile.TemporaryDirectory() as tmp:
         if name == "c17" and want != [whole_function_eval(c, v) for v in vectors]:
             fail("c17: gate-by-gate and whole-expression sympy evaluations disagree")
         for corner in ("min", "max", f"random:{rng.randint(1, 10**6)}"):
-            p = subprocess.run([settle, "run", path, "--stim", stim, "--corner", corner, "--json", "-", "-q"],
-                               capture_output=True, text=True)
-            if p.returncode != 0:
-                fail(f"{name} {corner}: exit {p.returncode}: {p.stderr.strip()[:400]}")
-                continue
-            try:
-                steps = json.loads(p.stdout)["steps"]
-            except (json.JSONDecodeError, KeyError) as e:
-                fail(f"{name} {corner}: no steps in the JSON ({e}): {p.stdout[:200]!r}")
+            steps = json_steps(settle, ["run", path, "--stim", stim, "--corner", corner, "--json", "-", "-q"],
+                               f"{name} {corner}")
+            if steps is None:
                 continue
             if len(steps) != VECTORS:
                 fail(f"{name} {corner}: {len(steps)} steps, expected {VECTORS}")

@@ -10,15 +10,13 @@
 # enough: CK falls; the inputs change while CK is low; CK rises. The outputs are compared
 # after the input change (before the edge) and after the rising edge, and every flip-flop's
 # Q (watched) after each edge.
-import json
 import os
 import random
-import subprocess
 import sys
 import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import fail, failures  # noqa: E402
+from settle_test import fail, failures, json_steps  # noqa: E402
 
 settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
 iscas = os.path.normpath(os.path.join(src, "..", "shared", "data", "iscas"))
@@ -68,15 +66,9 @@ with tempfile.TemporaryDirectory() as tmp:
         moves = sum(fmt(want[k][2], qs) != fmt(want[k - 1][2] if k else {q: 0 for q in qs}, qs)
                     for k in range(CYCLES))
         for corner in ("typ", f"random:{rng.randint(1, 10**6)}"):
-            p = subprocess.run([settle, "run", path, "--stim", stim, "--corner", corner, "--json", "-", "-q"],
-                               capture_output=True, text=True)
-            if p.returncode != 0:
-                fail(f"{name} {corner}: exit {p.returncode}: {p.stderr.strip()[:400]}")
-                continue
-            try:
-                steps = json.loads(p.stdout)["steps"]
-            except (json.JSONDecodeError, KeyError) as e:
-                fail(f"{name} {corner}: no steps in the JSON ({e}): {p.stdout[:200]!r}")
+            steps = json_steps(settle, ["run", path, "--stim", stim, "--corner", corner, "--json", "-", "-q"],
+                               f"{name} {corner}")
+            if steps is None:
                 continue
             if len(steps) != 3 * CYCLES - 1:
                 fail(f"{name} {corner}: {len(steps)} steps, expected {3 * CYCLES - 1}")

@@ -5,6 +5,7 @@ running the settle binary, and the closing count. A test puts this folder on sys
     from settle_test import check, failures, runner  # noqa: E402
 
 `failures` is one list shared by every helper; a test reads it (never rebinds it)."""
+import json
 import subprocess
 
 failures = []
@@ -31,6 +32,20 @@ def run_settle(binary, *args, timeout=300):
 def runner(binary, timeout=300):
     """A run(*args) that calls run_settle(binary, *args, timeout=timeout)."""
     return lambda *args: run_settle(binary, *args, timeout=timeout)
+
+
+def json_steps(binary, args, what):
+    """Runs `binary args...` (a command with --json -); returns the report's "steps", or
+    records a failure named `what` (a non-zero exit, or no steps in the JSON) and returns None."""
+    p = subprocess.run([binary, *args], capture_output=True, text=True)
+    if p.returncode != 0:
+        fail(f"{what}: exit {p.returncode}: {p.stderr.strip()[:400]}")
+        return None
+    try:
+        return json.loads(p.stdout)["steps"]
+    except (json.JSONDecodeError, KeyError) as e:
+        fail(f"{what}: no steps in the JSON ({e}): {p.stdout[:200]!r}")
+        return None
 
 
 def summary():
