@@ -14,6 +14,7 @@
 
 #include "sim/baseline.hpp"
 #include "sim/cli/command.hpp"
+#include "sim/cli/interrupt.hpp"
 #include "sim/cli/report_common.hpp"
 #include "sim/margin.hpp"
 #include "sim/time_parse.hpp"
@@ -31,6 +32,7 @@ struct margin_cli_options {
   std::uint64_t seed = 1;
   unsigned threads = 0;
   double resolution = 1.0, ceiling = 100.0, tolerance = 2.0;
+  double timeout_s = 0;  ///< --timeout: wall-clock budget of the whole search (0: none)
   std::string json, baseline, junit, horizon, html;
   bool update_baseline = false, no_culprits = false, quiet = false;
 };
@@ -100,6 +102,8 @@ std::string result_json(const design& d, const margin_cli_options& o, const marg
   j["corner_runs"] = r.corner_runs;
   j["culprit_runs"] = r.culprit_runs;
   j["wall_s"] = r.wall_s;
+  j["interrupted"] = r.stopped != sweep_stop::none;
+  if (r.stopped != sweep_stop::none) j["stop_reason"] = r.stopped == sweep_stop::timeout ? "timeout" : "signal";
   j["probes"] = json::array();
   for (const auto& p : r.probes) j["probes"].push_back({{"spread_pct", 100.0 * p.spread}, {"pass", p.pass}});
   if (r.failure) j["failure"] = failure_json(d, o, *r.failure);
@@ -251,17 +255,27 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
                  stderr);
       std::fflush(stderr);
     };
+  install_interrupt_handlers();
+  mo.stop = interrupt_flag();
+  mo.timeout_s = o.timeout_s;
   auto r = find_margin(*d, mo, &err);
   if (mo.progress) std::fputs("\r\033[K", stderr);
   if (!r) {
     spdlog::error("{}", err);
     return exit_status::error;
   }
+  const bool stopped = r->stopped != sweep_stop::none;
+  if (stopped)
+    spdlog::error("margin search {}: the margins reported are those the finished probes bracketed (lower bounds); "
+                  "no baseline is compared or written",
+                  r->stopped == sweep_stop::timeout ? "stopped by --timeout" : "interrupted");
 
   const baseline_entry now = baseline_of(*d, o.design.path, o.design.stim, mo, *r);
   std::optional<baseline_comparison> cmp;
   if (before) {
-    if (const auto* old = find_entry(*before, o.design.path, o.design.stim)) {
+    if (stopped) {
+      // A partial search proves nothing about regressions.
+    } else if (const auto* old = find_entry(*before, o.design.path, o.design.stim)) {
       cmp = compare_baseline(*old, now, o.tolerance);
     } else if (!o.update_baseline) {
       spdlog::error("baseline '{}' has no entry for {}{}; add one with --update-baseline", o.baseline, o.design.path,
@@ -269,7 +283,7 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
       return exit_status::error;
     }
   }
-  if (o.update_baseline) {
+  if (o.update_baseline && !stopped) {
     baseline_file f = before ? *before : baseline_file{};
     f.format_version = baseline_format_version;  // older files are rewritten in the current format
     f.written_by = std::string("settle ") + SETTLE_VERSION;
@@ -299,7 +313,8 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
     std::fputs(summary(*d, o, *r, cmp && !o.update_baseline ? &*cmp : nullptr, o.update_baseline, pass, use_colour(1))
                    .c_str(),
                stdout);
-  return pass ? exit_status::ok : exit_status::findings;
+  if (r->stopped == sweep_stop::interrupted) return exit_status::interrupted;
+  return pass && !stopped ? exit_status::ok : exit_status::findings;
 }
 
 void add_margin(CLI::App& app, exit_status& status) {
@@ -318,6 +333,9 @@ void add_margin(CLI::App& app, exit_status& status) {
   cmd->add_option("--baseline", o->baseline, "compare the margins with this baseline file (exit 1 when one shrank)");
   cmd->add_flag("--update-baseline", o->update_baseline, "write this run's margins into the --baseline file instead");
   cmd->add_option("--tolerance", o->tolerance, "percentage points a margin may fall before it counts (default 2)");
+  cmd->add_option("--timeout", o->timeout_s,
+                  "wall-clock budget in seconds for the whole search; when it runs out the margins found so far are "
+                  "reported and the command exits 1");
   add_junit_option(*cmd, o->junit);
   cmd->add_option("--html", o->html, "write a self-contained HTML report (margins, culprits, witness waveforms) to PATH");
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest written gate delay)");
