@@ -109,15 +109,15 @@ TEST_CASE("a hierarchy 10,000 blocks deep elaborates without deep recursion", "[
 }
 
 TEST_CASE("expression nesting is capped with a diagnostic", "[parser][diag]") {
-  std::string ok = "input a\noutput q\nq = " + std::string(1000, '(') + "a" + std::string(1000, ')') + " delay 1ps\n";
+  std::string ok = "input a\noutput q\nq = " + std::string(256, '(') + "a" + std::string(256, ')') + " delay 1ps\n";
   diagnostics d1;
   CHECK(load_design_text(ok, "t.settle", {}, d1));
   std::string deep = "input a\noutput q\nq = " + std::string(5000, '(') + "a" + std::string(5000, ')') + " delay 1ps\n";
   diagnostics d2;
   CHECK_FALSE(load_design_text(deep, "t.settle", {}, d2));
   REQUIRE(d2.items.size() == 1);
-  CHECK(d2.items[0].col == 1005);
-  CHECK(d2.items[0].message == "expression nested deeper than 1000 levels");
+  CHECK(d2.items[0].col == 261);
+  CHECK(d2.items[0].message == "expression nested deeper than 256 levels");
 }
 
 TEST_CASE("a stimulus file (--stim) replaces the embedded stimulus, parsed against the design's nets", "[parser][stim]") {
