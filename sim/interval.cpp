@@ -204,6 +204,7 @@ interval_result run_interval(const design& d, const run_options& opt) {
     st.proven = s.status == step_status::settled &&
                 std::none_of(s.values.begin(), s.values.end(), [](logic v) { return v == logic::x; });
     st.values = std::move(s.values);
+    st.expects = std::move(s.expects);
     out.steps.push_back(std::move(st));
   }
   return out;

@@ -16,6 +16,10 @@ struct interval_step {
   /// Every reported net ended binary: the step's outcome is the same for all
   /// delays in range. Otherwise the run is inconclusive (x is pessimistic).
   bool proven = false;
+  /// The step's expectations judged on the ambiguity run's values: a pass
+  /// holds in every corner; a failure may be x pessimism (`deterministic`
+  /// always passes here; sweeps judge it by `proven`).
+  std::vector<expect_result> expects;
 };
 
 struct interval_result {

@@ -202,6 +202,42 @@ bool step_passes(const sweep_step& st) {
   }
 }
 
+// `interval` alone: the min-max run is the only judge. A step is proven
+// deterministic when every reported net ends binary in a settled run (the run
+// covers every delay assignment in range, Breuer and Friedman 1976); otherwise
+// nothing is known either way, so the step is inconclusive. An expectation
+// holds when the run passes it: its binary values are those of every corner.
+void judge_by_interval(const step_spec* spec, const std::optional<interval_result>& iv, std::size_t k,
+                       std::size_t reported, sweep_step& st) {
+  if (iv && k < iv->steps.size()) {
+    st.interval = iv->steps[k];
+  } else {  // the run stopped before this step (--max-events)
+    interval_step none;
+    none.status = step_status::event_limit;
+    none.values.assign(reported, logic::x);
+    st.interval = std::move(none);
+  }
+  const interval_step& is = *st.interval;
+  st.verdict = is.proven ? sweep_verdict::deterministic : sweep_verdict::inconclusive;
+  const std::size_t n_expects = spec ? spec->expects.size() : 0;
+  for (std::size_t e = 0; e < n_expects; ++e) {
+    sweep_expect x;
+    x.spec = &spec->expects[e];
+    x.by_interval = true;
+    if (x.spec->what == expectation::kind::deterministic) {
+      x.proven = is.proven;
+      if (!x.proven) x.detail = "the interval run does not prove the step deterministic";
+    } else if (e < is.expects.size()) {
+      x.proven = is.expects[e].pass;
+      if (!x.proven) x.detail = "interval run: " + is.expects[e].detail;
+    } else {
+      x.detail = "the interval run stopped before this step";
+    }
+    st.expects.push_back(std::move(x));
+  }
+  st.pass = step_passes(st);
+}
+
 }  // namespace
 
 const char* verdict_name(sweep_verdict v) {
@@ -211,6 +247,7 @@ const char* verdict_name(sweep_verdict v) {
     case sweep_verdict::oscillating: return "oscillating";
     case sweep_verdict::mixed: return "mixed";
     case sweep_verdict::timeout: return "timeout";
+    case sweep_verdict::inconclusive: return "inconclusive";
   }
   return "?";
 }
@@ -282,6 +319,7 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
 
   std::optional<interval_result> iv;
   if (plan.interval && res.stopped == sweep_stop::none) iv = run_interval(d, opt.run);
+  if (iv && res.reported.empty()) res.reported = iv->reported;  // `interval` alone: no corner ran
 
   std::size_t divergence = 0;
   for (std::size_t k = 0; k < steps; ++k) {
@@ -290,6 +328,11 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
     const step_spec* spec = spec_of(d, k);
     st.label = spec ? spec->label : "initial";
     st.run_step = spec && spec->end == step_spec::end_kind::run;
+    if (plan.interval_only()) {
+      judge_by_interval(spec, iv, k, res.reported.size(), st);
+      res.steps.push_back(std::move(st));
+      continue;
+    }
     std::size_t sampled_outcomes = 0;
     st.outcomes = group_step(plan, steps, k, outcome_of, settle_of, registry, finished_corner, res.corners,
                              sampled_outcomes);

@@ -34,9 +34,11 @@ struct sweep_plan {
   std::string spec;
   std::uint64_t seed = 1;
   std::vector<item> items;
-  std::uint64_t corners = 0;   ///< total, interval excluded
+  std::uint64_t corners = 0;   ///< total, interval excluded (0 when the spec is `interval` alone)
   std::uint64_t sampled = 0;   ///< corners from random:N and gauss:N items
   bool interval = false;       ///< the spec asks for the min-max ambiguity run
+  /// The spec is `interval` alone: no corner runs, the interval run judges every step.
+  bool interval_only() const { return interval && corners == 0; }
 
   /// The i-th corner of the sweep (0 <= i < corners).
   corner corner_at(std::uint64_t i) const;
@@ -60,8 +62,11 @@ enum class sweep_verdict : std::uint8_t {
   oscillating,       ///< every corner oscillates
   mixed,             ///< some corners settle, others oscillate or time out (or a mix of the two)
   timeout,           ///< every corner timed out (or hit the event limit)
+  /// `interval` alone: the min-max run left a reported net at x (or did not
+  /// settle), so it proves nothing either way about this step.
+  inconclusive,
 };
-/// "deterministic", "nondeterministic", "oscillating", "mixed", "timeout".
+/// "deterministic", "nondeterministic", "oscillating", "mixed", "timeout", "inconclusive".
 const char* verdict_name(sweep_verdict v);
 
 /// Minimum, lower median (the ((n-1)/2)-th of n sorted values) and maximum.
@@ -90,8 +95,12 @@ struct sweep_expect {
   std::uint64_t failing = 0;   ///< corners in which it fails
   std::uint64_t witness = 0;   ///< the first failing corner (when failing > 0)
   std::string witness_name;
-  std::string detail;          ///< why it fails at the witness
-  bool pass() const { return failing == 0; }
+  std::string detail;          ///< why it fails at the witness (or why the interval run does not prove it)
+  /// `interval` alone: judged by the min-max run, not by corners. It holds
+  /// then only when the run proves it (`proven`); failing stays 0.
+  bool by_interval = false;
+  bool proven = false;
+  bool pass() const { return by_interval ? proven : failing == 0; }
 };
 
 struct sweep_step {
@@ -108,7 +117,8 @@ struct sweep_step {
   std::optional<interval_step> interval;  ///< when the spec has `interval`
   /// No finding: deterministic (or an expected oscillation, or a `run` step
   /// that settles or keeps running without `expect deterministic`) and every
-  /// expectation holds in every corner.
+  /// expectation holds in every corner. With `interval` alone: proven, and
+  /// every expectation proven by the min-max run.
   bool pass = true;
 };
 

@@ -98,8 +98,10 @@ std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, 
     if (plus == std::string_view::npos) break;
     rest = rest.substr(plus + 1);
   }
-  if (plan.corners == 0)
-    return fail(fmt::format("--corners '{}': no corners to run; add extremes, exhaustive, random:N or gauss:N",
+  // `interval` alone is allowed: the min-max run then judges every step.
+  if (plan.corners == 0 && !plan.interval)
+    return fail(fmt::format("--corners '{}': no corners to run; add extremes, exhaustive, random:N, gauss:N or "
+                            "interval",
                             spec));
   return plan;
 }

@@ -96,7 +96,7 @@ void sweep_waves(const design& d, const sweep_result& r, const run_options& ro, 
   std::map<std::string, replay> replays;
   auto& waves = p.root["waves"] = json::array();
   for (const auto& s : r.steps) {
-    if (s.verdict == sweep_verdict::deterministic) continue;
+    if (s.verdict == sweep_verdict::deterministic || s.outcomes.empty()) continue;  // empty: `interval` alone
     json w;
     w["step"] = s.index;
     w["traces"] = json::array();
@@ -148,6 +148,7 @@ void sweep_waves(const design& d, const sweep_result& r, const run_options& ro, 
 void sweep_histograms(const sweep_result& r, page_data& p) {
   auto& hs = p.root["hist"] = json::array();
   for (const auto& s : r.steps) {
+    if (s.outcomes.empty()) continue;  // `interval` alone runs no corner
     const auto h = settle_histogram(s.outcomes, histogram_bins);
     json e;
     e["step"] = s.index;

@@ -384,7 +384,7 @@ const char* const html_script = R"SETTLE((function () {
       if (st.expect && st.expect.length) {
         body.appendChild(el('h3', { text: 'expectations' }));
         body.appendChild(table(['', 'kind', 'net', 'failing corners', 'witness'], st.expect.map(function (e) {
-          return [passCell(e.pass), e.kind, e.net || '', e.failing, e.witness || ''];
+          return [passCell(e.pass), e.kind, e.net || '', 'failing' in e ? e.failing : (e.proven ? 'proven' : 'not proven'), e.witness || ''];
         })));
       }
       if (st.culprits) {

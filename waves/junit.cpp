@@ -169,14 +169,22 @@ junit_suite junit_of_sweep(const design& d, const sweep_result& r, const replay_
       for (const auto& o : st.outcomes)
         text += fmt::format("outcome {} x{} witness {}\nreplay: {}\n", status_name(o.status), o.count, o.witness_name,
                             replay(o.witness_name));
-      c.failures.push_back({fmt::format("step {} is {} over {} corners", st.index, verdict_name(st.verdict), r.corners),
-                            "verdict", text});
+      if (st.verdict == sweep_verdict::inconclusive)  // `interval` alone: no corner ran
+        c.failures.push_back({fmt::format("step {} is inconclusive: the interval run does not prove it", st.index),
+                              "verdict", ""});
+      else
+        c.failures.push_back({fmt::format("step {} is {} over {} corners", st.index, verdict_name(st.verdict),
+                                          r.corners),
+                              "verdict", text});
     }
     s.cases.push_back(std::move(c));
     for (const auto& x : st.expects) {
       const std::string words = x.spec ? expectation_words(d.nets, *x.spec) : std::string("expectation");
       auto e = make_case(cls, fmt::format("step {}: {}", st.index, words));
-      if (!x.pass())
+      if (!x.pass() && x.by_interval)
+        e.failures.push_back({fmt::format("{} is not proven by the interval run", words), "expectation",
+                              fmt::format("detail: {}\n", x.detail)});
+      else if (!x.pass())
         e.failures.push_back({fmt::format("{} fails in {} of {} corners; first at {}", words, x.failing, r.corners,
                                           x.witness_name),
                               "expectation", fmt::format("witness: {}\ndetail: {}\nreplay: {}\n", x.witness_name,

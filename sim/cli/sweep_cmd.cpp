@@ -110,11 +110,17 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
         e["net"] = spec.ref.empty() ? n.net_name[spec.net] : spec.ref;
       if (spec.what == expectation::kind::value) e["want"] = logic_text(spec.want);
       if (spec.what == expectation::kind::within) e["budget_fs"] = spec.hi;
-      e["failing"] = x.failing;
-      e["pass"] = x.pass();
-      if (!x.pass()) {
-        e["witness"] = x.witness_name;
-        if (!x.detail.empty()) e["detail"] = x.detail;
+      if (x.by_interval) {  // `interval` alone: no corner ran, the min-max run proves it or not
+        e["proven"] = x.proven;
+        e["pass"] = x.pass();
+        if (!x.pass() && !x.detail.empty()) e["detail"] = x.detail;
+      } else {
+        e["failing"] = x.failing;
+        e["pass"] = x.pass();
+        if (!x.pass()) {
+          e["witness"] = x.witness_name;
+          if (!x.detail.empty()) e["detail"] = x.detail;
+        }
       }
       st["expect"].push_back(std::move(e));
     }
@@ -136,17 +142,63 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
 
 std::string percent(double share) { return fmt::format("{:.1f}%", 100.0 * share); }
 
+// The reported nets the interval run left at x: "a, b, ... (N nets)", at most 8 named.
+std::string x_nets(const netlist& n, const sweep_result& r, const interval_step& iv) {
+  std::string xs;
+  std::size_t shown = 0, total = 0;
+  for (std::size_t k = 0; k < r.reported.size() && k < iv.values.size(); ++k) {
+    if (iv.values[k] != logic::x) continue;
+    ++total;
+    if (shown++ < 8) xs += (xs.empty() ? "" : ", ") + n.net_name[r.reported[k]];
+  }
+  if (total > 8) xs += fmt::format(", ... ({} nets)", total);
+  return xs;
+}
+
+// One step of a sweep whose spec is `interval` alone: what the min-max run proved.
+template <class Paint>
+std::string interval_only_step(const netlist& n, const sweep_result& r, const sweep_step& s, const std::string& verdict,
+                               const Paint& paint) {
+  std::string out;
+  const interval_step& iv = *s.interval;
+  std::string vals;
+  for (std::size_t k = 0; k < r.reported.size() && k < iv.values.size(); ++k)
+    vals += fmt::format("{}{}={}", k ? " " : "", n.net_name[r.reported[k]], to_char(iv.values[k]));
+  if (iv.proven) {
+    out += fmt::format("  {}  proven: every delay assignment in range ends in the same state\n", verdict);
+  } else if (iv.status != step_status::settled) {
+    out += fmt::format("  {}  not proven: the interval run is {} at the end of the step\n", verdict,
+                       status_name(iv.status));
+  } else {
+    out += fmt::format("  {}  not proven: the interval run leaves x on {}; a race or x pessimism, sample corners "
+                       "to tell which (e.g. --corners extremes+random:1000+interval)\n",
+                       verdict, x_nets(n, r, iv));
+  }
+  if (!vals.empty()) out += fmt::format("       values  {}\n", vals);
+  for (const auto& x : s.expects) {
+    const std::string what = expect_words(n, *x.spec);
+    if (x.pass()) out += fmt::format("  {}  {}: proven for all delays in range\n", paint("pass", true), what);
+    else out += fmt::format("  {}  {}: not proven ({})\n", paint("UNPROVEN", false), what, x.detail);
+  }
+  return out;
+}
+
 std::string summary(const design& d, const sweep_cli_options& o, const sweep_result& r, bool colour,
                     const std::vector<culprit_report>& races = {}) {
   const netlist& n = d.nets;
+  const bool interval_only = r.planned == 0;
   auto paint = [colour](std::string text, bool good) {
     if (!colour) return text;
     return fmt::format(fmt::fg(good ? fmt::terminal_color::green : fmt::terminal_color::red) | fmt::emphasis::bold,
                        "{}", text);
   };
   std::string out = fmt::format("design   {}\n", d.path);
-  out += fmt::format("corners  {} ({}, seed {}), {} thread{}, {} events, {:.2f} s\n", r.corners, o.corners, o.seed,
-                     r.threads, r.threads == 1 ? "" : "s", r.events, r.wall_s);
+  if (interval_only)
+    out += fmt::format("corners  none ({}): one min-max ambiguity run covers every delay in range, {:.2f} s\n",
+                       o.corners, r.wall_s);
+  else
+    out += fmt::format("corners  {} ({}, seed {}), {} thread{}, {} events, {:.2f} s\n", r.corners, o.corners, o.seed,
+                       r.threads, r.threads == 1 ? "" : "s", r.events, r.wall_s);
   if (r.stopped != sweep_stop::none)
     out += fmt::format("{}  {}: {} of {} corners finished; the verdicts below cover those only\n",
                        paint("STOPPED", false), stop_words(r), r.corners, r.planned);
@@ -156,6 +208,10 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
     std::string verdict = verdict_name(s.verdict);
     if (!s.pass)
       for (auto& c : verdict) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
+    if (interval_only) {
+      out += interval_only_step(n, r, s, paint(verdict, s.pass), paint);
+      continue;
+    }
     std::string note = fmt::format("{} outcome{} over {} corners", s.outcomes.size(),
                                    s.outcomes.size() == 1 ? "" : "s", r.corners);
     if (s.first_divergence) note += "; first divergence";
@@ -199,22 +255,20 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
       if (s.interval->proven) {
         out += "  interval  proven deterministic for all delays in range\n";
       } else {
-        std::string xs;
-        std::size_t shown = 0, total = 0;
-        for (std::size_t k = 0; k < r.reported.size() && k < s.interval->values.size(); ++k) {
-          if (s.interval->values[k] != logic::x) continue;
-          ++total;
-          if (shown++ < 8) xs += (xs.empty() ? "" : ", ") + n.net_name[r.reported[k]];
-        }
-        if (total > shown) xs += fmt::format(", ... ({} nets)", total);
+        const std::string xs = x_nets(n, r, *s.interval);
         out += fmt::format("  interval  inconclusive (x on {})\n", xs.empty() ? std::string(status_name(s.interval->status)) : xs);
       }
     }
   }
-  std::size_t bad = 0;
+  std::size_t bad = 0, proven = 0;
   for (const auto& s : r.steps) bad += s.pass ? 0 : 1;
+  for (const auto& s : r.steps) proven += s.interval && s.interval->proven;
   out += fmt::format("\nresult  {}", paint(r.pass() ? "pass" : "findings", r.pass()));
-  if (bad) out += fmt::format(" ({} of {} steps)", bad, r.steps.size());
+  if (interval_only)
+    out += fmt::format(" ({} of {} steps proven deterministic, {} inconclusive{})", proven, r.steps.size(),
+                       r.steps.size() - proven, bad > r.steps.size() - proven ? ", expectations not proven" : "");
+  else if (bad)
+    out += fmt::format(" ({} of {} steps)", bad, r.steps.size());
   out += "\n";
   return out;
 }

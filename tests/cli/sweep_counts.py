@@ -86,7 +86,7 @@ def main():
         if os.path.exists(out_json) or os.listdir(tmp):
             fail(f"c432 exhaustive: files written despite the error: {os.listdir(tmp)}")
 
-    for bad in ("random:0", "extremes+", "fast", "gauss:many", "interval"):
+    for bad in ("random:0", "extremes+", "fast", "gauss:many", "interval+"):
         rc, out, err = settle(binary, "sweep", os.path.join(src, "examples", "arbiter.settle"), "--corners", bad)
         if rc != 2 or "--corners" not in err:
             fail(f"--corners {bad}: exit {rc}, stderr {err.strip()[:200]}; expected 2 and a message")

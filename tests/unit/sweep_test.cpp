@@ -104,12 +104,20 @@ TEST_CASE("spec items number their corners in spec order", "[sweep][plan]") {
 }
 
 TEST_CASE("bad corner specs are refused with a reason", "[sweep][plan]") {
-  for (const char* bad : {"", "extremes+", "random:", "random:0", "random:x", "gauss:-1", "corners", "interval"}) {
+  for (const char* bad : {"", "extremes+", "random:", "random:0", "random:x", "gauss:-1", "corners", "interval+"}) {
     std::string err;
     INFO(bad);
     CHECK_FALSE(plan_sweep(bad, 1, 3, &err));
     CHECK_FALSE(err.empty());
   }
+}
+
+TEST_CASE("interval alone is a plan of no corners judged by the min-max run", "[sweep][plan]") {
+  const auto p = plan_of("interval", 1, 3);
+  CHECK(p.interval);
+  CHECK(p.corners == 0);
+  CHECK(p.interval_only());
+  CHECK_FALSE(plan_of("extremes+interval", 1, 3).interval_only());
 }
 
 TEST_CASE("every sweep corner's name replays the same delay table", "[sweep][plan]") {
