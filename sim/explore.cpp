@@ -245,9 +245,9 @@ std::uint64_t default_memory_guard() {
     std::istringstream ls(line);
     std::string key;
     std::uint64_t kib = 0;
-    if (ls >> key >> kib && key == "MemAvailable:") return kib * 1024 / 2;
+    if (ls >> key >> kib && key == "MemAvailable:") return std::min(kib * 1024 / 2, default_max_memory_mib << 20);
   }
-  return std::uint64_t{1} << 30;
+  return default_max_memory_mib << 20;
 }
 
 std::optional<explore_result> explore_design(const design& d, const explore_options& o, std::string* error) {
@@ -275,7 +275,7 @@ std::optional<explore_result> explore_design(const design& d, const explore_opti
                   [](const step_spec& s) { return s.end == step_spec::end_kind::run; }))
     res.notes.push_back("run steps are explored like settle steps: explore has no time");
 
-  graph_limits lim{o.max_states, o.max_bytes ? o.max_bytes : default_memory_guard(), o.max_excited};
+  graph_limits lim{o.max_states, o.max_bytes ? o.max_bytes : default_memory_guard(), 0, o.max_excited};
   const race_model rm = o.model == explore_model::single ? race_model::single : race_model::gmw;
   std::vector<logic> inputs(n.net_count(), logic::x), tern(n.init.begin(), n.init.end());
   inputs[netlist::const0] = logic::zero;
@@ -338,7 +338,10 @@ std::optional<explore_result> explore_design(const design& d, const explore_opti
         rest = analyse(n, *g, res.reported, st);
         have_rest = true;
       }
-      if (o.keep_graphs) st.graph = g;
+      if (o.keep_graphs) {
+        st.graph = g;
+        lim.held_bytes += g->bytes();  // kept for --dot and --html: later steps share the guard
+      }
     }
     if (!st.complete) {
       st.hazards.clear();

@@ -19,7 +19,8 @@ const char* model_name(explore_model m);
 struct explore_options {
   explore_model model = explore_model::gmw;
   std::uint64_t max_states = 2'000'000;  ///< per step
-  std::uint64_t max_bytes = 0;           ///< 0: half of MemAvailable (/proc/meminfo)
+  /// The memory guard over the stored state graphs (--max-memory); 0: default_memory_guard().
+  std::uint64_t max_bytes = 0;
   int max_excited = 20;                  ///< gmw: excited gates allowed in one state
   int max_unknown = 12;                  ///< x gate outputs enumerated over 0/1 at the start
   bool keep_graphs = false;              ///< keep every step's graph (for --dot)
@@ -79,7 +80,10 @@ struct explore_result {
 /// inputs left x).
 std::optional<explore_result> explore_design(const design& d, const explore_options& o, std::string* error);
 
-/// Bytes the memory guard allows: half of MemAvailable, or 1 GiB if unknown.
+/// The default --max-memory in MiB.
+inline constexpr std::uint64_t default_max_memory_mib = 2048;
+/// Bytes the memory guard allows by default: 2048 MiB, or half of
+/// MemAvailable (/proc/meminfo) when that is less.
 std::uint64_t default_memory_guard();
 
 }  // namespace settle

@@ -188,6 +188,12 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
     // The pointers into the scaled copy's stimulus are not kept past this probe.
     for (auto& s : p.sweep.steps)
       for (auto& x : s.expects) x.spec = nullptr;
+    // Only the written spread's settle times are drawn (histograms): the other
+    // probes drop theirs, so the search holds two sweeps' results at most
+    // (the budget --max-memory checks).
+    if (w != 1.0)
+      for (auto& s : p.sweep.steps)
+        for (auto& oc : s.outcomes) std::vector<time_fs>().swap(oc.settle_times);
     res.probes.push_back({w, all});
     if (o.progress) o.progress(w, plan->corners, all);
     return cache.emplace(w, std::move(p)).first->second;

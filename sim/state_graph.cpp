@@ -79,9 +79,15 @@ bool state_graph::explore(const netlist& n, std::span<const logic> inputs, race_
     }
     // bytes() is a few capacity reads, so the guard is checked at every state:
     // one gmw state can add up to 2^20 edges.
-    if ((lim.max_bytes && bytes() > lim.max_bytes) || edge_to.size() > UINT32_MAX - (std::size_t{1} << 21)) {
-      stop = fmt::format("memory guard reached: {} MiB in use after {} states ({} explored); the guard is {} MiB",
-                         bytes() >> 20, size(), i, lim.max_bytes >> 20);
+    if (lim.max_bytes && lim.held_bytes + bytes() > lim.max_bytes) {
+      stop = fmt::format("memory limit reached: the state graphs hold {:.1f} MiB after {} states, {} of them "
+                         "explored (--max-memory {} MiB)",
+                         static_cast<double>(lim.held_bytes + bytes()) / (1 << 20), size(), i,
+                         lim.max_bytes >> 20);
+      break;
+    }
+    if (edge_to.size() > UINT32_MAX - (std::size_t{1} << 21)) {
+      stop = fmt::format("edge limit reached: {} edges after {} states ({} explored)", edge_to.size(), size(), i);
       break;
     }
     std::memcpy(cur.data(), state(i), words_ * 8);

@@ -19,7 +19,10 @@ enum class race_model : std::uint8_t {
 /// Limits of one exploration.
 struct graph_limits {
   std::uint64_t max_states = 2'000'000;
-  std::uint64_t max_bytes = 0;  ///< 0: no memory guard
+  std::uint64_t max_bytes = 0;  ///< 0: no memory guard (--max-memory)
+  /// Bytes already held by the graphs of earlier steps kept for reports;
+  /// they count against max_bytes with this graph's own storage.
+  std::uint64_t held_bytes = 0;
   int max_excited = 20;         ///< gmw: more excited gates in one state stops the search
 };
 

@@ -51,9 +51,21 @@ struct sweep_plan {
 /// corners `extremes#k`; `exhaustive` 2^g corners `exhaustive#k` (refused
 /// above 2^20); `random:N` corners `random:S#i`; `gauss:N` corners
 /// `gauss:S#i`. A second random (or gauss) item continues the numbering of
-/// the first, so no corner repeats. On error returns nullopt and sets *error.
+/// the first, so no corner repeats. `interval` alone is a plan of 0 corners
+/// whose steps the min-max run judges. On error returns nullopt and sets *error.
 std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, std::size_t gates,
                                      std::string* error);
+
+/// The default --max-memory of sweep and margin, in MiB (explore's is the same).
+inline constexpr std::uint64_t sweep_default_max_memory_mib = 2048;
+
+/// Bytes a sweep of `plan` holds for its per-corner results over `steps`
+/// steps: an outcome id and a settle time per corner and step while the
+/// corners run, then the settle times each outcome keeps for the report,
+/// about 20 bytes per corner and step in all. Known before any corner runs,
+/// so an oversized sweep is refused up front (--max-memory) instead of
+/// running out of memory part-way.
+std::uint64_t sweep_result_bytes(const sweep_plan& plan, std::size_t steps);
 
 /// A step's verdict across all corners.
 enum class sweep_verdict : std::uint8_t {

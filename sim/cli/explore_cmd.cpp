@@ -22,6 +22,7 @@ struct explore_cli_options {
   design_options design;
   std::string model = "gmw";
   std::uint64_t max_states = 2'000'000;
+  std::uint64_t max_memory_mib = 0;  ///< --max-memory; 0: the default guard
   std::string json, dot, html;
 };
 
@@ -155,6 +156,7 @@ exit_status run_explore(const explore_cli_options& o) {
   eo.model = o.model == "single" ? explore_model::single : o.model == "ternary" ? explore_model::ternary
                                                                                  : explore_model::gmw;
   eo.max_states = o.max_states;
+  eo.max_bytes = o.max_memory_mib << 20;
   eo.keep_graphs = !o.dot.empty() || !o.html.empty();
   if (!o.dot.empty() && eo.model == explore_model::ternary) {
     spdlog::error("--dot needs a state graph: use --model gmw or single");
@@ -191,6 +193,11 @@ void add_explore(CLI::App& app, exit_status& status) {
       ->check(CLI::IsMember({"gmw", "single", "ternary"}));
   cmd->add_option("--max-states", o->max_states, "state budget per step (default 2,000,000)")
       ->check(CLI::PositiveNumber);
+  cmd->add_option("--max-memory", o->max_memory_mib,
+                  fmt::format("memory the stored state graphs may hold, in MiB; past it the step stops incomplete "
+                              "(default {}, or half the available memory when less)",
+                              default_max_memory_mib))
+      ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
   add_json_option(*cmd, o->json);
   cmd->add_option("--dot", o->dot, "write the explored state graphs as Graphviz DOT to PATH");
   cmd->add_option("--html", o->html, "write a self-contained HTML report (stable states, small state graphs) to PATH");

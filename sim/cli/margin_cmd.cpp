@@ -33,6 +33,7 @@ struct margin_cli_options {
   unsigned threads = 0;
   double resolution = 1.0, ceiling = 100.0, tolerance = 2.0;
   double timeout_s = 0;  ///< --timeout: wall-clock budget of the whole search (0: none)
+  std::uint64_t max_memory_mib = sweep_default_max_memory_mib;  ///< --max-memory
   std::string json, baseline, junit, horizon, html;
   bool update_baseline = false, no_culprits = false, quiet = false;
 };
@@ -249,6 +250,12 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   }
   auto d = load(o.design);
   if (!d) return exit_status::error;
+  {
+    // A probe in flight and the sweep kept at the written spread hold per-corner results.
+    auto plan = plan_sweep(o.corners, o.seed, d->nets.gate_count(), &err);
+    const std::size_t steps = d->stim.steps.empty() ? 1 : d->stim.steps.size();
+    if (plan && !fits_memory(*plan, steps, 2, o.max_memory_mib)) return exit_status::error;
+  }
   if (!o.quiet && ::isatty(2) == 1)
     mo.progress = [](double w, std::uint64_t corners, bool pass) {
       std::fputs(fmt::format("\r\033[K  spread {}: {} corners, {}", spread_percent(w), corners, pass ? "pass" : "fails").c_str(),
@@ -337,6 +344,7 @@ void add_margin(CLI::App& app, exit_status& status) {
                   "wall-clock budget in seconds for the whole search; when it runs out the margins found so far are "
                   "reported and the command exits 1");
   add_junit_option(*cmd, o->junit);
+  add_max_memory_option(*cmd, o->max_memory_mib);
   cmd->add_option("--html", o->html, "write a self-contained HTML report (margins, culprits, witness waveforms) to PATH");
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest written gate delay)");
   cmd->add_flag("--no-culprits", o->no_culprits, "skip the search for the gates that decide a race");

@@ -5,6 +5,7 @@
 #include <fmt/format.h>
 #include <spdlog/spdlog.h>
 
+#include "sim/sweep.hpp"
 #include "sim/time_parse.hpp"
 
 namespace settle::cli {
@@ -80,6 +81,25 @@ void add_junit_option(CLI::App& cmd, std::string& path) {
 
 void add_quiet_flag(CLI::App& cmd, bool& quiet) {
   cmd.add_flag("-q,--quiet", quiet, "print nothing on stdout; errors still go to stderr");
+}
+
+void add_max_memory_option(CLI::App& cmd, std::uint64_t& mib) {
+  cmd.add_option("--max-memory", mib,
+                 fmt::format("memory for the per-corner results, in MiB (about 20 bytes per corner and step); a "
+                             "larger sweep is refused before it starts (default {})",
+                             sweep_default_max_memory_mib))
+      ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
+}
+
+bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib) {
+  const std::uint64_t one = sweep_result_bytes(plan, steps);
+  const std::uint64_t need = one > UINT64_MAX / copies ? UINT64_MAX : one * copies;
+  if (need <= (mib << 20)) return true;
+  spdlog::error("--corners '{}': {} corners x {} steps need about {:.0f} MiB for their results, more than "
+                "--max-memory {} MiB; sample fewer corners (e.g. --corners extremes+random:1000) or raise "
+                "--max-memory",
+                plan.spec, plan.corners, std::max<std::size_t>(steps, 1), static_cast<double>(need) / (1 << 20), mib);
+  return false;
 }
 
 }  // namespace settle::cli

@@ -13,6 +13,9 @@
 namespace CLI {
 class App;
 }
+namespace settle {
+struct sweep_plan;
+}
 
 namespace settle::cli {
 
@@ -47,5 +50,11 @@ void add_json_option(CLI::App& cmd, std::string& path);
 void add_junit_option(CLI::App& cmd, std::string& path);
 /// -q,--quiet: "print nothing on stdout; errors still go to stderr".
 void add_quiet_flag(CLI::App& cmd, bool& quiet);
+/// --max-memory MIB on sweep and margin: the per-corner results a sweep may hold.
+void add_max_memory_option(CLI::App& cmd, std::uint64_t& mib);
+/// True when `copies` sweeps of `plan` over `steps` steps fit in `mib` MiB of
+/// per-corner results (sweep_result_bytes); otherwise prints why on stderr
+/// (the caller exits 2 before any corner runs).
+bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib);
 
 }  // namespace settle::cli

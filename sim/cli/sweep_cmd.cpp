@@ -34,6 +34,7 @@ struct sweep_cli_options {
   std::string junit, html;
   std::uint64_t max_events = 0;
   double timeout_s = 0;  ///< --timeout: wall-clock budget in seconds (0: none)
+  std::uint64_t max_memory_mib = sweep_default_max_memory_mib;  ///< --max-memory
   bool quiet = false;
 };
 
@@ -341,6 +342,8 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
     spdlog::error("{}", err);
     return exit_status::error;
   }
+  const std::size_t steps = d->stim.steps.empty() ? 1 : d->stim.steps.size();
+  if (!fits_memory(*plan, steps, 1, o.max_memory_mib)) return exit_status::error;
   sweep_options so;
   so.threads = o.threads;
   so.run = ro;
@@ -402,6 +405,7 @@ void add_sweep(CLI::App& app, exit_status& status) {
                   "wall-clock budget in seconds: past it the sweep stops, reports the corners finished and "
                   "exits 1 (0: none)")
       ->check(CLI::NonNegativeNumber);
+  add_max_memory_option(*cmd, o->max_memory_mib);
   add_junit_option(*cmd, o->junit);
   cmd->add_option("--html", o->html, "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH");
   cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout and no progress; errors still go to stderr");
