@@ -1,6 +1,7 @@
 // The HTML reports: report data as JSON (command result, witness traces, histograms, graphs) inside one page.
 #include "waves/html.hpp"
 
+#include <algorithm>
 #include <limits>
 #include <map>
 
@@ -79,7 +80,35 @@ json trace_json(const std::vector<html_net_trace>& nets) {
 struct replay {
   run_result result;
   std::unique_ptr<html_recorder> rec;
+  std::uint64_t changes = 0;  ///< of the drawn nets over the whole run
+  bool noted = false;         ///< the page already says this witness is decimated
 };
+
+/// The drawn traces of one step of a witness. A witness with more than
+/// html_change_limit changes over its whole run is decimated step by step:
+/// each step gets its share of the limit and of the busy bands, so the page
+/// stays bounded however many steps the run has. The page says so once per
+/// witness.
+std::vector<html_net_trace> witness_window(replay& r, const step_result& st, const std::string& witness,
+                                           page_data& p, bool* summarised, std::uint64_t* changes) {
+  std::uint64_t limit = html_change_limit;
+  std::size_t buckets = summary_buckets;
+  if (r.changes > html_change_limit) {
+    const double share = static_cast<double>(r.rec->changes_between(st.start, st.end)) / static_cast<double>(r.changes);
+    limit = std::max<std::uint64_t>(1, static_cast<std::uint64_t>(static_cast<double>(html_change_limit) * share));
+    buckets = std::max<std::size_t>(64, static_cast<std::size_t>(static_cast<double>(summary_buckets) * share));
+  }
+  auto tr = r.rec->window(st.start, st.end, limit, buckets, summarised, changes);
+  // Summarised means something was dropped: a busy band stands for it.
+  *summarised = std::any_of(tr.begin(), tr.end(), [](const html_net_trace& t) { return !t.busy.empty(); });
+  if (*summarised && !r.noted) {
+    r.noted = true;
+    p.notes.push_back(fmt::format("Witness {}: {} value changes over the run, more than {}; its waveforms are "
+                                  "decimated: dense stretches are drawn as busy bands.",
+                                  witness, r.changes, html_change_limit));
+  }
+  return tr;
+}
 
 replay replay_corner(const design& d, const corner& c, const run_options& ro, const std::vector<net_id>& nets) {
   replay r;
@@ -87,6 +116,7 @@ replay replay_corner(const design& d, const corner& c, const run_options& ro, co
   delay_table delays;
   fill_delays(d.nets, c, delays);
   r.result = run_stimulus(d, delays, ro, r.rec.get());
+  r.changes = r.rec->changes_between(0, std::numeric_limits<time_fs>::max());
   return r;
 }
 
@@ -120,7 +150,7 @@ void sweep_waves(const design& d, const sweep_result& r, const run_options& ro, 
       const auto& st = rr.steps[s.index - 1];
       bool summarised = false;
       std::uint64_t changes = 0;
-      auto tr = it->second.rec->window(st.start, st.end, html_change_limit, summary_buckets, &summarised, &changes);
+      auto tr = witness_window(it->second, st, oc.witness_name, p, &summarised, &changes);
       span = std::max(span, st.end - st.start);
       json t;
       t["outcome"] = o + 1;
@@ -130,9 +160,6 @@ void sweep_waves(const design& d, const sweep_result& r, const run_options& ro, 
       t["status"] = status_name(st.status);
       t["changes"] = changes;
       t["summarised"] = summarised;
-      if (summarised)
-        p.notes.push_back(fmt::format("Step {}, witness {}: {} value changes, more than {}; dense stretches are drawn "
-                                      "as busy bands.", s.index, oc.witness_name, changes, html_change_limit));
       t["nets"] = trace_json(tr);
       w["traces"].push_back(std::move(t));
       all.push_back(std::move(tr));
@@ -251,7 +278,7 @@ std::string html_report_run(const design& d, const corner& c, const run_options&
   for (const auto& st : rep.result.steps) {
     bool summarised = false;
     std::uint64_t changes = 0;
-    auto tr = rep.rec->window(st.start, st.end, html_change_limit, summary_buckets, &summarised, &changes);
+    auto tr = witness_window(rep, st, c.name(), p, &summarised, &changes);
     json t;
     t["outcome"] = 1;
     t["corner"] = c.name();
@@ -260,9 +287,6 @@ std::string html_report_run(const design& d, const corner& c, const run_options&
     t["status"] = status_name(st.status);
     t["changes"] = changes;
     t["summarised"] = summarised;
-    if (summarised)
-      p.notes.push_back(fmt::format("Step {}: {} value changes, more than {}; dense stretches are drawn as busy bands.",
-                                    st.index, changes, html_change_limit));
     t["nets"] = trace_json(tr);
     json w;
     w["step"] = st.index;

@@ -73,6 +73,8 @@ class html_recorder final : public change_sink {
   /// holds more than `limit` changes (*summarised set to true).
   std::vector<html_net_trace> window(time_fs from, time_fs to, std::uint64_t limit, std::size_t buckets,
                                      bool* summarised, std::uint64_t* changes) const;
+  /// The changes of the watched nets in [from, to].
+  std::uint64_t changes_between(time_fs from, time_fs to) const;
 
  private:
   std::vector<std::int32_t> slot_;          // per net: index into watched, or -1

@@ -90,6 +90,16 @@ std::vector<html_net_trace> html_recorder::window(time_fs from, time_fs to, std:
   return out;
 }
 
+std::uint64_t html_recorder::changes_between(time_fs from, time_fs to) const {
+  std::uint64_t total = 0;
+  for (const auto& ev : events_) {
+    auto lo = std::lower_bound(ev.begin(), ev.end(), from, [](const change& c, time_fs t) { return c.time < t; });
+    auto hi = std::upper_bound(lo, ev.end(), to, [](time_fs t, const change& c) { return t < c.time; });
+    total += static_cast<std::uint64_t>(hi - lo);
+  }
+  return total;
+}
+
 time_fs first_difference(const std::vector<std::vector<html_net_trace>>& traces) {
   constexpr time_fs none = std::numeric_limits<time_fs>::max();
   if (traces.size() < 2) return none;
