@@ -184,10 +184,31 @@ class driver {
 
     for (;;) {
       // Clocks declared in this step start at their reference time.
+      time_fs outside = next_clock_edge();  // the next instant that brings inputs
+      if (next_input < pending_.size()) outside = std::min(outside, pending_[next_input].time);
+      for (const auto& [at, spec_c] : clock_starts_) outside = std::min(outside, at);
       time_fs t = sim_.next_event_time();
-      if (next_input < pending_.size()) t = std::min(t, pending_[next_input].time);
-      for (const auto& [at, spec_c] : clock_starts_) t = std::min(t, at);
-      t = std::min(t, next_clock_edge());
+      if (t < outside && t <= limit) {
+        // Instants of gate events alone go to the kernel in a batch, until
+        // repeat detection is due: it starts once the step's inputs are all
+        // in and `warmup` instants have passed. Batches stay short enough for
+        // the stop flag to be seen promptly.
+        const bool counting = settle_step && next_input == pending_.size() && clock_starts_.empty();
+        const std::uint64_t budget = !counting ? 4096 : settling + 1 < warmup ? warmup - 1 - settling : 0;
+        if (budget) {
+          const std::uint64_t n = sim_.run_quiet(std::min(limit, outside - 1), budget, opt_.max_events);
+          if (counting) settling += n;
+          if ((opt_.max_events && sim_.events() >= opt_.max_events) ||
+              (opt_.stop && opt_.stop->load(std::memory_order_relaxed))) {
+            r.status = step_status::event_limit;
+            r.end = sim_.now();
+            stopped_ = true;
+            break;
+          }
+          continue;
+        }
+      }
+      t = std::min(t, outside);
       if (t == never) {
         r.status = step_status::settled;
         break;
@@ -217,6 +238,7 @@ class driver {
       }
       if (!settle_step || next_input < pending_.size() || !clock_starts_.empty()) continue;
       if (++settling < warmup) continue;
+      if (settling == warmup) sim_.track_state(true);
       clock_state_words(extra);
       if (have_snap && sim_.hash() == snap.hash && sim_.same_state(snap, extra)) {
         r.status = step_status::oscillating;
@@ -235,6 +257,7 @@ class driver {
       }
     }
 
+    if (settling >= warmup) sim_.track_state(false);
     const time_fs last = sim_.last_change();
     r.settle = last > change_before && last >= start ? last - start : 0;
     if (r.status == step_status::settled) r.end = start + r.settle;

@@ -90,12 +90,22 @@ class interval_kernel {
     }
   }
 
+  std::uint64_t run_quiet(time_fs last, std::uint64_t max_instants, std::uint64_t max_events) {
+    std::uint64_t n = 0;
+    for (time_fs t; (t = next_event_time()) <= last;) {
+      process_instant(t, {});
+      if ((max_events && events_ >= max_events) || ++n == max_instants) break;
+    }
+    return n;
+  }
+
   bool quiet() const { return !eval_all_ && std::none_of(heap_.begin(), heap_.end(), [&](auto& e) { return live(e); }); }
   time_fs now() const { return now_; }
   time_fs last_change() const { return last_change_; }
   std::uint64_t events() const { return events_; }
   const std::vector<logic>& values() const { return val_; }
   const std::vector<std::uint32_t>& toggles() const { return toggles_; }
+  void track_state(bool) {}  // the hash is always kept: this kernel is not the hot path
   std::uint64_t hash() const { return hash_; }
 
   void snapshot(state_snapshot& s, std::span<const std::uint64_t> extra) const {

@@ -11,6 +11,10 @@ namespace {
 
 constexpr std::size_t trace_batch = 1 << 14;
 
+// The per-event path, inlined into process_instant (GCC's size heuristics
+// otherwise keep these as calls, which cost a fifth of the instructions).
+#define SETTLE_HOT [[gnu::always_inline]] inline
+
 // Zobrist-style key of (net, value) for the incremental state hash.
 constexpr std::uint64_t value_key(net_id net, logic v) {
   std::uint64_t z = (std::uint64_t{net} << 2 | static_cast<std::uint64_t>(v)) + 0x9e3779b97f4a7c15ull;
@@ -42,40 +46,7 @@ void event_queue::clear() {
   far_.clear();
   base_ = floor_ = 0;
   pos_ = size_ = in_wheel_ = 0;
-  sorted_ = false;
-}
-
-void event_queue::put(const queued_event& e) {
-  const auto slot = static_cast<std::size_t>((e.time >> width_bits_) & (slots - 1));
-  auto& v = wheel_[slot];
-  if (slot == cursor_slot() && sorted_) {
-    // The slot under the cursor is sorted from pos_ on: insert in order.
-    auto it = std::upper_bound(v.begin() + static_cast<std::ptrdiff_t>(pos_), v.end(), e,
-                               [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
-    v.insert(it, e);
-  } else {
-    v.push_back(e);
-  }
-  occupied_[slot / 64] |= std::uint64_t{1} << (slot % 64);
-  ++in_wheel_;
-}
-
-void event_queue::push(const queued_event& e) {
-  ++size_;
-  if (!in_wheel(e.time)) {
-    far_.push_back(e);
-    std::push_heap(far_.begin(), far_.end(), later);
-    return;
-  }
-  if (e.time < base_) {
-    // The cursor looked ahead over empty slots and an earlier instant (an
-    // input change) scheduled before it. Every wheel entry lies within the
-    // window of floor_, so turning the cursor back keeps the circular order.
-    base_ = (e.time >> width_bits_) << width_bits_;
-    pos_ = 0;
-    sorted_ = false;
-  }
-  put(e);
+  sorted_ = next_valid_ = false;
 }
 
 // Pulls the far events that now fall within the wheel onto it.
@@ -87,19 +58,29 @@ void event_queue::migrate() {
   }
 }
 
-time_fs event_queue::min_time() {
+time_fs event_queue::find_min() {
   for (;;) {
     auto& cur = wheel_[cursor_slot()];
     if (pos_ < cur.size()) {
       if (!sorted_) {
-        std::sort(cur.begin() + static_cast<std::ptrdiff_t>(pos_), cur.end(),
-                  [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
+        const auto first = cur.begin() + static_cast<std::ptrdiff_t>(pos_);
+        if (cur.end() - first <= 16) {
+          // Most slots hold a handful of entries: insertion sort, no call.
+          for (auto i = first + 1; i < cur.end(); ++i)
+            for (auto j = i; j > first && j->time < (j - 1)->time; --j) std::iter_swap(j, j - 1);
+        } else {
+          std::sort(first, cur.end(), [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
+        }
         sorted_ = true;
       }
-      return cur[pos_].time;
+      next_valid_ = true;
+      return next_ = cur[pos_].time;
     }
     // Nothing on the wheel: the earliest far event, without moving (a peek).
-    if (in_wheel_ == 0) return far_.front().time;
+    if (in_wheel_ == 0) {
+      next_valid_ = true;
+      return next_ = far_.front().time;
+    }
     cur.clear();
     pos_ = 0;
     sorted_ = false;
@@ -120,8 +101,7 @@ time_fs event_queue::min_time() {
   }
 }
 
-void event_queue::take_front(std::vector<queued_event>& out) {
-  out.clear();
+std::span<const queued_event> event_queue::take_front() {
   time_fs t = min_time();
   if (in_wheel_ == 0) {
     // The wheel ran dry: move it to the earliest far event.
@@ -135,16 +115,17 @@ void event_queue::take_front(std::vector<queued_event>& out) {
   floor_ = t;
   if (turned && !far_.empty()) {
     migrate();
-    t = min_time();
+    t = find_min();
   } else if (!sorted_) {
-    t = min_time();
+    t = find_min();  // sorts the cursor slot and puts pos_ on the earliest entry
   }
   auto& v = wheel_[cursor_slot()];
   const std::size_t from = pos_;
   while (pos_ < v.size() && v[pos_].time == t) ++pos_;
-  out.assign(v.begin() + static_cast<std::ptrdiff_t>(from), v.begin() + static_cast<std::ptrdiff_t>(pos_));
-  size_ -= out.size();
-  in_wheel_ -= out.size();
+  size_ -= pos_ - from;
+  in_wheel_ -= pos_ - from;
+  next_valid_ = false;
+  return {v.data() + from, pos_ - from};
 }
 
 simulator::simulator(const netlist& n) : n_(n), queue_(n.largest_max_delay()) {
@@ -152,12 +133,13 @@ simulator::simulator(const netlist& n) : n_(n), queue_(n.largest_max_delay()) {
   build_fast_paths();
   val_.resize(nets);
   toggles_.resize(nets);
-  pend_val_.resize(gates);
-  gen_.resize(gates);
+  delay_.resize(gates);
   slot_.assign(gates, no_id);
-  mark_.assign(gates, 0);
   for (gate_id g = 0; g < gates; ++g)
-    if (n.delay[g].transport) slot_[g] = static_cast<std::uint32_t>(tq_.size()), tq_.emplace_back();
+    if (n.delay[g].transport) {
+      slot_[g] = static_cast<std::uint32_t>(tq_.size()), tq_.emplace_back();
+      gate_[g].transport = true;
+    }
 }
 
 // Gates of one or two inputs (and two-input C-elements) evaluate by one table
@@ -194,9 +176,9 @@ void simulator::build_fast_paths() {
       }
     }
   }
-  fast_.resize(n_.gate_count());
+  gate_.resize(n_.gate_count());
   for (gate_id g = 0; g < n_.gate_count(); ++g) {
-    gate_fast& f = fast_[g];
+    gate_rec& f = gate_[g];
     const auto k = n_.kind[g];
     const auto fan = n_.fanin_begin[g + 1] - n_.fanin_begin[g];
     f.out = n_.gate_out[g];
@@ -205,27 +187,29 @@ void simulator::build_fast_paths() {
     f.in1 = fan > 1 ? n_.fanin[n_.fanin_begin[g] + 1] : 0;
     const bool simple = k != gate_kind::mux && k != gate_kind::maj && k != gate_kind::gc && k != gate_kind::expr &&
                         k != gate_kind::dff && !n_.enumerate[g];
-    f.mode = gate_fast::general;
+    f.mode = gate_rec::general;
     if (k == gate_kind::dff) {
-      f.mode = gate_fast::edge;
+      f.mode = gate_rec::edge;
     } else if (simple && k == gate_kind::celem) {
-      if (fan == 2) f.mode = gate_fast::c2;
+      if (fan == 2) f.mode = gate_rec::c2;
     } else if (simple && fan == 1) {
-      f.mode = gate_fast::one;
+      f.mode = gate_rec::one;
     } else if (simple && fan == 2 && k != gate_kind::buf && k != gate_kind::inv) {
-      f.mode = gate_fast::two;
+      f.mode = gate_rec::two;
     }
   }
 }
 
 void simulator::reset(const delay_table& delays) {
-  delays_ = &delays;
   std::copy(n_.init.begin(), n_.init.end(), val_.begin());
   clock_seen_.assign(n_.gate_count(), logic::x);
-  for (gate_id g = 0; g < n_.gate_count(); ++g)
-    if (fast_[g].mode == gate_fast::edge) clock_seen_[g] = n_.init[fast_[g].in1];
+  for (gate_id g = 0; g < n_.gate_count(); ++g) {
+    gate_rec& r = gate_[g];
+    if (r.mode == gate_rec::edge) clock_seen_[g] = n_.init[r.in1];
+    r.pend = none;
+    delay_[g] = {delays.rise[g], delays.fall[g]};
+  }
   std::fill(toggles_.begin(), toggles_.end(), 0);
-  std::fill(pend_val_.begin(), pend_val_.end(), none);
   for (auto& q : tq_) q.clear();
   queue_.clear();
   trace_.clear();
@@ -233,13 +217,19 @@ void simulator::reset(const delay_table& delays) {
   events_ = 0;
   live_ = 0;
   eval_all_ = true;
-  hash_ = 0;
-  for (net_id i = 0; i < val_.size(); ++i) hash_ ^= value_key(i, val_[i]);
+  track_state(false);
   if (sink_) sink_->on_start(val_);
 }
 
-time_fs simulator::delay_of(gate_id g, logic from, logic to) const {
-  const time_fs r = delays_->rise[g], f = delays_->fall[g];
+void simulator::track_state(bool on) {
+  tracking_ = on;
+  hash_ = 0;
+  if (on)
+    for (net_id i = 0; i < val_.size(); ++i) hash_ ^= value_key(i, val_[i]);
+}
+
+SETTLE_HOT time_fs simulator::delay_of(gate_id g, logic from, logic to) const {
+  const time_fs r = delay_[g].rise, f = delay_[g].fall;
   if (from == logic::zero && to == logic::one) return r;
   if (from == logic::one && to == logic::zero) return f;
   return std::min(r, f);
@@ -256,11 +246,12 @@ time_fs simulator::next_event_time() {
   return queue_.min_time();
 }
 
-void simulator::schedule(gate_id g, logic v, time_fs t) {
-  if (slot_[g] == no_id) {
-    if (pend_val_[g] == none) ++live_;
-    pend_val_[g] = v;
-    queue_.push({t, g, ++gen_[g]});
+SETTLE_HOT void simulator::schedule(gate_id g, logic v, time_fs t) {
+  gate_rec& r = gate_[g];
+  if (!r.transport) {
+    if (r.pend == none) ++live_;
+    r.pend = v;
+    queue_.push({t, g, ++r.gen});
     return;
   }
   auto& q = tq_[slot_[g]];
@@ -271,9 +262,9 @@ void simulator::schedule(gate_id g, logic v, time_fs t) {
   if (q.size() == 1) queue_.push({t, g, q.front().id});
 }
 
-void simulator::apply(net_id net, logic v, time_fs t) {
+SETTLE_HOT void simulator::apply(net_id net, logic v, time_fs t) {
   if (val_[net] == v) return;
-  hash_ ^= value_key(net, val_[net]) ^ value_key(net, v);
+  if (tracking_) hash_ ^= value_key(net, val_[net]) ^ value_key(net, v);
   val_[net] = v;
   ++toggles_[net];
   ++events_;
@@ -284,14 +275,14 @@ void simulator::apply(net_id net, logic v, time_fs t) {
   }
   for (auto i = n_.fanout_begin[net]; i < n_.fanout_begin[net + 1]; ++i) {
     const gate_id g = n_.fanout[i];
-    if (mark_[g] != stamp_) mark_[g] = stamp_, dirty_.push_back(g);
+    if (gate_[g].stamp != stamp_) gate_[g].stamp = stamp_, dirty_.push_back(g);
   }
 }
 
-logic simulator::eval_fast(gate_id g) {
-  const gate_fast& f = fast_[g];
+SETTLE_HOT logic simulator::eval_fast(gate_id g) {
+  const gate_rec& f = gate_[g];
   switch (f.mode) {
-    case gate_fast::edge: {
+    case gate_rec::edge: {
       // A flip-flop is evaluated whenever CK or D changes, so the CK it saw
       // last time tells a rising edge (0 -> 1) from anything else.
       const logic ck = val_[f.in1], before = clock_seen_[g];
@@ -301,26 +292,26 @@ logic simulator::eval_fast(gate_id g) {
       const bool may_rise = before != logic::one && ck != logic::zero && before != ck;
       return may_rise ? lub(present, d) : present;
     }
-    case gate_fast::one: return tables_.one[f.kind][static_cast<int>(val_[f.in0])];
-    case gate_fast::two:
+    case gate_rec::one: return tables_.one[f.kind][static_cast<int>(val_[f.in0])];
+    case gate_rec::two:
       return tables_.two[f.kind][static_cast<int>(val_[f.in0]) * 3 + static_cast<int>(val_[f.in1])];
-    case gate_fast::c2:
+    case gate_rec::c2:
       return tables_.c2[static_cast<int>(val_[f.in0]) * 9 + static_cast<int>(val_[f.in1]) * 3 +
                         static_cast<int>(val_[f.out])];
     default: return eval_gate(n_, g, val_.data(), val_[f.out]);
   }
 }
 
-void simulator::evaluate(gate_id g, time_fs t) {
-  const net_id out = fast_[g].out;
-  const logic present = val_[out];
+SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
+  gate_rec& r = gate_[g];
+  const logic present = val_[r.out];
   const logic v = eval_fast(g);
-  if (slot_[g] == no_id) {
+  if (!r.transport) {
     // Inertial: one pending change per output (pulses shorter than the delay vanish).
-    const logic p = pend_val_[g];
+    const logic p = r.pend;
     if (p == v) return;
     if (v == present) {
-      if (p != none) pend_val_[g] = none, ++gen_[g], --live_;
+      if (p != none) r.pend = none, ++r.gen, --live_;
       return;
     }
     schedule(g, v, t + delay_of(g, present, v));
@@ -333,31 +324,38 @@ void simulator::evaluate(gate_id g, time_fs t) {
 
 void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
   now_ = t;
-  if (++stamp_ == 0) std::fill(mark_.begin(), mark_.end(), 0), stamp_ = 1;
+  if (++stamp_ == 0) {
+    for (auto& r : gate_) r.stamp = 0;
+    stamp_ = 1;
+  }
   dirty_.clear();
   // First every change due at t takes effect, then the gates they feed are
   // evaluated: nothing depends on the order of events within an instant.
   for (const auto& a : inputs) apply(a.net, a.value, t);
   if (live_ && queue_.min_time() == t) {
-    queue_.take_front(front_);
-    for (const auto& e : front_) {
+    // Nothing is pushed while the front is walked (apply only marks gates),
+    // so the span stays valid; transport gates queue their next transaction after.
+    repush_.clear();
+    for (const auto& e : queue_.take_front()) {
       const gate_id g = e.gate;
-      if (slot_[g] == no_id) {
-        if (pend_val_[g] == none || gen_[g] != e.gen) continue;
-        const logic v = pend_val_[g];
-        pend_val_[g] = none;
+      gate_rec& r = gate_[g];
+      if (!r.transport) {
+        if (r.pend == none || r.gen != e.gen) continue;
+        const logic v = r.pend;
+        r.pend = none;
         --live_;
-        apply(fast_[g].out, v, t);
+        apply(r.out, v, t);
       } else {
         auto& q = tq_[slot_[g]];
         if (q.empty() || q.front().id != e.gen) continue;
         const logic v = q.front().value;
         q.erase(q.begin());
         --live_;
-        if (!q.empty()) queue_.push({q.front().time, g, q.front().id});
+        if (!q.empty()) repush_.push_back({q.front().time, g, q.front().id});
         apply(n_.gate_out[g], v, t);
       }
     }
+    for (const auto& e : repush_) queue_.push(e);
   }
   if (eval_all_) {
     eval_all_ = false;
@@ -367,11 +365,23 @@ void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
   }
 }
 
+std::uint64_t simulator::run_quiet(time_fs last, std::uint64_t max_instants, std::uint64_t max_events) {
+  std::uint64_t n = 0;
+  for (;;) {
+    const time_fs t = next_event_time();
+    if (t > last) break;
+    process_instant(t, {});
+    ++n;
+    if ((max_events && events_ >= max_events) || n == max_instants) break;
+  }
+  return n;
+}
+
 void simulator::gather_pending(std::vector<std::pair<std::uint64_t, std::uint64_t>>& out) const {
   out.clear();
   queue_.for_each([&](const queued_event& e) {
-    if (slot_[e.gate] == no_id && pend_val_[e.gate] != none && gen_[e.gate] == e.gen)
-      out.push_back(pending_key(e.time - now_, e.gate, pend_val_[e.gate]));
+    const gate_rec& r = gate_[e.gate];
+    if (!r.transport && r.pend != none && r.gen == e.gen) out.push_back(pending_key(e.time - now_, e.gate, r.pend));
   });
   for (gate_id g = 0; g < n_.gate_count(); ++g)
     if (slot_[g] != no_id)

@@ -1,6 +1,7 @@
 // The event-driven kernel: per-run state over a shared, immutable netlist.
 #pragma once
 
+#include <algorithm>
 #include <array>
 #include <cstdint>
 #include <span>
@@ -38,10 +39,12 @@ class event_queue {
   void push(const queued_event& e);
   bool empty() const { return size_ == 0; }
   std::size_t size() const { return size_; }
-  /// The earliest time in the queue (the queue must not be empty).
-  time_fs min_time();
-  /// Moves every entry at min_time() into `out` (cleared first).
-  void take_front(std::vector<queued_event>& out);
+  /// The earliest time in the queue (the queue must not be empty). Cached
+  /// until the next take_front() or an earlier push.
+  time_fs min_time() { return next_valid_ ? next_ : find_min(); }
+  /// Removes every entry at min_time() and returns them; the span stays
+  /// valid until the next push() or clear().
+  std::span<const queued_event> take_front();
   /// Calls f on every entry (any order).
   template <class F>
   void for_each(F&& f) const {
@@ -58,6 +61,7 @@ class event_queue {
   bool in_wheel(time_fs t) const { return (t >> width_bits_) - (floor_ >> width_bits_) < slots; }
   void put(const queued_event& e);
   void migrate();
+  time_fs find_min();
 
   std::vector<std::vector<queued_event>> wheel_;
   std::array<std::uint64_t, slots / 64> occupied_{};
@@ -67,8 +71,44 @@ class event_queue {
   time_fs floor_ = 0;              // the last instant taken: no push is earlier
   std::size_t pos_ = 0;            // next entry of the (sorted) cursor slot
   std::size_t size_ = 0, in_wheel_ = 0;
-  bool sorted_ = false;
+  time_fs next_ = 0;               // min_time() while next_valid_
+  bool sorted_ = false, next_valid_ = false;
 };
+
+// The queue's insert is on the per-event path: defined here so it inlines.
+[[gnu::always_inline]] inline void event_queue::put(const queued_event& e) {
+  const auto slot = static_cast<std::size_t>((e.time >> width_bits_) & (slots - 1));
+  auto& v = wheel_[slot];
+  if (slot == cursor_slot() && sorted_) {
+    // The slot under the cursor is sorted from pos_ on: insert in order.
+    auto it = std::upper_bound(v.begin() + static_cast<std::ptrdiff_t>(pos_), v.end(), e,
+                               [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
+    v.insert(it, e);
+  } else {
+    v.push_back(e);
+  }
+  occupied_[slot / 64] |= std::uint64_t{1} << (slot % 64);
+  ++in_wheel_;
+}
+
+[[gnu::always_inline]] inline void event_queue::push(const queued_event& e) {
+  ++size_;
+  if (next_valid_ && e.time < next_) next_valid_ = false;
+  if (!in_wheel(e.time)) {
+    far_.push_back(e);
+    std::push_heap(far_.begin(), far_.end(), [](const queued_event& a, const queued_event& b) { return a.time > b.time; });
+    return;
+  }
+  if (e.time < base_) {
+    // The cursor looked ahead over empty slots and an earlier instant (an
+    // input change) scheduled before it. Every wheel entry lies within the
+    // window of floor_, so turning the cursor back keeps the circular order.
+    base_ = (e.time >> width_bits_) << width_bits_;
+    pos_ = 0;
+    sorted_ = false;
+  }
+  put(e);
+}
 
 /// The state needed to recognise a repeated full state: net values and the
 /// pending events relative to now (plus whatever the driver adds).
@@ -98,12 +138,19 @@ class simulator {
   void process_instant(time_fs t, std::span<const assignment> inputs);
   /// True when no gate event is pending and no first evaluation is owed.
   bool quiet() const { return live_ == 0 && !eval_all_; }
+  /// Processes instants without input changes while the next event is at or
+  /// before `last`: at most `max_instants` of them (0: no limit), and none
+  /// after events() reaches `max_events` (0: no limit). Returns how many.
+  std::uint64_t run_quiet(time_fs last, std::uint64_t max_instants, std::uint64_t max_events);
 
   time_fs now() const { return now_; }
   time_fs last_change() const { return last_change_; }
   std::uint64_t events() const { return events_; }
   const std::vector<logic>& values() const { return val_; }
   const std::vector<std::uint32_t>& toggles() const { return toggles_; }
+  /// The state hash, kept only while tracking (repeat detection is on): the
+  /// per-event path skips it otherwise. Turning tracking on computes it afresh.
+  void track_state(bool on);
   std::uint64_t hash() const { return hash_; }
 
   void snapshot(state_snapshot& s, std::span<const std::uint64_t> extra) const;
@@ -126,14 +173,30 @@ class simulator {
   void flush_trace();
 
   const netlist& n_;
-  const delay_table* delays_ = nullptr;
   change_sink* sink_ = nullptr;
 
   std::vector<logic> val_;
   std::vector<std::uint32_t> toggles_;
-  std::vector<logic> pend_val_;       // inertial gates: pending value or none
-  std::vector<std::uint32_t> gen_;    // inertial gates: generation of the live entry
-  std::vector<std::uint32_t> slot_;   // transport gates: index into tq_, else no_id
+
+  // What the per-event path needs of a gate, in one record: its inputs and
+  // output inline (the table row comes from the kind), the dirty stamp, and
+  // the inertial gate's pending value and the generation of its live entry.
+  struct gate_rec {
+    enum : std::uint8_t { general, one, two, c2, edge };
+    net_id in0 = 0, in1 = 0, out = 0;
+    std::uint32_t stamp = 0;  // == stamp_ once queued for evaluation this instant
+    std::uint32_t gen = 0;    // inertial: generation of the live queue entry
+    std::uint8_t mode = general, kind = 0;
+    bool transport = false;
+    logic pend = none;        // inertial: the pending value, or none
+  };
+  std::vector<gate_rec> gate_;
+  struct edge_delays {
+    time_fs rise, fall;
+  };
+  std::vector<edge_delays> delay_;  // this run's delays, copied from the table at reset
+  std::vector<logic> clock_seen_;   // flip-flop primitives: CK at their last evaluation
+  std::vector<std::uint32_t> slot_;  // transport gates: index into tq_, else no_id
 
   struct transport_event {
     time_fs time;
@@ -144,30 +207,21 @@ class simulator {
   std::uint32_t next_id_ = 0;
 
   event_queue queue_;
-  std::vector<queued_event> front_;
+  std::vector<queued_event> repush_;  // transport gates' next transactions, queued after the front
 
-  // Per-gate evaluation shortcut: inputs and output inline, table row by kind.
-  struct gate_fast {
-    enum : std::uint8_t { general, one, two, c2, edge };
-    net_id in0 = 0, in1 = 0, out = 0;
-    std::uint8_t mode = general, kind = 0;
-  };
-  std::vector<gate_fast> fast_;
-  std::vector<logic> clock_seen_;  // flip-flop primitives: CK at their last evaluation
   struct {
     logic one[gate_kind_count][3];
     logic two[gate_kind_count][9];
     logic c2[27];  // (a, b, present)
   } tables_{};
   std::vector<gate_id> dirty_;
-  std::vector<std::uint32_t> mark_;
   std::uint32_t stamp_ = 0;
   std::vector<change> trace_;
 
   time_fs now_ = 0, last_change_ = 0;
   std::uint64_t events_ = 0, hash_ = 0;
   std::size_t live_ = 0;
-  bool eval_all_ = true;
+  bool eval_all_ = true, tracking_ = false;
 };
 
 }  // namespace settle

@@ -14,7 +14,6 @@ TEST_CASE("the event queue returns instants in time order, like an ordered multi
     event_queue q(largest);
     std::multimap<time_fs, gate_id> ref;
     time_fs now = 0;
-    std::vector<queued_event> front;
     gate_id next = 0;
     for (int round = 0; round < 20000; ++round) {
       // A peek may move the cursor ahead; later pushes may still be earlier
@@ -33,7 +32,7 @@ TEST_CASE("the event queue returns instants in time order, like an ordered multi
       REQUIRE_FALSE(q.empty());
       const time_fs t = q.min_time();
       REQUIRE(t == ref.begin()->first);
-      q.take_front(front);
+      const auto front = q.take_front();
       auto [lo, hi] = ref.equal_range(t);
       std::vector<gate_id> want, got;
       for (auto it = lo; it != hi; ++it) want.push_back(it->second);
