@@ -133,7 +133,6 @@ simulator::simulator(const netlist& n) : n_(n), queue_(n.largest_max_delay()) {
   build_fast_paths();
   val_.resize(nets);
   toggles_.resize(nets);
-  delay_.resize(gates);
   slot_.assign(gates, no_id);
   for (gate_id g = 0; g < gates; ++g)
     if (n.delay[g].transport) {
@@ -207,7 +206,19 @@ void simulator::reset(const delay_table& delays) {
     gate_rec& r = gate_[g];
     if (r.mode == gate_rec::edge) clock_seen_[g] = n_.init[r.in1];
     r.pend = none;
-    delay_[g] = {delays.rise[g], delays.fall[g]};
+    r.queued = false;
+  }
+  constexpr time_fs narrow = std::numeric_limits<std::uint32_t>::max();
+  wide_ = std::any_of(delays.rise.begin(), delays.rise.end(), [](time_fs d) { return d > narrow; }) ||
+          std::any_of(delays.fall.begin(), delays.fall.end(), [](time_fs d) { return d > narrow; });
+  wide_delay_.clear();
+  for (gate_id g = 0; g < n_.gate_count(); ++g) {
+    if (wide_) {
+      wide_delay_.push_back({delays.rise[g], delays.fall[g]});
+    } else {
+      gate_[g].rise = static_cast<std::uint32_t>(delays.rise[g]);
+      gate_[g].fall = static_cast<std::uint32_t>(delays.fall[g]);
+    }
   }
   std::fill(toggles_.begin(), toggles_.end(), 0);
   for (auto& q : tq_) q.clear();
@@ -229,7 +240,8 @@ void simulator::track_state(bool on) {
 }
 
 SETTLE_HOT time_fs simulator::delay_of(gate_id g, logic from, logic to) const {
-  const time_fs r = delay_[g].rise, f = delay_[g].fall;
+  const gate_rec& d = gate_[g];
+  const time_fs r = wide_ ? wide_delay_[g].rise : d.rise, f = wide_ ? wide_delay_[g].fall : d.fall;
   if (from == logic::zero && to == logic::one) return r;
   if (from == logic::one && to == logic::zero) return f;
   return std::min(r, f);
@@ -275,7 +287,7 @@ SETTLE_HOT void simulator::apply(net_id net, logic v, time_fs t) {
   }
   for (auto i = n_.fanout_begin[net]; i < n_.fanout_begin[net + 1]; ++i) {
     const gate_id g = n_.fanout[i];
-    if (gate_[g].stamp != stamp_) gate_[g].stamp = stamp_, dirty_.push_back(g);
+    if (!gate_[g].queued) gate_[g].queued = true, dirty_.push_back(g);
   }
 }
 
@@ -324,10 +336,6 @@ SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
 
 void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
   now_ = t;
-  if (++stamp_ == 0) {
-    for (auto& r : gate_) r.stamp = 0;
-    stamp_ = 1;
-  }
   dirty_.clear();
   // First every change due at t takes effect, then the gates they feed are
   // evaluated: nothing depends on the order of events within an instant.
@@ -360,8 +368,9 @@ void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
   if (eval_all_) {
     eval_all_ = false;
     for (gate_id g = 0; g < n_.gate_count(); ++g) evaluate(g, t);
+    for (const gate_id g : dirty_) gate_[g].queued = false;
   } else {
-    for (const gate_id g : dirty_) evaluate(g, t);
+    for (const gate_id g : dirty_) gate_[g].queued = false, evaluate(g, t);
   }
 }
 

@@ -178,23 +178,27 @@ class simulator {
   std::vector<logic> val_;
   std::vector<std::uint32_t> toggles_;
 
-  // What the per-event path needs of a gate, in one record: its inputs and
-  // output inline (the table row comes from the kind), the dirty stamp, and
+  // What the per-event path needs of a gate, in one 32-byte record: inputs
+  // and output inline (the table row comes from the kind), this run's delays,
   // the inertial gate's pending value and the generation of its live entry.
   struct gate_rec {
     enum : std::uint8_t { general, one, two, c2, edge };
     net_id in0 = 0, in1 = 0, out = 0;
-    std::uint32_t stamp = 0;  // == stamp_ once queued for evaluation this instant
-    std::uint32_t gen = 0;    // inertial: generation of the live queue entry
+    std::uint32_t gen = 0;            // inertial: generation of the live queue entry
+    std::uint32_t rise = 0, fall = 0;  // this run's delays when they fit 32 bits (see wide_)
     std::uint8_t mode = general, kind = 0;
     bool transport = false;
-    logic pend = none;        // inertial: the pending value, or none
+    logic pend = none;                // inertial: the pending value, or none
+    bool queued = false;              // in dirty_ for evaluation this instant
   };
+  static_assert(sizeof(gate_rec) == 32);
   std::vector<gate_rec> gate_;
   struct edge_delays {
     time_fs rise, fall;
   };
-  std::vector<edge_delays> delay_;  // this run's delays, copied from the table at reset
+  // A delay of 2^32 fs (4.3 us) or more anywhere puts every delay here instead.
+  std::vector<edge_delays> wide_delay_;
+  bool wide_ = false;
   std::vector<logic> clock_seen_;   // flip-flop primitives: CK at their last evaluation
   std::vector<std::uint32_t> slot_;  // transport gates: index into tq_, else no_id
 
@@ -215,7 +219,6 @@ class simulator {
     logic c2[27];  // (a, b, present)
   } tables_{};
   std::vector<gate_id> dirty_;
-  std::uint32_t stamp_ = 0;
   std::vector<change> trace_;
 
   time_fs now_ = 0, last_change_ = 0;

@@ -60,6 +60,18 @@ TEST_CASE("odd rings oscillate with period twice the sum of their stage delays",
   }
 }
 
+// The same fact with a stage of 5 us: delays of 2^32 fs (about 4.3 us) and
+// more take the kernel's wide-delay path, which must give the same periods.
+TEST_CASE("a ring with a stage delay beyond 2^32 fs keeps period twice the sum", "[kernel]") {
+  const std::vector<time_fs> d = {5'000'000 * ps, 20 * ps, 31 * ps};
+  REQUIRE(d[0] > time_fs{0xffffffff});
+  design des = ring(3, d);
+  auto r = run_at(des);
+  REQUIRE(r.steps.size() == 2);
+  CHECK(r.steps[1].status == step_status::oscillating);
+  CHECK(r.steps[1].period == 2 * (d[0] + d[1] + d[2]));
+}
+
 // Derived from the ring fact with separate edges: T = sum of (rise + fall).
 TEST_CASE("a ring with different rise and fall delays has period sum(rise + fall)", "[kernel]") {
   builder b;
