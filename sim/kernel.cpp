@@ -45,6 +45,7 @@ void event_queue::clear() {
   occupied_.fill(0);
   far_.clear();
   base_ = floor_ = 0;
+  cur_ = 0;
   pos_ = size_ = in_wheel_ = 0;
   sorted_ = next_valid_ = false;
 }
@@ -98,6 +99,7 @@ time_fs event_queue::find_min() {
       step += 63 - k % 64;  // skip the rest of this word
     }
     base_ += step << width_bits_;
+    cur_ = (s + step) & (slots - 1);
   }
 }
 
@@ -107,7 +109,7 @@ std::span<const queued_event> event_queue::take_front() {
     // The wheel ran dry: move it to the earliest far event.
     wheel_[cursor_slot()].clear();
     occupied_[cursor_slot() / 64] &= ~(std::uint64_t{1} << (cursor_slot() % 64));
-    base_ = (t >> width_bits_) << width_bits_;
+    move_cursor(t);
     pos_ = 0;
     sorted_ = false;
   }
@@ -285,9 +287,10 @@ SETTLE_HOT void simulator::apply(net_id net, logic v, time_fs t) {
     trace_.push_back({t, net, v});
     if (trace_.size() >= trace_batch) flush_trace();
   }
-  for (auto i = n_.fanout_begin[net]; i < n_.fanout_begin[net + 1]; ++i) {
-    const gate_id g = n_.fanout[i];
-    if (!gate_[g].queued) gate_[g].queued = true, dirty_.push_back(g);
+  const gate_id* f = n_.fanout.data();
+  for (auto i = n_.fanout_begin[net], end = n_.fanout_begin[net + 1]; i < end; ++i) {
+    gate_rec& r = gate_[f[i]];
+    if (!r.queued) r.queued = true, dirty_.push_back(f[i]);
   }
 }
 

@@ -57,7 +57,9 @@ class event_queue {
 
  private:
   static constexpr std::size_t slot_bits = 12, slots = std::size_t{1} << slot_bits;
-  std::size_t cursor_slot() const { return static_cast<std::size_t>((base_ >> width_bits_) & (slots - 1)); }
+  std::size_t cursor_slot() const { return cur_; }
+  std::size_t slot_of(time_fs t) const { return static_cast<std::size_t>((t >> width_bits_) & (slots - 1)); }
+  void move_cursor(time_fs t) { base_ = (t >> width_bits_) << width_bits_, cur_ = slot_of(t); }
   bool in_wheel(time_fs t) const { return (t >> width_bits_) - (floor_ >> width_bits_) < slots; }
   void put(const queued_event& e);
   void migrate();
@@ -68,6 +70,7 @@ class event_queue {
   std::vector<queued_event> far_;  // a min-heap on time
   unsigned width_bits_ = 0;
   time_fs base_ = 0;               // start of the slot under the cursor
+  std::size_t cur_ = 0;            // the slot under the cursor: slot_of(base_)
   time_fs floor_ = 0;              // the last instant taken: no push is earlier
   std::size_t pos_ = 0;            // next entry of the (sorted) cursor slot
   std::size_t size_ = 0, in_wheel_ = 0;
@@ -77,7 +80,7 @@ class event_queue {
 
 // The queue's insert is on the per-event path: defined here so it inlines.
 [[gnu::always_inline]] inline void event_queue::put(const queued_event& e) {
-  const auto slot = static_cast<std::size_t>((e.time >> width_bits_) & (slots - 1));
+  const auto slot = slot_of(e.time);
   auto& v = wheel_[slot];
   if (slot == cursor_slot() && sorted_) {
     // The slot under the cursor is sorted from pos_ on: insert in order.
@@ -103,7 +106,7 @@ class event_queue {
     // The cursor looked ahead over empty slots and an earlier instant (an
     // input change) scheduled before it. Every wheel entry lies within the
     // window of floor_, so turning the cursor back keeps the circular order.
-    base_ = (e.time >> width_bits_) << width_bits_;
+    move_cursor(e.time);
     pos_ = 0;
     sorted_ = false;
   }
