@@ -12,13 +12,10 @@ import subprocess
 import sys
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import fail, failures  # noqa: E402
+from settle_test import fail, failures, iscas_dir  # noqa: E402
 
 settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
-iscas = os.path.normpath(os.path.join(src, "..", "shared", "data", "iscas"))
-if not os.path.isfile(os.path.join(iscas, "stats.csv")):
-    print(f"SKIP: {iscas} is absent; the ISCAS checks need the shared benchmark folder")
-    sys.exit(77)
+iscas = iscas_dir(src, must_hold="stats.csv")  # ../shared/data/iscas; exits 77 (skipped) without it
 
 
 with open(os.path.join(iscas, "stats.csv"), newline="") as f:

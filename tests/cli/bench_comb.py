@@ -13,13 +13,10 @@ import sys
 import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import fail, failures, json_steps  # noqa: E402
+from settle_test import fail, failures, iscas_dir, json_steps, write_file  # noqa: E402
 
 settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
-iscas = os.path.normpath(os.path.join(src, "..", "shared", "data", "iscas"))
-if not os.path.isdir(iscas):
-    print(f"SKIP: {iscas} is absent; the ISCAS checks need the shared benchmark folder")
-    sys.exit(77)
+iscas = iscas_dir(src)  # ../shared/data/iscas; exits 77 (skipped) when it is absent
 sys.path.insert(0, os.path.join(src, "scripts"))
 from bench_reference import Circuit  # noqa: E402 (reads the file's lines; no evaluation)
 from sympy import And, Nand, Nor, Not, Or, Symbol, Xor, false, true  # noqa: E402
@@ -93,9 +90,7 @@ with tempfile.TemporaryDirectory() as tmp:
             lines.append(("    at 0ns " if k == 0 else "    after 10ns ") + assigns)
             lines.append("    settle")
         lines.append("}")
-        stim = os.path.join(tmp, name + ".stim")
-        with open(stim, "w") as f:
-            f.write("\n".join(lines) + "\n")
+        stim = write_file(tmp, name + ".stim", "\n".join(lines) + "\n")
         want = [sympy_eval(c, model, v) for v in vectors]
         if name == "c17" and want != [whole_function_eval(c, v) for v in vectors]:
             fail("c17: gate-by-gate and whole-expression sympy evaluations disagree")

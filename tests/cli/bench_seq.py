@@ -16,13 +16,10 @@ import sys
 import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import fail, failures, json_steps  # noqa: E402
+from settle_test import fail, failures, iscas_dir, json_steps, write_file  # noqa: E402
 
 settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
-iscas = os.path.normpath(os.path.join(src, "..", "shared", "data", "iscas"))
-if not os.path.isdir(iscas):
-    print(f"SKIP: {iscas} is absent; the ISCAS checks need the shared benchmark folder")
-    sys.exit(77)
+iscas = iscas_dir(src)  # ../shared/data/iscas; exits 77 (skipped) when it is absent
 sys.path.insert(0, os.path.join(src, "scripts"))
 from bench_reference import Circuit, clocked_run  # noqa: E402
 
@@ -58,9 +55,7 @@ with tempfile.TemporaryDirectory() as tmp:
             continue
         vectors = [{i: rng.randint(0, 1) for i in c.inputs} for _ in range(CYCLES)]
         want = clocked_run(c, vectors)
-        stim = os.path.join(tmp, name + ".stim")
-        with open(stim, "w") as f:
-            f.write(stimulus(c, vectors))
+        stim = write_file(tmp, name + ".stim", stimulus(c, vectors))
         changes = sum(fmt(b, c.outputs) != fmt(a, c.outputs) for b, a, _ in want)
         qs = list(c.dffs)
         moves = sum(fmt(want[k][2], qs) != fmt(want[k - 1][2] if k else {q: 0 for q in qs}, qs)

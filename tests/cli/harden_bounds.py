@@ -5,38 +5,23 @@ Each ends quickly with a clear message, a finding (exit 1) or a refusal (exit 2,
 exhaustive rule) and a valid report; never a hang. The state count of n independent toggling
 C-element stages grows as 2^n (combinatorics: each stage is in one of two states), so a
 budget of 10 states must stop a four-stage explore."""
+import functools
 import json
 import os
 import subprocess
 import sys
 import tempfile
-import time
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, failures  # noqa: E402
+from settle_test import check, failures, run_bounded, write_file  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 tmp = tempfile.mkdtemp(prefix="settle-harden-bounds-")
 
 
-def write(name, text):
-    path = os.path.join(tmp, name)
-    with open(path, "w") as f:
-        f.write(text)
-    return path
-
-
-def run(what, args, want, limit=60):
-    t0 = time.monotonic()
-    try:
-        p = subprocess.run([settle, *args], capture_output=True, text=True, timeout=limit)
-    except subprocess.TimeoutExpired:
-        check(False, f"{what}: did not finish within {limit} s")
-        return None, "", "", limit
-    el = time.monotonic() - t0
-    print(f"{what}: exit {p.returncode} in {el:.2f} s")
-    check(p.returncode in want, f"{what}: exit {sorted(want)} (got {p.returncode}; {p.stderr[-400:]!r})")
-    return p.returncode, p.stdout, p.stderr, el
+write = functools.partial(write_file, tmp)
+# run(what, args, want, limit=60): (exit status, stdout, stderr, seconds), the status checked against `want`.
+run = functools.partial(run_bounded, settle, limit=60)
 
 
 def load(path, what):
@@ -48,13 +33,20 @@ def load(path, what):
         return None
 
 
+def run_report(what, args, want, name, label, limit=60):
+    """run() with `--json tmp/name` added; returns (exit status, stdout, stderr, seconds, the
+    report loaded, or None after a failure named `label`)."""
+    out = os.path.join(tmp, name)
+    rc, so, se, el = run(what, [*args, "--json", out], want, limit=limit)
+    return rc, so, se, el, load(out, label)
+
+
 # A clocked strobe (demo scenario: a sensor sampling strobe) left running for a second of
 # simulated time: about 2 x 10^12 edges, so only the event limit can stop it soon.
 strobe = write("strobe.settle", "input clk\noutput s\nwire s_n\ns_n = not(clk) delay 20ps\ns = not(s_n) delay 20ps\n"
                "stimulus {\n  clock clk period 1ns\n  run 1000ms\n}\n")
-out = os.path.join(tmp, "run.json")
-rc, so, se, _ = run("run --max-events 10000", ["run", strobe, "--max-events", "10000", "--json", out], {1})
-j = load(out, "run --max-events")
+*_, j = run_report("run --max-events 10000", ["run", strobe, "--max-events", "10000"], {1},
+                   "run.json", "run --max-events")
 if j:
     st = j["steps"][-1]
     check(st["status"] == "event_limit", f"run: the step ends at the event limit ({st['status']})")
@@ -63,10 +55,8 @@ if j:
 rc, so, se, _ = run("run --max-events, table", ["run", strobe, "--max-events", "10000"], {1})
 check("event" in (so + se).lower() and "limit" in (so + se).lower(), f"run: says the event limit stopped it ({so[-300:]!r})")
 
-out = os.path.join(tmp, "sweep.json")
-rc, so, se, _ = run("sweep --max-events 5000", ["sweep", strobe, "--corners", "extremes+random:50",
-                                                   "--max-events", "5000", "--json", out], {1})
-j = load(out, "sweep --max-events")
+*_, j = run_report("sweep --max-events 5000", ["sweep", strobe, "--corners", "extremes+random:50",
+                                               "--max-events", "5000"], {1}, "sweep.json", "sweep --max-events")
 if j:
     statuses = {o["status"] for s in j["steps"] for o in s["outcomes"]}
     check(statuses == {"event_limit"}, f"sweep: every corner stops at the event limit ({statuses})")
@@ -77,9 +67,8 @@ if j:
 ring = os.path.join(src, "examples", "delay_ring.settle")
 ring_free = write("ring_settle.settle", open(ring).read().split("stimulus")[0] +
                   "stimulus {\n  at 0ns enable = 0\n  settle\n  after 1ns enable = 1\n  settle\n}\n")
-out = os.path.join(tmp, "horizon.json")
-rc, so, se, _ = run("run --horizon 100ps", ["run", ring_free, "--horizon", "100ps", "--json", out], {1})
-j = load(out, "run --horizon")
+*_, j = run_report("run --horizon 100ps", ["run", ring_free, "--horizon", "100ps"], {1},
+                   "horizon.json", "run --horizon")
 if j:
     st = j["steps"][-1]
     check(st["status"] == "timeout", f"horizon: the enabled ring times out ({st['status']})")
@@ -96,9 +85,8 @@ for k in range(4):
 lines += ["init " + ", ".join(f"q{k} = 0, m{k} = 1" for k in range(4)),
           "stimulus {", "  at 0ns go = 0", "  settle", "  after 1ns go = 1", "  settle", "}"]
 bank = write("toggle_bank.settle", "\n".join(lines) + "\n")
-out = os.path.join(tmp, "explore.json")
-rc, so, se, _ = run("explore --max-states 10", ["explore", bank, "--max-states", "10", "--json", out], {1})
-j = load(out, "explore --max-states")
+rc, so, se, _, j = run_report("explore --max-states 10", ["explore", bank, "--max-states", "10"], {1},
+                              "explore.json", "explore --max-states")
 if j:
     st = j["steps"][-1]
     check(st["complete"] is False and "stopped" in st, f"explore: the step is incomplete and says why ({st.get('stopped')})")

@@ -6,31 +6,22 @@ their per-corner results (about 20 bytes per corner and step) before any corner 
 refuse an oversized run at once (exit 2), as they refuse more than 2^20 exhaustive corners.
 
 Called by ctest as: harden_memory.py <settle binary> <source dir>."""
+import functools
 import json
 import os
 import shutil
 import sys
 import tempfile
-import time
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, run_settle, summary  # noqa: E402
+from settle_test import check, run_timed, summary, write_file  # noqa: E402
 
 settle = sys.argv[1]
 tmp = tempfile.mkdtemp(prefix="settle-harden-memory-")
 
 
-def write(name, text):
-    path = os.path.join(tmp, name)
-    with open(path, "w") as f:
-        f.write(text)
-    return path
-
-
-def run(*args):
-    t0 = time.monotonic()
-    rc, so, se = run_settle(settle, *args, timeout=120)
-    return rc, so, se, time.monotonic() - t0
+write = functools.partial(write_file, tmp)
+run = functools.partial(run_timed, settle, timeout=120)  # (exit status, stdout, stderr, seconds)
 
 
 def load(path, what):

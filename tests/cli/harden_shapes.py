@@ -5,40 +5,23 @@ zero-delay loops. Each must end with a clean status (0, 1 or 2 as stated) well w
 time bound: never a crash (a signal, or the 134/139 of an abort or segfault), never a hang.
 2^64 = 18446744073709551616 (arithmetic); a ring of one inverting gate with zero delay has
 period 0 (common practice: its state repeats at the same instant)."""
+import functools
 import json
 import os
-import subprocess
 import sys
 import tempfile
-import time
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, failures  # noqa: E402
+from settle_test import check, failures, run_bounded, write_file  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 tmp = tempfile.mkdtemp(prefix="settle-harden-shapes-")
 
 
-def write(name, text):
-    path = os.path.join(tmp, name)
-    with open(path, "w") as f:
-        f.write(text)
-    return path
-
-
-def run(what, args, want, limit=120):
-    """Runs settle; checks the exit status is in `want` and it ended within `limit` seconds."""
-    t0 = time.monotonic()
-    try:
-        p = subprocess.run([settle, *args], capture_output=True, text=True, timeout=limit, errors="replace")
-    except subprocess.TimeoutExpired:
-        check(False, f"{what}: did not finish within {limit} s")
-        return None, "", ""
-    el = time.monotonic() - t0
-    print(f"{what}: exit {p.returncode} in {el:.1f} s")
-    check(p.returncode >= 0 and p.returncode not in (134, 139), f"{what}: no crash (status {p.returncode}, {p.stderr[-300:]!r})")
-    check(p.returncode in want, f"{what}: exit {sorted(want)} (got {p.returncode}; {p.stderr[-400:]!r})")
-    return p.returncode, p.stdout, p.stderr
+write = functools.partial(write_file, tmp)
+# run(what, args, want, limit=120): settle must end within `limit` seconds, without a crash, with a
+# status in `want`; returns (exit status, stdout, stderr, seconds).
+run = functools.partial(run_bounded, settle, limit=120, no_crash=True, places=1, errors="replace")
 
 
 # 10,000 levels of block instances: each level wraps the one below it.
@@ -77,10 +60,10 @@ with open(os.path.join(tmp, "chain.settle"), "w") as f:
     # An even number of inverters: y follows a.
     f.write("stimulus {\n  at 0ns a = 0\n  settle\n  expect y = 0\n  after 1ns a = 1\n  settle\n  expect y = 1\n}\n")
 chain = os.path.join(tmp, "chain.settle")
-rc, so, _ = run("a 1,000,000-gate chain, check", ["check", chain, "--json", "-"], {0}, limit=300)
+rc, so, _, _ = run("a 1,000,000-gate chain, check", ["check", chain, "--json", "-"], {0}, limit=300)
 if rc == 0:
     check(json.loads(so)["gates"] == n, "the chain has 1,000,000 gates")
-rc, so, _ = run("a 1,000,000-gate chain, run", ["run", chain, "--horizon", "1ms", "--json", "-"], {0}, limit=300)
+rc, so, _, _ = run("a 1,000,000-gate chain, run", ["run", chain, "--horizon", "1ms", "--json", "-"], {0}, limit=300)
 if rc == 0:
     j = json.loads(so)
     # Each step's settle time is the chain's length x 10ps.
@@ -92,13 +75,13 @@ ident = write("big_ident.settle", f"input {big}\noutput y\ny = not({big}) delay 
               f"stimulus {{\n  at 0ns {big} = 1\n  settle\n  expect y = 0\n}}\n")
 run("a 10 MB identifier", ["run", ident], {0})
 wrong = write("big_ident_wrong.settle", f"input {big}\noutput y\ny = not({big}x) delay 10ps\n")
-rc, _, se = run("a 10 MB identifier, misspelt", ["check", wrong], {2})
+rc, _, se, _ = run("a 10 MB identifier, misspelt", ["check", wrong], {2})
 check(len(se) < 64 * 1024 * 1024, f"the message about it stays bounded ({len(se)} bytes)")
 
 # Deeply nested expressions: 100,000 parentheses must give a clean error or a success.
 depth = 100000
 paren = write("parens.settle", "input a\noutput y\ny = " + "(" * depth + "a" + ")" * depth + " delay 10ps\n")
-rc, _, se = run("100,000 nested parentheses", ["check", paren], {0, 2})
+rc, _, se, _ = run("100,000 nested parentheses", ["check", paren], {0, 2})
 if rc == 2:
     check(":3:" in se, f"the error points at line 3 ({se[:300]!r})")
 tilde = write("tildes.settle", "input a\noutput y\ny = " + "~" * depth + "a delay 10ps\n")
@@ -109,11 +92,11 @@ run("an expression of 100,000 operands", ["check", chained], {0, 2})
 # A design that instantiates itself, directly and through a ring of 1,000 blocks.
 selfish = write("self.settle", "block loop(in a; out y) {\n  inst again loop(a: a, y: y)\n}\n"
                 "input a\noutput y\ninst top loop(a: a, y: y)\n")
-rc, _, se = run("a block that places itself", ["check", selfish], {2})
+rc, _, se, _ = run("a block that places itself", ["check", selfish], {2})
 check("recursive" in se, f"says recursive ({se[:300]!r})")
 lines = [f"block r{k}(in a; out y) {{\n  inst i r{(k + 1) % 1000}(a: a, y: y)\n}}" for k in range(1000)]
 ring = write("self_ring.settle", "\n".join(lines) + "\ninput a\noutput y\ninst top r0(a: a, y: y)\n")
-rc, _, se = run("a ring of 1,000 blocks placing each other", ["check", ring], {2})
+rc, _, se, _ = run("a ring of 1,000 blocks placing each other", ["check", ring], {2})
 check("recursive" in se, f"says recursive ({se[:300]!r})")
 
 # Time literals beyond 2^64 fs (= 18446744073709551616 fs, about 18446.7 s).
@@ -121,7 +104,7 @@ for what, text in (("a delay of 2^64 fs", "y = not(a) delay 18446744073709551616
                    ("a delay of 10^30 ns", "y = not(a) delay 1000000000000000000000000000000ns"),
                    ("a rise of 2^64 fs", "y = not(a) rise 18446744073709551616fs fall 1ps")):
     path = write("overflow.settle", f"input a\noutput y\n{text}\n")
-    rc, _, se = run(what, ["check", path], {2})
+    rc, _, se, _ = run(what, ["check", path], {2})
     check(":3:" in se, f"{what}: the error has line 3 ({se[:300]!r})")
 stim_over = write("overflow_at.settle", "input a\noutput y\ny = not(a) delay 10ps\n"
                   "stimulus {\n  at 20000000000ms a = 1\n  settle\n}\n")
@@ -130,7 +113,7 @@ run("at 2 x 10^10 ms (beyond 2^64 fs)", ["check", stim_over], {2})
 # (open bug: the second step's start wraps to 553255926290458384 fs; tests/fuzz/bug_stim_time_wrap.settle).
 stim_sum = write("overflow_sum.settle", "input a\noutput y\ny = not(a) delay 10ps\nstimulus {\n"
                  "  at 18000000ms a = 1\n  settle\n  after 1000000ms a = 0\n  settle\n}\n")
-rc, so, _ = run("steps adding up beyond 2^64 fs", ["run", stim_sum, "--json", "-"], {0, 1, 2})
+rc, so, _, _ = run("steps adding up beyond 2^64 fs", ["run", stim_sum, "--json", "-"], {0, 1, 2})
 if rc in (0, 1):
     starts = [s["start_fs"] for s in json.loads(so)["steps"]]
     check(starts == sorted(starts), f"step times never wrap around ({starts})")
@@ -142,12 +125,12 @@ zchain = write("zero_chain.settle", "input a\noutput y\nwire m\nm = not(a) delay
 run("a zero-delay chain", ["run", zchain], {0})
 zloop = write("zero_loop.settle", "input en\noutput y\ny = nand(en, y) delay 0ps\n"
               "stimulus {\n  at 0ns en = 0\n  settle\n  after 1ns en = 1\n  settle\n}\n")
-rc, so, _ = run("a zero-delay loop", ["run", zloop, "--json", "-"], {1}, limit=60)
+rc, so, _, _ = run("a zero-delay loop", ["run", zloop, "--json", "-"], {1}, limit=60)
 if rc == 1:
     st = json.loads(so)["steps"][-1]
     check(st["status"] == "oscillating" and st.get("period_fs") == 0,
           f"the loop is reported oscillating with period 0 ({st})")
-rc, so, _ = run("a zero-delay loop, table", ["run", zloop], {1}, limit=60)
+rc, so, _, _ = run("a zero-delay loop, table", ["run", zloop], {1}, limit=60)
 check("oscillating" in so, "the table says oscillating")
 run("a zero-delay loop, sweep", ["sweep", zloop, "--corners", "extremes+random:20"], {1}, limit=60)
 

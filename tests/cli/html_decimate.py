@@ -12,6 +12,7 @@
   with that id holds the hatch line, and a net that is never x has no x area.
 Usage: html_decimate.py SETTLE_BINARY SOURCE_DIR
 """
+import functools
 import json
 import os
 import re
@@ -21,7 +22,7 @@ import sys
 import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, fail, run_settle, summary  # noqa: E402
+from settle_test import check, fail, run_settle, summary, write_file  # noqa: E402
 
 CHROMIUM = "/usr/bin/chromium"
 XMLLINT = shutil.which("xmllint")
@@ -29,11 +30,7 @@ settle = sys.argv[1]
 tmp = tempfile.mkdtemp(prefix="settle-html-decimate-")
 
 
-def write(name, text):
-    path = os.path.join(tmp, name)
-    with open(path, "w") as f:
-        f.write(text)
-    return path
+write = functools.partial(write_file, tmp)
 
 
 def page_data(path):

@@ -36,14 +36,23 @@ def expectation_failures(path):
 
 tmp = tempfile.mkdtemp(prefix="settle-junit-")
 
+
+def junit_and_json(cmd, args, xml_name, json_name):
+    """Runs `settle cmd race args` writing JUnit XML and JSON into tmp; checks the XML is
+    well-formed and has one expectation failure per expectation the JSON reports failing.
+    Returns (XML path, JSON report, failing count, the XML's expectation failures)."""
+    x = os.path.join(tmp, xml_name)
+    run(cmd, race, *args, "--junit", x, "--json", os.path.join(tmp, json_name))
+    check(well_formed(x), f"{cmd} JUnit is well-formed")
+    doc = json.load(open(os.path.join(tmp, json_name)))
+    failing = sum(1 for s in doc["steps"] for e in s["expect"] if not e["pass"])
+    fx = expectation_failures(x)
+    check(len(fx) == failing and failing > 0, f"{cmd}: {len(fx)} expectation failures vs {failing} in JSON")
+    return x, doc, failing, fx
+
+
 # run: a corner above the margin fails step 2's value expectation.
-x = os.path.join(tmp, "run.xml")
-rc, out, err = run("run", race, "--corner", "max", "--junit", x, "--json", os.path.join(tmp, "run.json"))
-check(well_formed(x), "run JUnit is well-formed")
-rj = json.load(open(os.path.join(tmp, "run.json")))
-failing = sum(1 for s in rj["steps"] for e in s["expect"] if not e["pass"])
-fx = expectation_failures(x)
-check(len(fx) == failing and failing > 0, f"run: {len(fx)} expectation failures vs {failing} in JSON")
+x, rj, failing, fx = junit_and_json("run", ["--corner", "max"], "run.xml", "run.json")
 check(all("settle run" in f.text and "--corner max" in f.text for f in fx), "run failures carry the replay command")
 root = ET.parse(x).getroot()
 suite = root.find("testsuite")
@@ -54,13 +63,7 @@ check(len(cases) == len(rj["steps"]) + n_expect, "a testcase per step and per ex
 check(int(suite.get("failures")) == sum(1 for c in cases if c.find("failure") is not None), "failures count")
 
 # sweep: per expectation, failing in any corner.
-x = os.path.join(tmp, "sweep.xml")
-rc, out, err = run("sweep", race, "--corners", "extremes+random:50", "--junit", x, "--json", os.path.join(tmp, "s.json"))
-check(well_formed(x), "sweep JUnit is well-formed")
-sj = json.load(open(os.path.join(tmp, "s.json")))
-failing = sum(1 for s in sj["steps"] for e in s["expect"] if not e["pass"])
-fx = expectation_failures(x)
-check(len(fx) == failing and failing > 0, f"sweep: {len(fx)} expectation failures vs {failing} in JSON")
+x, _, failing, fx = junit_and_json("sweep", ["--corners", "extremes+random:50"], "sweep.xml", "s.json")
 check(all("witness:" in f.text and "replay: settle run" in f.text for f in fx), "sweep failures name witness and replay")
 
 # margin: expectations judged at the written spread.

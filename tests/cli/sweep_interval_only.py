@@ -4,40 +4,18 @@
 # one gate is always faster and inconclusive when the two delay ranges overlap.
 #
 # Called by ctest as: sweep_interval_only.py <settle binary> <source dir>. Exit 77 = skipped.
-import json
 import os
-import shutil
 import sys
-import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, fail, run_settle as settle, summary  # noqa: E402
+from settle_test import check, json_report, released_latch, run_cases, run_settle as settle, write_file  # noqa: E402
 
 
 # A tank-valve interlock latch (our own scenario): both active-low controls are
 # held low, then released at the same instant.
 def valve_latch(a, b):
-    return f"""# valve.settle - tank-valve interlock latch, both controls released at once
-input  fill_n, drain_n
-output valve, valve_n
-valve   = nand(fill_n, valve_n)   delay {a}
-valve_n = nand(drain_n, valve)    delay {b}
-stimulus {{
-    at 0ns     fill_n = 0, drain_n = 0
-    settle
-    expect valve = 1, valve_n = 1
-    after 1ns  fill_n = 1, drain_n = 1
-    settle
-    expect valve = 0
-}}
-"""
-
-
-def write(tmp, name, text):
-    path = os.path.join(tmp, name)
-    with open(path, "w") as f:
-        f.write(text)
-    return path
+    return released_latch("valve.settle - tank-valve interlock latch", ("fill_n", "drain_n"),
+                          ("valve", "valve_n"), (a, b), last_expect="valve = 0")
 
 
 def sweep(binary, design, *extra):
@@ -46,12 +24,7 @@ def sweep(binary, design, *extra):
 
 
 def sweep_json(binary, design, spec):
-    rc, out, err = settle(binary, "sweep", design, "--corners", spec, "--json", "-")
-    try:
-        return rc, json.loads(out)
-    except json.JSONDecodeError:
-        fail(f"sweep {design} --corners {spec}: no JSON on stdout (rc={rc}): {err[:300]}")
-        return rc, None
+    return json_report(binary, ["sweep", design, "--corners", spec, "--json", "-"], f"sweep {design} --corners {spec}")
 
 
 def common_shape(doc, what):
@@ -64,18 +37,34 @@ def common_shape(doc, what):
               f"{what}: step {st['index']} has no interval object: {st.get('interval')}")
 
 
+def interval_run(binary, tmp, what, name, delays, want_rc, want_result):
+    """Writes the latch with `delays` and sweeps it with --corners interval alone; checks the
+    JSON shape and the exit status and result. Returns (design path, the report or None)."""
+    design = write_file(tmp, name, valve_latch(*delays))
+    rc, doc = sweep_json(binary, design, "interval")
+    if doc is None:
+        return design, None
+    common_shape(doc, what)
+    check(rc == want_rc and doc["result"] == want_result,
+          f"{what}: exit {rc}, result {doc['result']}, expected {want_rc} and {want_result}")
+    return design, doc
+
+
+def summary_says(out, what, expected):
+    """Checks the summary table `out` holds each text of `expected`, a list of (text, complaint)."""
+    for text, complaint in expected:
+        check(text in out, f"{what} summary {complaint}:\n{out}")
+
+
 def separated(binary, tmp):
     # valve (20..30ps) always falls before valve_n (40..60ps) can: valve_n stays
     # high and the latch ends at valve=0, valve_n=1 for every delay in range.
     # Min-max ambiguity simulation proves it in one run (Breuer and Friedman,
     # Diagnosis and Reliable Design of Digital Systems, 1976).
-    design = write(tmp, "valve_fast.settle", valve_latch("20ps..30ps", "40ps..60ps"))
-    rc, doc = sweep_json(binary, design, "interval")
+    design, doc = interval_run(binary, tmp, "non-overlapping", "valve_fast.settle", ("20ps..30ps", "40ps..60ps"),
+                               0, "pass")
     if doc is None:
         return
-    common_shape(doc, "non-overlapping")
-    check(rc == 0 and doc["result"] == "pass",
-          f"non-overlapping: exit {rc}, result {doc['result']}, expected 0 and pass")
     step = doc["steps"][1]
     check(step["verdict"] == "deterministic", f"non-overlapping: step 2 verdict {step['verdict']}")
     # Breuer and Friedman 1976: binary values at the end of the ambiguity run hold in every corner.
@@ -90,10 +79,9 @@ def separated(binary, tmp):
         check(vals == [step["interval"]["values"]], f"non-overlapping: sampled outcomes {vals} differ from the proof")
     rc, out, err = sweep(binary, design, "--corners", "interval")
     check(rc == 0, f"non-overlapping summary: exit {rc}: {err[:300]}")
-    check("proven: every delay assignment in range ends in the same state" in out,
-          f"non-overlapping summary does not say what was proven:\n{out}")
-    check("2 of 2 steps proven deterministic, 0 inconclusive" in out,
-          f"non-overlapping summary has no proven count:\n{out}")
+    summary_says(out, "non-overlapping",
+                 [("proven: every delay assignment in range ends in the same state", "does not say what was proven"),
+                  ("2 of 2 steps proven deterministic, 0 inconclusive", "has no proven count")])
 
 
 def overlapping(binary, tmp):
@@ -101,13 +89,10 @@ def overlapping(binary, tmp):
     # (common practice: a set/reset latch released from the forbidden state).
     # The ambiguity run leaves both outputs x (Breuer and Friedman 1976: x marks
     # a value the run cannot decide), so the step is inconclusive, not proven.
-    design = write(tmp, "valve_race.settle", valve_latch("40ps..60ps", "40ps..60ps"))
-    rc, doc = sweep_json(binary, design, "interval")
+    design, doc = interval_run(binary, tmp, "overlapping", "valve_race.settle", ("40ps..60ps", "40ps..60ps"),
+                               1, "findings")
     if doc is None:
         return
-    common_shape(doc, "overlapping")
-    check(rc == 1 and doc["result"] == "findings",
-          f"overlapping: exit {rc}, result {doc['result']}, expected 1 and findings")
     first, step = doc["steps"][0], doc["steps"][1]
     check(first["verdict"] == "deterministic" and first["interval"]["proven"],
           f"overlapping: step 1 (both controls low) should be proven: {first['verdict']} {first['interval']}")
@@ -120,10 +105,10 @@ def overlapping(binary, tmp):
           f"overlapping: the expectation valve = 0 should be reported not proven, without a corner count: {exp}")
     rc, out, err = sweep(binary, design, "--corners", "interval")
     check(rc == 1, f"overlapping summary: exit {rc}")
-    check("INCONCLUSIVE  not proven: the interval run leaves x on valve, valve_n" in out,
-          f"overlapping summary does not say what is inconclusive:\n{out}")
-    check("1 of 2 steps proven deterministic, 1 inconclusive" in out,
-          f"overlapping summary has no proven count:\n{out}")
+    summary_says(out, "overlapping",
+                 [("INCONCLUSIVE  not proven: the interval run leaves x on valve, valve_n",
+                   "does not say what is inconclusive"),
+                  ("1 of 2 steps proven deterministic, 1 inconclusive", "has no proven count")])
     # The report and the JUnit file accept a sweep without corners.
     html, junit = os.path.join(tmp, "race.html"), os.path.join(tmp, "race.xml")
     rc, out, err = sweep(binary, design, "--corners", "interval", "--html", html, "--junit", junit, "-q")
@@ -135,17 +120,7 @@ def overlapping(binary, tmp):
 
 
 def main():
-    if len(sys.argv) < 3:
-        print("usage: sweep_interval_only.py <settle> <source dir>")
-        return 2
-    binary = sys.argv[1]
-    tmp = tempfile.mkdtemp(prefix="settle-interval-only-")
-    try:
-        separated(binary, tmp)
-        overlapping(binary, tmp)
-    finally:
-        shutil.rmtree(tmp, ignore_errors=True)
-    return summary()
+    return run_cases([separated, overlapping], "settle-interval-only-")
 
 
 if __name__ == "__main__":

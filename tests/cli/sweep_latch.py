@@ -11,44 +11,20 @@ import os
 import shutil
 import subprocess
 import sys
-import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import fail, run_settle as settle, summary  # noqa: E402
+from settle_test import fail, json_report, released_latch, run_cases, run_settle as settle, write_file  # noqa: E402
 
 
 # A cabinet-door interlock latch (our own scenario): both active-low controls
 # are held low, then released at the same instant.
 def door_latch(a, b):
-    return f"""# door.settle - cabinet-door interlock latch, both controls released at once
-input  open_n, close_n
-output door, door_n
-door   = nand(open_n, door_n)   delay {a}
-door_n = nand(close_n, door)    delay {b}
-stimulus {{
-    at 0ns     open_n = 0, close_n = 0
-    settle
-    expect door = 1, door_n = 1
-    after 1ns  open_n = 1, close_n = 1
-    settle
-}}
-"""
-
-
-def write(tmp, name, text):
-    path = os.path.join(tmp, name)
-    with open(path, "w") as f:
-        f.write(text)
-    return path
+    return released_latch("door.settle - cabinet-door interlock latch", ("open_n", "close_n"),
+                          ("door", "door_n"), (a, b))
 
 
 def sweep_json(binary, design, *extra):
-    rc, out, err = settle(binary, "sweep", design, "--json", "-", *extra)
-    try:
-        return rc, json.loads(out)
-    except json.JSONDecodeError:
-        fail(f"sweep {design} {extra}: no JSON on stdout (rc={rc}): {err[:300]}")
-        return rc, None
+    return json_report(binary, ["sweep", design, "--json", "-", *extra], f"sweep {design} {extra}")
 
 
 UNIT_FS = {"s": 10**15, "ms": 10**12, "us": 10**9, "ns": 10**6, "ps": 10**3, "fs": 1}
@@ -70,7 +46,7 @@ def read_vcd(text):
 
 
 def overlapping(binary, tmp):
-    design = write(tmp, "door_overlap.settle", door_latch("40ps..60ps", "40ps..60ps"))
+    design = write_file(tmp, "door_overlap.settle", door_latch("40ps..60ps", "40ps..60ps"))
     vcd_dir = os.path.join(tmp, "witnesses")
     rc, doc = sweep_json(binary, design, "--corners", "random:400", "--vcd-dir", vcd_dir)
     if doc is None:
@@ -124,7 +100,7 @@ def overlapping(binary, tmp):
 
 def separated(binary, tmp):
     # door is always faster (20..30ps against 40..60ps): it falls first and holds door_n high.
-    design = write(tmp, "door_fast.settle", door_latch("20ps..30ps", "40ps..60ps"))
+    design = write_file(tmp, "door_fast.settle", door_latch("20ps..30ps", "40ps..60ps"))
     rc, doc = sweep_json(binary, design, "--corners", "extremes+random:300+gauss:100+interval")
     if doc is None:
         return
@@ -149,7 +125,7 @@ def separated(binary, tmp):
 def equal(binary, tmp):
     # Exactly equal fixed delays: both NANDs fall together and rise together
     # forever, period 2 x 50ps (common practice: the ideal model of metastability).
-    design = write(tmp, "door_tie.settle", door_latch("50ps", "50ps"))
+    design = write_file(tmp, "door_tie.settle", door_latch("50ps", "50ps"))
     rc, doc = sweep_json(binary, design, "--corners", "extremes+random:20")
     if doc is None:
         return
@@ -162,18 +138,7 @@ def equal(binary, tmp):
 
 
 def main():
-    if len(sys.argv) < 3:
-        print("usage: sweep_latch.py <settle> <source dir>")
-        return 2
-    binary = sys.argv[1]
-    tmp = tempfile.mkdtemp(prefix="settle-sweep-latch-")
-    try:
-        overlapping(binary, tmp)
-        separated(binary, tmp)
-        equal(binary, tmp)
-    finally:
-        shutil.rmtree(tmp, ignore_errors=True)
-    return summary()
+    return run_cases([overlapping, separated, equal], "settle-sweep-latch-")
 
 
 if __name__ == "__main__":
