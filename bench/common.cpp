@@ -37,6 +37,13 @@ const design* cached_design(const std::string& path, std::string* error) {
   return cache.emplace(path, std::make_unique<design>(std::move(*d))).first->second.get();
 }
 
+const design* design_or_skip(benchmark::State& st, const std::string& path) {
+  std::string error;
+  const design* d = cached_design(path, &error);
+  if (!d) st.SkipWithError(error.c_str());
+  return d;
+}
+
 namespace {
 
 std::uint64_t status_field(const char* key) {

@@ -5,6 +5,8 @@
 #include <string>
 #include <vector>
 
+#include <benchmark/benchmark.h>
+
 #include "sim/design.hpp"
 #include "sim/kernel.hpp"
 
@@ -26,6 +28,9 @@ struct config {
 /// Loads `path` once per process and keeps it; returns null and sets *error
 /// (a short reason) when the file is absent or does not load.
 const design* cached_design(const std::string& path, std::string* error);
+
+/// cached_design, or null after marking the benchmark skipped with the reason.
+const design* design_or_skip(benchmark::State& st, const std::string& path);
 
 /// Resident set size of this process in bytes (VmRSS from /proc/self/status).
 std::uint64_t resident_bytes();

@@ -11,11 +11,8 @@ namespace {
 
 void explore_states(benchmark::State& st, std::string path) {
   std::string error;
-  const design* d = cached_design(path, &error);
-  if (!d) {
-    st.SkipWithError(error.c_str());
-    return;
-  }
+  const design* d = design_or_skip(st, path);
+  if (!d) return;
   std::uint64_t states = 0, edges = 0;
   bool complete = true;
   for (auto _ : st) {

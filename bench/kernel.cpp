@@ -13,11 +13,8 @@ namespace {
 // the design's stimulus run again and again; parsing happens before timing.
 void kernel_run(benchmark::State& st, std::string path) {
   std::string error;
-  const design* d = cached_design(path, &error);
-  if (!d) {
-    st.SkipWithError(error.c_str());
-    return;
-  }
+  const design* d = design_or_skip(st, path);
+  if (!d) return;
   delay_table table;
   fill_delays(d->nets, *parse_corner("random:1", &error), table);
   run_context ctx(d->nets);

@@ -2,6 +2,7 @@
 #include <benchmark/benchmark.h>
 
 #include <chrono>
+#include <optional>
 #include <string>
 
 #include "bench/common.hpp"
@@ -13,18 +14,18 @@ namespace {
 
 constexpr std::uint64_t corners = 1000;
 
-void sweep_threads(benchmark::State& st, std::string path, unsigned threads) {
+std::optional<sweep_plan> plan_or_skip(benchmark::State& st, const design& d) {
   std::string error;
-  const design* d = cached_design(path, &error);
-  if (!d) {
-    st.SkipWithError(error.c_str());
-    return;
-  }
-  const auto plan = plan_sweep("random:" + std::to_string(corners), 1, d->nets.gate_count(), &error);
-  if (!plan) {
-    st.SkipWithError(error.c_str());
-    return;
-  }
+  auto plan = plan_sweep("random:" + std::to_string(corners), 1, d.nets.gate_count(), &error);
+  if (!plan) st.SkipWithError(error.c_str());
+  return plan;
+}
+
+void sweep_threads(benchmark::State& st, std::string path, unsigned threads) {
+  const design* d = design_or_skip(st, path);
+  if (!d) return;
+  const auto plan = plan_or_skip(st, *d);
+  if (!plan) return;
   sweep_options opt;
   opt.threads = threads;
   std::uint64_t done = 0, events = 0;
@@ -46,17 +47,10 @@ void sweep_threads(benchmark::State& st, std::string path, unsigned threads) {
 // simulator::reset. The set-up is timed on its own (fill_delays, then an
 // extra reset) and compared with the whole corner (fill_delays + run_stimulus).
 void sweep_setup(benchmark::State& st, std::string path) {
-  std::string error;
-  const design* d = cached_design(path, &error);
-  if (!d) {
-    st.SkipWithError(error.c_str());
-    return;
-  }
-  const auto plan = plan_sweep("random:" + std::to_string(corners), 1, d->nets.gate_count(), &error);
-  if (!plan) {
-    st.SkipWithError(error.c_str());
-    return;
-  }
+  const design* d = design_or_skip(st, path);
+  if (!d) return;
+  const auto plan = plan_or_skip(st, *d);
+  if (!plan) return;
   using clock = std::chrono::steady_clock;
   run_context ctx(d->nets);
   delay_table table;

@@ -23,11 +23,8 @@ constexpr std::size_t batch = 1 << 14;            // the kernel's trace batch si
 // to a fresh writer and writes the file (a temporary file: page cache, no sync).
 void vcd_write(benchmark::State& st, std::string path) {
   std::string error;
-  const design* d = cached_design(path, &error);
-  if (!d) {
-    st.SkipWithError(error.c_str());
-    return;
-  }
+  const design* d = design_or_skip(st, path);
+  if (!d) return;
   delay_table table;
   fill_delays(d->nets, *parse_corner("random:1", &error), table);
   recording_sink rec(keep_changes);

@@ -109,9 +109,6 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
 /// a scaled copy and `settle run --corner NAME@w` stop at the same time.
 time_fs default_horizon(const netlist& n);
 
-/// "expect q = 1", "settle within 2ns", "expect no glitch on q", ...
-std::string expectation_words(const netlist& n, const expectation& e);
-
 /// A spread as a percentage with at most two decimals: 0.19 -> "19%".
 std::string spread_percent(double w);
 

@@ -64,4 +64,8 @@ struct stimulus {
   std::vector<net_id> watch;   ///< nets reported besides the outputs
 };
 
+/// An expectation in the words of the language: "expect q = 1", "settle within
+/// 2ns", "expect oscillating period 9ns..11ns", "expect no glitch on q", ...
+std::string expectation_words(const netlist& n, const expectation& e);
+
 }  // namespace settle

@@ -32,21 +32,6 @@ std::string file_stem(const std::string& path) {
   return base.empty() ? "top" : base;
 }
 
-std::string expect_words(const netlist& n, const expectation& e) {
-  const auto ref = e.ref.empty() ? n.net_name[e.net] : e.ref;
-  switch (e.what) {
-    case expectation::kind::value: return fmt::format("expect {} = {}", ref, to_char(e.want));
-    case expectation::kind::stable: return "expect stable";
-    case expectation::kind::within: return fmt::format("settle within {}", format_time(e.hi));
-    case expectation::kind::oscillating:
-      return e.has_range ? fmt::format("expect oscillating, period {}..{}", format_time(e.lo), format_time(e.hi))
-                         : std::string("expect oscillating");
-    case expectation::kind::no_glitch: return fmt::format("expect no glitch on {}", ref);
-    case expectation::kind::deterministic: return "expect deterministic";
-  }
-  return "expect";
-}
-
 bool parse_horizon_option(const std::string& text, time_fs& out) {
   if (text.empty()) return true;
   std::string err;

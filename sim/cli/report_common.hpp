@@ -26,10 +26,6 @@ std::string logic_text(logic v);
 /// "within", "no_glitch" or "deterministic".
 const char* expect_kind_word(expectation::kind k);
 
-/// An expectation in words as the tables print it: "expect q = 1",
-/// "settle within 2ns", "expect oscillating, period 1ns..2ns", ...
-std::string expect_words(const netlist& n, const expectation& e);
-
 /// The design file's name without folder and extension ("top" when that is
 /// empty): the scope name of a VCD dump.
 std::string file_stem(const std::string& path);

@@ -101,7 +101,7 @@ std::string result_json(const design& d, const run_result& r, const std::string&
 
 std::string expect_text(const netlist& n, const step_result& s, const expect_result& x) {
   const auto& e = *x.spec;
-  const std::string words = expect_words(n, e);
+  const std::string words = expectation_words(n, e);
   if (e.what == expectation::kind::value) return fmt::format("{}: got {}", words, to_char(x.got));
   if (e.what == expectation::kind::within) return fmt::format("{}: took {}", words, format_time(s.settle));
   return words;

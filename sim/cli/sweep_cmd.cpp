@@ -177,7 +177,7 @@ std::string interval_only_step(const netlist& n, const sweep_result& r, const sw
   }
   if (!vals.empty()) out += fmt::format("       values  {}\n", vals);
   for (const auto& x : s.expects) {
-    const std::string what = expect_words(n, *x.spec);
+    const std::string what = expectation_words(n, *x.spec);
     if (x.pass()) out += fmt::format("  {}  {}: proven for all delays in range\n", paint("pass", true), what);
     else out += fmt::format("  {}  {}: not proven ({})\n", paint("UNPROVEN", false), what, x.detail);
   }
@@ -241,7 +241,7 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
       out += fmt::format("       replay  {}\n", replay(o, oc.witness_name));
     }
     for (const auto& x : s.expects) {
-      const std::string what = expect_words(n, *x.spec);
+      const std::string what = expectation_words(n, *x.spec);
       if (x.pass()) {
         out += fmt::format("  {}  {} in every corner\n", paint("pass", true), what);
       } else {
