@@ -395,9 +395,10 @@ void simulator::gather_pending(std::vector<std::pair<std::uint64_t, std::uint64_
     const gate_rec& r = gate_[e.gate];
     if (!r.transport && r.pend != none && r.gen == e.gen) out.push_back(pending_key(e.time - now_, e.gate, r.pend));
   });
-  for (gate_id g = 0; g < n_.gate_count(); ++g)
-    if (slot_[g] != no_id)
-      for (const auto& e : tq_[slot_[g]]) out.push_back(pending_key(e.time - now_, g, e.value));
+  if (!tq_.empty())
+    for (gate_id g = 0; g < n_.gate_count(); ++g)
+      if (slot_[g] != no_id)
+        for (const auto& e : tq_[slot_[g]]) out.push_back(pending_key(e.time - now_, g, e.value));
   std::sort(out.begin(), out.end());
 }
 
