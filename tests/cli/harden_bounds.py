@@ -10,13 +10,12 @@ import json
 import os
 import subprocess
 import sys
-import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, failures, run_bounded, write_file  # noqa: E402
+from settle_test import check, failures, run_bounded, write_file, scratch  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
-tmp = tempfile.mkdtemp(prefix="settle-harden-bounds-")
+tmp = scratch("settle-harden-bounds-")
 
 
 write = functools.partial(write_file, tmp)

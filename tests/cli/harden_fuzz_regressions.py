@@ -6,12 +6,14 @@ import os
 import shutil
 import subprocess
 import sys
-import tempfile
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from settle_test import scratch  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 folder = os.path.join(src, "tests", "fuzz", "regressions")
 failures = []
-tmp = tempfile.mkdtemp(prefix="settle-harden-fuzzreg-")
+tmp = scratch("settle-harden-fuzzreg-")
 files = sorted(f for f in os.listdir(folder) if not f.startswith(".") and f != "README.md")
 if not files:
     print("no regression inputs yet")

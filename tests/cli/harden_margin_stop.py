@@ -8,18 +8,17 @@ import os
 import signal
 import subprocess
 import sys
-import tempfile
 import time
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, summary  # noqa: E402
+from settle_test import check, summary, scratch  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 design = os.path.join(src, "examples", "sensor_watchdog.settle")
 # Sized to run for well over ten seconds on a fast machine (about 17 s of two cores here), so the
 # stop always lands mid-search; the per-corner results it keeps cost about 0.4 GB.
 slow = ["--corners", "random:6000000", "--threads", "2", "-q"]
-tmp = tempfile.mkdtemp(prefix="settle-margin-stop-")
+tmp = scratch("settle-margin-stop-")
 
 # --timeout: the search stops itself.
 out, base = os.path.join(tmp, "t.json"), os.path.join(tmp, "t.baseline.json")

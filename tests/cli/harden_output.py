@@ -11,7 +11,7 @@ import sys
 import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, failures  # noqa: E402
+from settle_test import check, failures, scratch  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 data = os.path.join(src, "tests", "data")
@@ -24,7 +24,7 @@ def run(args, **kw):
     return p.returncode, p.stdout, p.stderr
 
 
-tmp = tempfile.mkdtemp(prefix="settle-harden-out-")
+tmp = scratch("settle-harden-out-")
 plain = os.path.join(tmp, "plain_file")
 with open(plain, "w") as f:
     f.write("not a folder\n")

@@ -8,10 +8,9 @@ import errno
 import os
 import subprocess
 import sys
-import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, failures  # noqa: E402
+from settle_test import check, failures, scratch  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 lamp = os.path.join(src, "tests", "data", "lamp_panel.settle")
@@ -34,7 +33,7 @@ def leftovers(folder):
     return [n for n in os.listdir(folder) if ".tmp." in n]
 
 
-tmp = tempfile.mkdtemp(prefix="settle-harden-mount-")
+tmp = scratch("settle-harden-mount-")
 try:
     full = os.path.join(tmp, "full")
     os.mkdir(full)

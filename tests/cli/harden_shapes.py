@@ -9,13 +9,12 @@ import functools
 import json
 import os
 import sys
-import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, failures, run_bounded, write_file  # noqa: E402
+from settle_test import check, failures, run_bounded, write_file, scratch  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
-tmp = tempfile.mkdtemp(prefix="settle-harden-shapes-")
+tmp = scratch("settle-harden-shapes-")
 
 
 write = functools.partial(write_file, tmp)

@@ -7,16 +7,15 @@ import os
 import signal
 import subprocess
 import sys
-import tempfile
 import time
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, failures  # noqa: E402
+from settle_test import check, failures, scratch  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 
 
-tmp = tempfile.mkdtemp(prefix="settle-harden-signal-")
+tmp = scratch("settle-harden-signal-")
 # A bank of delay-monitor rings (demo scenario): every corner runs each ring for 20ns, so a
 # sweep of a million corners takes far longer than the test waits.
 rings = 40

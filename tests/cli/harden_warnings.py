@@ -5,13 +5,12 @@ with 100,000 errors prints at most 50 and a like line. Exit codes stay 0 and 2."
 import os
 import re
 import sys
-import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, failures, run_settle, write_file  # noqa: E402
+from settle_test import check, failures, run_settle, write_file, scratch  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
-tmp = tempfile.mkdtemp(prefix="settle-harden-warn-")
+tmp = scratch("settle-harden-warn-")
 
 
 def flood(name, text, what, kind, want_rc, shown_max):

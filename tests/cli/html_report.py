@@ -20,10 +20,9 @@ import os
 import re
 import subprocess
 import sys
-import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, failures  # noqa: E402
+from settle_test import check, failures, scratch  # noqa: E402
 
 CHROMIUM = "/usr/bin/chromium"
 settle, src = sys.argv[1], sys.argv[2]
@@ -32,7 +31,7 @@ if not os.path.exists(CHROMIUM):
     sys.exit(77)
 
 
-tmp = tempfile.mkdtemp(prefix="settle-html-")
+tmp = scratch("settle-html-")
 artefacts = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(settle))), "test-artefacts")
 os.makedirs(artefacts, exist_ok=True)
 arbiter = os.path.join(src, "examples", "arbiter.settle")

@@ -4,10 +4,9 @@ import json
 import os
 import re
 import sys
-import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, failures, runner  # noqa: E402
+from settle_test import check, failures, runner, scratch  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 data = os.path.join(src, "tests", "data")
@@ -17,7 +16,7 @@ design = os.path.join(data, "lamp_panel.settle")
 run = runner(settle, 120)
 
 
-tmp = tempfile.mkdtemp(prefix="settle-run-json-")
+tmp = scratch("settle-run-json-")
 out = os.path.join(tmp, "r.json")
 
 # --version: "settle <version>" (issue 2), exit 0.
@@ -112,7 +111,7 @@ for args, what in ((["run", os.path.join(data, "lamp_panel_bad.settle")], "synta
                    (["run", design, "--no-such-option"], "unknown option"),
                    (["run"], "missing design"),
                    ([], "no command")):
-    clean = tempfile.mkdtemp(prefix="settle-err-")
+    clean = scratch("settle-err-")
     j2, v2 = os.path.join(clean, "x.json"), os.path.join(clean, "x.vcd")
     extra = ["--json", j2, "--vcd", v2] if args and args[0] == "run" else []
     rc, so, se = run(*args, *extra)

@@ -7,10 +7,9 @@ import re
 import shutil
 import subprocess
 import sys
-import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, failures  # noqa: E402
+from settle_test import check, failures, scratch  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 if shutil.which("sigrok-cli") is None:
@@ -130,7 +129,7 @@ def value_at(changes, t):
 
 
 def compare(design, extra, name):
-    tmp = tempfile.mkdtemp(prefix="settle-vcd-")
+    tmp = scratch("settle-vcd-")
     vcd, js = os.path.join(tmp, name + ".vcd"), os.path.join(tmp, name + ".json")
     p = subprocess.run([settle, "run", design, "--vcd", vcd, "--json", js, "-q", *extra], capture_output=True, text=True)
     check(p.returncode in (0, 1), f"{name}: run exits 0 or 1 ({p.returncode}, {p.stderr.strip()})")

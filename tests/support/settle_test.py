@@ -6,6 +6,7 @@ the shared ISCAS folder, and the closing count. A test puts this folder on sys.p
     from settle_test import check, failures, runner  # noqa: E402
 
 `failures` is one list shared by every helper; a test reads it (never rebinds it)."""
+import atexit
 import json
 import os
 import shutil
@@ -142,6 +143,13 @@ def summary():
         return 1
     print("ok")
     return 0
+
+
+def scratch(prefix):
+    """A temporary folder named with `prefix`, removed when the test exits."""
+    folder = tempfile.mkdtemp(prefix=prefix)
+    atexit.register(shutil.rmtree, folder, ignore_errors=True)
+    return folder
 
 
 def run_cases(cases, prefix):
