@@ -103,6 +103,12 @@ time_fs event_queue::find_min() {
   }
 }
 
+gate_id event_queue::next_gate() {
+  if (size_ == 0) return no_id;
+  min_time();
+  return in_wheel_ ? wheel_[cur_][pos_].gate : far_.front().gate;
+}
+
 std::span<const queued_event> event_queue::take_front() {
   time_fs t = min_time();
   if (in_wheel_ == 0) {
@@ -367,6 +373,10 @@ void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
       }
     }
     for (const auto& e : repush_) queue_.push(e);
+    // Start fetching the record the next instant begins with, so that miss
+    // overlaps this instant's evaluations (at 10^6 gates the records do not
+    // fit in cache and each instant is a chain of dependent misses).
+    if (const gate_id next = queue_.next_gate(); next != no_id) __builtin_prefetch(&gate_[next]);
   }
   if (eval_all_) {
     eval_all_ = false;

@@ -45,6 +45,9 @@ class event_queue {
   /// Removes every entry at min_time() and returns them; the span stays
   /// valid until the next push() or clear().
   std::span<const queued_event> take_front();
+  /// The gate of an earliest entry (no_id when empty): what the next instant
+  /// will read first, for a prefetch. Looks ahead like min_time().
+  gate_id next_gate();
   /// Calls f on every entry (any order).
   template <class F>
   void for_each(F&& f) const {
