@@ -103,10 +103,21 @@ time_fs event_queue::find_min() {
   }
 }
 
-gate_id event_queue::next_gate() {
-  if (size_ == 0) return no_id;
+std::pair<gate_id, gate_id> event_queue::next_gates() {
+  if (size_ == 0) return {no_id, no_id};
   min_time();
-  return in_wheel_ ? wheel_[cur_][pos_].gate : far_.front().gate;
+  if (!in_wheel_) return {far_.front().gate, no_id};
+  const auto& v = wheel_[cur_];
+  if (pos_ + 1 < v.size()) return {v[pos_].gate, v[pos_ + 1].gate};
+  // The first entry of the next occupied slot within the next word of the
+  // bitmap (a hint: that slot is not sorted yet).
+  const std::size_t k = (cur_ + 1) & (slots - 1);
+  std::uint64_t bits = occupied_[k / 64] >> (k % 64);
+  std::size_t step = 0;
+  if (!bits) step = 64 - k % 64, bits = occupied_[((k + step) & (slots - 1)) / 64];
+  if (!bits) return {v[pos_].gate, no_id};
+  const auto& w = wheel_[(k + step + __builtin_ctzll(bits)) & (slots - 1)];
+  return {v[pos_].gate, w.empty() ? no_id : w.front().gate};
 }
 
 std::span<const queued_event> event_queue::take_front() {
@@ -376,7 +387,16 @@ void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
     // Start fetching the record the next instant begins with, so that miss
     // overlaps this instant's evaluations (at 10^6 gates the records do not
     // fit in cache and each instant is a chain of dependent misses).
-    if (const gate_id next = queue_.next_gate(); next != no_id) __builtin_prefetch(&gate_[next]);
+    // The record of the instant after next, and what the next one reads once
+    // its record (fetched one instant ago) is in: its output's fan-out range
+    // and transition count.
+    const auto [next, after] = queue_.next_gates();
+    if (after != no_id) __builtin_prefetch(&gate_[after]);
+    if (next != no_id) {
+      const net_id out = gate_[next].out;
+      __builtin_prefetch(&n_.fanout_begin[out]);
+      __builtin_prefetch(&toggles_[out]);
+    }
   }
   if (eval_all_) {
     eval_all_ = false;

@@ -45,9 +45,10 @@ class event_queue {
   /// Removes every entry at min_time() and returns them; the span stays
   /// valid until the next push() or clear().
   std::span<const queued_event> take_front();
-  /// The gate of an earliest entry (no_id when empty): what the next instant
-  /// will read first, for a prefetch. Looks ahead like min_time().
-  gate_id next_gate();
+  /// The gates of the earliest entry and of a likely second one (no_id when
+  /// there is none): what the next instants will read first, for prefetches.
+  /// Looks ahead like min_time().
+  std::pair<gate_id, gate_id> next_gates();
   /// Calls f on every entry (any order).
   template <class F>
   void for_each(F&& f) const {
