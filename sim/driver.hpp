@@ -113,6 +113,12 @@ class driver {
     std::erase_if(clocks_, [](const clock_state& c) { return c.next == never; });
   }
 
+  // --max-events reached, or the caller asked to stop.
+  bool limited() const {
+    return (opt_.max_events && sim_.events() >= opt_.max_events) ||
+           (opt_.stop && opt_.stop->load(std::memory_order_relaxed));
+  }
+
   void run_step(const step_spec& spec, std::size_t index) {
     step_result r;
     r.index = index;
@@ -201,8 +207,7 @@ class driver {
         if (budget) {
           const std::uint64_t n = sim_.run_quiet(std::min(limit, outside - 1), budget, opt_.max_events);
           if (counting) settling += n;
-          if ((opt_.max_events && sim_.events() >= opt_.max_events) ||
-              (opt_.stop && opt_.stop->load(std::memory_order_relaxed))) {
+          if (limited()) {
             r.status = step_status::event_limit;
             r.end = sim_.now();
             stopped_ = true;
@@ -232,8 +237,7 @@ class driver {
       }
       if (!clocks_.empty()) clock_edges_at(t, inputs);
       sim_.process_instant(t, inputs);
-      if ((opt_.max_events && sim_.events() >= opt_.max_events) ||
-          (opt_.stop && opt_.stop->load(std::memory_order_relaxed))) {
+      if (limited()) {
         r.status = step_status::event_limit;
         r.end = t;
         stopped_ = true;

@@ -30,10 +30,6 @@ std::pair<std::uint64_t, std::uint64_t> pending_key(time_fs rel, gate_id g, logi
 
 }  // namespace
 
-namespace {
-constexpr auto later = [](const queued_event& a, const queued_event& b) { return a.time > b.time; };
-}
-
 event_queue::event_queue(time_fs largest_delay) : wheel_(slots) {
   // The wheel spans 2^(width_bits + 12) fs >= 2 x the largest delay.
   while ((time_fs{1} << (width_bits_ + slot_bits)) < 2 * largest_delay && width_bits_ < 40) ++width_bits_;

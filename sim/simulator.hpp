@@ -61,6 +61,8 @@ class event_queue {
 
  private:
   static constexpr std::size_t slot_bits = 12, slots = std::size_t{1} << slot_bits;
+  // The far heap's order: a min-heap on time.
+  static bool later(const queued_event& a, const queued_event& b) { return a.time > b.time; }
   std::size_t cursor_slot() const { return cur_; }
   std::size_t slot_of(time_fs t) const { return static_cast<std::size_t>((t >> width_bits_) & (slots - 1)); }
   void move_cursor(time_fs t) { base_ = (t >> width_bits_) << width_bits_, cur_ = slot_of(t); }
@@ -103,7 +105,7 @@ class event_queue {
   if (next_valid_ && e.time < next_) next_valid_ = false;
   if (!in_wheel(e.time)) {
     far_.push_back(e);
-    std::push_heap(far_.begin(), far_.end(), [](const queued_event& a, const queued_event& b) { return a.time > b.time; });
+    std::push_heap(far_.begin(), far_.end(), later);
     return;
   }
   if (e.time < base_) {
