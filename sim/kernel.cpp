@@ -96,24 +96,8 @@ time_fs event_queue::find_min() {
     }
     base_ += step << width_bits_;
     cur_ = (s + step) & (slots - 1);
+    ++moves_;
   }
-}
-
-std::pair<gate_id, gate_id> event_queue::next_gates() {
-  if (size_ == 0) return {no_id, no_id};
-  min_time();
-  if (!in_wheel_) return {far_.front().gate, no_id};
-  const auto& v = wheel_[cur_];
-  if (pos_ + 1 < v.size()) return {v[pos_].gate, v[pos_ + 1].gate};
-  // The first entry of the next occupied slot within the next word of the
-  // bitmap (a hint: that slot is not sorted yet).
-  const std::size_t k = (cur_ + 1) & (slots - 1);
-  std::uint64_t bits = occupied_[k / 64] >> (k % 64);
-  std::size_t step = 0;
-  if (!bits) step = 64 - k % 64, bits = occupied_[((k + step) & (slots - 1)) / 64];
-  if (!bits) return {v[pos_].gate, no_id};
-  const auto& w = wheel_[(k + step + __builtin_ctzll(bits)) & (slots - 1)];
-  return {v[pos_].gate, w.empty() ? no_id : w.front().gate};
 }
 
 std::span<const queued_event> event_queue::take_front() {
@@ -289,8 +273,8 @@ SETTLE_HOT void simulator::schedule(gate_id g, logic v, time_fs t) {
   if (q.size() == 1) queue_.push({t, g, q.front().id});
 }
 
-SETTLE_HOT void simulator::apply(net_id net, logic v, time_fs t) {
-  if (val_[net] == v) return;
+// A net takes a new value: counts, hash and trace (the caller knows it differs).
+SETTLE_HOT void simulator::change_value(net_id net, logic v, time_fs t) {
   if (tracking_) hash_ ^= value_key(net, val_[net]) ^ value_key(net, v);
   val_[net] = v;
   ++toggles_[net];
@@ -300,6 +284,11 @@ SETTLE_HOT void simulator::apply(net_id net, logic v, time_fs t) {
     trace_.push_back({t, net, v});
     if (trace_.size() >= trace_batch) flush_trace();
   }
+}
+
+SETTLE_HOT void simulator::apply(net_id net, logic v, time_fs t) {
+  if (val_[net] == v) return;
+  change_value(net, v, t);
   const gate_id* f = n_.fanout.data();
   for (auto i = n_.fanout_begin[net], end = n_.fanout_begin[net + 1]; i < end; ++i) {
     gate_rec& r = gate_[f[i]];
@@ -350,6 +339,49 @@ SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
   if (v != projected) schedule(g, v, t + delay_of(g, projected, v));
 }
 
+// The gate events of one instant, taken from the queue: each live one
+// changes its output and marks the gates it feeds. Nothing is pushed while
+// the front is walked (apply only marks gates), so the span stays valid;
+// transport gates queue their next transaction after.
+SETTLE_HOT void simulator::apply_front(std::span<const queued_event> front, time_fs t) {
+  repush_.clear();
+  for (const auto& e : front) {
+    const gate_id g = e.gate;
+    gate_rec& r = gate_[g];
+    if (!r.transport) {
+      if (r.pend == none || r.gen != e.gen) continue;
+      const logic v = r.pend;
+      r.pend = none;
+      --live_;
+      apply(r.out, v, t);
+    } else {
+      auto& q = tq_[slot_[g]];
+      if (q.empty() || q.front().id != e.gen) continue;
+      const logic v = q.front().value;
+      q.erase(q.begin());
+      --live_;
+      if (!q.empty()) repush_.push_back({q.front().time, g, q.front().id});
+      apply(n_.gate_out[g], v, t);
+    }
+  }
+  for (const auto& e : repush_) queue_.push(e);
+}
+
+// At 10^6 gates the records do not fit in cache and each instant is a chain
+// of dependent misses: the queue entry, its gate's record, the output's
+// fan-out range, the records of the gates it feeds. When the cursor enters a
+// slot, the records of the next two slots' entries are fetched (several
+// instants ahead); every instant, the fan-out range of the next entry, whose
+// record came in a slot earlier.
+SETTLE_HOT void simulator::prefetch_ahead() {
+  if (queue_.slot_moves()) queue_.for_each_ahead(2, [&](const queued_event& e) { __builtin_prefetch(&gate_[e.gate]); });
+  if (const gate_id next = queue_.next_on_slot(); next != no_id) {
+    const net_id out = gate_[next].out;
+    __builtin_prefetch(&n_.fanout_begin[out]);
+    __builtin_prefetch(&toggles_[out]);
+  }
+}
+
 void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
   now_ = t;
   dirty_.clear();
@@ -357,42 +389,8 @@ void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
   // evaluated: nothing depends on the order of events within an instant.
   for (const auto& a : inputs) apply(a.net, a.value, t);
   if (live_ && queue_.min_time() == t) {
-    // Nothing is pushed while the front is walked (apply only marks gates),
-    // so the span stays valid; transport gates queue their next transaction after.
-    repush_.clear();
-    for (const auto& e : queue_.take_front()) {
-      const gate_id g = e.gate;
-      gate_rec& r = gate_[g];
-      if (!r.transport) {
-        if (r.pend == none || r.gen != e.gen) continue;
-        const logic v = r.pend;
-        r.pend = none;
-        --live_;
-        apply(r.out, v, t);
-      } else {
-        auto& q = tq_[slot_[g]];
-        if (q.empty() || q.front().id != e.gen) continue;
-        const logic v = q.front().value;
-        q.erase(q.begin());
-        --live_;
-        if (!q.empty()) repush_.push_back({q.front().time, g, q.front().id});
-        apply(n_.gate_out[g], v, t);
-      }
-    }
-    for (const auto& e : repush_) queue_.push(e);
-    // Start fetching the record the next instant begins with, so that miss
-    // overlaps this instant's evaluations (at 10^6 gates the records do not
-    // fit in cache and each instant is a chain of dependent misses).
-    // The record of the instant after next, and what the next one reads once
-    // its record (fetched one instant ago) is in: its output's fan-out range
-    // and transition count.
-    const auto [next, after] = queue_.next_gates();
-    if (after != no_id) __builtin_prefetch(&gate_[after]);
-    if (next != no_id) {
-      const net_id out = gate_[next].out;
-      __builtin_prefetch(&n_.fanout_begin[out]);
-      __builtin_prefetch(&toggles_[out]);
-    }
+    apply_front(queue_.take_front(), t);
+    prefetch_ahead();
   }
   if (eval_all_) {
     eval_all_ = false;
@@ -405,12 +403,45 @@ void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
 
 std::uint64_t simulator::run_quiet(time_fs last, std::uint64_t max_instants, std::uint64_t max_events) {
   std::uint64_t n = 0;
+  const auto done = [&] { return (max_events && events_ >= max_events) || n == max_instants; };
+  if (eval_all_) {
+    if (now_ > last) return 0;
+    process_instant(now_, {});
+    if (++n, done()) return n;
+  }
+  const gate_id* fanout = n_.fanout.data();
   for (;;) {
-    const time_fs t = next_event_time();
-    if (t > last) break;
-    process_instant(t, {});
-    ++n;
-    if ((max_events && events_ >= max_events) || n == max_instants) break;
+    if (live_ == 0) {
+      queue_.clear();
+      break;
+    }
+    const auto front = queue_.take_until(last);
+    if (front.empty()) break;
+    const time_fs t = front.front().time;
+    now_ = t;
+    if (front.size() == 1 && !gate_[front.front().gate].transport) {
+      // The common instant: one event. Its change is the only one, so the
+      // gates it feeds are evaluated straight away, unmarked (each appears
+      // once in the fan-out list, and nothing else changes at t).
+      const queued_event e = front.front();
+      gate_rec& r = gate_[e.gate];
+      if (r.pend != none && r.gen == e.gen) {
+        const logic v = r.pend;
+        const net_id out = r.out;
+        r.pend = none;
+        --live_;
+        if (val_[out] != v) {
+          change_value(out, v, t);
+          for (auto i = n_.fanout_begin[out], end = n_.fanout_begin[out + 1]; i < end; ++i) evaluate(fanout[i], t);
+        }
+      }
+    } else {
+      dirty_.clear();
+      apply_front(front, t);
+      for (const gate_id g : dirty_) gate_[g].queued = false, evaluate(g, t);
+    }
+    prefetch_ahead();
+    if (++n, done()) break;
   }
   return n;
 }

@@ -45,10 +45,29 @@ class event_queue {
   /// Removes every entry at min_time() and returns them; the span stays
   /// valid until the next push() or clear().
   std::span<const queued_event> take_front();
-  /// The gates of the earliest entry and of a likely second one (no_id when
-  /// there is none): what the next instants will read first, for prefetches.
-  /// Looks ahead like min_time().
-  std::pair<gate_id, gate_id> next_gates();
+  /// take_front() when min_time() <= last, else an empty span (and nothing
+  /// taken). Inline while the instant lies on the sorted cursor slot: the
+  /// common case costs a few loads and compares.
+  std::span<const queued_event> take_until(time_fs last);
+  /// The entries of the occupied slots after the cursor's, up to `ahead`
+  /// slots on (unsorted, maybe cancelled): what the next instants will read,
+  /// for prefetches. Calls f on each.
+  template <class F>
+  void for_each_ahead(std::size_t ahead, F&& f) const {
+    for (std::size_t k = 1; k <= ahead; ++k)
+      for (const auto& e : wheel_[(cur_ + k) & (slots - 1)]) f(e);
+  }
+  /// The gate of the next entry on the cursor slot, or no_id.
+  gate_id next_on_slot() const {
+    const auto& v = wheel_[cur_];
+    return sorted_ && pos_ < v.size() ? v[pos_].gate : no_id;
+  }
+  /// The number of slots the cursor moved since the last call (0: it stays).
+  std::size_t slot_moves() {
+    const std::size_t m = moves_;
+    moves_ = 0;
+    return m;
+  }
   /// Calls f on every entry (any order).
   template <class F>
   void for_each(F&& f) const {
@@ -65,7 +84,7 @@ class event_queue {
   static bool later(const queued_event& a, const queued_event& b) { return a.time > b.time; }
   std::size_t cursor_slot() const { return cur_; }
   std::size_t slot_of(time_fs t) const { return static_cast<std::size_t>((t >> width_bits_) & (slots - 1)); }
-  void move_cursor(time_fs t) { base_ = (t >> width_bits_) << width_bits_, cur_ = slot_of(t); }
+  void move_cursor(time_fs t) { base_ = (t >> width_bits_) << width_bits_, cur_ = slot_of(t), ++moves_; }
   bool in_wheel(time_fs t) const { return (t >> width_bits_) - (floor_ >> width_bits_) < slots; }
   void put(const queued_event& e);
   void migrate();
@@ -82,6 +101,7 @@ class event_queue {
   std::size_t size_ = 0, in_wheel_ = 0;
   time_fs next_ = 0;               // min_time() while next_valid_
   bool sorted_ = false, next_valid_ = false;
+  std::size_t moves_ = 0;          // cursor moves since slot_moves()
 };
 
 // The queue's insert is on the per-event path: defined here so it inlines.
@@ -117,6 +137,29 @@ class event_queue {
     sorted_ = false;
   }
   put(e);
+}
+
+[[gnu::always_inline]] inline std::span<const queued_event> event_queue::take_until(time_fs last) {
+  auto& v = wheel_[cur_];
+  if (sorted_ && pos_ < v.size()) [[likely]] {
+    const time_fs t = v[pos_].time;
+    if (t > last) return {};
+    // Still within the slot of the last instant taken, or no far event to
+    // pull in: take the run of entries at t from the sorted slot.
+    if ((t >> width_bits_) == (floor_ >> width_bits_) || far_.empty()) {
+      floor_ = t;
+      const std::size_t from = pos_;
+      std::size_t end = from + 1;
+      while (end < v.size() && v[end].time == t) ++end;
+      pos_ = end;
+      size_ -= end - from;
+      in_wheel_ -= end - from;
+      next_valid_ = false;
+      return {v.data() + from, end - from};
+    }
+  }
+  if (size_ == 0 || min_time() > last) return {};
+  return take_front();
 }
 
 /// The state needed to recognise a repeated full state: net values and the
@@ -177,6 +220,9 @@ class simulator {
   void schedule(gate_id g, logic v, time_fs t);
   void apply(net_id net, logic v, time_fs t);
   void evaluate(gate_id g, time_fs t);
+  void change_value(net_id net, logic v, time_fs t);
+  void apply_front(std::span<const queued_event> front, time_fs t);
+  void prefetch_ahead();
   time_fs delay_of(gate_id g, logic from, logic to) const;
   void gather_pending(std::vector<std::pair<std::uint64_t, std::uint64_t>>& out) const;
   void flush_trace();
