@@ -55,21 +55,59 @@ void event_queue::migrate() {
   }
 }
 
+void event_queue::sort_cursor_slot() {
+  auto& cur = wheel_[cur_];
+  const auto first = cur.begin() + static_cast<std::ptrdiff_t>(pos_);
+  if (cur.end() - first <= 16) {
+    // Most slots hold a handful of entries: insertion sort, no call.
+    for (auto i = first + 1; i < cur.end(); ++i)
+      for (auto j = i; j > first && j->time < (j - 1)->time; --j) std::iter_swap(j, j - 1);
+  } else {
+    std::sort(first, cur.end(), [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
+  }
+  sorted_ = true;
+}
+
+// The next occupied slot after the cursor's becomes the cursor's (the wheel
+// holds an entry).
+void event_queue::next_slot() {
+  wheel_[cur_].clear();
+  pos_ = 0;
+  sorted_ = false;
+  occupied_[cur_ / 64] &= ~(std::uint64_t{1} << (cur_ % 64));
+  next_slot_scan();
+}
+
+// Moves the cursor to the next occupied slot, found through the bitmap.
+void event_queue::next_slot_scan() {
+  const std::size_t s = cur_;
+  std::size_t step = 1;
+  for (;; ++step) {
+    const std::size_t k = (s + step) & (slots - 1);
+    const std::uint64_t bits = occupied_[k / 64] >> (k % 64);
+    if (bits) {
+      step += __builtin_ctzll(bits);
+      break;
+    }
+    step += 63 - k % 64;  // skip the rest of this word
+  }
+  base_ += step << width_bits_;
+  cur_ = (s + step) & (slots - 1);
+  ++moves_;
+}
+
+// take_until() when only far events are left: the general path moves the
+// wheel to them.
+std::span<const queued_event> event_queue::take_far(time_fs last) {
+  if (min_time() > last) return {};
+  return take_front();
+}
+
 time_fs event_queue::find_min() {
   for (;;) {
     auto& cur = wheel_[cursor_slot()];
     if (pos_ < cur.size()) {
-      if (!sorted_) {
-        const auto first = cur.begin() + static_cast<std::ptrdiff_t>(pos_);
-        if (cur.end() - first <= 16) {
-          // Most slots hold a handful of entries: insertion sort, no call.
-          for (auto i = first + 1; i < cur.end(); ++i)
-            for (auto j = i; j > first && j->time < (j - 1)->time; --j) std::iter_swap(j, j - 1);
-        } else {
-          std::sort(first, cur.end(), [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
-        }
-        sorted_ = true;
-      }
+      if (!sorted_) sort_cursor_slot();
       next_valid_ = true;
       return next_ = cur[pos_].time;
     }
@@ -78,25 +116,7 @@ time_fs event_queue::find_min() {
       next_valid_ = true;
       return next_ = far_.front().time;
     }
-    cur.clear();
-    pos_ = 0;
-    sorted_ = false;
-    occupied_[cursor_slot() / 64] &= ~(std::uint64_t{1} << (cursor_slot() % 64));
-    // The next occupied slot, found through the bitmap.
-    const std::size_t s = cursor_slot();
-    std::size_t step = 1;
-    for (;; ++step) {
-      const std::size_t k = (s + step) & (slots - 1);
-      const std::uint64_t bits = occupied_[k / 64] >> (k % 64);
-      if (bits) {
-        step += __builtin_ctzll(bits);
-        break;
-      }
-      step += 63 - k % 64;  // skip the rest of this word
-    }
-    base_ += step << width_bits_;
-    cur_ = (s + step) & (slots - 1);
-    ++moves_;
+    next_slot();
   }
 }
 

@@ -89,6 +89,10 @@ class event_queue {
   void put(const queued_event& e);
   void migrate();
   time_fs find_min();
+  void sort_cursor_slot();
+  void next_slot();
+  void next_slot_scan();
+  std::span<const queued_event> take_far(time_fs last);
 
   std::vector<std::vector<queued_event>> wheel_;
   std::array<std::uint64_t, slots / 64> occupied_{};
@@ -139,27 +143,56 @@ class event_queue {
   put(e);
 }
 
+// The per-instant path of run_quiet: inline, and in the common case (the next
+// instant on the cursor slot, or on an occupied slot within the same bitmap
+// word) a few dozen instructions with no call.
 [[gnu::always_inline]] inline std::span<const queued_event> event_queue::take_until(time_fs last) {
-  auto& v = wheel_[cur_];
-  if (sorted_ && pos_ < v.size()) [[likely]] {
-    const time_fs t = v[pos_].time;
-    if (t > last) return {};
-    // Still within the slot of the last instant taken, or no far event to
-    // pull in: take the run of entries at t from the sorted slot.
-    if ((t >> width_bits_) == (floor_ >> width_bits_) || far_.empty()) {
+  for (;;) {
+    auto& v = wheel_[cur_];
+    const std::size_t n = v.size();
+    if (pos_ < n) {
+      if (!sorted_) {
+        if (n - pos_ > 1) sort_cursor_slot();
+        sorted_ = true;
+      }
+      const time_fs t = v[pos_].time;
+      if (t > last) {
+        next_valid_ = true;
+        next_ = t;
+        return {};
+      }
+      // Far events now within the wheel's window lie beyond t's slot, so they
+      // never land on the cursor's.
+      const bool turned = (t >> width_bits_) != (floor_ >> width_bits_);
       floor_ = t;
+      if (turned && !far_.empty()) [[unlikely]]
+        migrate();
       const std::size_t from = pos_;
       std::size_t end = from + 1;
-      while (end < v.size() && v[end].time == t) ++end;
+      while (end < n && v[end].time == t) ++end;
       pos_ = end;
       size_ -= end - from;
       in_wheel_ -= end - from;
       next_valid_ = false;
       return {v.data() + from, end - from};
     }
+    if (in_wheel_ == 0) [[unlikely]]
+      return size_ == 0 ? std::span<const queued_event>{} : take_far(last);
+    // The cursor slot is used up: on to the next occupied one.
+    v.clear();
+    pos_ = 0;
+    sorted_ = false;
+    occupied_[cur_ / 64] &= ~(std::uint64_t{1} << (cur_ % 64));
+    const std::size_t k = (cur_ + 1) & (slots - 1);
+    if (const std::uint64_t bits = occupied_[k / 64] >> (k % 64); bits) [[likely]] {
+      const std::size_t step = 1 + static_cast<std::size_t>(__builtin_ctzll(bits));
+      base_ += step << width_bits_;
+      cur_ = (cur_ + step) & (slots - 1);
+      ++moves_;
+    } else {
+      next_slot_scan();
+    }
   }
-  if (size_ == 0 || min_time() > last) return {};
-  return take_front();
 }
 
 /// The state needed to recognise a repeated full state: net values and the
