@@ -176,6 +176,7 @@ void simulator::build_fast_paths() {
   std::vector<logic> v(probe.net_count(), logic::x);
   v[0] = logic::zero, v[1] = logic::one;
   const logic levels[] = {logic::zero, logic::one, logic::x};
+  const int one_row = gate_kind_count, c2_row = 2 * gate_kind_count;
   for (int k = 0; k < gate_kind_count; ++k) {
     const auto kind = static_cast<gate_kind>(k);
     const bool one_ok = kind == gate_kind::buf || kind == gate_kind::inv || kind == gate_kind::and_ ||
@@ -184,13 +185,16 @@ void simulator::build_fast_paths() {
     const bool two_ok = one_ok && kind != gate_kind::buf && kind != gate_kind::inv;
     for (int i = 0; i < 3; ++i) {
       v[a] = levels[i];
-      if (one_ok) tables_.one[k][i] = eval_gate(probe, static_cast<gate_id>(k), v.data(), logic::x);
+      const logic single = one_ok ? eval_gate(probe, static_cast<gate_id>(k), v.data(), logic::x) : logic::x;
       for (int j = 0; j < 3; ++j) {
         v[b] = levels[j];
-        if (two_ok) tables_.two[k][i * 3 + j] = eval_gate(probe, first_two + k, v.data(), logic::x);
-        if (kind == gate_kind::celem)
-          for (int q = 0; q < 3; ++q)
-            tables_.c2[i * 9 + j * 3 + q] = eval_gate(probe, first_two + k, v.data(), levels[q]);
+        const logic pair = two_ok ? eval_gate(probe, first_two + k, v.data(), logic::x) : logic::x;
+        for (int q = 0; q < 3; ++q) {
+          const int at = i * 9 + j * 3 + q;
+          lut_[k * 27 + at] = pair;
+          lut_[(one_row + k) * 27 + at] = single;
+          if (kind == gate_kind::celem) lut_[c2_row * 27 + at] = eval_gate(probe, first_two + k, v.data(), levels[q]);
+        }
       }
     }
   }
@@ -200,20 +204,19 @@ void simulator::build_fast_paths() {
     const auto k = n_.kind[g];
     const auto fan = n_.fanin_begin[g + 1] - n_.fanin_begin[g];
     f.out = n_.gate_out[g];
-    f.kind = static_cast<std::uint8_t>(k);
     f.in0 = fan > 0 ? n_.fanin[n_.fanin_begin[g]] : 0;
-    f.in1 = fan > 1 ? n_.fanin[n_.fanin_begin[g] + 1] : 0;
+    f.in1 = fan > 1 ? n_.fanin[n_.fanin_begin[g] + 1] : f.in0;
     const bool simple = k != gate_kind::mux && k != gate_kind::maj && k != gate_kind::gc && k != gate_kind::expr &&
                         k != gate_kind::dff && !n_.enumerate[g];
     f.mode = gate_rec::general;
     if (k == gate_kind::dff) {
       f.mode = gate_rec::edge;
     } else if (simple && k == gate_kind::celem) {
-      if (fan == 2) f.mode = gate_rec::c2;
+      if (fan == 2) f.mode = gate_rec::table, f.row = static_cast<std::uint8_t>(c2_row);
     } else if (simple && fan == 1) {
-      f.mode = gate_rec::one;
+      f.mode = gate_rec::table, f.row = static_cast<std::uint8_t>(one_row + static_cast<int>(k));
     } else if (simple && fan == 2 && k != gate_kind::buf && k != gate_kind::inv) {
-      f.mode = gate_rec::two;
+      f.mode = gate_rec::table, f.row = static_cast<std::uint8_t>(k);
     }
   }
 }
@@ -316,33 +319,28 @@ SETTLE_HOT void simulator::apply(net_id net, logic v, time_fs t) {
   }
 }
 
-SETTLE_HOT logic simulator::eval_fast(gate_id g) {
+SETTLE_HOT logic simulator::eval_fast(gate_id g, logic present) {
   const gate_rec& f = gate_[g];
-  switch (f.mode) {
-    case gate_rec::edge: {
-      // A flip-flop is evaluated whenever CK or D changes, so the CK it saw
-      // last time tells a rising edge (0 -> 1) from anything else.
-      const logic ck = val_[f.in1], before = clock_seen_[g];
-      clock_seen_[g] = ck;
-      const logic present = val_[f.out], d = val_[f.in0];
-      if (before == logic::zero && ck == logic::one) return d;
-      const bool may_rise = before != logic::one && ck != logic::zero && before != ck;
-      return may_rise ? lub(present, d) : present;
-    }
-    case gate_rec::one: return tables_.one[f.kind][static_cast<int>(val_[f.in0])];
-    case gate_rec::two:
-      return tables_.two[f.kind][static_cast<int>(val_[f.in0]) * 3 + static_cast<int>(val_[f.in1])];
-    case gate_rec::c2:
-      return tables_.c2[static_cast<int>(val_[f.in0]) * 9 + static_cast<int>(val_[f.in1]) * 3 +
-                        static_cast<int>(val_[f.out])];
-    default: return eval_gate(n_, g, val_.data(), val_[f.out]);
+  if (f.mode == gate_rec::table) [[likely]]
+    return lut_[f.row * 27 + static_cast<int>(val_[f.in0]) * 9 + static_cast<int>(val_[f.in1]) * 3 +
+                static_cast<int>(present)];
+  if (f.mode == gate_rec::edge) {
+    // A flip-flop is evaluated whenever CK or D changes, so the CK it saw
+    // last time tells a rising edge (0 -> 1) from anything else.
+    const logic ck = val_[f.in1], before = clock_seen_[g];
+    clock_seen_[g] = ck;
+    const logic d = val_[f.in0];
+    if (before == logic::zero && ck == logic::one) return d;
+    const bool may_rise = before != logic::one && ck != logic::zero && before != ck;
+    return may_rise ? lub(present, d) : present;
   }
+  return eval_gate(n_, g, val_.data(), present);
 }
 
 SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
   gate_rec& r = gate_[g];
   const logic present = val_[r.out];
-  const logic v = eval_fast(g);
+  const logic v = eval_fast(g, present);
   if (!r.transport) {
     // Inertial: one pending change per output (pulses shorter than the delay vanish).
     const logic p = r.pend;

@@ -249,7 +249,7 @@ class simulator {
   static constexpr logic none = static_cast<logic>(3);
 
   void build_fast_paths();
-  logic eval_fast(gate_id g);
+  logic eval_fast(gate_id g, logic present);
   void schedule(gate_id g, logic v, time_fs t);
   void apply(net_id net, logic v, time_fs t);
   void evaluate(gate_id g, time_fs t);
@@ -269,12 +269,15 @@ class simulator {
   // What the per-event path needs of a gate, in one 32-byte record: inputs
   // and output inline (the table row comes from the kind), this run's delays,
   // the inertial gate's pending value and the generation of its live entry.
+  // A gate of one or two inputs, or a two-input C-element, evaluates by one
+  // lookup: row `row` of lut_, at 9 x in0 + 3 x in1 + out (a one-input gate
+  // reads its input as in1 too; only the C-element's rows depend on out).
   struct gate_rec {
-    enum : std::uint8_t { general, one, two, c2, edge };
+    enum : std::uint8_t { table, general, edge };
     net_id in0 = 0, in1 = 0, out = 0;
     std::uint32_t gen = 0;            // inertial: generation of the live queue entry
     std::uint32_t rise = 0, fall = 0;  // this run's delays when they fit 32 bits (see wide_)
-    std::uint8_t mode = general, kind = 0;
+    std::uint8_t mode = general, row = 0;
     bool transport = false;
     logic pend = none;                // inertial: the pending value, or none
     bool queued = false;              // in dirty_ for evaluation this instant
@@ -301,11 +304,10 @@ class simulator {
   event_queue queue_;
   std::vector<queued_event> repush_;  // transport gates' next transactions, queued after the front
 
-  struct {
-    logic one[gate_kind_count][3];
-    logic two[gate_kind_count][9];
-    logic c2[27];  // (a, b, present)
-  } tables_{};
+  // Rows: the two-input form of each kind, then the one-input form, then the
+  // two-input C-element.
+  static constexpr int lut_rows = 2 * gate_kind_count + 1;
+  std::array<logic, lut_rows * 27> lut_{};
   std::vector<gate_id> dirty_;
   std::vector<change> trace_;
 
