@@ -93,7 +93,6 @@ void event_queue::next_slot_scan() {
   }
   base_ += step << width_bits_;
   cur_ = (s + step) & (slots - 1);
-  ++moves_;
 }
 
 // take_until() when only far events are left: the general path moves the
@@ -208,17 +207,29 @@ void simulator::build_fast_paths() {
     f.in1 = fan > 1 ? n_.fanin[n_.fanin_begin[g] + 1] : f.in0;
     const bool simple = k != gate_kind::mux && k != gate_kind::maj && k != gate_kind::gc && k != gate_kind::expr &&
                         k != gate_kind::dff && !n_.enumerate[g];
-    f.mode = gate_rec::general;
+    f.op = gate_rec::general;
     if (k == gate_kind::dff) {
-      f.mode = gate_rec::edge;
+      f.op = gate_rec::edge;
     } else if (simple && k == gate_kind::celem) {
-      if (fan == 2) f.mode = gate_rec::table, f.row = static_cast<std::uint8_t>(c2_row);
+      if (fan == 2) f.op = static_cast<std::uint8_t>(c2_row);
     } else if (simple && fan == 1) {
-      f.mode = gate_rec::table, f.row = static_cast<std::uint8_t>(one_row + static_cast<int>(k));
+      f.op = static_cast<std::uint8_t>(one_row + static_cast<int>(k));
     } else if (simple && fan == 2 && k != gate_kind::buf && k != gate_kind::inv) {
-      f.mode = gate_rec::table, f.row = static_cast<std::uint8_t>(k);
+      f.op = static_cast<std::uint8_t>(k);
     }
+    const auto from = n_.fanout_begin[f.out], to = n_.fanout_begin[f.out + 1];
+    f.fo = static_cast<std::uint32_t>(fo_.size());
+    f.nfo = static_cast<std::uint8_t>(std::min<std::uint32_t>(to - from, gate_rec::many));
+    fo_start_.push_back(f.fo);
+    fo_.insert(fo_.end(), n_.fanout.begin() + from, n_.fanout.begin() + to);
   }
+  fo_start_.push_back(static_cast<std::uint32_t>(fo_.size()));
+  queued_.assign(n_.gate_count(), 0);
+}
+
+SETTLE_HOT std::span<const gate_id> simulator::fanout_of(gate_id g, const gate_rec& r) const {
+  const std::uint32_t n = r.nfo != gate_rec::many ? r.nfo : fo_start_[g + 1] - r.fo;
+  return {fo_.data() + r.fo, n};
 }
 
 void simulator::reset(const delay_table& delays) {
@@ -226,9 +237,9 @@ void simulator::reset(const delay_table& delays) {
   clock_seen_.assign(n_.gate_count(), logic::x);
   for (gate_id g = 0; g < n_.gate_count(); ++g) {
     gate_rec& r = gate_[g];
-    if (r.mode == gate_rec::edge) clock_seen_[g] = n_.init[r.in1];
+    if (r.op == gate_rec::edge) clock_seen_[g] = n_.init[r.in1];
     r.pend = none;
-    r.queued = false;
+    queued_[g] = 0;
   }
   constexpr time_fs narrow = std::numeric_limits<std::uint32_t>::max();
   wide_ = std::any_of(delays.rise.begin(), delays.rise.end(), [](time_fs d) { return d > narrow; }) ||
@@ -314,17 +325,16 @@ SETTLE_HOT void simulator::apply(net_id net, logic v, time_fs t) {
   change_value(net, v, t);
   const gate_id* f = n_.fanout.data();
   for (auto i = n_.fanout_begin[net], end = n_.fanout_begin[net + 1]; i < end; ++i) {
-    gate_rec& r = gate_[f[i]];
-    if (!r.queued) r.queued = true, dirty_.push_back(f[i]);
+    if (!queued_[f[i]]) queued_[f[i]] = 1, dirty_.push_back(f[i]);
   }
 }
 
 SETTLE_HOT logic simulator::eval_fast(gate_id g, logic present) {
   const gate_rec& f = gate_[g];
-  if (f.mode == gate_rec::table) [[likely]]
-    return lut_[f.row * 27 + static_cast<int>(val_[f.in0]) * 9 + static_cast<int>(val_[f.in1]) * 3 +
+  if (f.op < lut_rows) [[likely]]
+    return lut_[f.op * 27 + static_cast<int>(val_[f.in0]) * 9 + static_cast<int>(val_[f.in1]) * 3 +
                 static_cast<int>(present)];
-  if (f.mode == gate_rec::edge) {
+  if (f.op == gate_rec::edge) {
     // A flip-flop is evaluated whenever CK or D changes, so the CK it saw
     // last time tells a rising edge (0 -> 1) from anything else.
     const logic ck = val_[f.in1], before = clock_seen_[g];
@@ -385,18 +395,20 @@ SETTLE_HOT void simulator::apply_front(std::span<const queued_event> front, time
   for (const auto& e : repush_) queue_.push(e);
 }
 
-// At 10^6 gates the records do not fit in cache and each instant is a chain
-// of dependent misses: the queue entry, its gate's record, the output's
-// fan-out range, the records of the gates it feeds. When the cursor enters a
-// slot, the records of the next two slots' entries are fetched (several
-// instants ahead); every instant, the fan-out range of the next entry, whose
-// record came in a slot earlier.
+// Each instant is a chain of dependent loads, which at 10^5 gates and more
+// miss the near caches: the queue entry, its gate's record, the fan-out list,
+// the records of the gates it feeds. The next instants' entries are known
+// (the sorted cursor slot, then the next occupied one), so each instant
+// starts the chain of the ones to come: the record two entries ahead, and
+// the fan-out list, output value and count of the next entry, whose record
+// was fetched an instant ago.
 SETTLE_HOT void simulator::prefetch_ahead() {
-  if (queue_.slot_moves()) queue_.for_each_ahead(2, [&](const queued_event& e) { __builtin_prefetch(&gate_[e.gate]); });
-  if (const gate_id next = queue_.next_on_slot(); next != no_id) {
-    const net_id out = gate_[next].out;
-    __builtin_prefetch(&n_.fanout_begin[out]);
-    __builtin_prefetch(&toggles_[out]);
+  const auto [next, after] = queue_.next_gates();
+  if (after != no_id) __builtin_prefetch(&gate_[after]);
+  if (next != no_id) {
+    const gate_rec& r = gate_[next];
+    __builtin_prefetch(&fo_[r.fo]);
+    __builtin_prefetch(&toggles_[r.out]);
   }
 }
 
@@ -413,9 +425,9 @@ void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
   if (eval_all_) {
     eval_all_ = false;
     for (gate_id g = 0; g < n_.gate_count(); ++g) evaluate(g, t);
-    for (const gate_id g : dirty_) gate_[g].queued = false;
+    for (const gate_id g : dirty_) queued_[g] = 0;
   } else {
-    for (const gate_id g : dirty_) gate_[g].queued = false, evaluate(g, t);
+    for (const gate_id g : dirty_) queued_[g] = 0, evaluate(g, t);
   }
 }
 
@@ -427,7 +439,6 @@ std::uint64_t simulator::run_quiet(time_fs last, std::uint64_t max_instants, std
     process_instant(now_, {});
     if (++n, done()) return n;
   }
-  const gate_id* fanout = n_.fanout.data();
   for (;;) {
     if (live_ == 0) {
       queue_.clear();
@@ -450,13 +461,13 @@ std::uint64_t simulator::run_quiet(time_fs last, std::uint64_t max_instants, std
         --live_;
         if (val_[out] != v) {
           change_value(out, v, t);
-          for (auto i = n_.fanout_begin[out], end = n_.fanout_begin[out + 1]; i < end; ++i) evaluate(fanout[i], t);
+          for (const gate_id g : fanout_of(e.gate, r)) evaluate(g, t);
         }
       }
     } else {
       dirty_.clear();
       apply_front(front, t);
-      for (const gate_id g : dirty_) gate_[g].queued = false, evaluate(g, t);
+      for (const gate_id g : dirty_) queued_[g] = 0, evaluate(g, t);
     }
     prefetch_ahead();
     if (++n, done()) break;

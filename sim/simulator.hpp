@@ -49,24 +49,19 @@ class event_queue {
   /// taken). Inline while the instant lies on the sorted cursor slot: the
   /// common case costs a few loads and compares.
   std::span<const queued_event> take_until(time_fs last);
-  /// The entries of the occupied slots after the cursor's, up to `ahead`
-  /// slots on (unsorted, maybe cancelled): what the next instants will read,
-  /// for prefetches. Calls f on each.
-  template <class F>
-  void for_each_ahead(std::size_t ahead, F&& f) const {
-    for (std::size_t k = 1; k <= ahead; ++k)
-      for (const auto& e : wheel_[(cur_ + k) & (slots - 1)]) f(e);
-  }
-  /// The gate of the next entry on the cursor slot, or no_id.
-  gate_id next_on_slot() const {
+  /// The gates of the next entry and of the one after (no_id when unknown),
+  /// for prefetches: the sorted cursor slot, else the first entries of the
+  /// next occupied slot within the cursor's bitmap word (not sorted yet, so
+  /// a likely pick). Never moves the cursor.
+  std::pair<gate_id, gate_id> next_gates() const {
     const auto& v = wheel_[cur_];
-    return sorted_ && pos_ < v.size() ? v[pos_].gate : no_id;
-  }
-  /// The number of slots the cursor moved since the last call (0: it stays).
-  std::size_t slot_moves() {
-    const std::size_t m = moves_;
-    moves_ = 0;
-    return m;
+    if (sorted_ && pos_ + 1 < v.size()) return {v[pos_].gate, v[pos_ + 1].gate};
+    const std::size_t k = (cur_ + 1) & (slots - 1);
+    const std::uint64_t bits = occupied_[k / 64] >> (k % 64);
+    if (!bits) return {sorted_ && pos_ < v.size() ? v[pos_].gate : no_id, no_id};
+    const auto& w = wheel_[(k + static_cast<std::size_t>(__builtin_ctzll(bits))) & (slots - 1)];
+    if (sorted_ && pos_ < v.size()) return {v[pos_].gate, w.front().gate};
+    return {w.front().gate, w.size() > 1 ? w[1].gate : no_id};
   }
   /// Calls f on every entry (any order).
   template <class F>
@@ -84,7 +79,7 @@ class event_queue {
   static bool later(const queued_event& a, const queued_event& b) { return a.time > b.time; }
   std::size_t cursor_slot() const { return cur_; }
   std::size_t slot_of(time_fs t) const { return static_cast<std::size_t>((t >> width_bits_) & (slots - 1)); }
-  void move_cursor(time_fs t) { base_ = (t >> width_bits_) << width_bits_, cur_ = slot_of(t), ++moves_; }
+  void move_cursor(time_fs t) { base_ = (t >> width_bits_) << width_bits_, cur_ = slot_of(t); }
   bool in_wheel(time_fs t) const { return (t >> width_bits_) - (floor_ >> width_bits_) < slots; }
   void put(const queued_event& e);
   void migrate();
@@ -105,7 +100,6 @@ class event_queue {
   std::size_t size_ = 0, in_wheel_ = 0;
   time_fs next_ = 0;               // min_time() while next_valid_
   bool sorted_ = false, next_valid_ = false;
-  std::size_t moves_ = 0;          // cursor moves since slot_moves()
 };
 
 // The queue's insert is on the per-event path: defined here so it inlines.
@@ -188,7 +182,6 @@ class event_queue {
       const std::size_t step = 1 + static_cast<std::size_t>(__builtin_ctzll(bits));
       base_ += step << width_bits_;
       cur_ = (cur_ + step) & (slots - 1);
-      ++moves_;
     } else {
       next_slot_scan();
     }
@@ -269,21 +262,34 @@ class simulator {
   // What the per-event path needs of a gate, in one 32-byte record: inputs
   // and output inline (the table row comes from the kind), this run's delays,
   // the inertial gate's pending value and the generation of its live entry.
-  // A gate of one or two inputs, or a two-input C-element, evaluates by one
-  // lookup: row `row` of lut_, at 9 x in0 + 3 x in1 + out (a one-input gate
-  // reads its input as in1 too; only the C-element's rows depend on out).
+  // What the per-event path needs of a gate, in one 32-byte record: inputs
+  // and output inline, the evaluation (a table row or another method), this
+  // run's delays, where its output's fan-out starts in fo_ and how long it
+  // is, the inertial gate's pending value and the generation of its live
+  // entry. A gate of one or two inputs, or a two-input C-element, evaluates
+  // by one lookup: row `op` of lut_, at 9 x in0 + 3 x in1 + out (a one-input
+  // gate reads its input as in1 too; only the C-element's rows depend on out).
   struct gate_rec {
-    enum : std::uint8_t { table, general, edge };
+    enum : std::uint8_t { general = 254, edge = 255 };  // else: a row of lut_
+    static constexpr std::uint8_t many = 255;          // fan-out count in fo_start_
     net_id in0 = 0, in1 = 0, out = 0;
-    std::uint32_t gen = 0;            // inertial: generation of the live queue entry
+    std::uint32_t gen = 0;             // inertial: generation of the live queue entry
     std::uint32_t rise = 0, fall = 0;  // this run's delays when they fit 32 bits (see wide_)
-    std::uint8_t mode = general, row = 0;
+    std::uint32_t fo = 0;              // fo_start_[gate]
+    std::uint8_t op = general;
+    std::uint8_t nfo = 0;              // fan-out count, or `many`
     bool transport = false;
-    logic pend = none;                // inertial: the pending value, or none
-    bool queued = false;              // in dirty_ for evaluation this instant
+    logic pend = none;                 // inertial: the pending value, or none
   };
   static_assert(sizeof(gate_rec) == 32);
+  std::span<const gate_id> fanout_of(gate_id g, const gate_rec& r) const;
   std::vector<gate_rec> gate_;
+  // The fan-out of each gate's output, in gate order (a copy of the
+  // netlist's lists, which are in net order), so that neighbouring gates'
+  // lists share cache lines.
+  std::vector<gate_id> fo_;
+  std::vector<std::uint32_t> fo_start_;
+  std::vector<std::uint8_t> queued_;  // in dirty_ for evaluation this instant
   struct edge_delays {
     time_fs rise, fall;
   };
