@@ -30,6 +30,21 @@ std::pair<std::uint64_t, std::uint64_t> pending_key(time_fs rel, gate_id g, logi
 
 }  // namespace
 
+void event_slot::grow() {
+  const std::uint32_t cap = cap_ ? 2 * cap_ : 8;
+  auto bigger = std::make_unique<queued_event[]>(cap);
+  std::copy(begin(), end(), bigger.get());
+  data_ = std::move(bigger);
+  cap_ = cap;
+}
+
+void event_slot::insert(queued_event* at, const queued_event& e) {
+  const std::size_t i = static_cast<std::size_t>(at - begin());
+  push_back(e);
+  std::copy_backward(begin() + i, end() - 1, end());
+  data_[i] = e;
+}
+
 event_queue::event_queue(time_fs largest_delay) : wheel_(slots) {
   // The wheel spans 2^(width_bits + 12) fs >= 2 x the largest delay.
   while ((time_fs{1} << (width_bits_ + slot_bits)) < 2 * largest_delay && width_bits_ < 40) ++width_bits_;
@@ -57,7 +72,7 @@ void event_queue::migrate() {
 
 void event_queue::sort_cursor_slot() {
   auto& cur = wheel_[cur_];
-  const auto first = cur.begin() + static_cast<std::ptrdiff_t>(pos_);
+  const auto first = cur.begin() + pos_;
   if (cur.end() - first <= 16) {
     // Most slots hold a handful of entries: insertion sort, no call.
     for (auto i = first + 1; i < cur.end(); ++i)

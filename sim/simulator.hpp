@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <array>
 #include <cstdint>
+#include <memory>
 #include <span>
 #include <utility>
 #include <vector>
@@ -19,6 +20,36 @@ struct queued_event {
   time_fs time;
   gate_id gate;
   std::uint32_t gen;
+};
+
+/// A slot of the event queue's wheel: a growable array of entries whose
+/// append inlines into the per-event path (std::vector's push_back stays a
+/// call there); it keeps its capacity when cleared.
+class event_slot {
+ public:
+  std::size_t size() const { return size_; }
+  bool empty() const { return size_ == 0; }
+  queued_event* begin() { return data_.get(); }
+  queued_event* end() { return data_.get() + size_; }
+  const queued_event* begin() const { return data_.get(); }
+  const queued_event* end() const { return data_.get() + size_; }
+  const queued_event* data() const { return data_.get(); }
+  queued_event& operator[](std::size_t i) { return data_[i]; }
+  const queued_event& operator[](std::size_t i) const { return data_[i]; }
+  const queued_event& front() const { return data_[0]; }
+  void clear() { size_ = 0; }
+  [[gnu::always_inline]] void push_back(const queued_event& e) {
+    if (size_ == cap_) [[unlikely]]
+      grow();
+    data_[size_++] = e;
+  }
+  /// Inserts e before `at` (a pointer into this slot).
+  void insert(queued_event* at, const queued_event& e);
+
+ private:
+  void grow();
+  std::unique_ptr<queued_event[]> data_;
+  std::uint32_t size_ = 0, cap_ = 0;
 };
 
 /// The event queue: a timing wheel (Ulrich 1969; Varghese and Lauck 1987)
@@ -89,7 +120,7 @@ class event_queue {
   void next_slot_scan();
   std::span<const queued_event> take_far(time_fs last);
 
-  std::vector<std::vector<queued_event>> wheel_;
+  std::vector<event_slot> wheel_;
   std::array<std::uint64_t, slots / 64> occupied_{};
   std::vector<queued_event> far_;  // a min-heap on time
   unsigned width_bits_ = 0;
@@ -108,7 +139,7 @@ class event_queue {
   auto& v = wheel_[slot];
   if (slot == cursor_slot() && sorted_) {
     // The slot under the cursor is sorted from pos_ on: insert in order.
-    auto it = std::upper_bound(v.begin() + static_cast<std::ptrdiff_t>(pos_), v.end(), e,
+    auto it = std::upper_bound(v.begin() + pos_, v.end(), e,
                                [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
     v.insert(it, e);
   } else {
