@@ -300,7 +300,7 @@ class simulator {
   // entry. A gate of one or two inputs, or a two-input C-element, evaluates
   // by one lookup: row `op` of lut_, at 9 x in0 + 3 x in1 + out (a one-input
   // gate reads its input as in1 too; only the C-element's rows depend on out).
-  struct gate_rec {
+  struct alignas(32) gate_rec {  // aligned: one cache line each
     enum : std::uint8_t { general = 254, edge = 255 };  // else: a row of lut_
     static constexpr std::uint8_t many = 255;          // fan-out count in fo_start_
     net_id in0 = 0, in1 = 0, out = 0;
