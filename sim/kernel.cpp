@@ -414,16 +414,26 @@ SETTLE_HOT void simulator::apply_front(std::span<const queued_event> front, time
 // miss the near caches: the queue entry, its gate's record, the fan-out list,
 // the records of the gates it feeds. The next instants' entries are known
 // (the sorted cursor slot, then the next occupied one), so each instant
-// starts the chain of the ones to come: the record two entries ahead, and
-// the fan-out list, output value and count of the next entry, whose record
-// was fetched an instant ago.
+// fetches one link of the chain for each of the next three: the record of
+// the third, the fan-out list (and output count) of the second, whose record
+// came an instant ago, and the records of the gates the next one feeds.
 SETTLE_HOT void simulator::prefetch_ahead() {
-  const auto [next, after] = queue_.next_gates();
-  if (after != no_id) __builtin_prefetch(&gate_[after]);
-  if (next != no_id) {
-    const gate_rec& r = gate_[next];
+  const auto [next, second, third] = queue_.upcoming();
+  if (third != no_id) __builtin_prefetch(&gate_[third]);
+  if (second != no_id) {
+    const gate_rec& r = gate_[second];
     __builtin_prefetch(&fo_[r.fo]);
     __builtin_prefetch(&toggles_[r.out]);
+  }
+  if (next != no_id) {
+    const gate_rec& r = gate_[next];
+    const gate_id* f = fo_.data() + r.fo;
+    switch (r.nfo) {
+      default: __builtin_prefetch(&gate_[f[2]]); [[fallthrough]];
+      case 2: __builtin_prefetch(&gate_[f[1]]); [[fallthrough]];
+      case 1: __builtin_prefetch(&gate_[f[0]]); [[fallthrough]];
+      case 0: break;
+    }
   }
 }
 

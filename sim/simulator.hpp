@@ -80,19 +80,24 @@ class event_queue {
   /// taken). Inline while the instant lies on the sorted cursor slot: the
   /// common case costs a few loads and compares.
   std::span<const queued_event> take_until(time_fs last);
-  /// The gates of the next entry and of the one after (no_id when unknown),
-  /// for prefetches: the sorted cursor slot, else the first entries of the
-  /// next occupied slot within the cursor's bitmap word (not sorted yet, so
-  /// a likely pick). Never moves the cursor.
-  std::pair<gate_id, gate_id> next_gates() const {
+  /// The gates of the next three entries (no_id where unknown), for
+  /// prefetches: from the sorted cursor slot, then from the next occupied
+  /// slot within the cursor's bitmap word (not sorted yet, so a likely
+  /// pick). Never moves the cursor.
+  std::array<gate_id, 3> upcoming() const {
+    std::array<gate_id, 3> g{no_id, no_id, no_id};
     const auto& v = wheel_[cur_];
-    if (sorted_ && pos_ + 1 < v.size()) return {v[pos_].gate, v[pos_ + 1].gate};
-    const std::size_t k = (cur_ + 1) & (slots - 1);
-    const std::uint64_t bits = occupied_[k / 64] >> (k % 64);
-    if (!bits) return {sorted_ && pos_ < v.size() ? v[pos_].gate : no_id, no_id};
-    const auto& w = wheel_[(k + static_cast<std::size_t>(__builtin_ctzll(bits))) & (slots - 1)];
-    if (sorted_ && pos_ < v.size()) return {v[pos_].gate, w.front().gate};
-    return {w.front().gate, w.size() > 1 ? w[1].gate : no_id};
+    std::size_t i = 0;
+    if (sorted_)
+      for (std::size_t p = pos_; i < 3 && p < v.size(); ++p) g[i++] = v[p].gate;
+    if (i < 3) {
+      const std::size_t k = (cur_ + 1) & (slots - 1);
+      if (const std::uint64_t bits = occupied_[k / 64] >> (k % 64); bits) {
+        const auto& w = wheel_[(k + static_cast<std::size_t>(__builtin_ctzll(bits))) & (slots - 1)];
+        for (std::size_t p = 0; i < 3 && p < w.size(); ++p) g[i++] = w[p].gate;
+      }
+    }
+    return g;
   }
   /// Calls f on every entry (any order).
   template <class F>
