@@ -357,6 +357,8 @@ class simulator {
   std::uint64_t events_ = 0, hash_ = 0;
   std::size_t live_ = 0;
   bool eval_all_ = true, tracking_ = false;
+  static constexpr std::size_t prefetch_above = std::size_t{1} << 20;  // bytes of gate records
+  bool prefetch_ = true;
 };
 
 }  // namespace settle
