@@ -421,15 +421,15 @@ SETTLE_HOT void simulator::apply_front(std::span<const queued_event> front, time
 // the third, the fan-out list (and output count) of the second, whose record
 // came an instant ago, and the records of the gates the next one feeds.
 SETTLE_HOT void simulator::prefetch_ahead() {
-  const auto [next, second, third] = queue_.upcoming();
-  if (third != no_id) __builtin_prefetch(&gate_[third]);
-  if (second != no_id) {
-    const gate_rec& r = gate_[second];
+  const auto up = queue_.upcoming<prefetch_depth>();
+  if (const gate_id g = up[prefetch_depth - 1]; g != no_id) __builtin_prefetch(&gate_[g]);
+  if (const gate_id g = up[prefetch_depth / 2]; g != no_id) {
+    const gate_rec& r = gate_[g];
     __builtin_prefetch(&fo_[r.fo]);
     __builtin_prefetch(&toggles_[r.out]);
   }
-  if (next != no_id) {
-    const gate_rec& r = gate_[next];
+  if (const gate_id g = up[0]; g != no_id) {
+    const gate_rec& r = gate_[g];
     const gate_id* f = fo_.data() + r.fo;
     switch (r.nfo) {
       default: __builtin_prefetch(&gate_[f[2]]); [[fallthrough]];

@@ -80,22 +80,24 @@ class event_queue {
   /// taken). Inline while the instant lies on the sorted cursor slot: the
   /// common case costs a few loads and compares.
   std::span<const queued_event> take_until(time_fs last);
-  /// The gates of the next three entries (no_id where unknown), for
-  /// prefetches: from the sorted cursor slot, then from the next occupied
-  /// slot within the cursor's bitmap word (not sorted yet, so a likely
-  /// pick). Never moves the cursor.
-  std::array<gate_id, 3> upcoming() const {
-    std::array<gate_id, 3> g{no_id, no_id, no_id};
+  /// The gates of the next N entries (no_id where unknown), for prefetches:
+  /// from the sorted cursor slot, then from the next occupied slots within
+  /// the bitmap word after the cursor (not sorted yet, so a likely pick).
+  /// Never moves the cursor.
+  template <std::size_t N>
+  std::array<gate_id, N> upcoming() const {
+    std::array<gate_id, N> g;
+    g.fill(no_id);
     const auto& v = wheel_[cur_];
     std::size_t i = 0;
     if (sorted_)
-      for (std::size_t p = pos_; i < 3 && p < v.size(); ++p) g[i++] = v[p].gate;
-    if (i < 3) {
-      const std::size_t k = (cur_ + 1) & (slots - 1);
-      if (const std::uint64_t bits = occupied_[k / 64] >> (k % 64); bits) {
-        const auto& w = wheel_[(k + static_cast<std::size_t>(__builtin_ctzll(bits))) & (slots - 1)];
-        for (std::size_t p = 0; i < 3 && p < w.size(); ++p) g[i++] = w[p].gate;
-      }
+      for (std::size_t p = pos_; i < N && p < v.size(); ++p) g[i++] = v[p].gate;
+    const std::size_t k = (cur_ + 1) & (slots - 1);
+    std::uint64_t bits = occupied_[k / 64] >> (k % 64);
+    while (i < N && bits) {
+      const auto& w = wheel_[(k + static_cast<std::size_t>(__builtin_ctzll(bits))) & (slots - 1)];
+      for (std::size_t p = 0; i < N && p < w.size(); ++p) g[i++] = w[p].gate;
+      bits &= bits - 1;
     }
     return g;
   }
@@ -359,6 +361,7 @@ class simulator {
   bool eval_all_ = true, tracking_ = false;
   static constexpr std::size_t prefetch_above = std::size_t{1} << 20;  // bytes of gate records
   bool prefetch_ = true;
+  static constexpr std::size_t prefetch_depth = 3;  // entries looked ahead (5 and 7 measured slower at 10^5 gates)
 };
 
 }  // namespace settle
