@@ -298,9 +298,6 @@ class simulator {
   std::vector<std::uint32_t> toggles_;
 
   // What the per-event path needs of a gate, in one 32-byte record: inputs
-  // and output inline (the table row comes from the kind), this run's delays,
-  // the inertial gate's pending value and the generation of its live entry.
-  // What the per-event path needs of a gate, in one 32-byte record: inputs
   // and output inline, the evaluation (a table row or another method), this
   // run's delays, where its output's fan-out starts in fo_ and how long it
   // is, the inertial gate's pending value and the generation of its live
