@@ -110,11 +110,24 @@ void event_queue::next_slot_scan() {
   cur_ = (s + step) & (slots - 1);
 }
 
-// take_until() when only far events are left: the general path moves the
-// wheel to them.
-std::span<const queued_event> event_queue::take_far(time_fs last) {
-  if (min_time() > last) return {};
-  return take_front();
+// take_until() when the wheel ran dry: moves it to the earliest far event
+// and pulls the far events now within its window onto it, unless that event
+// lies after `last` (then it is only remembered as the minimum).
+bool event_queue::jump_to_far(time_fs last) {
+  const time_fs t = far_.front().time;
+  if (t > last) {
+    next_valid_ = true;
+    next_ = t;
+    return false;
+  }
+  wheel_[cur_].clear();
+  occupied_[cur_ / 64] &= ~(std::uint64_t{1} << (cur_ % 64));
+  move_cursor(t);
+  pos_ = 0;
+  sorted_ = false;
+  floor_ = t;
+  migrate();
+  return true;
 }
 
 time_fs event_queue::find_min() {
@@ -134,32 +147,7 @@ time_fs event_queue::find_min() {
   }
 }
 
-std::span<const queued_event> event_queue::take_front() {
-  time_fs t = min_time();
-  if (in_wheel_ == 0) {
-    // The wheel ran dry: move it to the earliest far event.
-    wheel_[cursor_slot()].clear();
-    occupied_[cursor_slot() / 64] &= ~(std::uint64_t{1} << (cursor_slot() % 64));
-    move_cursor(t);
-    pos_ = 0;
-    sorted_ = false;
-  }
-  const bool turned = (t >> width_bits_) != (floor_ >> width_bits_);
-  floor_ = t;
-  if (turned && !far_.empty()) {
-    migrate();
-    t = find_min();
-  } else if (!sorted_) {
-    t = find_min();  // sorts the cursor slot and puts pos_ on the earliest entry
-  }
-  auto& v = wheel_[cursor_slot()];
-  const std::size_t from = pos_;
-  while (pos_ < v.size() && v[pos_].time == t) ++pos_;
-  size_ -= pos_ - from;
-  in_wheel_ -= pos_ - from;
-  next_valid_ = false;
-  return {v.data() + from, pos_ - from};
-}
+std::span<const queued_event> event_queue::take_front() { return take_until(std::numeric_limits<time_fs>::max()); }
 
 simulator::simulator(const netlist& n) : n_(n), queue_(n.largest_max_delay()) {
   const auto nets = n.net_count(), gates = n.gate_count();

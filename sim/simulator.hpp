@@ -125,7 +125,7 @@ class event_queue {
   void sort_cursor_slot();
   void next_slot();
   void next_slot_scan();
-  std::span<const queued_event> take_far(time_fs last);
+  bool jump_to_far(time_fs last);
 
   std::vector<event_slot> wheel_;
   std::array<std::uint64_t, slots / 64> occupied_{};
@@ -208,8 +208,10 @@ class event_queue {
       next_valid_ = false;
       return {v.data() + from, end - from};
     }
-    if (in_wheel_ == 0) [[unlikely]]
-      return size_ == 0 ? std::span<const queued_event>{} : take_far(last);
+    if (in_wheel_ == 0) [[unlikely]] {
+      if (size_ == 0 || !jump_to_far(last)) return {};
+      continue;
+    }
     // The cursor slot is used up: on to the next occupied one.
     v.clear();
     pos_ = 0;
