@@ -8,6 +8,41 @@
 
 using namespace settle;
 
+namespace {
+
+// The instant `front` taken at t holds exactly the reference's entries at t
+// (in any order); they leave the reference.
+void take_from_reference(std::span<const queued_event> front, time_fs t, std::multimap<time_fs, gate_id>& ref) {
+  auto [lo, hi] = ref.equal_range(t);
+  std::vector<gate_id> want, got;
+  for (auto it = lo; it != hi; ++it) want.push_back(it->second);
+  for (const auto& e : front) {
+    REQUIRE(e.time == t);
+    got.push_back(e.gate);
+  }
+  std::sort(want.begin(), want.end());
+  std::sort(got.begin(), got.end());
+  REQUIRE(got == want);
+  ref.erase(lo, hi);
+}
+
+// Pushes 0 to 3 entries at now + d into the queue and the reference: d is
+// mostly within the largest delay, zero `zero_percent` % of the time,
+// sometimes far beyond the wheel.
+void push_some(event_queue& q, std::multimap<time_fs, gate_id>& ref, std::mt19937_64& rng, time_fs now,
+               time_fs largest, unsigned zero_percent, gate_id& next) {
+  const int pushes = static_cast<int>(rng() % 4);
+  for (int k = 0; k < pushes; ++k) {
+    const auto r = rng() % 100;
+    const time_fs d = r < zero_percent ? 0 : r < 90 ? rng() % (largest + 1) : rng() % (50 * largest + 1000000);
+    q.push({now + d, next, 0});
+    ref.emplace(now + d, next);
+    ++next;
+  }
+}
+
+}  // namespace
+
 TEST_CASE("the event queue returns instants in time order, like an ordered multiset", "[kernel][queue]") {
   for (time_fs largest : {time_fs{0}, time_fs{1000}, time_fs{60000}, time_fs{5000000}}) {
     std::mt19937_64 rng(largest + 7);
@@ -19,31 +54,12 @@ TEST_CASE("the event queue returns instants in time order, like an ordered multi
       // A peek may move the cursor ahead; later pushes may still be earlier
       // (as input changes are), down to the last instant taken.
       if (!ref.empty() && rng() % 3 == 0) REQUIRE(q.min_time() == ref.begin()->first);
-      const int pushes = static_cast<int>(rng() % 4);
-      for (int k = 0; k < pushes; ++k) {
-        // Mostly within the largest delay, sometimes zero, sometimes far beyond.
-        const auto r = rng() % 100;
-        const time_fs d = r < 5 ? 0 : r < 90 ? rng() % (largest + 1) : rng() % (50 * largest + 1000000);
-        q.push({now + d, next, 0});
-        ref.emplace(now + d, next);
-        ++next;
-      }
+      push_some(q, ref, rng, now, largest, 5, next);
       if (ref.empty()) continue;
       REQUIRE_FALSE(q.empty());
       const time_fs t = q.min_time();
       REQUIRE(t == ref.begin()->first);
-      const auto front = q.take_front();
-      auto [lo, hi] = ref.equal_range(t);
-      std::vector<gate_id> want, got;
-      for (auto it = lo; it != hi; ++it) want.push_back(it->second);
-      for (auto& e : front) {
-        REQUIRE(e.time == t);
-        got.push_back(e.gate);
-      }
-      std::sort(want.begin(), want.end());
-      std::sort(got.begin(), got.end());
-      REQUIRE(got == want);
-      ref.erase(lo, hi);
+      take_from_reference(q.take_front(), t, ref);
       REQUIRE(q.size() == ref.size());
       now = t;
     }
@@ -62,14 +78,7 @@ TEST_CASE("take_until takes instants in time order and nothing after its bound",
     time_fs now = 0;
     gate_id next = 0;
     for (int round = 0; round < 20000; ++round) {
-      const int pushes = static_cast<int>(rng() % 4);
-      for (int k = 0; k < pushes; ++k) {
-        const auto r = rng() % 100;
-        const time_fs d = r < 10 ? 0 : r < 90 ? rng() % (largest + 1) : rng() % (50 * largest + 1000000);
-        q.push({now + d, next, 0});
-        ref.emplace(now + d, next);
-        ++next;
-      }
+      push_some(q, ref, rng, now, largest, 10, next);
       // A bound before, at or after the earliest instant.
       const time_fs last = ref.empty() ? now : ref.begin()->first + (rng() % 3 == 0 ? 0 : rng() % (largest + 2)) -
                                                   (rng() % 4 == 0 && ref.begin()->first > now ? 1 : 0);
@@ -80,17 +89,7 @@ TEST_CASE("take_until takes instants in time order and nothing after its bound",
         continue;
       }
       const time_fs t = ref.begin()->first;
-      auto [lo, hi] = ref.equal_range(t);
-      std::vector<gate_id> want, got;
-      for (auto it = lo; it != hi; ++it) want.push_back(it->second);
-      for (const auto& e : front) {
-        REQUIRE(e.time == t);
-        got.push_back(e.gate);
-      }
-      std::sort(want.begin(), want.end());
-      std::sort(got.begin(), got.end());
-      REQUIRE(got == want);
-      ref.erase(lo, hi);
+      take_from_reference(front, t, ref);
       REQUIRE(q.size() == ref.size());
       now = t;
     }
