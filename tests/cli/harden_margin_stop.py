@@ -11,7 +11,7 @@ import sys
 import time
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, summary, scratch  # noqa: E402
+from settle_test import check, summary, scratch, wait_until_caught  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 design = os.path.join(src, "examples", "sensor_watchdog.settle")
@@ -39,6 +39,7 @@ for sig in (signal.SIGINT, signal.SIGTERM):
     out = os.path.join(tmp, f"s{int(sig)}.json")
     proc = subprocess.Popen([settle, "margin", design, *slow, "--json", out],
                             stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
+    check(wait_until_caught(proc, sig), f"{sig.name}: settle installs its handler before the search")
     time.sleep(0.5)
     check(proc.poll() is None, f"{sig.name}: the search is still running when the signal is sent")
     t0 = time.monotonic()

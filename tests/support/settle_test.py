@@ -145,6 +145,26 @@ def summary():
     return 0
 
 
+def wait_until_caught(proc, sig, limit=60.0):
+    """Waits until the running process `proc` has a handler for `sig` installed, as the kernel
+    reports it in /proc/<pid>/status (SigCgt, a hexadecimal mask with bit sig-1 set for each
+    caught signal; proc(5), Linux man-pages). A signal sent before that would end the process the
+    default way, which is not what a signal test means to check; a fixed sleep is not enough on a
+    loaded machine or under the sanitizers. Returns False if the process ended or `limit` seconds
+    passed first."""
+    end = time.monotonic() + limit
+    while time.monotonic() < end and proc.poll() is None:
+        try:
+            with open(f"/proc/{proc.pid}/status") as f:
+                caught = next((int(line.split()[1], 16) for line in f if line.startswith("SigCgt:")), 0)
+        except OSError:
+            caught = 0
+        if caught >> (int(sig) - 1) & 1:
+            return True
+        time.sleep(0.02)
+    return False
+
+
 def scratch(prefix):
     """A temporary folder named with `prefix`, removed when the test exits."""
     folder = tempfile.mkdtemp(prefix=prefix)
