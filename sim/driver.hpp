@@ -161,14 +161,14 @@ class driver {
 
     // What the step's expectations and report need counted from its start.
     const auto& vals = sim_.values();
-    const auto& tog = sim_.toggles();
     for (net_id n : result_.reported) r.start_values.push_back(vals[n]);
     std::vector<std::uint32_t> tog_start;
-    for (net_id n : result_.reported) tog_start.push_back(tog[n]);
+    for (net_id n : result_.reported) tog_start.push_back(sim_.toggle_count(n));
     std::vector<std::uint32_t> glitch_tog;
     std::vector<logic> glitch_start;
     for (const auto& e : spec.expects)
-      if (e.what == expectation::kind::no_glitch) glitch_tog.push_back(tog[e.net]), glitch_start.push_back(vals[e.net]);
+      if (e.what == expectation::kind::no_glitch)
+        glitch_tog.push_back(sim_.toggle_count(e.net)), glitch_start.push_back(vals[e.net]);
 
     const bool settle_step = spec.end == step_spec::end_kind::settle;
     const time_fs limit = add_saturating(start, settle_step ? horizon_ : spec.run_for);
@@ -251,9 +251,8 @@ class driver {
         r.status = step_status::oscillating;
         r.period = t - snap.time;
         r.end = t;
-        const auto& now_tog = sim_.toggles();
-        for (net_id n = 2; n < now_tog.size(); ++n)
-          if (now_tog[n] != snap.toggles[n]) r.toggling.push_back(n);
+        for (net_id n = 2; n < snap.toggles.size(); ++n)
+          if (sim_.toggle_count(n) != snap.toggles[n]) r.toggling.push_back(n);
         break;
       }
       if (!have_snap || ++lambda == power) {
@@ -272,7 +271,7 @@ class driver {
       r.status = step_status::settled;
     for (std::size_t i = 0; i < result_.reported.size(); ++i) {
       r.values.push_back(sim_.values()[result_.reported[i]]);
-      r.transitions.push_back(sim_.toggles()[result_.reported[i]] - tog_start[i]);
+      r.transitions.push_back(sim_.toggle_count(result_.reported[i]) - tog_start[i]);
     }
     check_expectations(spec, r, glitch_tog, glitch_start);
     ref_ = r.end;
@@ -312,7 +311,7 @@ class driver {
                            : fmt::format("settled after {}, budget {}", format_time(r.settle), format_time(e.hi));
           break;
         case expectation::kind::no_glitch: {
-          const auto toggles = sim_.toggles()[e.net] - glitch_tog[glitch_i];
+          const auto toggles = sim_.toggle_count(e.net) - glitch_tog[glitch_i];
           const std::uint32_t needed = sim_.values()[e.net] != glitch_start[glitch_i] ? 1 : 0;
           ++glitch_i;
           x.got = sim_.values()[e.net];

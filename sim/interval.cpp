@@ -104,7 +104,7 @@ class interval_kernel {
   time_fs last_change() const { return last_change_; }
   std::uint64_t events() const { return events_; }
   const std::vector<logic>& values() const { return val_; }
-  const std::vector<std::uint32_t>& toggles() const { return toggles_; }
+  std::uint32_t toggle_count(net_id net) const { return toggles_[net]; }
   void track_state(bool) {}  // the hash is always kept: this kernel is not the hot path
   std::uint64_t hash() const { return hash_; }
 

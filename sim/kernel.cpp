@@ -3,6 +3,9 @@
 
 #include <algorithm>
 #include <limits>
+#include <stdexcept>
+
+#include <fmt/format.h>
 
 #include "sim/eval.hpp"
 
@@ -204,13 +207,17 @@ void simulator::build_fast_paths() {
   // Records that fit in the core's own caches need no prefetching (it costs
   // a tenth of the instructions of an event).
   prefetch_ = n_.gate_count() * sizeof(gate_rec) > prefetch_above;
+  if (n_.gate_count() > reader(~fan_entry{0}))
+    throw std::length_error(
+        fmt::format("{} gates: the kernel takes at most {}", n_.gate_count(), reader(~fan_entry{0})));
+  ins_.resize(n_.gate_count());
   for (gate_id g = 0; g < n_.gate_count(); ++g) {
     gate_rec& f = gate_[g];
     const auto k = n_.kind[g];
     const auto fan = n_.fanin_begin[g + 1] - n_.fanin_begin[g];
     f.out = n_.gate_out[g];
-    f.in0 = fan > 0 ? n_.fanin[n_.fanin_begin[g]] : 0;
-    f.in1 = fan > 1 ? n_.fanin[n_.fanin_begin[g] + 1] : f.in0;
+    ins_[g].in0 = fan > 0 ? n_.fanin[n_.fanin_begin[g]] : 0;
+    ins_[g].in1 = fan > 1 ? n_.fanin[n_.fanin_begin[g] + 1] : ins_[g].in0;
     const bool simple = k != gate_kind::mux && k != gate_kind::maj && k != gate_kind::gc && k != gate_kind::expr &&
                         k != gate_kind::dff && !n_.enumerate[g];
     f.op = gate_rec::general;
@@ -223,17 +230,28 @@ void simulator::build_fast_paths() {
     } else if (simple && fan == 2 && k != gate_kind::buf && k != gate_kind::inv) {
       f.op = static_cast<std::uint8_t>(k);
     }
+  }
+  // Fan-out entries name the inputs the net is, so a change updates the
+  // copies of its value in the records it reaches.
+  net_fo_.resize(n_.fanout.size());
+  for (net_id net = 0; net < n_.net_count(); ++net)
+    for (auto i = n_.fanout_begin[net]; i < n_.fanout_begin[net + 1]; ++i) {
+      const gate_id g = n_.fanout[i];
+      net_fo_[i] = g << 2 | (ins_[g].in0 == net ? 1u : 0u) | (ins_[g].in1 == net ? 2u : 0u);
+    }
+  for (gate_id g = 0; g < n_.gate_count(); ++g) {
+    gate_rec& f = gate_[g];
     const auto from = n_.fanout_begin[f.out], to = n_.fanout_begin[f.out + 1];
     f.fo = static_cast<std::uint32_t>(fo_.size());
     f.nfo = static_cast<std::uint8_t>(std::min<std::uint32_t>(to - from, gate_rec::many));
     fo_start_.push_back(f.fo);
-    fo_.insert(fo_.end(), n_.fanout.begin() + from, n_.fanout.begin() + to);
+    fo_.insert(fo_.end(), net_fo_.begin() + from, net_fo_.begin() + to);
   }
   fo_start_.push_back(static_cast<std::uint32_t>(fo_.size()));
   queued_.assign(n_.gate_count(), 0);
 }
 
-SETTLE_HOT std::span<const gate_id> simulator::fanout_of(gate_id g, const gate_rec& r) const {
+SETTLE_HOT std::span<const simulator::fan_entry> simulator::fanout_of(gate_id g, const gate_rec& r) const {
   const std::uint32_t n = r.nfo != gate_rec::many ? r.nfo : fo_start_[g + 1] - r.fo;
   return {fo_.data() + r.fo, n};
 }
@@ -243,8 +261,10 @@ void simulator::reset(const delay_table& delays) {
   clock_seen_.assign(n_.gate_count(), logic::x);
   for (gate_id g = 0; g < n_.gate_count(); ++g) {
     gate_rec& r = gate_[g];
-    if (r.op == gate_rec::edge) clock_seen_[g] = n_.init[r.in1];
+    if (r.op == gate_rec::edge) clock_seen_[g] = n_.init[ins_[g].in1];
     r.pend = none;
+    r.v0 = val_[ins_[g].in0], r.v1 = val_[ins_[g].in1], r.vout = val_[r.out];
+    r.toggles = 0;
     queued_[g] = 0;
   }
   constexpr time_fs narrow = std::numeric_limits<std::uint32_t>::max();
@@ -313,11 +333,11 @@ SETTLE_HOT void simulator::schedule(gate_id g, logic v, time_fs t) {
   if (q.size() == 1) queue_.push({t, g, q.front().id});
 }
 
-// A net takes a new value: counts, hash and trace (the caller knows it differs).
+// A net takes a new value (the caller knows it differs): hash, count and
+// trace; the caller updates the copies in the gate records.
 SETTLE_HOT void simulator::change_value(net_id net, logic v, time_fs t) {
   if (tracking_) hash_ ^= value_key(net, val_[net]) ^ value_key(net, v);
   val_[net] = v;
-  ++toggles_[net];
   ++events_;
   last_change_ = t;
   if (sink_) {
@@ -326,26 +346,56 @@ SETTLE_HOT void simulator::change_value(net_id net, logic v, time_fs t) {
   }
 }
 
-SETTLE_HOT void simulator::apply(net_id net, logic v, time_fs t) {
+// The copy of a net's new value in the record of a gate that reads it.
+SETTLE_HOT void simulator::pass_value(fan_entry e, logic v) {
+  gate_rec& r = gate_[reader(e)];
+  if (e & 1) r.v0 = v;
+  if (e & 2) r.v1 = v;
+}
+
+// Gate g's output takes the value v (the caller knows it differs); returns
+// the gates it feeds, for the caller to pass the value on.
+SETTLE_HOT std::span<const simulator::fan_entry> simulator::change_output(gate_id g, gate_rec& r, logic v, time_fs t) {
+  change_value(r.out, v, t);
+  r.vout = v;
+  ++r.toggles;
+  return fanout_of(g, r);
+}
+
+// A change within an instant of several: the gates it feeds are marked for
+// evaluation once every change of the instant has taken effect.
+SETTLE_HOT void simulator::mark(std::span<const fan_entry> fan, logic v) {
+  for (const fan_entry e : fan) {
+    pass_value(e, v);
+    if (const gate_id g = reader(e); !queued_[g]) queued_[g] = 1, dirty_.push_back(g);
+  }
+}
+
+// An input change (a net no gate drives, or a driven net the stimulus sets).
+void simulator::apply_input(net_id net, logic v, time_fs t) {
   if (val_[net] == v) return;
   change_value(net, v, t);
-  const gate_id* f = n_.fanout.data();
-  for (auto i = n_.fanout_begin[net], end = n_.fanout_begin[net + 1]; i < end; ++i) {
-    if (!queued_[f[i]]) queued_[f[i]] = 1, dirty_.push_back(f[i]);
-  }
+  ++toggles_[net];
+  if (const gate_id d = n_.driver[net]; d != no_id) gate_[d].vout = v;
+  const auto from = n_.fanout_begin[net], to = n_.fanout_begin[net + 1];
+  mark({net_fo_.data() + from, to - from}, v);
+}
+
+SETTLE_HOT void simulator::apply_output(gate_id g, gate_rec& r, logic v, time_fs t) {
+  if (r.vout == v) return;
+  mark(change_output(g, r, v, t), v);
 }
 
 SETTLE_HOT logic simulator::eval_fast(gate_id g, logic present) {
   const gate_rec& f = gate_[g];
   if (f.op < lut_rows) [[likely]]
-    return lut_[f.op * 27 + static_cast<int>(val_[f.in0]) * 9 + static_cast<int>(val_[f.in1]) * 3 +
-                static_cast<int>(present)];
+    return lut_[f.op * 27 + static_cast<int>(f.v0) * 9 + static_cast<int>(f.v1) * 3 + static_cast<int>(present)];
   if (f.op == gate_rec::edge) {
     // A flip-flop is evaluated whenever CK or D changes, so the CK it saw
     // last time tells a rising edge (0 -> 1) from anything else.
-    const logic ck = val_[f.in1], before = clock_seen_[g];
+    const logic ck = val_[ins_[g].in1], before = clock_seen_[g];
     clock_seen_[g] = ck;
-    const logic d = val_[f.in0];
+    const logic d = val_[ins_[g].in0];
     if (before == logic::zero && ck == logic::one) return d;
     const bool may_rise = before != logic::one && ck != logic::zero && before != ck;
     return may_rise ? lub(present, d) : present;
@@ -355,7 +405,7 @@ SETTLE_HOT logic simulator::eval_fast(gate_id g, logic present) {
 
 SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
   gate_rec& r = gate_[g];
-  const logic present = val_[r.out];
+  const logic present = r.vout;
   const logic v = eval_fast(g, present);
   if (!r.transport) {
     // Inertial: one pending change per output (pulses shorter than the delay vanish).
@@ -387,7 +437,7 @@ SETTLE_HOT void simulator::apply_front(std::span<const queued_event> front, time
       const logic v = r.pend;
       r.pend = none;
       --live_;
-      apply(r.out, v, t);
+      apply_output(g, r, v, t);
     } else {
       auto& q = tq_[slot_[g]];
       if (q.empty() || q.front().id != e.gen) continue;
@@ -395,7 +445,7 @@ SETTLE_HOT void simulator::apply_front(std::span<const queued_event> front, time
       q.erase(q.begin());
       --live_;
       if (!q.empty()) repush_.push_back({q.front().time, g, q.front().id});
-      apply(n_.gate_out[g], v, t);
+      apply_output(g, r, v, t);
     }
   }
   for (const auto& e : repush_) queue_.push(e);
@@ -406,7 +456,7 @@ SETTLE_HOT void simulator::apply_front(std::span<const queued_event> front, time
 // the records of the gates it feeds. The next instants' entries are known
 // (the sorted cursor slot, then the next occupied one), so each instant
 // fetches one link of the chain for each of the next three: the record of
-// the third, the fan-out list (and output count) of the second, whose record
+// the third, the fan-out list of the second, whose record
 // came an instant ago, and the records of the gates the next one feeds.
 SETTLE_HOT void simulator::prefetch_ahead() {
   const auto up = queue_.upcoming<prefetch_depth>();
@@ -414,15 +464,14 @@ SETTLE_HOT void simulator::prefetch_ahead() {
   if (const gate_id g = up[prefetch_depth / 2]; g != no_id) {
     const gate_rec& r = gate_[g];
     __builtin_prefetch(&fo_[r.fo]);
-    __builtin_prefetch(&toggles_[r.out]);
   }
   if (const gate_id g = up[0]; g != no_id) {
     const gate_rec& r = gate_[g];
-    const gate_id* f = fo_.data() + r.fo;
+    const fan_entry* f = fo_.data() + r.fo;
     switch (r.nfo) {
-      default: __builtin_prefetch(&gate_[f[2]]); [[fallthrough]];
-      case 2: __builtin_prefetch(&gate_[f[1]]); [[fallthrough]];
-      case 1: __builtin_prefetch(&gate_[f[0]]); [[fallthrough]];
+      default: __builtin_prefetch(&gate_[reader(f[2])]); [[fallthrough]];
+      case 2: __builtin_prefetch(&gate_[reader(f[1])]); [[fallthrough]];
+      case 1: __builtin_prefetch(&gate_[reader(f[0])]); [[fallthrough]];
       case 0: break;
     }
   }
@@ -433,7 +482,7 @@ void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
   dirty_.clear();
   // First every change due at t takes effect, then the gates they feed are
   // evaluated: nothing depends on the order of events within an instant.
-  for (const auto& a : inputs) apply(a.net, a.value, t);
+  for (const auto& a : inputs) apply_input(a.net, a.value, t);
   if (live_ && queue_.min_time() == t) {
     apply_front(queue_.take_front(), t);
     if (prefetch_) prefetch_ahead();
@@ -474,13 +523,13 @@ std::uint64_t simulator::run_quiet(time_fs last, std::uint64_t max_instants, std
       gate_rec& r = gate_[e.gate];
       if (r.pend != none && r.gen == e.gen) {
         const logic v = r.pend;
-        const net_id out = r.out;
         r.pend = none;
         --live_;
-        if (val_[out] != v) {
-          change_value(out, v, t);
-          for (const gate_id g : fanout_of(e.gate, r)) evaluate(g, t);
-        }
+        if (r.vout != v)
+          for (const fan_entry f : change_output(e.gate, r, v, t)) {
+            pass_value(f, v);
+            evaluate(reader(f), t);
+          }
       }
     } else {
       dirty_.clear();
@@ -512,7 +561,8 @@ void simulator::snapshot(state_snapshot& s, std::span<const std::uint64_t> extra
   s.values = val_;
   gather_pending(s.pending);
   s.extra.assign(extra.begin(), extra.end());
-  s.toggles = toggles_;
+  s.toggles.resize(val_.size());
+  for (net_id i = 0; i < val_.size(); ++i) s.toggles[i] = toggle_count(i);
 }
 
 bool simulator::same_state(const state_snapshot& s, std::span<const std::uint64_t> extra) const {

@@ -265,7 +265,11 @@ class simulator {
   time_fs last_change() const { return last_change_; }
   std::uint64_t events() const { return events_; }
   const std::vector<logic>& values() const { return val_; }
-  const std::vector<std::uint32_t>& toggles() const { return toggles_; }
+  /// Transitions of `net` since reset().
+  std::uint32_t toggle_count(net_id net) const {
+    const gate_id g = n_.driver[net];
+    return toggles_[net] + (g != no_id ? gate_[g].toggles : 0);
+  }
   /// The state hash, kept only while tracking (repeat detection is on): the
   /// per-event path skips it otherwise. Turning tracking on computes it afresh.
   void track_state(bool on);
@@ -284,9 +288,18 @@ class simulator {
   void build_fast_paths();
   logic eval_fast(gate_id g, logic present);
   void schedule(gate_id g, logic v, time_fs t);
-  void apply(net_id net, logic v, time_fs t);
   void evaluate(gate_id g, time_fs t);
   void change_value(net_id net, logic v, time_fs t);
+  struct gate_rec;
+  // A fan-out entry: the gate reading a net, shifted left by two, and which
+  // of its first two inputs the net is (bit 0: the first, bit 1: the second).
+  using fan_entry = std::uint32_t;
+  static constexpr gate_id reader(fan_entry e) { return e >> 2; }
+  void pass_value(fan_entry e, logic v);
+  std::span<const fan_entry> change_output(gate_id g, gate_rec& r, logic v, time_fs t);
+  void mark(std::span<const fan_entry> fan, logic v);
+  void apply_input(net_id net, logic v, time_fs t);
+  void apply_output(gate_id g, gate_rec& r, logic v, time_fs t);
   void apply_front(std::span<const queued_event> front, time_fs t);
   void prefetch_ahead();
   time_fs delay_of(gate_id g, logic from, logic to) const;
@@ -299,32 +312,42 @@ class simulator {
   std::vector<logic> val_;
   std::vector<std::uint32_t> toggles_;
 
-  // What the per-event path needs of a gate, in one 32-byte record: inputs
-  // and output inline, the evaluation (a table row or another method), this
-  // run's delays, where its output's fan-out starts in fo_ and how long it
-  // is, the inertial gate's pending value and the generation of its live
-  // entry. A gate of one or two inputs, or a two-input C-element, evaluates
-  // by one lookup: row `op` of lut_, at 9 x in0 + 3 x in1 + out (a one-input
-  // gate reads its input as in1 too; only the C-element's rows depend on out).
-  struct alignas(32) gate_rec {  // aligned: one cache line each
+  // What the per-event path needs of a gate, in one 32-byte record: the
+  // present values of its inputs and output (copies of val_, which every
+  // change of a net writes into the records of the gates it feeds), its
+  // evaluation (a table row or another method), this run's delays, where its
+  // output's fan-out starts in fo_ and how long it is, the inertial gate's
+  // pending value and the generation of its live entry, and its output's
+  // transition count. So an event reads its own record, its fan-out list and
+  // the records of the gates it feeds, and nothing else at random. A gate of
+  // one or two inputs, or a two-input C-element, evaluates by one lookup: row
+  // `op` of lut_, at 9 x v0 + 3 x v1 + vout (a one-input gate reads its input
+  // as its second too; only the C-element's rows depend on vout).
+  struct alignas(32) gate_rec {  // aligned: none straddles two cache lines
     enum : std::uint8_t { general = 254, edge = 255 };  // else: a row of lut_
     static constexpr std::uint8_t many = 255;          // fan-out count in fo_start_
-    net_id in0 = 0, in1 = 0, out = 0;
+    net_id out = 0;
     std::uint32_t gen = 0;             // inertial: generation of the live queue entry
     std::uint32_t rise = 0, fall = 0;  // this run's delays when they fit 32 bits (see wide_)
     std::uint32_t fo = 0;              // fo_start_[gate]
+    std::uint32_t toggles = 0;         // transitions of out since reset (toggle_count)
     std::uint8_t op = general;
     std::uint8_t nfo = 0;              // fan-out count, or `many`
     bool transport = false;
     logic pend = none;                 // inertial: the pending value, or none
+    logic v0 = logic::x, v1 = logic::x, vout = logic::x;
   };
   static_assert(sizeof(gate_rec) == 32);
-  std::span<const gate_id> fanout_of(gate_id g, const gate_rec& r) const;
+  // The first two inputs of each gate (a one-input gate's input twice).
+  struct input_pair {
+    net_id in0, in1;
+  };
+  std::vector<input_pair> ins_;
+  std::span<const fan_entry> fanout_of(gate_id g, const gate_rec& r) const;
   std::vector<gate_rec> gate_;
-  // The fan-out of each gate's output, in gate order (a copy of the
-  // netlist's lists, which are in net order), so that neighbouring gates'
-  // lists share cache lines.
-  std::vector<gate_id> fo_;
+  // The fan-out of each gate's output, in gate order (neighbouring gates'
+  // lists share cache lines), and of each net, in net order (for inputs).
+  std::vector<fan_entry> fo_, net_fo_;
   std::vector<std::uint32_t> fo_start_;
   std::vector<std::uint8_t> queued_;  // in dirty_ for evaluation this instant
   struct edge_delays {
