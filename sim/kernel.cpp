@@ -248,6 +248,7 @@ void simulator::build_fast_paths() {
     fo_.insert(fo_.end(), net_fo_.begin() + from, net_fo_.begin() + to);
   }
   fo_start_.push_back(static_cast<std::uint32_t>(fo_.size()));
+  fo_.resize(fo_.size() + 3, 0);  // prefetch_ahead reads three entries of any list
   queued_.assign(n_.gate_count(), 0);
 }
 
@@ -348,9 +349,11 @@ SETTLE_HOT void simulator::change_value(net_id net, logic v, time_fs t) {
 
 // The copy of a net's new value in the record of a gate that reads it.
 SETTLE_HOT void simulator::pass_value(fan_entry e, logic v) {
+  // Selects, not branches: which input a net is follows no pattern.
   gate_rec& r = gate_[reader(e)];
-  if (e & 1) r.v0 = v;
-  if (e & 2) r.v1 = v;
+  const logic v0 = r.v0, v1 = r.v1;
+  r.v0 = e & 1 ? v : v0;
+  r.v1 = e & 2 ? v : v1;
 }
 
 // Gate g's output takes the value v (the caller knows it differs); returns
@@ -467,13 +470,13 @@ SETTLE_HOT void simulator::prefetch_ahead() {
   }
   if (const gate_id g = up[0]; g != no_id) {
     const gate_rec& r = gate_[g];
+    // The first three, whatever the count: past its end a list runs into the
+    // next gate's (fo_ ends in padding), and a wasted prefetch costs less
+    // than a mispredicted branch.
     const fan_entry* f = fo_.data() + r.fo;
-    switch (r.nfo) {
-      default: __builtin_prefetch(&gate_[reader(f[2])]); [[fallthrough]];
-      case 2: __builtin_prefetch(&gate_[reader(f[1])]); [[fallthrough]];
-      case 1: __builtin_prefetch(&gate_[reader(f[0])]); [[fallthrough]];
-      case 0: break;
-    }
+    __builtin_prefetch(&gate_[reader(f[0])]);
+    __builtin_prefetch(&gate_[reader(f[1])]);
+    __builtin_prefetch(&gate_[reader(f[2])]);
   }
 }
 
