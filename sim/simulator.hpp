@@ -81,23 +81,25 @@ class event_queue {
   /// common case costs a few loads and compares.
   std::span<const queued_event> take_until(time_fs last);
   /// The gates of the next N entries (no_id where unknown), for prefetches:
-  /// from the sorted cursor slot, then from the next occupied slots within
-  /// the bitmap word after the cursor (not sorted yet, so a likely pick).
-  /// Never moves the cursor.
+  /// from the sorted cursor slot, then from the next occupied slot within the
+  /// bitmap word after the cursor (not sorted yet, so a likely pick). Never
+  /// moves the cursor. Reads are clamped and picked by selects rather than
+  /// loops whose trip counts follow the data, so the branches predict.
   template <std::size_t N>
   std::array<gate_id, N> upcoming() const {
-    std::array<gate_id, N> g;
-    g.fill(no_id);
     const auto& v = wheel_[cur_];
-    std::size_t i = 0;
-    if (sorted_)
-      for (std::size_t p = pos_; i < N && p < v.size(); ++p) g[i++] = v[p].gate;
+    const std::size_t n = v.size();
+    const std::size_t have = sorted_ && pos_ < n ? n - pos_ : 0;
     const std::size_t k = (cur_ + 1) & (slots - 1);
-    std::uint64_t bits = occupied_[k / 64] >> (k % 64);
-    while (i < N && bits) {
-      const auto& w = wheel_[(k + static_cast<std::size_t>(__builtin_ctzll(bits))) & (slots - 1)];
-      for (std::size_t p = 0; i < N && p < w.size(); ++p) g[i++] = w[p].gate;
-      bits &= bits - 1;
+    const std::uint64_t bits = occupied_[k / 64] >> (k % 64);
+    const event_slot* w = bits ? &wheel_[(k + static_cast<std::size_t>(__builtin_ctzll(bits))) & (slots - 1)] : nullptr;
+    const std::size_t wn = w ? w->size() : 0;
+    std::array<gate_id, N> g;
+    for (std::size_t i = 0; i < N; ++i) {
+      const gate_id here = n ? v[std::min(pos_ + i, n - 1)].gate : no_id;
+      const std::size_t j = i - have;  // wraps when i < have; then unused
+      const gate_id next = wn ? (*w)[std::min(j, wn - 1)].gate : no_id;
+      g[i] = i < have ? here : j < wn ? next : no_id;
     }
     return g;
   }

@@ -1,6 +1,7 @@
 // The timing-wheel event queue against a plain ordered multiset.
 #include <catch2/catch.hpp>
 
+#include <algorithm>
 #include <map>
 #include <random>
 
@@ -92,6 +93,14 @@ TEST_CASE("take_until takes instants in time order and nothing after its bound",
       take_from_reference(front, t, ref);
       REQUIRE(q.size() == ref.size());
       now = t;
+      // The prefetch hint names only queued entries, each once, whatever the
+      // slots hold (its reads are clamped, not bounded by loops).
+      const auto up = q.upcoming<3>();
+      for (std::size_t i = 0; i < up.size(); ++i) {
+        if (up[i] == no_id) continue;
+        CHECK(std::any_of(ref.begin(), ref.end(), [&](const auto& e) { return e.second == up[i]; }));
+        CHECK(std::count(up.begin(), up.end(), up[i]) == 1);
+      }
     }
   }
 }
