@@ -60,7 +60,7 @@ void event_queue::clear() {
   far_.clear();
   base_ = floor_ = 0;
   cur_ = 0;
-  pos_ = size_ = in_wheel_ = 0;
+  pos_ = size_ = in_wheel_ = lead_ = 0;
   sorted_ = next_valid_ = false;
 }
 
@@ -76,6 +76,9 @@ void event_queue::migrate() {
 void event_queue::sort_cursor_slot() {
   auto& cur = wheel_[cur_];
   const auto first = cur.begin() + pos_;
+  // The look-ahead passed entries of this slot in their pushed order: it
+  // walks them again in the taken order.
+  if (la_slot_ == cur_) lead_ = 0;
   if (cur.end() - first <= 16) {
     // Most slots hold a handful of entries: insertion sort, no call.
     for (auto i = first + 1; i < cur.end(); ++i)
@@ -128,6 +131,7 @@ bool event_queue::jump_to_far(time_fs last) {
   move_cursor(t);
   pos_ = 0;
   sorted_ = false;
+  lead_ = 0;
   floor_ = t;
   migrate();
   return true;
@@ -459,24 +463,23 @@ SETTLE_HOT void simulator::apply_front(std::span<const queued_event> front, time
 
 // Each instant is a chain of dependent loads, which at 10^5 gates and more
 // miss the near caches: the queue entry, its gate's record, the fan-out list,
-// the records of the gates it feeds. The next instants' entries are known
-// (the sorted cursor slot, then the next occupied one), so each instant
-// fetches one link of the chain for each of the next three: the record of
-// the third, the fan-out list of the second, whose record
-// came an instant ago, and the records of the gates the next one feeds.
+// the records of the gates it feeds. The next entries are known (the queue's
+// look-ahead walks them), so each entry the look-ahead passes fetches one
+// link of the chain for each of the last three it passed: the record of the
+// newest, the fan-out list of the one before, whose record came an entry
+// ago, and the records of the gates the oldest feeds. The look-ahead stays
+// three entries ahead of the instants taken.
 SETTLE_HOT void simulator::prefetch_ahead() {
-  const auto up = queue_.upcoming<prefetch_depth>();
-  if (const gate_id g = up[prefetch_depth - 1]; g != no_id) __builtin_prefetch(&gate_[g]);
-  if (const gate_id g = up[prefetch_depth / 2]; g != no_id) {
-    const gate_rec& r = gate_[g];
-    __builtin_prefetch(&fo_[r.fo]);
-  }
-  if (const gate_id g = up[0]; g != no_id) {
-    const gate_rec& r = gate_[g];
+  while (queue_.lead() < prefetch_depth) {
+    const gate_id g = queue_.next_ahead();
+    if (g == no_id) return;
+    near_ = mid_, mid_ = far_, far_ = g;
+    __builtin_prefetch(&gate_[far_]);
+    __builtin_prefetch(&fo_[gate_[mid_].fo]);
     // The first three, whatever the count: past its end a list runs into the
     // next gate's (fo_ ends in padding), and a wasted prefetch costs less
     // than a mispredicted branch.
-    const fan_entry* f = fo_.data() + r.fo;
+    const fan_entry* f = fo_.data() + gate_[near_].fo;
     __builtin_prefetch(&gate_[reader(f[0])]);
     __builtin_prefetch(&gate_[reader(f[1])]);
     __builtin_prefetch(&gate_[reader(f[2])]);

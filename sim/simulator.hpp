@@ -80,29 +80,39 @@ class event_queue {
   /// taken). Inline while the instant lies on the sorted cursor slot: the
   /// common case costs a few loads and compares.
   std::span<const queued_event> take_until(time_fs last);
-  /// The gates of the next N entries (no_id where unknown), for prefetches:
-  /// from the sorted cursor slot, then from the next occupied slot within the
-  /// bitmap word after the cursor (not sorted yet, so a likely pick). Never
-  /// moves the cursor. Reads are clamped and picked by selects rather than
-  /// loops whose trip counts follow the data, so the branches predict.
-  template <std::size_t N>
-  std::array<gate_id, N> upcoming() const {
-    const auto& v = wheel_[cur_];
-    const std::size_t n = v.size();
-    const std::size_t have = sorted_ && pos_ < n ? n - pos_ : 0;
-    const std::size_t k = (cur_ + 1) & (slots - 1);
-    const std::uint64_t bits = occupied_[k / 64] >> (k % 64);
-    const event_slot* w = bits ? &wheel_[(k + static_cast<std::size_t>(__builtin_ctzll(bits))) & (slots - 1)] : nullptr;
-    const std::size_t wn = w ? w->size() : 0;
-    std::array<gate_id, N> g;
-    for (std::size_t i = 0; i < N; ++i) {
-      const gate_id here = n ? v[std::min(pos_ + i, n - 1)].gate : no_id;
-      const std::size_t j = i - have;  // wraps when i < have; then unused
-      const gate_id next = wn ? (*w)[std::min(j, wn - 1)].gate : no_id;
-      g[i] = i < have ? here : j < wn ? next : no_id;
+  /// The look-ahead, for prefetches: a second cursor that walks the entries
+  /// after the ones taken, in the order they will be taken, one per call.
+  /// Returns the gate of the next entry it passes, or no_id when none lies
+  /// within `ahead_window` slots of the cursor. lead() counts the entries it
+  /// passed less the entries taken since; when that reaches 0 it starts again
+  /// at the cursor. An entry pushed behind it (a delay shorter than the
+  /// look-ahead's reach) is taken without having been passed, so lead() may
+  /// fall short of the true distance, never exceed it: the look-ahead never
+  /// names a taken entry.
+  gate_id next_ahead() {
+    if (lead_ == 0) la_slot_ = cur_, la_pos_ = pos_;  // nothing passed: start at the cursor
+    for (;;) {
+      const auto& v = wheel_[la_slot_];
+      if (la_pos_ < v.size()) {
+        ++lead_;
+        return v[la_pos_++].gate;
+      }
+      // The next occupied slot within the window.
+      std::size_t d = ((la_slot_ - cur_) & (slots - 1)) + 1;
+      const std::size_t k = (la_slot_ + 1) & (slots - 1);
+      std::uint64_t bits = occupied_[k / 64] >> (k % 64);
+      while (!bits) {
+        d += 64 - ((cur_ + d) & 63);
+        if (d >= ahead_window) return no_id;
+        bits = occupied_[((cur_ + d) & (slots - 1)) / 64];
+      }
+      d += static_cast<std::size_t>(__builtin_ctzll(bits));
+      if (d >= ahead_window) return no_id;
+      la_slot_ = (cur_ + d) & (slots - 1);
+      la_pos_ = 0;
     }
-    return g;
   }
+  std::size_t lead() const { return lead_; }
   /// Calls f on every entry (any order).
   template <class F>
   void for_each(F&& f) const {
@@ -139,6 +149,9 @@ class event_queue {
   std::size_t pos_ = 0;            // next entry of the (sorted) cursor slot
   std::size_t size_ = 0, in_wheel_ = 0;
   time_fs next_ = 0;               // min_time() while next_valid_
+  static constexpr std::size_t ahead_window = 256;  // slots the look-ahead may run past the cursor
+  std::size_t la_slot_ = 0, la_pos_ = 0;  // the look-ahead's next entry (while lead_ > 0)
+  std::size_t lead_ = 0;                  // entries it passed less those taken since
   bool sorted_ = false, next_valid_ = false;
 };
 
@@ -173,6 +186,7 @@ class event_queue {
     move_cursor(e.time);
     pos_ = 0;
     sorted_ = false;
+    lead_ = 0;
   }
   put(e);
 }
@@ -207,6 +221,7 @@ class event_queue {
       pos_ = end;
       size_ -= end - from;
       in_wheel_ -= end - from;
+      lead_ = lead_ > end - from ? lead_ - (end - from) : 0;
       next_valid_ = false;
       return {v.data() + from, end - from};
     }
@@ -386,6 +401,7 @@ class simulator {
   static constexpr std::size_t prefetch_above = std::size_t{1} << 20;  // bytes of gate records
   bool prefetch_ = true;
   static constexpr std::size_t prefetch_depth = 3;  // entries looked ahead (5 and 7 measured slower at 10^5 gates)
+  gate_id near_ = 0, mid_ = 0, far_ = 0;            // the last three the look-ahead passed, oldest first
 };
 
 }  // namespace settle

@@ -78,6 +78,7 @@ TEST_CASE("take_until takes instants in time order and nothing after its bound",
     std::multimap<time_fs, gate_id> ref;
     time_fs now = 0;
     gate_id next = 0;
+    std::size_t named = 0;
     for (int round = 0; round < 20000; ++round) {
       push_some(q, ref, rng, now, largest, 10, next);
       // A bound before, at or after the earliest instant.
@@ -93,14 +94,20 @@ TEST_CASE("take_until takes instants in time order and nothing after its bound",
       take_from_reference(front, t, ref);
       REQUIRE(q.size() == ref.size());
       now = t;
-      // The prefetch hint names only queued entries, each once, whatever the
-      // slots hold (its reads are clamped, not bounded by loops).
-      const auto up = q.upcoming<3>();
-      for (std::size_t i = 0; i < up.size(); ++i) {
-        if (up[i] == no_id) continue;
-        CHECK(std::any_of(ref.begin(), ref.end(), [&](const auto& e) { return e.second == up[i]; }));
-        CHECK(std::count(up.begin(), up.end(), up[i]) == 1);
+      // The look-ahead names only queued entries, never a taken one: its
+      // count of passed entries stays exact across pushes behind it, sorts
+      // of the cursor slot and instants of several entries.
+      while (q.lead() < 3) {
+        const gate_id g = q.next_ahead();
+        if (g == no_id) break;
+        CHECK(std::any_of(ref.begin(), ref.end(), [&](const auto& e) { return e.second == g; }));
+        ++named;
       }
+      CHECK(q.lead() <= ref.size());
     }
+    // With a largest delay of 0 every push lands on the instant taken next or
+    // far beyond the look-ahead's window: nothing to name.
+    INFO("largest delay " << largest);
+    CHECK((largest == 0 || named > 1000));
   }
 }
