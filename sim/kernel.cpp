@@ -341,8 +341,9 @@ SETTLE_HOT void simulator::schedule(gate_id g, logic v, time_fs t) {
   if (q.size() == 1) queue_.push({t, g, q.front().id});
 }
 
-// A net takes a new value (the caller knows it differs): hash, count and
-// trace; the caller updates the copies in the gate records.
+// A net takes a new value (the caller knows it differs): hash, event count
+// and trace; the caller updates the copies in the gate records and the
+// transition count (the driver's record, or toggles_ for a stimulus change).
 SETTLE_HOT void simulator::change_value(net_id net, logic v, time_fs t) {
   if (tracking_) hash_ ^= value_key(net, val_[net]) ^ value_key(net, v);
   val_[net] = v;
