@@ -48,20 +48,32 @@ void event_slot::insert(queued_event* at, const queued_event& e) {
   data_[i] = e;
 }
 
-event_queue::event_queue(time_fs largest_delay) : wheel_(slots) {
-  // The wheel spans 2^(width_bits + 12) fs >= 2 x the largest delay.
-  while ((time_fs{1} << (width_bits_ + slot_bits)) < 2 * largest_delay && width_bits_ < 40) ++width_bits_;
+event_queue::event_queue(time_fs largest_delay, time_fs smallest_delay) {
+  // The wheel spans at least twice the largest delay, in the fewest slots
+  // (64 to 4096) no wider than half the smallest delay, so a push lands
+  // beyond the slot under the cursor and the next (which the look-ahead may
+  // have ordered already). Wide slots put a boundary every few dozen entries
+  // rather than every one or two.
+  unsigned slot_bits = min_slot_bits;
+  for (;; ++slot_bits) {
+    width_bits_ = 0;
+    while ((time_fs{1} << (width_bits_ + slot_bits)) < 2 * largest_delay && width_bits_ < 40) ++width_bits_;
+    if (slot_bits == max_slot_bits || smallest_delay == 0 || (time_fs{2} << width_bits_) <= smallest_delay) break;
+  }
+  wheel_.resize(std::size_t{1} << slot_bits);
+  mask_ = wheel_.size() - 1;
 }
 
 void event_queue::clear() {
   for (std::size_t w = 0; w < occupied_.size(); ++w)
     for (auto bits = occupied_[w]; bits; bits &= bits - 1) wheel_[w * 64 + __builtin_ctzll(bits)].clear();
   occupied_.fill(0);
+  sorted_bits_.fill(0);
   far_.clear();
   base_ = floor_ = 0;
   cur_ = 0;
   pos_ = size_ = in_wheel_ = lead_ = 0;
-  sorted_ = next_valid_ = false;
+  next_valid_ = false;
 }
 
 // Pulls the far events that now fall within the wheel onto it.
@@ -73,29 +85,45 @@ void event_queue::migrate() {
   }
 }
 
-void event_queue::sort_cursor_slot() {
-  auto& cur = wheel_[cur_];
-  const auto first = cur.begin() + pos_;
+// Orders slot s (the cursor's from pos_ on) by time. Its entries share the
+// time's bits above the slot width, so the bits below order them: a few
+// entries by insertion, more by radix passes over 6 bits at a time, which
+// take no branch that follows the data.
+void event_queue::sort_slot(std::size_t s) {
+  auto& v = wheel_[s];
+  const std::size_t from = s == cur_ ? pos_ : 0;
   // The look-ahead passed entries of this slot in their pushed order: it
   // walks them again in the taken order.
-  if (la_slot_ == cur_) lead_ = 0;
-  if (cur.end() - first <= 16) {
-    // Most slots hold a handful of entries: insertion sort, no call.
-    for (auto i = first + 1; i < cur.end(); ++i)
+  if (la_slot_ == s && la_pos_ > from) lead_ = 0;
+  sorted_bits_[s / 64] |= std::uint64_t{1} << (s % 64);
+  queued_event* const first = v.begin() + from;
+  const std::size_t n = v.size() - from;
+  if (n <= 12) {
+    for (auto i = first + 1; i < v.end(); ++i)
       for (auto j = i; j > first && j->time < (j - 1)->time; --j) std::iter_swap(j, j - 1);
-  } else {
-    std::sort(first, cur.end(), [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
+    return;
   }
-  sorted_ = true;
+  // Passes of at most 6 bits, as few as the width needs, split evenly.
+  const unsigned passes = (width_bits_ + 5) / 6, digit = passes ? (width_bits_ + passes - 1) / passes : 0;
+  const unsigned buckets = 1u << digit;
+  if (scratch_.size() < n) scratch_.resize(n);
+  queued_event* src = first;
+  queued_event* dst = scratch_.data();
+  for (unsigned pass = 0, shift = 0; pass < passes; ++pass, shift += digit) {
+    std::uint32_t count[65] = {};
+    for (std::size_t i = 0; i < n; ++i) ++count[((src[i].time >> shift) & (buckets - 1)) + 1];
+    for (unsigned b = 1; b <= buckets; ++b) count[b] += count[b - 1];
+    for (std::size_t i = 0; i < n; ++i) dst[count[(src[i].time >> shift) & (buckets - 1)]++] = src[i];
+    std::swap(src, dst);
+  }
+  if (src != first) std::copy(src, src + n, first);
 }
 
 // The next occupied slot after the cursor's becomes the cursor's (the wheel
 // holds an entry).
 void event_queue::next_slot() {
-  wheel_[cur_].clear();
+  leave_slot(cur_);
   pos_ = 0;
-  sorted_ = false;
-  occupied_[cur_ / 64] &= ~(std::uint64_t{1} << (cur_ % 64));
   next_slot_scan();
 }
 
@@ -104,7 +132,7 @@ void event_queue::next_slot_scan() {
   const std::size_t s = cur_;
   std::size_t step = 1;
   for (;; ++step) {
-    const std::size_t k = (s + step) & (slots - 1);
+    const std::size_t k = (s + step) & mask_;
     const std::uint64_t bits = occupied_[k / 64] >> (k % 64);
     if (bits) {
       step += __builtin_ctzll(bits);
@@ -113,7 +141,7 @@ void event_queue::next_slot_scan() {
     step += 63 - k % 64;  // skip the rest of this word
   }
   base_ += step << width_bits_;
-  cur_ = (s + step) & (slots - 1);
+  cur_ = (s + step) & mask_;
 }
 
 // take_until() when the wheel ran dry: moves it to the earliest far event
@@ -126,11 +154,9 @@ bool event_queue::jump_to_far(time_fs last) {
     next_ = t;
     return false;
   }
-  wheel_[cur_].clear();
-  occupied_[cur_ / 64] &= ~(std::uint64_t{1} << (cur_ % 64));
+  leave_slot(cur_);
   move_cursor(t);
   pos_ = 0;
-  sorted_ = false;
   lead_ = 0;
   floor_ = t;
   migrate();
@@ -141,7 +167,7 @@ time_fs event_queue::find_min() {
   for (;;) {
     auto& cur = wheel_[cursor_slot()];
     if (pos_ < cur.size()) {
-      if (!sorted_) sort_cursor_slot();
+      if (!is_sorted(cur_)) sort_slot(cur_);
       next_valid_ = true;
       return next_ = cur[pos_].time;
     }
@@ -156,7 +182,7 @@ time_fs event_queue::find_min() {
 
 std::span<const queued_event> event_queue::take_front() { return take_until(std::numeric_limits<time_fs>::max()); }
 
-simulator::simulator(const netlist& n) : n_(n), queue_(n.largest_max_delay()) {
+simulator::simulator(const netlist& n) : n_(n), queue_(n.largest_max_delay(), n.smallest_min_delay()) {
   const auto nets = n.net_count(), gates = n.gate_count();
   build_fast_paths();
   val_.resize(nets);

@@ -42,6 +42,15 @@ time_fs netlist::largest_max_delay() const {
   return m;
 }
 
+time_fs netlist::smallest_min_delay() const {
+  time_fs m = 0;
+  if (delay.empty()) return m;
+  for (const auto& d : delay.records())
+    for (const time_fs t : {d.rise.min, d.fall.min})
+      if (t != 0 && (m == 0 || t < m)) m = t;
+  return m;
+}
+
 net_id netlist::find(std::string_view name) const {
   const auto v = names_.find(std::hash<std::string_view>{}(name), [&](std::uint32_t v) { return key_of(v) == name; });
   if (v == no_id) return no_id;

@@ -194,6 +194,8 @@ struct netlist {
   void reserve_nets(std::size_t nets);
   /// Largest max delay over all gates and edges (0 for an empty netlist).
   time_fs largest_max_delay() const;
+  /// Smallest nonzero min delay over all gates and edges (0 when there is none).
+  time_fs smallest_min_delay() const;
 
   /// Creates the two constant nets (ids 0 and 1) and the top scope; call first.
   void begin();

@@ -53,19 +53,24 @@ class event_slot {
 };
 
 /// The event queue: a timing wheel (Ulrich 1969; Varghese and Lauck 1987)
-/// of 4096 slots, each 2^k fs wide with k chosen so the wheel spans at least
-/// twice the largest gate delay, plus a binary heap for the rare event beyond
-/// the wheel. Insert is O(1); the slot under the cursor is sorted when the
-/// cursor reaches it (a handful of entries), and a bitmap of occupied slots
-/// finds the next one with a few word scans. Slots are vectors that keep their
-/// capacity, so a run in steady state allocates nothing, and the live part of
-/// the wheel stays in cache. Times pushed must be >= the last taken instant;
-/// min_time() may look ahead, and a later push before that point turns the
-/// cursor back.
+/// of 64 to 4096 slots, each 2^k fs wide, so that the wheel spans at least
+/// twice the largest gate delay and, where 4096 slots allow, a slot is no
+/// wider than half the smallest; plus a binary heap for the rare event beyond
+/// the wheel. Insert is O(1) (an append). A slot is put in time order once,
+/// when the cursor or the look-ahead first reaches it: by insertion for a few
+/// entries, else by radix passes over the time's bits below the slot width,
+/// which take no branch that follows the data; a push into an ordered slot
+/// inserts in order. With few, wide slots the cursors cross a slot boundary
+/// once every few dozen entries, not every one or two. A bitmap of occupied
+/// slots finds the next one with a few word scans. Slots are arrays that keep
+/// their capacity, so a run in steady state allocates nothing. Times pushed
+/// must be >= the last taken instant; min_time() may look ahead, and a later
+/// push before that point turns the cursor back.
 class event_queue {
  public:
-  /// Sizes the slots for delays up to `largest_delay`.
-  explicit event_queue(time_fs largest_delay = 0);
+  /// Sizes the wheel for delays up to `largest_delay` and, where it can, its
+  /// slots for delays from `smallest_delay` (0: unknown).
+  explicit event_queue(time_fs largest_delay = 0, time_fs smallest_delay = 0);
   void clear();
   void push(const queued_event& e);
   bool empty() const { return size_ == 0; }
@@ -77,20 +82,25 @@ class event_queue {
   /// valid until the next push() or clear().
   std::span<const queued_event> take_front();
   /// take_front() when min_time() <= last, else an empty span (and nothing
-  /// taken). Inline while the instant lies on the sorted cursor slot: the
+  /// taken). Inline while the instant lies on the ordered cursor slot: the
   /// common case costs a few loads and compares.
   std::span<const queued_event> take_until(time_fs last);
   /// The look-ahead, for prefetches: a second cursor that walks the entries
   /// after the ones taken, in the order they will be taken, one per call.
-  /// Returns the gate of the next entry it passes, or no_id when none lies
-  /// within `ahead_window` slots of the cursor. lead() counts the entries it
+  /// It puts each slot it reaches in order first. Returns the gate of the
+  /// next entry it passes, or no_id when none lies within half the wheel
+  /// after the cursor. lead() counts the entries it
   /// passed less the entries taken since; when that reaches 0 it starts again
   /// at the cursor. An entry pushed behind it (a delay shorter than the
   /// look-ahead's reach) is taken without having been passed, so lead() may
   /// fall short of the true distance, never exceed it: the look-ahead never
   /// names a taken entry.
   gate_id next_ahead() {
-    if (lead_ == 0) la_slot_ = cur_, la_pos_ = pos_;  // nothing passed: start at the cursor
+    if (lead_ == 0) {  // nothing passed: start at the cursor
+      la_slot_ = cur_, la_pos_ = pos_;
+      if (!is_sorted(cur_) && pos_ < wheel_[cur_].size()) [[unlikely]]
+        sort_slot(cur_);
+    }
     for (;;) {
       const auto& v = wheel_[la_slot_];
       if (la_pos_ < v.size()) {
@@ -98,25 +108,27 @@ class event_queue {
         return v[la_pos_++].gate;
       }
       // The next occupied slot within the window.
-      std::size_t d = ((la_slot_ - cur_) & (slots - 1)) + 1;
-      const std::size_t k = (la_slot_ + 1) & (slots - 1);
+      std::size_t d = ((la_slot_ - cur_) & mask_) + 1;
+      const std::size_t k = (la_slot_ + 1) & mask_;
       std::uint64_t bits = occupied_[k / 64] >> (k % 64);
       while (!bits) {
         d += 64 - ((cur_ + d) & 63);
-        if (d >= ahead_window) return no_id;
-        bits = occupied_[((cur_ + d) & (slots - 1)) / 64];
+        if (d > mask_ / 2) return no_id;
+        bits = occupied_[((cur_ + d) & mask_) / 64];
       }
       d += static_cast<std::size_t>(__builtin_ctzll(bits));
-      if (d >= ahead_window) return no_id;
-      la_slot_ = (cur_ + d) & (slots - 1);
+      if (d > mask_ / 2) return no_id;
+      la_slot_ = (cur_ + d) & mask_;
       la_pos_ = 0;
+      // Ordered now, so the look-ahead walks it in taken order.
+      if (!is_sorted(la_slot_)) sort_slot(la_slot_);
     }
   }
   std::size_t lead() const { return lead_; }
   /// Calls f on every entry (any order).
   template <class F>
   void for_each(F&& f) const {
-    for (std::size_t i = 0; i < slots; ++i) {
+    for (std::size_t i = 0; i < wheel_.size(); ++i) {
       const auto& v = wheel_[i];
       for (std::size_t k = i == cursor_slot() ? pos_ : 0; k < v.size(); ++k) f(v[k]);
     }
@@ -124,23 +136,31 @@ class event_queue {
   }
 
  private:
-  static constexpr std::size_t slot_bits = 12, slots = std::size_t{1} << slot_bits;
+  static constexpr unsigned min_slot_bits = 6, max_slot_bits = 12;
   // The far heap's order: a min-heap on time.
   static bool later(const queued_event& a, const queued_event& b) { return a.time > b.time; }
   std::size_t cursor_slot() const { return cur_; }
-  std::size_t slot_of(time_fs t) const { return static_cast<std::size_t>((t >> width_bits_) & (slots - 1)); }
+  std::size_t slot_of(time_fs t) const { return static_cast<std::size_t>((t >> width_bits_) & mask_); }
   void move_cursor(time_fs t) { base_ = (t >> width_bits_) << width_bits_, cur_ = slot_of(t); }
-  bool in_wheel(time_fs t) const { return (t >> width_bits_) - (floor_ >> width_bits_) < slots; }
+  bool in_wheel(time_fs t) const { return (t >> width_bits_) - (floor_ >> width_bits_) <= mask_; }
   void put(const queued_event& e);
   void migrate();
   time_fs find_min();
-  void sort_cursor_slot();
+  bool is_sorted(std::size_t s) const { return (sorted_bits_[s / 64] >> (s % 64)) & 1; }
+  void sort_slot(std::size_t s);
+  void leave_slot(std::size_t s) {
+    wheel_[s].clear();
+    occupied_[s / 64] &= ~(std::uint64_t{1} << (s % 64));
+    sorted_bits_[s / 64] &= ~(std::uint64_t{1} << (s % 64));
+  }
   void next_slot();
   void next_slot_scan();
   bool jump_to_far(time_fs last);
 
   std::vector<event_slot> wheel_;
-  std::array<std::uint64_t, slots / 64> occupied_{};
+  // Slots holding entries, and slots in time order (the first wheel_.size() bits).
+  std::array<std::uint64_t, (std::size_t{1} << max_slot_bits) / 64> occupied_{}, sorted_bits_{};
+  std::vector<queued_event> scratch_;  // sort_slot's radix passes
   std::vector<queued_event> far_;  // a min-heap on time
   unsigned width_bits_ = 0;
   time_fs base_ = 0;               // start of the slot under the cursor
@@ -149,19 +169,19 @@ class event_queue {
   std::size_t pos_ = 0;            // next entry of the (sorted) cursor slot
   std::size_t size_ = 0, in_wheel_ = 0;
   time_fs next_ = 0;               // min_time() while next_valid_
-  static constexpr std::size_t ahead_window = 256;  // slots the look-ahead may run past the cursor
+  std::size_t mask_ = 0;           // the slot count less one
   std::size_t la_slot_ = 0, la_pos_ = 0;  // the look-ahead's next entry (while lead_ > 0)
   std::size_t lead_ = 0;                  // entries it passed less those taken since
-  bool sorted_ = false, next_valid_ = false;
+  bool next_valid_ = false;
 };
 
 // The queue's insert is on the per-event path: defined here so it inlines.
 [[gnu::always_inline]] inline void event_queue::put(const queued_event& e) {
   const auto slot = slot_of(e.time);
   auto& v = wheel_[slot];
-  if (slot == cursor_slot() && sorted_) {
-    // The slot under the cursor is sorted from pos_ on: insert in order.
-    auto it = std::upper_bound(v.begin() + pos_, v.end(), e,
+  if (is_sorted(slot)) [[unlikely]] {
+    // An ordered slot (the cursor's from pos_ on): insert in order.
+    auto it = std::upper_bound(v.begin() + (slot == cur_ ? pos_ : 0), v.end(), e,
                                [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
     v.insert(it, e);
   } else {
@@ -185,7 +205,6 @@ class event_queue {
     // window of floor_, so turning the cursor back keeps the circular order.
     move_cursor(e.time);
     pos_ = 0;
-    sorted_ = false;
     lead_ = 0;
   }
   put(e);
@@ -199,10 +218,8 @@ class event_queue {
     auto& v = wheel_[cur_];
     const std::size_t n = v.size();
     if (pos_ < n) {
-      if (!sorted_) {
-        if (n - pos_ > 1) sort_cursor_slot();
-        sorted_ = true;
-      }
+      if (!is_sorted(cur_)) [[unlikely]]
+        sort_slot(cur_);
       const time_fs t = v[pos_].time;
       if (t > last) {
         next_valid_ = true;
@@ -230,15 +247,13 @@ class event_queue {
       continue;
     }
     // The cursor slot is used up: on to the next occupied one.
-    v.clear();
+    leave_slot(cur_);
     pos_ = 0;
-    sorted_ = false;
-    occupied_[cur_ / 64] &= ~(std::uint64_t{1} << (cur_ % 64));
-    const std::size_t k = (cur_ + 1) & (slots - 1);
+    const std::size_t k = (cur_ + 1) & mask_;
     if (const std::uint64_t bits = occupied_[k / 64] >> (k % 64); bits) [[likely]] {
       const std::size_t step = 1 + static_cast<std::size_t>(__builtin_ctzll(bits));
       base_ += step << width_bits_;
-      cur_ = (cur_ + step) & (slots - 1);
+      cur_ = (cur_ + step) & mask_;
     } else {
       next_slot_scan();
     }

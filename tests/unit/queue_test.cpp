@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <map>
 #include <random>
+#include <utility>
 
 #include "sim/simulator.hpp"
 
@@ -45,9 +46,12 @@ void push_some(event_queue& q, std::multimap<time_fs, gate_id>& ref, std::mt1993
 }  // namespace
 
 TEST_CASE("the event queue returns instants in time order, like an ordered multiset", "[kernel][queue]") {
-  for (time_fs largest : {time_fs{0}, time_fs{1000}, time_fs{60000}, time_fs{5000000}}) {
-    std::mt19937_64 rng(largest + 7);
-    event_queue q(largest);
+  // Wheels of 64 slots (no smallest delay known, or slots up to half of it)
+  // and of 4096 (a smallest delay of 1 fs).
+  for (const auto [largest, smallest] : {std::pair<time_fs, time_fs>{0, 0}, {1000, 0}, {60000, 0}, {5000000, 0},
+                                         {60000, 20000}, {60000, 1}, {5000000, 1}}) {
+    std::mt19937_64 rng(largest + smallest + 7);
+    event_queue q(largest, smallest);
     std::multimap<time_fs, gate_id> ref;
     time_fs now = 0;
     gate_id next = 0;
@@ -72,9 +76,12 @@ TEST_CASE("the event queue returns instants in time order, like an ordered multi
 // against the same ordered multiset (the reference), with zero-delay pushes
 // that land on the sorted cursor slot and far pushes beyond the wheel.
 TEST_CASE("take_until takes instants in time order and nothing after its bound", "[kernel][queue]") {
-  for (time_fs largest : {time_fs{0}, time_fs{1000}, time_fs{60000}, time_fs{5000000}}) {
-    std::mt19937_64 rng(largest + 11);
-    event_queue q(largest);
+  // Wheels of 64 slots (no smallest delay known, or slots up to half of it)
+  // and of 4096 (a smallest delay of 1 fs).
+  for (const auto [largest, smallest] : {std::pair<time_fs, time_fs>{0, 0}, {1000, 0}, {60000, 0}, {5000000, 0},
+                                         {60000, 20000}, {60000, 1}, {5000000, 1}}) {
+    std::mt19937_64 rng(largest + smallest + 11);
+    event_queue q(largest, smallest);
     std::multimap<time_fs, gate_id> ref;
     time_fs now = 0;
     gate_id next = 0;
