@@ -92,9 +92,6 @@ void event_queue::migrate() {
 void event_queue::sort_slot(std::size_t s) {
   auto& v = wheel_[s];
   const std::size_t from = s == cur_ ? pos_ : 0;
-  // The look-ahead passed entries of this slot in their pushed order: it
-  // walks them again in the taken order.
-  if (la_slot_ == s && la_pos_ > from) lead_ = 0;
   sorted_bits_[s / 64] |= std::uint64_t{1} << (s % 64);
   queued_event* const first = v.begin() + from;
   const std::size_t n = v.size() - from;
