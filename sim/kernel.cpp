@@ -41,13 +41,6 @@ void event_slot::grow() {
   cap_ = cap;
 }
 
-void event_slot::insert(queued_event* at, const queued_event& e) {
-  const std::size_t i = static_cast<std::size_t>(at - begin());
-  push_back(e);
-  std::copy_backward(begin() + i, end() - 1, end());
-  data_[i] = e;
-}
-
 event_queue::event_queue(time_fs largest_delay, time_fs smallest_delay) {
   // The wheel spans at least twice the largest delay, in the fewest slots
   // (64 to 4096) no wider than half the smallest delay, so a push lands
@@ -83,6 +76,17 @@ void event_queue::migrate() {
     put(far_.back());
     far_.pop_back();
   }
+}
+
+// Moves the entry just appended to ordered slot s (the cursor's from pos_
+// on) into its place.
+void event_queue::order_last(std::size_t s) {
+  auto& v = wheel_[s];
+  const queued_event e = v.end()[-1];
+  auto* const at = std::upper_bound(v.begin() + (s == cur_ ? pos_ : 0), v.end() - 1, e,
+                                    [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
+  std::copy_backward(at, v.end() - 1, v.end());
+  *at = e;
 }
 
 // Orders slot s (the cursor's from pos_ on) by time. Its entries share the
@@ -189,6 +193,8 @@ simulator::simulator(const netlist& n) : n_(n), queue_(n.largest_max_delay(), n.
     if (n.delay[g].transport) {
       slot_[g] = static_cast<std::uint32_t>(tq_.size()), tq_.emplace_back();
       gate_[g].transport = true;
+      // Off the table paths, which are inertial.
+      if (gate_[g].op < lut_rows) gate_[g].op = gate_rec::general;
     }
 }
 
@@ -230,6 +236,13 @@ void simulator::build_fast_paths() {
       }
     }
   }
+  for (int row = 0; row < lut_rows; ++row)
+    for (int i = 0; i < 3; ++i)
+      for (int j = 0; j < 3; ++j)
+        for (int q = 0; q < 3; ++q)
+          for (int p = 0; p < 4; ++p)
+            step_[row << 8 | i << 6 | j << 4 | q << 2 | p] =
+                plan_of(levels[q], static_cast<logic>(p), lut_[row * 27 + i * 9 + j * 3 + q]);
   gate_.resize(n_.gate_count());
   // Records that fit in the core's own caches need no prefetching (it costs
   // a tenth of the instructions of an event).
@@ -299,12 +312,15 @@ void simulator::reset(const delay_table& delays) {
   wide_ = std::any_of(delays.rise.begin(), delays.rise.end(), [](time_fs d) { return d > narrow; }) ||
           std::any_of(delays.fall.begin(), delays.fall.end(), [](time_fs d) { return d > narrow; });
   wide_delay_.clear();
+  within_reach_ = true;
   for (gate_id g = 0; g < n_.gate_count(); ++g) {
+    within_reach_ = within_reach_ && std::max(delays.rise[g], delays.fall[g]) < queue_.reach();
     if (wide_) {
       wide_delay_.push_back({delays.rise[g], delays.fall[g]});
     } else {
-      gate_[g].rise = static_cast<std::uint32_t>(delays.rise[g]);
-      gate_[g].fall = static_cast<std::uint32_t>(delays.fall[g]);
+      gate_[g].delay[0] = static_cast<std::uint32_t>(delays.rise[g]);
+      gate_[g].delay[1] = static_cast<std::uint32_t>(delays.fall[g]);
+      gate_[g].shorter = delays.fall[g] < delays.rise[g];
     }
   }
   std::fill(toggles_.begin(), toggles_.end(), 0);
@@ -328,13 +344,11 @@ void simulator::track_state(bool on) {
 
 SETTLE_HOT time_fs simulator::delay_of(gate_id g, logic from, logic to) const {
   const gate_rec& d = gate_[g];
-  const time_fs r = wide_ ? wide_delay_[g].rise : d.rise, f = wide_ ? wide_delay_[g].fall : d.fall;
+  const time_fs r = wide_ ? wide_delay_[g].rise : d.delay[0], f = wide_ ? wide_delay_[g].fall : d.delay[1];
   // A rise takes the rise delay, a fall the fall delay, anything through x
-  // the shorter: picked by index, with no branch on data that follows no
-  // pattern.
-  static constexpr std::uint8_t pick[9] = {2, 0, 2, 1, 2, 2, 2, 2, 2};  // [3 x from + to]
-  const time_fs choice[3] = {r, f, r < f ? r : f};
-  return choice[pick[3 * static_cast<int>(from) + static_cast<int>(to)]];
+  // the shorter: by selects, with no branch on data that follows no pattern.
+  const time_fs edge = to == logic::one ? r : f, shorter = r < f ? r : f;
+  return (static_cast<unsigned>(from) | static_cast<unsigned>(to)) & 2u ? shorter : edge;
 }
 
 time_fs simulator::next_event_time() {
@@ -348,12 +362,16 @@ time_fs simulator::next_event_time() {
   return queue_.min_time();
 }
 
+template <bool Plain>
 SETTLE_HOT void simulator::schedule(gate_id g, logic v, time_fs t) {
   gate_rec& r = gate_[g];
   if (!r.transport) {
     if (r.pend == none) ++live_;
     r.pend = v;
-    queue_.push({t, g, ++r.gen});
+    if constexpr (Plain)
+      queue_.push_after_take({t, g, ++r.gen});
+    else
+      queue_.push({t, g, ++r.gen});
     return;
   }
   auto& q = tq_[slot_[g]];
@@ -367,12 +385,13 @@ SETTLE_HOT void simulator::schedule(gate_id g, logic v, time_fs t) {
 // A net takes a new value (the caller knows it differs): hash, event count
 // and trace; the caller updates the copies in the gate records and the
 // transition count (the driver's record, or toggles_ for a stimulus change).
+template <bool Plain>
 SETTLE_HOT void simulator::change_value(net_id net, logic v, time_fs t) {
-  if (tracking_) hash_ ^= value_key(net, val_[net]) ^ value_key(net, v);
+  if (!Plain && tracking_) hash_ ^= value_key(net, val_[net]) ^ value_key(net, v);
   val_[net] = v;
   ++events_;
   last_change_ = t;
-  if (sink_) {
+  if (!Plain && sink_) {
     trace_.push_back({t, net, v});
     if (trace_.size() >= trace_batch) flush_trace();
   }
@@ -389,8 +408,9 @@ SETTLE_HOT void simulator::pass_value(fan_entry e, logic v) {
 
 // Gate g's output takes the value v (the caller knows it differs); returns
 // the gates it feeds, for the caller to pass the value on.
+template <bool Plain>
 SETTLE_HOT std::span<const simulator::fan_entry> simulator::change_output(gate_id g, gate_rec& r, logic v, time_fs t) {
-  change_value(r.out, v, t);
+  change_value<Plain>(r.out, v, t);
   r.vout = v;
   ++r.toggles;
   return fanout_of(g, r);
@@ -437,8 +457,50 @@ SETTLE_HOT logic simulator::eval_fast(gate_id g, logic present) {
   return eval_gate(n_, g, val_.data(), present);
 }
 
+// An inertial gate's evaluation to v, with `present` on its output and
+// `pend` pending, as a step for take_step: bits 0-1 the value then pending
+// (3: none), bit 2 whether an entry is queued, bit 3 whether the generation
+// moves on (the live entry is replaced or cancelled), bits 4-5 the change in
+// live entries plus one, bits 6-7 the delay (0 rise, 1 fall, 2 the shorter).
+// The same decisions as evaluate's branches.
+std::uint8_t simulator::plan_of(logic present, logic pend, logic v) {
+  unsigned next = static_cast<unsigned>(pend), queue = 0, bump = 0, live = 1, pick = 0;
+  if (pend == v) {
+    // nothing changes
+  } else if (v == present) {
+    if (pend != none) next = 3, bump = 1, live = 0;
+  } else {
+    next = static_cast<unsigned>(v), queue = 1, bump = 1, live = pend == none ? 2 : 1;
+    pick = present == logic::zero && v == logic::one ? 0 : present == logic::one && v == logic::zero ? 1 : 2;
+  }
+  return static_cast<std::uint8_t>(next | queue << 2 | bump << 3 | live << 4 | pick << 6);
+}
+
+// Applies a step of step_ to gate g: all by selects and arithmetic, since
+// whether an evaluation changes the output follows no pattern a branch
+// predictor learns. The entry is written whether kept or not.
+SETTLE_HOT void simulator::take_step(gate_id g, gate_rec& r, unsigned step, time_fs t) {
+  r.pend = static_cast<logic>(step & 3);
+  r.gen += (step >> 3) & 1;
+  live_ += ((step >> 4) & 3) - std::size_t{1};
+  // The delay by index: rise (0), fall (1), or the shorter (2: r.shorter).
+  const unsigned pick = step >> 6;
+  const time_fs d = r.delay[(pick & 1) | ((pick >> 1) & r.shorter)];
+  queue_.push_after_take_if((step >> 2) & 1, {t + d, g, r.gen});
+}
+
+template <bool Plain>
 SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
   gate_rec& r = gate_[g];
+  if constexpr (Plain) {
+    // Inertial gates of a table row (transport ones have none) by one lookup.
+    if (r.op < lut_rows) [[likely]] {
+      const unsigned at = unsigned{r.op} << 8 | static_cast<unsigned>(r.v0) << 6 | static_cast<unsigned>(r.v1) << 4 |
+                          static_cast<unsigned>(r.vout) << 2 | static_cast<unsigned>(r.pend);
+      take_step(g, r, step_[at], t);
+      return;
+    }
+  }
   const logic present = r.vout;
   const logic v = eval_fast(g, present);
   if (!r.transport) {
@@ -449,12 +511,12 @@ SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
       if (p != none) r.pend = none, ++r.gen, --live_;
       return;
     }
-    schedule(g, v, t + delay_of(g, present, v));
+    schedule<Plain>(g, v, t + delay_of(g, present, v));
     return;
   }
   auto& q = tq_[slot_[g]];
   const logic projected = q.empty() ? present : q.back().value;
-  if (v != projected) schedule(g, v, t + delay_of(g, projected, v));
+  if (v != projected) schedule<false>(g, v, t + delay_of(g, projected, v));
 }
 
 // The gate events of one instant, taken from the queue: each live one
@@ -533,12 +595,19 @@ std::uint64_t simulator::run_quiet(time_fs last, std::uint64_t max_instants, std
   std::uint64_t n = 0;
   const std::uint64_t event_cap = max_events ? max_events : std::numeric_limits<std::uint64_t>::max();
   const std::uint64_t instant_cap = max_instants ? max_instants : std::numeric_limits<std::uint64_t>::max();
-  const auto done = [&] { return events_ >= event_cap || n == instant_cap; };
   if (eval_all_) {
     if (now_ > last) return 0;
     process_instant(now_, {});
-    if (++n, done()) return n;
+    if (++n, events_ >= event_cap || n == instant_cap) return n;
   }
+  // Without trace or hash, and with every delay within the queue's reach,
+  // the loop skips their tests and the queue's checks on each push.
+  if (!sink_ && !tracking_ && within_reach_ && !wide_) return run_loop<true>(last, n, instant_cap, event_cap);
+  return run_loop<false>(last, n, instant_cap, event_cap);
+}
+
+template <bool Plain>
+std::uint64_t simulator::run_loop(time_fs last, std::uint64_t n, std::uint64_t instant_cap, std::uint64_t event_cap) {
   for (;;) {
     if (live_ == 0) {
       queue_.clear();
@@ -559,18 +628,18 @@ std::uint64_t simulator::run_quiet(time_fs last, std::uint64_t max_instants, std
         r.pend = none;
         --live_;
         if (r.vout != v)
-          for (const fan_entry f : change_output(e.gate, r, v, t)) {
+          for (const fan_entry f : change_output<Plain>(e.gate, r, v, t)) {
             pass_value(f, v);
-            evaluate(reader(f), t);
+            evaluate<Plain>(reader(f), t);
           }
       }
     } else {
       dirty_.clear();
       apply_front(front, t);
-      for (const gate_id g : dirty_) queued_[g] = 0, evaluate(g, t);
+      for (const gate_id g : dirty_) queued_[g] = 0, evaluate<Plain>(g, t);
     }
     if (prefetch_) prefetch_ahead();
-    if (++n, done()) break;
+    if (++n, events_ >= event_cap || n == instant_cap) break;
   }
   return n;
 }

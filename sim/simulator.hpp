@@ -24,9 +24,11 @@ struct queued_event {
 
 /// A slot of the event queue's wheel: a growable array of entries whose
 /// append inlines into the per-event path (std::vector's push_back stays a
-/// call there); it keeps its capacity when cleared.
+/// call there); it keeps its capacity when cleared, and always has room for
+/// one more entry, so an append may write first and count after.
 class event_slot {
  public:
+  event_slot() { grow(); }
   std::size_t size() const { return size_; }
   bool empty() const { return size_ == 0; }
   queued_event* begin() { return data_.get(); }
@@ -38,13 +40,18 @@ class event_slot {
   const queued_event& operator[](std::size_t i) const { return data_[i]; }
   const queued_event& front() const { return data_[0]; }
   void clear() { size_ = 0; }
-  [[gnu::always_inline]] void push_back(const queued_event& e) {
+  [[gnu::always_inline]] void push_back(const queued_event& e) { push_back_if(true, e); }
+  /// Appends e when `keep`, with no branch on it: e is written past the end
+  /// in any case and counted only when kept.
+  [[gnu::always_inline]] void push_back_if(bool keep, const queued_event& e) {
+    // Field by field: a copy of the whole entry would be assembled on the
+    // stack and read back at once, which stalls the store forwarding.
+    queued_event& d = data_[size_];
+    d.time = e.time, d.gate = e.gate, d.gen = e.gen;
+    size_ += keep;
     if (size_ == cap_) [[unlikely]]
       grow();
-    data_[size_++] = e;
   }
-  /// Inserts e before `at` (a pointer into this slot).
-  void insert(queued_event* at, const queued_event& e);
 
  private:
   void grow();
@@ -73,6 +80,18 @@ class event_queue {
   explicit event_queue(time_fs largest_delay = 0, time_fs smallest_delay = 0);
   void clear();
   void push(const queued_event& e);
+  /// push() right after a take, of an entry at most reach() after the
+  /// instant taken: the queue's order needs no check then (the entry lies
+  /// within the wheel's window, at or after the cursor, and after the
+  /// minimum, which the take forgot).
+  void push_after_take(const queued_event& e) { push_after_take_if(true, e); }
+  /// push_after_take() when `keep`, with no branch on it.
+  void push_after_take_if(bool keep, const queued_event& e) {
+    size_ += keep;
+    put_if(keep, e);
+  }
+  /// The longest delay push_after_take() takes: less than a whole turn.
+  time_fs reach() const { return static_cast<time_fs>(mask_) << width_bits_; }
   bool empty() const { return size_ == 0; }
   std::size_t size() const { return size_; }
   /// The earliest time in the queue (the queue must not be empty). Cached
@@ -143,7 +162,9 @@ class event_queue {
   std::size_t slot_of(time_fs t) const { return static_cast<std::size_t>((t >> width_bits_) & mask_); }
   void move_cursor(time_fs t) { base_ = (t >> width_bits_) << width_bits_, cur_ = slot_of(t); }
   bool in_wheel(time_fs t) const { return (t >> width_bits_) - (floor_ >> width_bits_) <= mask_; }
-  void put(const queued_event& e);
+  void put(const queued_event& e) { put_if(true, e); }
+  void put_if(bool keep, const queued_event& e);
+  void order_last(std::size_t s);
   void migrate();
   time_fs find_min();
   bool is_sorted(std::size_t s) const { return (sorted_bits_[s / 64] >> (s % 64)) & 1; }
@@ -176,19 +197,14 @@ class event_queue {
 };
 
 // The queue's insert is on the per-event path: defined here so it inlines.
-[[gnu::always_inline]] inline void event_queue::put(const queued_event& e) {
+[[gnu::always_inline]] inline void event_queue::put_if(bool keep, const queued_event& e) {
   const auto slot = slot_of(e.time);
-  auto& v = wheel_[slot];
-  if (is_sorted(slot)) [[unlikely]] {
-    // An ordered slot (the cursor's from pos_ on): insert in order.
-    auto it = std::upper_bound(v.begin() + (slot == cur_ ? pos_ : 0), v.end(), e,
-                               [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
-    v.insert(it, e);
-  } else {
-    v.push_back(e);
-  }
-  occupied_[slot / 64] |= std::uint64_t{1} << (slot % 64);
-  ++in_wheel_;
+  wheel_[slot].push_back_if(keep, e);
+  occupied_[slot / 64] |= std::uint64_t{keep} << (slot % 64);
+  in_wheel_ += keep;
+  // One branch on both (rarely taken): a branch on keep would follow the data.
+  if ((static_cast<unsigned>(keep) & static_cast<unsigned>(sorted_bits_[slot / 64] >> (slot % 64))) & 1u) [[unlikely]]
+    order_last(slot);
 }
 
 [[gnu::always_inline]] inline void event_queue::push(const queued_event& e) {
@@ -319,15 +335,23 @@ class simulator {
 
   void build_fast_paths();
   logic eval_fast(gate_id g, logic present);
+  // Plain: within run_quiet's loop, with neither trace nor state hash, and
+  // every delay within the queue's reach (see run_loop).
+  template <bool Plain>
   void schedule(gate_id g, logic v, time_fs t);
+  template <bool Plain = false>
   void evaluate(gate_id g, time_fs t);
+  template <bool Plain = false>
   void change_value(net_id net, logic v, time_fs t);
+  template <bool Plain>
+  std::uint64_t run_loop(time_fs last, std::uint64_t n, std::uint64_t instant_cap, std::uint64_t event_cap);
   struct gate_rec;
   // A fan-out entry: the gate reading a net, shifted left by two, and which
   // of its first two inputs the net is (bit 0: the first, bit 1: the second).
   using fan_entry = std::uint32_t;
   static constexpr gate_id reader(fan_entry e) { return e >> 2; }
   void pass_value(fan_entry e, logic v);
+  template <bool Plain = false>
   std::span<const fan_entry> change_output(gate_id g, gate_rec& r, logic v, time_fs t);
   void mark(std::span<const fan_entry> fan, logic v);
   void apply_input(net_id net, logic v, time_fs t);
@@ -360,7 +384,7 @@ class simulator {
     static constexpr std::uint8_t many = 255;          // fan-out count in fo_start_
     net_id out = 0;
     std::uint32_t gen = 0;             // inertial: generation of the live queue entry
-    std::uint32_t rise = 0, fall = 0;  // this run's delays when they fit 32 bits (see wide_)
+    std::uint32_t delay[2] = {};       // this run's rise and fall delays when they fit 32 bits (see wide_)
     std::uint32_t fo = 0;              // fo_start_[gate]
     std::uint32_t toggles = 0;         // transitions of out since reset (toggle_count)
     std::uint8_t op = general;
@@ -368,6 +392,7 @@ class simulator {
     bool transport = false;
     logic pend = none;                 // inertial: the pending value, or none
     logic v0 = logic::x, v1 = logic::x, vout = logic::x;
+    std::uint8_t shorter = 0;          // the index in delay of the shorter
   };
   static_assert(sizeof(gate_rec) == 32);
   // The first two inputs of each gate (a one-input gate's input twice).
@@ -388,6 +413,7 @@ class simulator {
   // A delay of 2^32 fs (4.3 us) or more anywhere puts every delay here instead.
   std::vector<edge_delays> wide_delay_;
   bool wide_ = false;
+  bool within_reach_ = false;  // every delay of this run at most queue_.reach()
   std::vector<logic> clock_seen_;   // flip-flop primitives: CK at their last evaluation
   std::vector<std::uint32_t> slot_;  // transport gates: index into tq_, else no_id
 
@@ -406,6 +432,11 @@ class simulator {
   // two-input C-element.
   static constexpr int lut_rows = 2 * gate_kind_count + 1;
   std::array<logic, lut_rows * 27> lut_{};
+  // What an inertial gate of a lut_ row does when evaluated, by selects (see
+  // plan_of): at row << 8 | v0 << 6 | v1 << 4 | vout << 2 | pend.
+  std::array<std::uint8_t, lut_rows * 256> step_{};
+  static std::uint8_t plan_of(logic present, logic pend, logic v);
+  void take_step(gate_id g, gate_rec& r, unsigned step, time_fs t);
   std::vector<gate_id> dirty_;
   std::vector<change> trace_;
 
