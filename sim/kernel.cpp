@@ -65,7 +65,7 @@ void event_queue::clear() {
   far_.clear();
   base_ = floor_ = 0;
   cur_ = 0;
-  pos_ = size_ = in_wheel_ = lead_ = 0;
+  pos_ = in_wheel_ = lead_ = 0;
   next_valid_ = false;
 }
 
@@ -89,10 +89,38 @@ void event_queue::order_last(std::size_t s) {
   *at = e;
 }
 
+namespace {
+
+// Orders a[0, n) by the low `bits` bits of the time, stably, by Passes
+// counting passes of at most 6 bits (LSD radix sort), with tmp as the second
+// buffer: one histogram pass for all digits, then a scatter per digit. No
+// branch follows the data.
+template <unsigned Passes>
+void radix_order(queued_event* a, queued_event* tmp, std::size_t n, unsigned bits) {
+  const unsigned digit = (bits + Passes - 1) / Passes;
+  std::uint32_t count[Passes][65] = {};
+  time_fs mask[Passes];
+  for (unsigned p = 0; p < Passes; ++p) mask[p] = (time_fs{1} << std::min(digit, bits - p * digit)) - 1;
+  for (std::size_t i = 0; i < n; ++i) {
+    const time_fs t = a[i].time;
+    for (unsigned p = 0; p < Passes; ++p) ++count[p][((t >> (p * digit)) & mask[p]) + 1];
+  }
+  queued_event* src = a;
+  queued_event* dst = tmp;
+  for (unsigned p = 0; p < Passes; ++p) {
+    std::uint32_t* const c = count[p];
+    for (std::size_t b = 1; b <= mask[p]; ++b) c[b] += c[b - 1];
+    for (std::size_t i = 0; i < n; ++i) dst[c[(src[i].time >> (p * digit)) & mask[p]]++] = src[i];
+    std::swap(src, dst);
+  }
+  if (src != a) std::copy(src, src + n, a);
+}
+
+}  // namespace
+
 // Orders slot s (the cursor's from pos_ on) by time. Its entries share the
 // time's bits above the slot width, so the bits below order them: a few
-// entries by insertion, more by radix passes over 6 bits at a time, which
-// take no branch that follows the data.
+// entries by insertion, more by radix passes.
 void event_queue::sort_slot(std::size_t s) {
   auto& v = wheel_[s];
   const std::size_t from = s == cur_ ? pos_ : 0;
@@ -104,20 +132,17 @@ void event_queue::sort_slot(std::size_t s) {
       for (auto j = i; j > first && j->time < (j - 1)->time; --j) std::iter_swap(j, j - 1);
     return;
   }
-  // Passes of at most 6 bits, as few as the width needs, split evenly.
-  const unsigned passes = (width_bits_ + 5) / 6, digit = passes ? (width_bits_ + passes - 1) / passes : 0;
-  const unsigned buckets = 1u << digit;
   if (scratch_.size() < n) scratch_.resize(n);
-  queued_event* src = first;
-  queued_event* dst = scratch_.data();
-  for (unsigned pass = 0, shift = 0; pass < passes; ++pass, shift += digit) {
-    std::uint32_t count[65] = {};
-    for (std::size_t i = 0; i < n; ++i) ++count[((src[i].time >> shift) & (buckets - 1)) + 1];
-    for (unsigned b = 1; b <= buckets; ++b) count[b] += count[b - 1];
-    for (std::size_t i = 0; i < n; ++i) dst[count[(src[i].time >> shift) & (buckets - 1)]++] = src[i];
-    std::swap(src, dst);
+  switch ((width_bits_ + 5) / 6) {  // passes of at most 6 bits (the width is at most 40)
+    case 0: return;
+    case 1: return radix_order<1>(first, scratch_.data(), n, width_bits_);
+    case 2: return radix_order<2>(first, scratch_.data(), n, width_bits_);
+    case 3: return radix_order<3>(first, scratch_.data(), n, width_bits_);
+    case 4: return radix_order<4>(first, scratch_.data(), n, width_bits_);
+    case 5: return radix_order<5>(first, scratch_.data(), n, width_bits_);
+    case 6: return radix_order<6>(first, scratch_.data(), n, width_bits_);
+    default: return radix_order<7>(first, scratch_.data(), n, width_bits_);
   }
-  if (src != first) std::copy(src, src + n, first);
 }
 
 // The next occupied slot after the cursor's becomes the cursor's (the wheel

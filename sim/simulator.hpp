@@ -86,14 +86,11 @@ class event_queue {
   /// minimum, which the take forgot).
   void push_after_take(const queued_event& e) { push_after_take_if(true, e); }
   /// push_after_take() when `keep`, with no branch on it.
-  void push_after_take_if(bool keep, const queued_event& e) {
-    size_ += keep;
-    put_if(keep, e);
-  }
+  void push_after_take_if(bool keep, const queued_event& e) { put_if(keep, e); }
   /// The longest delay push_after_take() takes: less than a whole turn.
   time_fs reach() const { return static_cast<time_fs>(mask_) << width_bits_; }
-  bool empty() const { return size_ == 0; }
-  std::size_t size() const { return size_; }
+  bool empty() const { return in_wheel_ == 0 && far_.empty(); }
+  std::size_t size() const { return in_wheel_ + far_.size(); }
   /// The earliest time in the queue (the queue must not be empty). Cached
   /// until the next take_front() or an earlier push.
   time_fs min_time() { return next_valid_ ? next_ : find_min(); }
@@ -188,7 +185,7 @@ class event_queue {
   std::size_t cur_ = 0;            // the slot under the cursor: slot_of(base_)
   time_fs floor_ = 0;              // the last instant taken: no push is earlier
   std::size_t pos_ = 0;            // next entry of the (sorted) cursor slot
-  std::size_t size_ = 0, in_wheel_ = 0;
+  std::size_t in_wheel_ = 0;       // entries on the wheel (the rest are in far_)
   time_fs next_ = 0;               // min_time() while next_valid_
   std::size_t mask_ = 0;           // the slot count less one
   std::size_t la_slot_ = 0, la_pos_ = 0;  // the look-ahead's next entry (while lead_ > 0)
@@ -208,7 +205,6 @@ class event_queue {
 }
 
 [[gnu::always_inline]] inline void event_queue::push(const queued_event& e) {
-  ++size_;
   if (next_valid_ && e.time < next_) next_valid_ = false;
   if (!in_wheel(e.time)) {
     far_.push_back(e);
@@ -244,22 +240,21 @@ class event_queue {
       }
       // Far events now within the wheel's window lie beyond t's slot, so they
       // never land on the cursor's.
-      const bool turned = (t >> width_bits_) != (floor_ >> width_bits_);
+      const time_fs before = floor_;
       floor_ = t;
-      if (turned && !far_.empty()) [[unlikely]]
+      if (!far_.empty() && (t >> width_bits_) != (before >> width_bits_)) [[unlikely]]
         migrate();
       const std::size_t from = pos_;
       std::size_t end = from + 1;
       while (end < n && v[end].time == t) ++end;
       pos_ = end;
-      size_ -= end - from;
       in_wheel_ -= end - from;
       lead_ = lead_ > end - from ? lead_ - (end - from) : 0;
       next_valid_ = false;
       return {v.data() + from, end - from};
     }
     if (in_wheel_ == 0) [[unlikely]] {
-      if (size_ == 0 || !jump_to_far(last)) return {};
+      if (far_.empty() || !jump_to_far(last)) return {};
       continue;
     }
     // The cursor slot is used up: on to the next occupied one.

@@ -48,7 +48,7 @@ void push_some(event_queue& q, std::multimap<time_fs, gate_id>& ref, std::mt1993
 TEST_CASE("the event queue returns instants in time order, like an ordered multiset", "[kernel][queue]") {
   // Wheels of 64 slots (no smallest delay known, or slots up to half of it)
   // and of 4096 (a smallest delay of 1 fs).
-  for (const auto [largest, smallest] : {std::pair<time_fs, time_fs>{0, 0}, {1000, 0}, {60000, 0}, {5000000, 0},
+  for (const auto& [largest, smallest] : {std::pair<time_fs, time_fs>{0, 0}, {1000, 0}, {60000, 0}, {5000000, 0},
                                          {60000, 20000}, {60000, 1}, {5000000, 1}}) {
     std::mt19937_64 rng(largest + smallest + 7);
     event_queue q(largest, smallest);
@@ -78,7 +78,7 @@ TEST_CASE("the event queue returns instants in time order, like an ordered multi
 TEST_CASE("take_until takes instants in time order and nothing after its bound", "[kernel][queue]") {
   // Wheels of 64 slots (no smallest delay known, or slots up to half of it)
   // and of 4096 (a smallest delay of 1 fs).
-  for (const auto [largest, smallest] : {std::pair<time_fs, time_fs>{0, 0}, {1000, 0}, {60000, 0}, {5000000, 0},
+  for (const auto& [largest, smallest] : {std::pair<time_fs, time_fs>{0, 0}, {1000, 0}, {60000, 0}, {5000000, 0},
                                          {60000, 20000}, {60000, 1}, {5000000, 1}}) {
     std::mt19937_64 rng(largest + smallest + 11);
     event_queue q(largest, smallest);
