@@ -17,9 +17,11 @@ constexpr std::uint64_t mix(std::uint64_t z) {
   return z ^ (z >> 31);
 }
 
-// A draw that depends on (seed, corner index, gate, edge, stream) alone.
-std::uint64_t draw(std::uint64_t seed, std::uint64_t index, gate_id g, int edge, int stream) {
-  return mix(mix(mix(seed) ^ index) ^ (std::uint64_t{g} << 3 | std::uint64_t(edge) << 1 | stream));
+// A draw that depends on (seed, corner index, gate, edge, stream) alone: the
+// corner's key, mix(mix(seed) ^ index), is worked out once per corner.
+constexpr std::uint64_t corner_key(std::uint64_t seed, std::uint64_t index) { return mix(mix(seed) ^ index); }
+std::uint64_t draw(std::uint64_t key, gate_id g, int edge, int stream) {
+  return mix(key ^ (std::uint64_t{g} << 3 | std::uint64_t(edge) << 1 | stream));
 }
 
 // Uniform on [lo, hi] by a 128-bit multiply (no modulo bias worth naming).
@@ -109,6 +111,7 @@ std::optional<corner> parse_corner(std::string_view text, std::string* error) {
 
 void fill_delays(const netlist& n, const corner& c, delay_table& out) {
   const auto gates = n.gate_count();
+  const std::uint64_t key = corner_key(c.seed, c.index);
   out.rise.resize(gates);
   out.fall.resize(gates);
   for (gate_id g = 0; g < gates; ++g) {
@@ -119,9 +122,9 @@ void fill_delays(const netlist& n, const corner& c, delay_table& out) {
         case corner::kind::min: return r.min;
         case corner::kind::typ: return r.typ;
         case corner::kind::max: return r.max;
-        case corner::kind::random: return uniform(draw(c.seed, c.index, g, edge, 0), r.min, r.max);
+        case corner::kind::random: return uniform(draw(key, g, edge, 0), r.min, r.max);
         case corner::kind::gauss:
-          return gaussian(draw(c.seed, c.index, g, edge, 0), draw(c.seed, c.index, g, edge, 1), r);
+          return gaussian(draw(key, g, edge, 0), draw(key, g, edge, 1), r);
         case corner::kind::extremes: {
           // 0 all-min, 1 all-max, 2 typ, then per gate: it at max with the
           // others at min, and it at min with the others at max.
