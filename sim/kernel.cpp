@@ -579,7 +579,8 @@ SETTLE_HOT void simulator::apply_front(std::span<const queued_event> front, time
 // link of the chain for each of the last three it passed: the record of the
 // newest, the fan-out list of the one before, whose record came an entry
 // ago, and the records of the gates the oldest feeds. The look-ahead stays
-// three entries ahead of the instants taken.
+// prefetch_depth entries ahead of the instants taken, so the oldest of the
+// three is that many less two ahead.
 SETTLE_HOT void simulator::prefetch_ahead() {
   while (queue_.lead() < prefetch_depth) {
     const gate_id g = queue_.next_ahead();
