@@ -87,7 +87,8 @@ class event_queue {
   void push_after_take(const queued_event& e) { push_after_take_if(true, e); }
   /// push_after_take() when `keep`, with no branch on it.
   void push_after_take_if(bool keep, const queued_event& e) { put_if(keep, e); }
-  /// The longest delay push_after_take() takes: less than a whole turn.
+  /// push_after_take() takes delays shorter than this: a turn of the wheel
+  /// less one slot.
   time_fs reach() const { return static_cast<time_fs>(mask_) << width_bits_; }
   bool empty() const { return in_wheel_ == 0 && far_.empty(); }
   std::size_t size() const { return in_wheel_ + far_.size(); }
@@ -408,7 +409,7 @@ class simulator {
   // A delay of 2^32 fs (4.3 us) or more anywhere puts every delay here instead.
   std::vector<edge_delays> wide_delay_;
   bool wide_ = false;
-  bool within_reach_ = false;  // every delay of this run at most queue_.reach()
+  bool within_reach_ = false;  // every delay of this run shorter than queue_.reach()
   std::vector<logic> clock_seen_;   // flip-flop primitives: CK at their last evaluation
   std::vector<std::uint32_t> slot_;  // transport gates: index into tq_, else no_id
 
