@@ -231,7 +231,7 @@ void simulator::build_fast_paths() {
   probe.begin();
   const net_id a = probe.add_net("a", 0), b = probe.add_net("b", 0);
   std::vector<net_id> y;
-  for (int k = 0; k < gate_kind_count; ++k) y.push_back(probe.add_net("y" + std::to_string(k), 0));
+  for (int k = 0; k < gate_kind_count; ++k) y.push_back(probe.add_net(fmt::format("y{}", k), 0));
   const gate_id first_two = gate_kind_count;
   for (int k = 0; k < gate_kind_count; ++k) probe.add_gate(static_cast<gate_kind>(k), y[k], {a}, {}, {});
   for (int k = 0; k < gate_kind_count; ++k) probe.add_gate(static_cast<gate_kind>(k), y[k], {a, b}, {}, {});

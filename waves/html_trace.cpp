@@ -200,7 +200,8 @@ std::string html_invocation() {
       const auto slash = word.rfind('/');
       if (slash != std::string::npos) word = word.substr(slash + 1);
     }
-    out += (first ? "" : " ") + shell_quoted(word);
+    if (!first) out += ' ';
+    out += shell_quoted(word);
     first = false;
     pos = end + 1;
   }

@@ -42,7 +42,7 @@ void check_kind(gate_kind kind, int arity, const std::function<logic(const std::
                 std::vector<std::uint32_t> program = {}) {
   builder b;
   std::vector<std::string> names;
-  for (int i = 0; i < arity; ++i) names.push_back("a" + std::to_string(i));
+  for (int i = 0; i < arity; ++i) names.push_back(std::string("a") + std::to_string(i));
   for (auto& n : names) b.input(n);
   std::vector<net_id> fanin;
   design d = b.finish();
