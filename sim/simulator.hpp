@@ -80,7 +80,7 @@ class event_queue {
   explicit event_queue(time_fs largest_delay = 0, time_fs smallest_delay = 0);
   void clear();
   void push(const queued_event& e);
-  /// push() right after a take, of an entry at most reach() after the
+  /// push() right after a take, of an entry less than reach() after the
   /// instant taken: the queue's order needs no check then (the entry lies
   /// within the wheel's window, at or after the cursor, and after the
   /// minimum, which the take forgot).
@@ -200,8 +200,9 @@ class event_queue {
   wheel_[slot].push_back_if(keep, e);
   occupied_[slot / 64] |= std::uint64_t{keep} << (slot % 64);
   in_wheel_ += keep;
-  // One branch on both (rarely taken): a branch on keep would follow the data.
-  if ((static_cast<unsigned>(keep) & static_cast<unsigned>(sorted_bits_[slot / 64] >> (slot % 64))) & 1u) [[unlikely]]
+  // One branch on both (rarely taken; & evaluates both): a branch on keep
+  // would follow the data.
+  if (keep & is_sorted(slot)) [[unlikely]]
     order_last(slot);
 }
 
