@@ -1,6 +1,8 @@
 // `settle margin`: the delay-spread margin of every step, settle-time margins, baselines and JUnit XML.
 #include <unistd.h>
 
+#include <cerrno>
+#include <cstring>
 #include <filesystem>
 #include <fstream>
 #include <memory>
@@ -226,11 +228,22 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
 
 // Baselines are small regular files; anything else (a device, a FIFO, a
 // folder) is refused rather than read until memory runs out.
-std::optional<std::string> read_file(const std::string& path) {
+std::optional<std::string> read_file(const std::string& path, std::string& why) {
   std::error_code ec;
-  if (!std::filesystem::is_regular_file(path, ec)) return std::nullopt;
+  const auto st = std::filesystem::status(path, ec);
+  if (!std::filesystem::exists(st)) {
+    why = "no such file";
+    return std::nullopt;
+  }
+  if (!std::filesystem::is_regular_file(st)) {
+    why = "it is not a regular file";
+    return std::nullopt;
+  }
   std::ifstream in(path, std::ios::binary);
-  if (!in) return std::nullopt;
+  if (!in) {
+    why = std::strerror(errno);
+    return std::nullopt;
+  }
   std::ostringstream ss;
   ss << in.rdbuf();
   return ss.str();
@@ -291,7 +304,8 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   // Read the baseline before the search, so a bad file fails fast.
   std::optional<baseline_file> before;
   if (!o.baseline.empty()) {
-    auto text = read_file(o.baseline);
+    std::string why;
+    auto text = read_file(o.baseline, why);
     if (text) {
       before = parse_baseline(*text, &err);
       if (!before) {
@@ -299,7 +313,7 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
         return exit_status::error;
       }
     } else if (!o.update_baseline) {
-      spdlog::error("cannot read baseline '{}'; write one with --update-baseline", o.baseline);
+      spdlog::error("cannot read baseline '{}': {}; write one with --update-baseline", o.baseline, why);
       return exit_status::error;
     }
   }

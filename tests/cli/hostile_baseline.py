@@ -118,6 +118,10 @@ CASES = [
     dict(name="not JSON, while updating", files={"b.json": "{\"format_version\": 1, \"designs\": [\n"},
          argv=[ARB, *FAST, "--baseline", "{d}/b.json", "--update-baseline"], rc=2, text="not valid JSON",
          keep=["b.json"]),
+    dict(name="baseline to compare that is missing", argv=[ARB, *FAST, "--baseline", "{d}/none.json"], rc=2,
+         text="none.json': no such file"),
+    dict(name="baseline to compare that is a folder", files={"b.json/x": ""},
+         argv=[ARB, *FAST, "--baseline", "{d}/b.json"], rc=2, text="b.json': it is not a regular file"),
     # --- baselines that cannot be written: exit 2 naming the file, before the search ---
     dict(name="read-only baseline (root bypasses access(2))", files={"b.json": base_text(entry())},
          mode={"b.json": 0o444}, argv=[ARB, *FAST, "--baseline", "{d}/b.json", "--update-baseline"], rc=2,
