@@ -75,6 +75,7 @@ struct baseline_change {
 struct baseline_comparison {
   std::vector<baseline_change> changes;  ///< every margin that moved, regressions first
   std::vector<std::string> notes;        ///< steps added or removed, settings that differ
+  bool capped = false;  ///< some old figure lay above this run's ceiling and was compared only up to it
   bool regressed() const;
 };
 

@@ -219,7 +219,8 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
                            c.before_at_least ? ">= " : "", c.before_pct,
                            c.after_at_least ? ">= " : "", c.after_pct, c.after_pct - c.before_pct);
       for (const auto& n : cmp->notes) out += fmt::format("  note  {}\n", n);
-      if (cmp->changes.empty()) out += "  no margin moved\n";
+      if (cmp->changes.empty())
+        out += cmp->capped ? "  no margin moved up to this run's ceiling\n" : "  no margin moved\n";
     }
   }
   out += fmt::format("\nresult  {}\n", paint(pass ? "pass" : "findings", pass));

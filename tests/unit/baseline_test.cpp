@@ -150,6 +150,11 @@ TEST_CASE("baseline: an update re-reads the file under the lock and keeps its mo
   // Read-only even for root (the mode bits count as well as access(2)).
   ::chmod(path.c_str(), 0444);
   CHECK(settle::baseline_unwritable(path).find("read-only") != std::string::npos);
+  // Made read-only after the check before the search: the update under the lock refuses it too.
+  r = settle::update_baseline_file(path, entry("d", 4, false, 100), "settle test", nullptr);
+  CHECK(r.status == settle::baseline_update_status::failed);
+  CHECK(r.error.find("read-only") != std::string::npos);
+  CHECK(slurp(path) == bytes);
   ::chmod(path.c_str(), 0644);
   CHECK(settle::baseline_unwritable(path).empty());
   (void)std::system(("rm -rf '" + dir + "'").c_str());
