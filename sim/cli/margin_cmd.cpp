@@ -314,7 +314,8 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
         return exit_status::error;
       }
     } else if (!o.update_baseline) {
-      spdlog::error("cannot read baseline '{}': {}; write one with --update-baseline", o.baseline, why);
+      spdlog::error("cannot read baseline '{}': {}; write one with --update-baseline", o.baseline,
+                    why);
       return exit_status::error;
     }
   }

@@ -1,4 +1,4 @@
-// Baselines: errors that name the entry and field, lower bounds at the search ceiling, merging, locked updates.
+// Baselines: field errors, lower bounds at the search ceiling, merging, locked updates.
 #include <fcntl.h>
 #include <sys/file.h>
 #include <sys/stat.h>
@@ -52,7 +52,8 @@ TEST_CASE("baseline: errors name the entry and the field", "[baseline]") {
       &err));
   CHECK(err == "entry \"arbiter.settle\", field \"margin_pct\": expected a number");
   CHECK_FALSE(settle::parse_baseline(
-      R"({"format_version": 1, "designs": [{"design": "a", "margin_pct": 1, "steps": [{"margin_pct": 1}]}]})",
+      R"({"format_version": 1,
+          "designs": [{"design": "a", "margin_pct": 1, "steps": [{"margin_pct": 1}]}]})",
       &err));
   CHECK(err == "entry \"a\", steps[0], field \"index\": missing");
   CHECK_FALSE(
