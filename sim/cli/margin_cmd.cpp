@@ -284,6 +284,10 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
     spdlog::error("--update-baseline needs --baseline FILE to write to");
     return exit_status::error;
   }
+  if (o.baseline == "-") {
+    spdlog::error("--baseline -: a baseline is a file that is read and rewritten in place; give its path");
+    return exit_status::error;
+  }
   if (!search_options_valid(o)) return exit_status::error;
   // Refuse a baseline that cannot be written before the search spends any time.
   if (o.update_baseline) {
