@@ -64,7 +64,7 @@ margin_failure describe(const sweep_plan& plan, const sweep_step& s, double w) {
         if (f.detail.empty())
           f.detail = o.status == step_status::oscillating
                          ? fmt::format("oscillating with period {}", format_time(o.period))
-                         : std::string(status_name(o.status));
+                         : std::string(o.end_of_time ? end_of_time_words : status_name(o.status));
       }
     if (f.witness.empty() && !s.outcomes.empty()) f.witness = at_spread(plan, s.outcomes[0].witness, w).name();
   }

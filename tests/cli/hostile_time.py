@@ -94,6 +94,8 @@ CASES = [
      ["sweep", "ring.settle", "--corners", "extremes"], 1, [f"reason  {EOT}"], None),
     ("a sweep of the slow ring says why, in JSON", {"ring.settle": RING},
      ["sweep", "ring.settle", "--corners", "extremes", "--json", "-"], 1, [f'"detail": "{EOT}"'], None),
+    ("a margin search on the slow ring names the end of time", {"ring.settle": RING},
+     ["margin", "ring.settle"], 1, [EOT], None),
     ("a slow clock under a long horizon times out at the horizon", {"s.settle": STROBE},
      ["run", "s.settle", "--horizon", "18000000ms", "--json", "-"], 1,
      ['"end_fs": 18000000000000000000', '"status": "timeout"'],
