@@ -20,6 +20,7 @@ expectation make_expect(expectation::kind k, net_id net, const std::string& ref,
 void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, reporter& rep) {
   out = stimulus{};
   if (!sb.present) return;
+  check_stimulus(sb, nl, rep);
   auto net_of = [&](const ref& r) -> net_id {
     net_id n = nl.find(r.name);
     if (n == no_id || n <= netlist::const1) {
