@@ -8,6 +8,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <cerrno>
 #include <climits>
 #include <cstdlib>
@@ -307,7 +308,7 @@ bool check_paths(const std::vector<path_use>& uses) {
         if (b.what == path_use::kind::input)
           spdlog::error("{} is the {}", role(a), role(b));
         else
-          spdlog::error("{} is the same file as {}", role(a), role(b));
+          spdlog::error("{} is the same file as {}", role(uses[std::max(i, j)]), role(uses[std::min(i, j)]));
         return false;
       }
       // A file inside an output folder whose name the folder's outputs may take.
