@@ -120,8 +120,8 @@ std::string corner_range_error(const corner& c, std::size_t gates) {
     if (g >= 64) return "";  // every 64-bit number names one
     const std::uint64_t count = std::uint64_t{1} << g;
     if (c.index < count) return "";
-    return fmt::format("this design's {} gate{} give {} exhaustive corners, numbered 0..{}", g, g == 1 ? "" : "s",
-                       count, count - 1);
+    return fmt::format("this design's {} gate{} give {} exhaustive corners, numbered 0..{}", g,
+                       g == 1 ? "" : "s", count, count - 1);
   }
   return "";
 }

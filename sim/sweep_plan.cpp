@@ -72,11 +72,15 @@ std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, 
     sweep_plan::item it;
     // A part given twice would count the same corners twice and narrow every
     // interval with no new information; random:N and gauss:N parts draw new corners.
-    bool& seen = tok == "extremes" ? seen_extremes : tok == "exhaustive" ? seen_exhaustive : seen_interval;
-    if ((tok == "extremes" || tok == "exhaustive" || tok == "interval") && std::exchange(seen, true))
-      return fail(fmt::format("--corners '{}': '{}' appears twice; each of extremes, exhaustive and interval may be "
-                              "given once",
-                              spec, tok));
+    bool& seen = tok == "extremes"     ? seen_extremes
+                 : tok == "exhaustive" ? seen_exhaustive
+                                       : seen_interval;
+    if ((tok == "extremes" || tok == "exhaustive" || tok == "interval") &&
+        std::exchange(seen, true))
+      return fail(fmt::format(
+          "--corners '{}': '{}' appears twice; each of extremes, exhaustive and interval may be "
+          "given once",
+          spec, tok));
     if (tok.empty()) {
       return fail(fmt::format("--corners '{}': empty item; expected extremes, exhaustive, random:N, gauss:N or "
                               "interval joined by '+'",

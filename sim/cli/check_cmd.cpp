@@ -78,7 +78,8 @@ exit_status run_check(const check_options& o) {
       j["source"] = {{"format", s.format}, {"inputs", s.inputs},         {"outputs", s.outputs}, {"dffs", s.dffs},
                      {"inverters", s.inverters}, {"buffers", s.buffers}, {"gates", s.gates}};
     }
-    if (!write_output(o.json, j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n"))
+    if (!write_output(
+            o.json, j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n"))
       return exit_status::error;
     if (o.json == "-") return exit_status::ok;  // stdout carries the JSON alone
   }
@@ -115,7 +116,8 @@ void add_check(CLI::App& app, exit_status& status) {
   auto o = std::make_shared<check_options>();
   auto* cmd = app.add_subcommand("check", "parse, elaborate and lint a design; print counts and feedback loops");
   add_design_options(*cmd, o->design);
-  check_output_path(cmd->add_option("--json", o->json, "write the counts as JSON to PATH ('-' for stdout)"));
+  check_output_path(
+      cmd->add_option("--json", o->json, "write the counts as JSON to PATH ('-' for stdout)"));
   cmd->callback([o, &status] { status = run_check(*o); });
 }
 

@@ -78,7 +78,9 @@ CLI::Validator one_of(std::vector<std::string> words) {
 
 CLI::Validator file_name(const char* what) {
   return CLI::Validator(
-      [what](std::string& v) -> std::string { return v.empty() ? fmt::format("the {} path is empty", what) : ""; },
+      [what](std::string& v) -> std::string {
+        return v.empty() ? fmt::format("the {} path is empty", what) : "";
+      },
       "FILE");
 }
 
@@ -124,7 +126,8 @@ std::optional<design> load(const design_options& o, bool empty_ok) {
   }
   if (d->nets.gate_count() == 0 && d->nets.inputs.empty()) {
     if (!empty_ok) {
-      spdlog::error("{}: the design is empty (no gates and no inputs): there is nothing to simulate", o.path);
+      spdlog::error(
+          "{}: the design is empty (no gates and no inputs): there is nothing to simulate", o.path);
       return std::nullopt;
     }
     spdlog::warn("{}: the design is empty (no gates and no inputs)", o.path);

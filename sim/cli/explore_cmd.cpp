@@ -167,12 +167,14 @@ std::optional<std::string> line_of(const std::string& path, std::uint32_t line) 
 // The engine names a stimulus position as "DESIGN:LINE:COL: why". The
 // stimulus came from the --stim file when one was given: print it as a
 // diagnostic of that file, with its source line and a caret.
-void report_explore_error(const design_options& o, const std::string& design_path, const std::string& err) {
+void report_explore_error(const design_options& o, const std::string& design_path,
+                          const std::string& err) {
   const std::string prefix = design_path + ":";
   unsigned line = 0, col = 0;
   int used = 0;
   if (err.starts_with(prefix) &&
-      std::sscanf(err.c_str() + prefix.size(), "%u:%u: %n", &line, &col, &used) == 2 && used > 0 && line > 0) {
+      std::sscanf(err.c_str() + prefix.size(), "%u:%u: %n", &line, &col, &used) == 2 && used > 0 &&
+      line > 0) {
     diagnostic dg;
     dg.file = o.stim.empty() ? design_path : o.stim;
     dg.line = line;
@@ -199,7 +201,8 @@ exit_status run_explore(const explore_cli_options& o) {
     return exit_status::error;
   }
   auto uses = design_inputs(o.design);
-  for (const auto& [opt, path] : {std::pair{"--json", &o.json}, {"--dot", &o.dot}, {"--html", &o.html}})
+  for (const auto& [opt, path] :
+       {std::pair{"--json", &o.json}, {"--dot", &o.dot}, {"--html", &o.html}})
     uses.push_back({path_use::kind::output, opt, *path, ""});
   if (!check_paths(uses)) return exit_status::error;
   auto d = load(o.design);
@@ -219,8 +222,10 @@ exit_status run_explore(const explore_cli_options& o) {
   }
   output_set outs;  // all or nothing
   if (!o.json.empty() && !outs.put(o.json, result_json(*d, *r, wall))) return exit_status::error;
-  if (!o.dot.empty() && !outs.put(o.dot, state_graph_dot(d->nets, *r, d->path))) return exit_status::error;
-  if (!o.html.empty() && !outs.put(o.html, html_report_explore(*d, *r, {"explore", result_json(*d, *r, wall), ""})))
+  if (!o.dot.empty() && !outs.put(o.dot, state_graph_dot(d->nets, *r, d->path)))
+    return exit_status::error;
+  if (!o.html.empty() &&
+      !outs.put(o.html, html_report_explore(*d, *r, {"explore", result_json(*d, *r, wall), ""})))
     return exit_status::error;
   if (!outs.commit()) return exit_status::error;
   if (o.json != "-" && o.dot != "-" && o.html != "-") std::fputs(table(*d, *r, wall).c_str(), stdout);
@@ -231,19 +236,25 @@ void add_explore(CLI::App& app, exit_status& status) {
   auto o = std::make_shared<explore_cli_options>();
   auto* cmd = app.add_subcommand("explore", "every interleaving under unbounded gate delays, and ternary simulation");
   add_design_options(*cmd, o->design);
-  cmd->add_option("--model", o->model, "gmw (any subset of excited gates fires, default), single, or ternary")
+  cmd->add_option("--model", o->model,
+                  "gmw (any subset of excited gates fires, default), single, or ternary")
       ->check(one_of({"gmw", "single", "ternary"}));
-  check_whole_number(cmd->add_option("--max-states", o->max_states, "state budget per step (default 2,000,000)"), 1,
-                     UINT64_MAX, "the state budget");
-  auto* mem = cmd->add_option("--max-memory", o->max_memory_mib,
-                  fmt::format("memory the stored state graphs may hold, in MiB; past it the step stops incomplete "
-                              "(default {}, or half the available memory when less)",
-                              default_max_memory_mib));
+  check_whole_number(
+      cmd->add_option("--max-states", o->max_states, "state budget per step (default 2,000,000)"),
+      1, UINT64_MAX, "the state budget");
+  auto* mem = cmd->add_option(
+      "--max-memory", o->max_memory_mib,
+      fmt::format(
+          "memory the stored state graphs may hold, in MiB; past it the step stops incomplete "
+          "(default {}, or half the available memory when less)",
+          default_max_memory_mib));
   check_whole_number(mem, 1, std::uint64_t{1} << 40, "the memory in MiB");
   add_json_option(*cmd, o->json);
-  check_output_path(cmd->add_option("--dot", o->dot, "write the explored state graphs as Graphviz DOT to PATH"));
-  check_output_path(cmd->add_option("--html", o->html,
-                                    "write a self-contained HTML report (stable states, small state graphs) to PATH"));
+  check_output_path(
+      cmd->add_option("--dot", o->dot, "write the explored state graphs as Graphviz DOT to PATH"));
+  check_output_path(cmd->add_option(
+      "--html", o->html,
+      "write a self-contained HTML report (stable states, small state graphs) to PATH"));
   cmd->callback([o, &status] { status = run_explore(*o); });
 }
 

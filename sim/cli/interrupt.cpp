@@ -41,7 +41,7 @@ void install() {
   sigemptyset(&sa.sa_mask);
   sigaddset(&sa.sa_mask, SIGINT);  // one handler at a time
   sigaddset(&sa.sa_mask, SIGTERM);
-  sa.sa_flags = 0;
+  sa.sa_flags = SA_RESTART;  // a blocked open or read resumes; the flag is polled after it
   sigaction(SIGINT, &sa, nullptr);
   sigaction(SIGTERM, &sa, nullptr);
 }

@@ -31,7 +31,8 @@ void install_logger() {
 // The names of the commands, "check, run, sweep, explore, margin".
 std::string command_list() {
   std::string list;
-  for (const auto& c : settle::cli::commands()) list += (list.empty() ? "" : ", ") + std::string(c.name);
+  for (const auto& c : settle::cli::commands())
+    list += (list.empty() ? "" : ", ") + std::string(c.name);
   return list;
 }
 
@@ -44,7 +45,8 @@ std::string usage_error(const CLI::App& app, const CLI::ParseError& e) {
   if (cmd.empty() && !app.remaining().empty()) {
     const std::string first = app.remaining().front();
     if (!first.empty() && first[0] == '-')
-      return fmt::format("unknown option '{}' before the command; the commands are {}", first, command_list());
+      return fmt::format("unknown option '{}' before the command; the commands are {}", first,
+                         command_list());
     return fmt::format("unknown command '{}'; the commands are {}", first, command_list());
   }
   if (cmd.empty() && dynamic_cast<const CLI::RequiredError*>(&e))
@@ -52,13 +54,15 @@ std::string usage_error(const CLI::App& app, const CLI::ParseError& e) {
   if (dynamic_cast<const CLI::ExtrasError*>(&e)) {
     std::string extra;
     for (const auto& w : used.front()->remaining()) extra += (extra.empty() ? "" : " ") + w;
-    return fmt::format("{}unexpected argument{} '{}'", where, extra.find(' ') == std::string::npos ? "" : "s", extra);
+    return fmt::format("{}unexpected argument{} '{}'", where,
+                       extra.find(' ') == std::string::npos ? "" : "s", extra);
   }
   // The option CLI11's text is about: its first word that starts with '-'.
   const std::string text = e.what();
   std::string option;
   for (std::size_t i = 0; i < text.size() && option.empty(); ++i)
-    if (text[i] == '-' && (i == 0 || text[i - 1] == ' ') && i + 1 < text.size() && text[i + 1] != ' ')
+    if (text[i] == '-' && (i == 0 || text[i - 1] == ' ') && i + 1 < text.size() &&
+        text[i + 1] != ' ')
       option = text.substr(i, text.find_first_of(" :=", i) - i);
   if (dynamic_cast<const CLI::ArgumentMismatch*>(&e) && !option.empty())
     return fmt::format("{}{} needs a value", where, option);
@@ -99,9 +103,11 @@ int main(int argc, char** argv) {
     // A library's own text (nlohmann, std::) names no option and no file:
     // say what happened, keep the text for -v debugging.
     const auto used = app.get_subcommands();
-    spdlog::error("{} stopped by an unexpected internal error; nothing was written (please report it with the "
-                  "command line)",
-                  used.empty() ? std::string("settle") : "settle " + used.front()->get_name());
+    spdlog::error(
+        "{} stopped by an unexpected internal error; nothing was written (please report it with "
+        "the "
+        "command line)",
+        used.empty() ? std::string("settle") : "settle " + used.front()->get_name());
     spdlog::debug("internal error: {}", e.what());
     return static_cast<int>(exit_status::error);
   }

@@ -228,7 +228,8 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   // Read only, the baseline is an input; updated, it is one more output.
   uses.push_back({o.update_baseline ? path_use::kind::output : path_use::kind::input,
                   o.update_baseline ? "--baseline" : "baseline file", o.baseline, ""});
-  for (const auto& [opt, path] : {std::pair{"--json", &o.json}, {"--junit", &o.junit}, {"--html", &o.html}})
+  for (const auto& [opt, path] :
+       {std::pair{"--json", &o.json}, {"--junit", &o.junit}, {"--html", &o.html}})
     uses.push_back({path_use::kind::output, opt, *path, ""});
   if (!check_paths(uses)) return exit_status::error;
   std::string err;
@@ -303,7 +304,8 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   // The reports are written first and put in place after the baseline: all or nothing.
   output_set outs;
   const json base = o.baseline.empty() ? json() : baseline_json(o.baseline, o.update_baseline, cmp ? &*cmp : nullptr);
-  if (!o.json.empty() && !outs.put(o.json, result_json(*d, o, *r, base, pass))) return exit_status::error;
+  if (!o.json.empty() && !outs.put(o.json, result_json(*d, o, *r, base, pass)))
+    return exit_status::error;
   if (!o.junit.empty()) {
     std::vector<std::pair<std::string, std::string>> shrank;
     if (regressed)
@@ -316,7 +318,8 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
     if (!outs.put(o.junit, junit_xml({suite}))) return exit_status::error;
   }
   if (!o.html.empty() &&
-      !outs.put(o.html, html_report_margin(*d, *r, mo.run, {"margin", result_json(*d, o, *r, base, pass), ""})))
+      !outs.put(o.html, html_report_margin(*d, *r, mo.run,
+                                           {"margin", result_json(*d, o, *r, base, pass), ""})))
     return exit_status::error;
   if (o.update_baseline && !stopped) {
     baseline_file f = before ? *before : baseline_file{};
@@ -341,8 +344,9 @@ void add_margin(CLI::App& app, exit_status& status) {
   cmd->add_option("--corners", o->corners,
                   "corners run at every probed spread: extremes, exhaustive, random:N, gauss:N joined by '+' "
                   "(default extremes+random:200)");
-  check_whole_number(cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)"), 0,
-                     UINT64_MAX, "the seed");
+  check_whole_number(
+      cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)"), 0,
+      UINT64_MAX, "the seed");
   cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)")->check(CLI::PositiveNumber);
   cmd->add_option("--resolution", o->resolution, "stop bisecting when the bracket is PCT percentage points wide (default 1)");
   cmd->add_option("--up-to", o->ceiling,
@@ -350,15 +354,20 @@ void add_margin(CLI::App& app, exit_status& status) {
   add_json_option(*cmd, o->json);
   cmd->add_option("--baseline", o->baseline, "compare the margins with this baseline file (exit 1 when one shrank)");
   cmd->add_flag("--update-baseline", o->update_baseline, "write this run's margins into the --baseline file instead");
-  cmd->add_option("--tolerance", o->tolerance, "percentage points a margin may fall before it counts (default 2)");
-  check_number_at_least(cmd->add_option("--timeout", o->timeout_s,
-                                        "wall-clock budget in seconds for the whole search; when it runs out the "
-                                        "margins found so far are reported and the command exits 1"),
-                        0, "the timeout in seconds");
+  check_number_at_least(
+      cmd->add_option("--tolerance", o->tolerance,
+                      "percentage points a margin may fall before it counts (default 2)"),
+      0, "the tolerance in percentage points");
+  check_number_at_least(
+      cmd->add_option("--timeout", o->timeout_s,
+                      "wall-clock budget in seconds for the whole search; when it runs out the "
+                      "margins found so far are reported and the command exits 1"),
+      0, "the timeout in seconds");
   add_junit_option(*cmd, o->junit);
   add_max_memory_option(*cmd, o->max_memory_mib);
-  check_output_path(cmd->add_option("--html", o->html,
-                                    "write a self-contained HTML report (margins, culprits, witness waveforms) to PATH"));
+  check_output_path(cmd->add_option(
+      "--html", o->html,
+      "write a self-contained HTML report (margins, culprits, witness waveforms) to PATH"));
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest written gate delay)");
   cmd->add_flag("--no-culprits", o->no_culprits, "skip the search for the gates that decide a race");
   add_quiet_flag(*cmd, o->quiet);

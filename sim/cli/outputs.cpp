@@ -308,7 +308,8 @@ bool check_paths(const std::vector<path_use>& uses) {
         if (b.what == path_use::kind::input)
           spdlog::error("{} is the {}", role(a), role(b));
         else
-          spdlog::error("{} is the same file as {}", role(uses[std::max(i, j)]), role(uses[std::min(i, j)]));
+          spdlog::error("{} is the same file as {}", role(uses[std::max(i, j)]),
+                        role(uses[std::min(i, j)]));
         return false;
       }
       // A file inside an output folder whose name the folder's outputs may take.

@@ -46,9 +46,11 @@ bool parse_horizon_option(const std::string& text, time_fs& out) {
     return false;
   }
   if (*h == 0) {
-    spdlog::error("--horizon {}: the time limit of a step must be greater than 0 (leave --horizon out for the "
-                  "default of 10,000 x the largest gate delay)",
-                  text);
+    spdlog::error(
+        "--horizon {}: the time limit of a step must be greater than 0 (leave --horizon out for "
+        "the "
+        "default of 10,000 x the largest gate delay)",
+        text);
     return false;
   }
   out = *h;
@@ -63,7 +65,8 @@ void check_output_path(CLI::Option* opt) {
       "PATH"));
 }
 
-void check_whole_number(CLI::Option* opt, std::uint64_t lo, std::uint64_t hi, const char* what, const char* hint) {
+void check_whole_number(CLI::Option* opt, std::uint64_t lo, std::uint64_t hi, const char* what,
+                        const char* hint) {
   opt->check(CLI::Validator(
       [lo, hi, what, hint](std::string& v) -> std::string {
         const auto range = fmt::format("{} must be a whole number from {} to {}{}{}", what, lo, hi,
@@ -72,7 +75,8 @@ void check_whole_number(CLI::Option* opt, std::uint64_t lo, std::uint64_t hi, co
         const bool digits = !v.empty() && v.find_first_not_of("0123456789") == std::string::npos;
         if (!digits) return fmt::format("'{}' is not accepted: {}", v, range);
         auto [p, ec] = std::from_chars(v.data(), v.data() + v.size(), n);
-        if (ec == std::errc::result_out_of_range) return fmt::format("{} is too large: {}", v, range);
+        if (ec == std::errc::result_out_of_range)
+          return fmt::format("{} is too large: {}", v, range);
         if (ec != std::errc{} || p != v.data() + v.size() || n < lo || n > hi)
           return fmt::format("{} is out of range: {}", v, range);
         return "";
@@ -87,7 +91,8 @@ void check_number_at_least(CLI::Option* opt, double lo, const char* what) {
         errno = 0;
         const double x = std::strtod(v.c_str(), &end);
         if (v.empty() || *end || !std::isfinite(x) || errno == ERANGE || !(x >= lo))
-          return fmt::format("'{}' is not accepted: {} must be a finite number of at least {:g}", v, what, lo);
+          return fmt::format("'{}' is not accepted: {} must be a finite number of at least {:g}", v,
+                             what, lo);
         return "";
       },
       fmt::format(">= {:g}", lo)));
@@ -106,7 +111,8 @@ nlohmann::ordered_json report_head(const std::string& design_path) {
 }
 
 void add_json_option(CLI::App& cmd, std::string& path) {
-  check_output_path(cmd.add_option("--json", path, "write the results as JSON to PATH ('-' for stdout)"));
+  check_output_path(
+      cmd.add_option("--json", path, "write the results as JSON to PATH ('-' for stdout)"));
 }
 
 void add_junit_option(CLI::App& cmd, std::string& path) {
@@ -118,10 +124,12 @@ void add_quiet_flag(CLI::App& cmd, bool& quiet) {
 }
 
 void add_max_memory_option(CLI::App& cmd, std::uint64_t& mib) {
-  auto* opt = cmd.add_option("--max-memory", mib,
-                 fmt::format("memory for the per-corner results, in MiB (about 20 bytes per corner and step); a "
-                             "larger sweep is refused before it starts (default {})",
-                             sweep_default_max_memory_mib));
+  auto* opt = cmd.add_option(
+      "--max-memory", mib,
+      fmt::format(
+          "memory for the per-corner results, in MiB (about 20 bytes per corner and step); a "
+          "larger sweep is refused before it starts (default {})",
+          sweep_default_max_memory_mib));
   check_whole_number(opt, 1, std::uint64_t{1} << 40, "the memory in MiB");
 }
 

@@ -41,7 +41,8 @@ void check_output_path(CLI::Option* opt);
 /// Accepts only a whole number from `lo` to `hi` written in decimal digits
 /// (no sign, nothing above 2^64-1, never clamped); `what` names the quantity
 /// in the message ("the seed", "the thread count"), `hint` is added after it.
-void check_whole_number(CLI::Option* opt, std::uint64_t lo, std::uint64_t hi, const char* what, const char* hint = "");
+void check_whole_number(CLI::Option* opt, std::uint64_t lo, std::uint64_t hi, const char* what,
+                        const char* hint = "");
 /// Accepts only a finite number of at least `lo` (a decimal or exponent form).
 void check_number_at_least(CLI::Option* opt, double lo, const char* what);
 

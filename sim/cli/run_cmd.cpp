@@ -65,8 +65,8 @@ nlohmann::ordered_json expect_json(const netlist& n, const step_result& s, const
   return e;
 }
 
-std::string result_json(const design& d, const run_result& r, const std::string& corner_name, double wall,
-                        bool stopped) {
+std::string result_json(const design& d, const run_result& r, const std::string& corner_name,
+                        double wall, bool stopped) {
   const netlist& n = d.nets;
   nlohmann::ordered_json j = report_head(d.path);
   j["corner"] = r.corner.empty() ? corner_name : r.corner;
@@ -165,7 +165,9 @@ exit_status run_run(const run_cli_options& o) {
   if (o.verbose && !o.quiet) spdlog::set_level(spdlog::level::debug);
   if (o.quiet) spdlog::set_level(spdlog::level::err);
   auto uses = design_inputs(o.design);
-  for (const auto& [opt, path] : {std::pair{"--vcd", &o.vcd}, {"--json", &o.json}, {"--junit", &o.junit},
+  for (const auto& [opt, path] : {std::pair{"--vcd", &o.vcd},
+                                  {"--json", &o.json},
+                                  {"--junit", &o.junit},
                                   {"--html", &o.html}})
     uses.push_back({path_use::kind::output, opt, *path, ""});
   if (!check_paths(uses)) return exit_status::error;
@@ -222,14 +224,16 @@ exit_status run_run(const run_cli_options& o) {
     const auto replay = [&](const std::string& corner) {
       return replay_command(o.design, corner, o.horizon, o.max_events);
     };
-    if (!outs.put(o.junit, junit_xml({junit_of_run(*d, r, c->name(), replay, wall)}))) return exit_status::error;
+    if (!outs.put(o.junit, junit_xml({junit_of_run(*d, r, c->name(), replay, wall)})))
+      return exit_status::error;
   }
   if (!o.html.empty() && !outs.put(o.html, html_report_run(*d, *c, ro, {"run", json(), ""})))
     return exit_status::error;
   if (!outs.commit()) return exit_status::error;
   if (stopped)  // on stderr even with -q: the report is partial
-    std::fputs(fmt::format("settle: run interrupted by {}: {} of {} steps reached; the report is partial\n",
-                           interrupt_signal_name(), r.steps.size(), d->stim.steps.size())
+    std::fputs(fmt::format(
+                   "settle: run interrupted by {}: {} of {} steps reached; the report is partial\n",
+                   interrupt_signal_name(), r.steps.size(), d->stim.steps.size())
                    .c_str(),
                stderr);
   if (!o.quiet && o.json != "-" && o.vcd != "-" && o.junit != "-" && o.html != "-")
@@ -243,16 +247,20 @@ void add_run(CLI::App& app, exit_status& status) {
   auto* cmd = app.add_subcommand("run", "simulate the stimulus under one delay corner");
   add_design_options(*cmd, o->design);
   cmd->add_option("--corner", o->corner, "min, typ, max, random:SEED or any corner name (default typ)");
-  check_output_path(cmd->add_option("--vcd", o->vcd, "write the waveforms as IEEE 1364 VCD to PATH"));
-  cmd->add_option("--vcd-nets", o->vcd_nets, "nets in the VCD: all (default) or outputs (outputs and watched nets)")
+  check_output_path(
+      cmd->add_option("--vcd", o->vcd, "write the waveforms as IEEE 1364 VCD to PATH"));
+  cmd->add_option("--vcd-nets", o->vcd_nets,
+                  "nets in the VCD: all (default) or outputs (outputs and watched nets)")
       ->check(one_of({"all", "outputs"}));
   add_json_option(*cmd, o->json);
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
-  check_whole_number(cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)"), 0,
-                     UINT64_MAX, "the event limit");
+  check_whole_number(
+      cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)"), 0,
+      UINT64_MAX, "the event limit");
   add_junit_option(*cmd, o->junit);
-  check_output_path(
-      cmd->add_option("--html", o->html, "write a self-contained HTML report with the waveforms of every step to PATH"));
+  check_output_path(cmd->add_option(
+      "--html", o->html,
+      "write a self-contained HTML report with the waveforms of every step to PATH"));
   cmd->add_flag("-v,--verbose", o->verbose, "also print events and events per second");
   add_quiet_flag(*cmd, o->quiet);
   cmd->callback([o, &status] { status = run_run(*o); });

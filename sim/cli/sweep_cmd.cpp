@@ -332,7 +332,8 @@ void show_progress(std::uint64_t done, std::uint64_t total, std::chrono::steady_
 exit_status run_sweep_cmd(const sweep_cli_options& o) {
   if (o.quiet) spdlog::set_level(spdlog::level::err);
   auto uses = design_inputs(o.design);
-  for (const auto& [opt, path] : {std::pair{"--json", &o.json}, {"--junit", &o.junit}, {"--html", &o.html}})
+  for (const auto& [opt, path] :
+       {std::pair{"--json", &o.json}, {"--junit", &o.junit}, {"--html", &o.html}})
     uses.push_back({path_use::kind::output, opt, *path, ""});
   uses.push_back({path_use::kind::output_folder, "--vcd-dir", o.vcd_dir, "step*_outcome*_*.vcd"});
   if (!check_paths(uses)) return exit_status::error;
@@ -378,20 +379,26 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   output_set outs;  // all or nothing
   if (!o.json.empty() && !outs.put(o.json, result_json(*d, o, r, races))) return exit_status::error;
   if (!o.junit.empty() &&
-      !outs.put(o.junit, junit_xml({junit_of_sweep(*d, r, [&](const std::string& c) { return replay(o, c); })})))
+      !outs.put(o.junit, junit_xml({junit_of_sweep(
+                             *d, r, [&](const std::string& c) { return replay(o, c); })})))
     return exit_status::error;
-  if (!o.html.empty() && !outs.put(o.html, html_report_sweep(*d, r, ro, {"sweep", result_json(*d, o, r, races), ""})))
+  if (!o.html.empty() &&
+      !outs.put(o.html, html_report_sweep(*d, r, ro, {"sweep", result_json(*d, o, r, races), ""})))
     return exit_status::error;
-  if (!o.vcd_dir.empty() && r.stopped == sweep_stop::none && !write_witness_vcds(*d, o, *plan, r, ro, outs)) {
+  if (!o.vcd_dir.empty() && r.stopped == sweep_stop::none &&
+      !write_witness_vcds(*d, o, *plan, r, ro, outs)) {
     if (!interrupted()) return exit_status::error;
     outs.discard();
-    spdlog::error("interrupted by {} while writing the witness VCDs; nothing was written", interrupt_signal_name());
+    spdlog::error("interrupted by {} while writing the witness VCDs; nothing was written",
+                  interrupt_signal_name());
     return exit_status::interrupted;
   }
   if (!outs.commit()) return exit_status::error;
   if (r.stopped != sweep_stop::none)  // on stderr even with -q: the report is partial
-    std::fputs(fmt::format("settle: {}: {} of {} corners finished\n", stop_words(r), r.corners, r.planned).c_str(),
-               stderr);
+    std::fputs(
+        fmt::format("settle: {}: {} of {} corners finished\n", stop_words(r), r.corners, r.planned)
+            .c_str(),
+        stderr);
   if (!o.quiet && o.json != "-" && o.junit != "-" && o.html != "-") std::fputs(summary(*d, o, r, use_colour(1), races).c_str(), stdout);
   if (r.stopped == sweep_stop::interrupted) return exit_status::interrupted;
   return r.pass() ? exit_status::ok : exit_status::findings;
@@ -404,25 +411,31 @@ void add_sweep(CLI::App& app, exit_status& status) {
   cmd->add_option("--corners", o->corners,
                   "corner spec: extremes, exhaustive, random:N, gauss:N, interval joined by '+' "
                   "(default extremes+random:1000)");
-  check_whole_number(cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)"), 0,
-                     UINT64_MAX, "the seed");
-  check_whole_number(cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)"), 1, 4096,
-                     "the thread count", "; leave --threads out to use every hardware thread");
+  check_whole_number(
+      cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)"), 0,
+      UINT64_MAX, "the seed");
+  check_whole_number(
+      cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)"), 1, 4096,
+      "the thread count", "; leave --threads out to use every hardware thread");
   add_json_option(*cmd, o->json);
-  check_output_path(cmd->add_option("--vcd-dir", o->vcd_dir,
-                  "write one VCD per outcome of every step that is not deterministic, replaying its witness, "
-                  "as DIR/step<k>_outcome<r>_<corner>.vcd"));
+  check_output_path(cmd->add_option(
+      "--vcd-dir", o->vcd_dir,
+      "write one VCD per outcome of every step that is not deterministic, replaying its witness, "
+      "as DIR/step<k>_outcome<r>_<corner>.vcd"));
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
-  check_whole_number(cmd->add_option("--max-events", o->max_events, "stop each corner after N events (0: no limit)"),
+  check_whole_number(cmd->add_option("--max-events", o->max_events,
+                                     "stop each corner after N events (0: no limit)"),
                      0, UINT64_MAX, "the event limit");
-  check_number_at_least(cmd->add_option("--timeout", o->timeout_s,
-                                        "wall-clock budget in seconds: past it the sweep stops, reports the corners "
-                                        "finished and exits 1 (0: none)"),
-                        0, "the timeout in seconds");
+  check_number_at_least(
+      cmd->add_option("--timeout", o->timeout_s,
+                      "wall-clock budget in seconds: past it the sweep stops, reports the corners "
+                      "finished and exits 1 (0: none)"),
+      0, "the timeout in seconds");
   add_max_memory_option(*cmd, o->max_memory_mib);
   add_junit_option(*cmd, o->junit);
-  check_output_path(cmd->add_option("--html", o->html,
-                                    "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH"));
+  check_output_path(cmd->add_option(
+      "--html", o->html,
+      "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH"));
   cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout and no progress; errors still go to stderr");
   cmd->callback([o, &status] { status = run_sweep_cmd(*o); });
 }
