@@ -31,6 +31,10 @@ class source_text {
     int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
     if (fd < 0) return fail(path, diags, fmt::format("cannot open file: {}", std::strerror(errno)));
     struct stat st {};
+    if (::fstat(fd, &st) == 0 && S_ISDIR(st.st_mode)) {
+      ::close(fd);
+      return fail(path, diags, "cannot read file: it is a directory");
+    }
     if (::fstat(fd, &st) == 0 && S_ISREG(st.st_mode) && st.st_size > 0) {
       void* p = ::mmap(nullptr, static_cast<std::size_t>(st.st_size), PROT_READ, MAP_PRIVATE, fd, 0);
       if (p != MAP_FAILED) {
@@ -46,8 +50,9 @@ class source_text {
       auto n = ::read(fd, buf, sizeof buf);
       if (n < 0 && errno == EINTR) continue;
       if (n < 0) {
+        const int err = errno;
         ::close(fd);
-        return fail(path, diags, "cannot read file");
+        return fail(path, diags, fmt::format("cannot read file: {}", std::strerror(err)));
       }
       if (n == 0) break;
       data_.append(buf, static_cast<std::size_t>(n));

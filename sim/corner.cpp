@@ -109,6 +109,23 @@ std::optional<corner> parse_corner(std::string_view text, std::string* error) {
   return c;
 }
 
+std::string corner_range_error(const corner& c, std::size_t gates) {
+  const auto g = static_cast<std::uint64_t>(gates);
+  if (c.what == corner::kind::extremes) {
+    const std::uint64_t count = 3 + 2 * g;  // all-min, all-max, typ, then two per gate
+    if (c.index < count) return "";
+    return fmt::format("this design has {} extremes corners, numbered 0..{}", count, count - 1);
+  }
+  if (c.what == corner::kind::exhaustive) {
+    if (g >= 64) return "";  // every 64-bit number names one
+    const std::uint64_t count = std::uint64_t{1} << g;
+    if (c.index < count) return "";
+    return fmt::format("this design's {} gate{} give {} exhaustive corners, numbered 0..{}", g,
+                       g == 1 ? "" : "s", count, count - 1);
+  }
+  return "";
+}
+
 void fill_delays(const netlist& n, const corner& c, delay_table& out) {
   const auto gates = n.gate_count();
   const std::uint64_t key = corner_key(c.seed, c.index);

@@ -26,6 +26,12 @@ struct corner {
 /// Parses a corner name; on failure returns nullopt and sets *error.
 std::optional<corner> parse_corner(std::string_view text, std::string* error);
 
+/// Empty when corner `c` exists for a netlist of `gates` gates; otherwise why
+/// not, with the valid range ("this design has 11 extremes corners, numbered
+/// 0..10"). extremes#k exists for k < 3 + 2 x gates, exhaustive#k for
+/// k < 2^gates; min, typ, max and the sampled corners always exist.
+std::string corner_range_error(const corner& c, std::size_t gates);
+
 /// Concrete delays per gate, one table per run.
 struct delay_table {
   std::vector<time_fs> rise, fall;

@@ -1,6 +1,7 @@
 // Corner spec parsing and enumeration for sweeps: extremes, exhaustive, random:N, gauss:N, interval.
 #include <algorithm>
 #include <charconv>
+#include <utility>
 
 #include <fmt/format.h>
 
@@ -63,11 +64,23 @@ std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, 
   plan.spec = std::string(spec);
   plan.seed = seed;
   std::uint64_t next_random = 0, next_gauss = 0;
+  bool seen_extremes = false, seen_exhaustive = false, seen_interval = false;
   std::string_view rest = spec;
   for (;;) {
     const auto plus = rest.find('+');
     const std::string_view tok = trim(rest.substr(0, plus));
     sweep_plan::item it;
+    // A part given twice would count the same corners twice and narrow every
+    // interval with no new information; random:N and gauss:N parts draw new corners.
+    bool& seen = tok == "extremes"     ? seen_extremes
+                 : tok == "exhaustive" ? seen_exhaustive
+                                       : seen_interval;
+    if ((tok == "extremes" || tok == "exhaustive" || tok == "interval") &&
+        std::exchange(seen, true))
+      return fail(fmt::format(
+          "--corners '{}': '{}' appears twice; each of extremes, exhaustive and interval may be "
+          "given once",
+          spec, tok));
     if (tok.empty()) {
       return fail(fmt::format("--corners '{}': empty item; expected extremes, exhaustive, random:N, gauss:N or "
                               "interval joined by '+'",

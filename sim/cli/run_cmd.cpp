@@ -9,6 +9,7 @@
 #include <spdlog/spdlog.h>
 
 #include "sim/cli/command.hpp"
+#include "sim/cli/interrupt.hpp"
 #include "sim/cli/report_common.hpp"
 #include "sim/kernel.hpp"
 #include "sim/time.hpp"
@@ -65,7 +66,8 @@ nlohmann::ordered_json expect_json(const netlist& n, const step_result& s, const
   return e;
 }
 
-std::string result_json(const design& d, const run_result& r, const std::string& corner_name, double wall) {
+std::string result_json(const design& d, const run_result& r, const std::string& corner_name,
+                        double wall, bool stopped) {
   const netlist& n = d.nets;
   nlohmann::ordered_json j = report_head(d.path);
   j["corner"] = r.corner.empty() ? corner_name : r.corner;
@@ -97,8 +99,10 @@ std::string result_json(const design& d, const run_result& r, const std::string&
     for (const auto& x : s.expects) st["expect"].push_back(expect_json(n, s, x));
     j["steps"].push_back(std::move(st));
   }
-  j["result"] = r.pass() ? "pass" : "findings";
-  return j.dump(2) + "\n";
+  j["result"] = r.pass() && !stopped ? "pass" : "findings";
+  j["interrupted"] = stopped;  // the steps above are those reached before the signal
+  if (stopped) j["stop_reason"] = "signal";
+  return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
 }
 
 std::string expect_text(const netlist& n, const step_result& s, const expect_result& x) {
@@ -163,6 +167,13 @@ std::string table(const design& d, const run_result& r, const std::string& corne
 exit_status run_run(const run_cli_options& o) {
   if (o.verbose && !o.quiet) spdlog::set_level(spdlog::level::debug);
   if (o.quiet) spdlog::set_level(spdlog::level::err);
+  auto uses = design_inputs(o.design);
+  for (const auto& [opt, path] : {std::pair{"--vcd", &o.vcd},
+                                  {"--json", &o.json},
+                                  {"--junit", &o.junit},
+                                  {"--html", &o.html}})
+    uses.push_back({path_use::kind::output, opt, *path, ""});
+  if (!check_paths(uses)) return exit_status::error;
   std::string err;
   auto c = parse_corner(o.corner, &err);
   if (!c) {
@@ -174,11 +185,18 @@ exit_status run_run(const run_cli_options& o) {
   if (!parse_horizon_option(o.horizon, ro.horizon)) return exit_status::error;
   auto d = load(o.design);
   if (!d) return exit_status::error;
+  if (const auto why = corner_range_error(*c, d->nets.gate_count()); !why.empty()) {
+    spdlog::error("--corner {}: {}", o.corner, why);
+    return exit_status::error;
+  }
 
   delay_table delays;
   fill_delays(d->nets, *c, delays);
+  // Every output is opened before the run (a bad path fails at once) and put
+  // in place only when all of them are written.
+  output_set outs;
+  std::FILE* vcd_file = nullptr;
   std::unique_ptr<vcd_writer> vcd;
-  std::unique_ptr<atomic_file> vcd_file;
   if (!o.vcd.empty()) {
     vcd_options vo;
     vo.top = file_stem(d->path);
@@ -189,30 +207,41 @@ exit_status run_run(const run_cli_options& o) {
       if (vo.only.empty()) vo.only.push_back(netlist::const0);  // nothing to show: an empty dump
     }
     vcd = std::make_unique<vcd_writer>(d->nets, std::move(vo));
-    vcd_file = std::make_unique<atomic_file>(o.vcd);
-    if (!vcd_file->open()) return exit_status::error;
+    if (!(vcd_file = outs.open(o.vcd))) return exit_status::error;
   }
+  install_interrupt_handlers();
+  ro.stop = interrupt_flag();
   const auto t0 = std::chrono::steady_clock::now();
   const run_result r = run_stimulus(*d, delays, ro, vcd.get());
   const double wall = seconds_since(t0);
   spdlog::debug("{} events in {:.3f} s", r.events, wall);
+  const bool stopped = interrupted();
 
-  if (vcd && !vcd->write(vcd_file->get(), &err)) {
+  if (vcd && !vcd->write(vcd_file, &err)) {
     spdlog::error("cannot write '{}': {}", o.vcd, err);
     return exit_status::error;
   }
-  if (!o.json.empty() && !write_output(o.json, result_json(*d, r, c->name(), wall))) return exit_status::error;
+  const auto json = [&] { return result_json(*d, r, c->name(), wall, stopped); };
+  if (!o.json.empty() && !outs.put(o.json, json())) return exit_status::error;
   if (!o.junit.empty()) {
     const auto replay = [&](const std::string& corner) {
       return replay_command(o.design, corner, o.horizon, o.max_events);
     };
-    if (!write_output(o.junit, junit_xml({junit_of_run(*d, r, c->name(), replay, wall)}))) return exit_status::error;
+    if (!outs.put(o.junit, junit_xml({junit_of_run(*d, r, c->name(), replay, wall)})))
+      return exit_status::error;
   }
-  if (!o.html.empty() && !write_output(o.html, html_report_run(*d, *c, ro, {"run", result_json(*d, r, c->name(), wall), ""})))
+  if (!o.html.empty() && !outs.put(o.html, html_report_run(*d, *c, ro, {"run", json(), ""})))
     return exit_status::error;
-  if (vcd_file && !vcd_file->commit()) return exit_status::error;
+  if (!outs.commit()) return exit_status::error;
+  if (stopped)  // on stderr even with -q: the report is partial
+    std::fputs(fmt::format(
+                   "settle: run interrupted by {}: {} of {} steps reached; the report is partial\n",
+                   interrupt_signal_name(), r.steps.size(), d->stim.steps.size())
+                   .c_str(),
+               stderr);
   if (!o.quiet && o.json != "-" && o.vcd != "-" && o.junit != "-" && o.html != "-")
     std::fputs(table(*d, r, c->name(), use_colour(1), o.verbose, wall).c_str(), stdout);
+  if (stopped) return exit_status::interrupted;
   return r.pass() ? exit_status::ok : exit_status::findings;
 }
 
@@ -221,14 +250,20 @@ void add_run(CLI::App& app, exit_status& status) {
   auto* cmd = app.add_subcommand("run", "simulate the stimulus under one delay corner");
   add_design_options(*cmd, o->design);
   cmd->add_option("--corner", o->corner, "min, typ, max, random:SEED or any corner name (default typ)");
-  cmd->add_option("--vcd", o->vcd, "write the waveforms as IEEE 1364 VCD to PATH");
-  cmd->add_option("--vcd-nets", o->vcd_nets, "nets in the VCD: all (default) or outputs (outputs and watched nets)")
-      ->check(CLI::IsMember({"outputs", "all"}));
+  check_output_path(
+      cmd->add_option("--vcd", o->vcd, "write the waveforms as IEEE 1364 VCD to PATH"));
+  cmd->add_option("--vcd-nets", o->vcd_nets,
+                  "nets in the VCD: all (default) or outputs (outputs and watched nets)")
+      ->check(one_of({"all", "outputs"}));
   add_json_option(*cmd, o->json);
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
-  cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)");
+  check_whole_number(
+      cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)"), 0,
+      UINT64_MAX, "the event limit");
   add_junit_option(*cmd, o->junit);
-  cmd->add_option("--html", o->html, "write a self-contained HTML report with the waveforms of every step to PATH");
+  check_output_path(cmd->add_option(
+      "--html", o->html,
+      "write a self-contained HTML report with the waveforms of every step to PATH"));
   cmd->add_flag("-v,--verbose", o->verbose, "also print events and events per second");
   add_quiet_flag(*cmd, o->quiet);
   cmd->callback([o, &status] { status = run_run(*o); });

@@ -140,7 +140,7 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
     j["steps"].push_back(std::move(st));
   }
   j["result"] = r.pass() ? "pass" : "findings";
-  return j.dump(2) + "\n";
+  return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
 }
 
 std::string percent(double share) { return fmt::format("{:.1f}%", 100.0 * share); }
@@ -287,7 +287,7 @@ std::string corner_file_part(std::string name) {
 // One VCD per outcome of every step that is not deterministic, replaying its
 // witness: DIR/step<k>_outcome<r>_<witness>.vcd, r the outcome's rank (1 = most corners).
 bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep_plan& plan,
-                        const sweep_result& r, const run_options& ro) {
+                        const sweep_result& r, const run_options& ro, output_set& outs) {
   std::error_code ec;
   std::filesystem::create_directories(o.vcd_dir, ec);
   if (ec) {
@@ -308,16 +308,16 @@ bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep
       vo.top = file_stem(d.path);
       vo.version = std::string("settle ") + SETTLE_VERSION;
       vcd_writer vcd(d.nets, std::move(vo));
+      if (interrupted()) return false;  // the caller reports it
       fill_delays(d.nets, plan.corner_at(oc.witness), delays);
       run_stimulus(d, delays, ro, &vcd);
-      atomic_file f(path);
+      std::FILE* f = outs.open(path);
       std::string err;
-      if (!f.open()) return false;
-      if (!vcd.write(f.get(), &err)) {
+      if (!f) return false;
+      if (!vcd.write(f, &err)) {
         spdlog::error("cannot write '{}': {}", path, err);
         return false;
       }
-      if (!f.commit()) return false;
     }
   }
   return true;
@@ -334,6 +334,12 @@ void show_progress(std::uint64_t done, std::uint64_t total, std::chrono::steady_
 
 exit_status run_sweep_cmd(const sweep_cli_options& o) {
   if (o.quiet) spdlog::set_level(spdlog::level::err);
+  auto uses = design_inputs(o.design);
+  for (const auto& [opt, path] :
+       {std::pair{"--json", &o.json}, {"--junit", &o.junit}, {"--html", &o.html}})
+    uses.push_back({path_use::kind::output, opt, *path, ""});
+  uses.push_back({path_use::kind::output_folder, "--vcd-dir", o.vcd_dir, "step*_outcome*_*.vcd"});
+  if (!check_paths(uses)) return exit_status::error;
   std::string err;
   run_options ro;
   ro.max_events = o.max_events;
@@ -373,17 +379,29 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
     if (!race.gates.empty()) races.push_back(std::move(race));
   }
 
-  if (!o.json.empty() && !write_output(o.json, result_json(*d, o, r, races))) return exit_status::error;
+  output_set outs;  // all or nothing
+  if (!o.json.empty() && !outs.put(o.json, result_json(*d, o, r, races))) return exit_status::error;
   if (!o.junit.empty() &&
-      !write_output(o.junit, junit_xml({junit_of_sweep(*d, r, [&](const std::string& c) { return replay(o, c); })})))
+      !outs.put(o.junit, junit_xml({junit_of_sweep(
+                             *d, r, [&](const std::string& c) { return replay(o, c); })})))
     return exit_status::error;
-  if (r.stopped != sweep_stop::none)  // on stderr even with -q: the report is partial
-    std::fputs(fmt::format("settle: {}: {} of {} corners finished\n", stop_words(r), r.corners, r.planned).c_str(),
-               stderr);
-  if (!o.vcd_dir.empty() && r.stopped == sweep_stop::none && !write_witness_vcds(*d, o, *plan, r, ro)) return exit_status::error;
   if (!o.html.empty() &&
-      !write_output(o.html, html_report_sweep(*d, r, ro, {"sweep", result_json(*d, o, r, races), ""})))
+      !outs.put(o.html, html_report_sweep(*d, r, ro, {"sweep", result_json(*d, o, r, races), ""})))
     return exit_status::error;
+  if (!o.vcd_dir.empty() && r.stopped == sweep_stop::none &&
+      !write_witness_vcds(*d, o, *plan, r, ro, outs)) {
+    if (!interrupted()) return exit_status::error;
+    outs.discard();
+    spdlog::error("interrupted by {} while writing the witness VCDs; nothing was written",
+                  interrupt_signal_name());
+    return exit_status::interrupted;
+  }
+  if (!outs.commit()) return exit_status::error;
+  if (r.stopped != sweep_stop::none)  // on stderr even with -q: the report is partial
+    std::fputs(
+        fmt::format("settle: {}: {} of {} corners finished\n", stop_words(r), r.corners, r.planned)
+            .c_str(),
+        stderr);
   if (!o.quiet && o.json != "-" && o.junit != "-" && o.html != "-") std::fputs(summary(*d, o, r, use_colour(1), races).c_str(), stdout);
   if (r.stopped == sweep_stop::interrupted) return exit_status::interrupted;
   return r.pass() ? exit_status::ok : exit_status::findings;
@@ -396,21 +414,31 @@ void add_sweep(CLI::App& app, exit_status& status) {
   cmd->add_option("--corners", o->corners,
                   "corner spec: extremes, exhaustive, random:N, gauss:N, interval joined by '+' "
                   "(default extremes+random:1000)");
-  cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)");
-  cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)")->check(CLI::Range(1u, 4096u));
+  check_whole_number(
+      cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)"), 0,
+      UINT64_MAX, "the seed");
+  check_whole_number(
+      cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)"), 1, 4096,
+      "the thread count", "; leave --threads out to use every hardware thread");
   add_json_option(*cmd, o->json);
-  cmd->add_option("--vcd-dir", o->vcd_dir,
-                  "write one VCD per outcome of every step that is not deterministic, replaying its witness, "
-                  "as DIR/step<k>_outcome<r>_<corner>.vcd");
+  check_output_path(cmd->add_option(
+      "--vcd-dir", o->vcd_dir,
+      "write one VCD per outcome of every step that is not deterministic, replaying its witness, "
+      "as DIR/step<k>_outcome<r>_<corner>.vcd"));
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
-  cmd->add_option("--max-events", o->max_events, "stop each corner after N events (0: no limit)");
-  cmd->add_option("--timeout", o->timeout_s,
-                  "wall-clock budget in seconds: past it the sweep stops, reports the corners finished and "
-                  "exits 1 (0: none)")
-      ->check(CLI::NonNegativeNumber);
+  check_whole_number(cmd->add_option("--max-events", o->max_events,
+                                     "stop each corner after N events (0: no limit)"),
+                     0, UINT64_MAX, "the event limit");
+  check_number_at_least(
+      cmd->add_option("--timeout", o->timeout_s,
+                      "wall-clock budget in seconds: past it the sweep stops, reports the corners "
+                      "finished and exits 1 (0: none)"),
+      0, "the timeout in seconds");
   add_max_memory_option(*cmd, o->max_memory_mib);
   add_junit_option(*cmd, o->junit);
-  cmd->add_option("--html", o->html, "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH");
+  check_output_path(cmd->add_option(
+      "--html", o->html,
+      "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH"));
   cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout and no progress; errors still go to stderr");
   cmd->callback([o, &status] { status = run_sweep_cmd(*o); });
 }
