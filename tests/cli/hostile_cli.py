@@ -158,6 +158,12 @@ cases = [
     ("run --corner exhaustive#16 does not wrap", ["run", "deb.settle", "--corner", "exhaustive#16"], 2,
      "16 exhaustive corners, numbered 0..15", []),
     ("run --corner exhaustive#15 is accepted", ["run", "deb.settle", "--corner", "exhaustive#15", "-q"], 0, "", []),
+    ("run --corner random:-1", ["run", "deb.settle", "--corner", "random:-1"], 2,
+     f"a whole number from 0 to {U64_MAX}", []),
+    ("run --corner random:2^64", ["run", "deb.settle", "--corner", f"random:{U64_MAX + 1}"], 2,
+     f"a whole number from 0 to {U64_MAX}", []),
+    ("run --corner random:2^64-1 is accepted", ["run", "deb.settle", "--corner", f"random:{U64_MAX}", "-q"], 0, "",
+     []),
     ("run --format xml", ["run", "deb.settle", "--format", "xml"], 2, "'xml' is not one of auto, settle, bench", []),
     # 4. Diagnostics that name the right file and say why.
     ("explore --stim error names the stim file", ["explore", "deb.settle", "--stim", "half.stim"], 2,
