@@ -274,6 +274,9 @@ identity identify(const std::string& path) {
   identity id;
   struct stat st {};
   if (::stat(path.c_str(), &st) == 0) {
+    // A character device (/dev/null, a terminal) loses nothing to a write:
+    // two outputs may share it.
+    if (S_ISCHR(st.st_mode)) return id;
     id.dev = st.st_dev, id.ino = st.st_ino, id.valid = true;
     return id;
   }

@@ -118,6 +118,8 @@ cases = [
     ("margin --json onto the baseline it reads", ["margin", "deb.settle", "--corners", "extremes", "--baseline",
                                                   "old.json", "--json", "old.json"], 2,
      "--json old.json is the baseline file old.json", []),
+    ("run --json and --junit may share /dev/null (a character device loses nothing)",
+     ["run", "deb.settle", "--json", "/dev/null", "--junit", "/dev/null", "-q"], 0, "", []),
     # 1b. All or nothing: one output that cannot be written leaves every other target as it was.
     # /dev/full fails every write with ENOSPC (Linux device, common practice).
     ("run: --json to a full device, --vcd kept", ["run", "deb.settle", "--vcd", "old.vcd", "--json", "/dev/full"],
