@@ -97,7 +97,9 @@ std::optional<corner> parse_corner(std::string_view text, std::string* error) {
     c.what = s[0] == 'r' ? corner::kind::random : corner::kind::gauss;
     s.remove_prefix(s.find(':') + 1);
     auto hash = s.find('#');
-    if (!parse_u64(s.substr(0, hash), c.seed)) return fail("expected a seed, e.g. random:7 or random:7#3");
+    if (!parse_u64(s.substr(0, hash), c.seed))
+      return fail("expected a seed, a whole number from 0 to 18446744073709551615 (2^64-1), e.g. random:7 or "
+                  "random:7#3");
     if (hash != std::string_view::npos && !parse_u64(s.substr(hash + 1), c.index))
       return fail("expected a corner number after '#'");
   } else if (s.starts_with("extremes#") || s.starts_with("exhaustive#")) {

@@ -2,6 +2,7 @@
 // (async-signal-safe, POSIX).
 #include "sim/cli/interrupt.hpp"
 
+#include <pthread.h>
 #include <unistd.h>
 
 #include <array>
@@ -76,6 +77,16 @@ const char* interrupt_signal_name() {
       return "a signal";
   }
 }
+
+signals_held::signals_held() {
+  sigset_t block;
+  sigemptyset(&block);
+  sigaddset(&block, SIGINT);
+  sigaddset(&block, SIGTERM);
+  pthread_sigmask(SIG_BLOCK, &block, &old_);
+}
+
+signals_held::~signals_held() { pthread_sigmask(SIG_SETMASK, &old_, nullptr); }
 
 int register_temporary(const char* path) {
   for (std::size_t i = 0; i < temporaries.size(); ++i) {

@@ -2,6 +2,8 @@
 // file.
 #pragma once
 
+#include <signal.h>
+
 #include <atomic>
 
 namespace settle::cli {
@@ -39,5 +41,19 @@ const char* interrupt_signal_name();
 int register_temporary(const char* path);
 /// Forgets the slot (the file was renamed into place or removed).
 void unregister_temporary(int slot);
+
+/// Holds SIGINT and SIGTERM back for its lifetime (pthread_sigmask, POSIX):
+/// a file created and registered under it is never left unregistered by a
+/// signal that arrives in between. A held signal is delivered at the end.
+class signals_held {
+ public:
+  signals_held();
+  ~signals_held();
+  signals_held(const signals_held&) = delete;
+  signals_held& operator=(const signals_held&) = delete;
+
+ private:
+  sigset_t old_;
+};
 
 }  // namespace settle::cli

@@ -65,7 +65,11 @@ std::string usage_error(const CLI::App& app, const CLI::ParseError& e) {
         text[i + 1] != ' ')
       option = text.substr(i, text.find_first_of(" :=", i) - i);
   if (dynamic_cast<const CLI::ArgumentMismatch*>(&e) && !option.empty())
-    return fmt::format("{}{} needs a value", where, option);
+    return text.find("missing") != std::string::npos || text.find("got 0") != std::string::npos
+               ? fmt::format("{}{} needs a value", where, option)
+               : fmt::format("{}{} is given more than once; give it once", where, option);
+  if (dynamic_cast<const CLI::RequiredError*>(&e) && text.starts_with("DESIGN"))
+    return fmt::format("{}no design file given: settle {} DESIGN [options]", where, cmd);
   if (dynamic_cast<const CLI::ConversionError*>(&e) && !option.empty())
     return fmt::format("{}{}: the value is not of the kind it takes (see --help)", where, option);
   return where + e.what();

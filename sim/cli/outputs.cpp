@@ -77,13 +77,20 @@ bool atomic_file::open() {
   const auto [dir, base] = split(target_);
   // The temporary's name stays within NAME_MAX however long the target's is.
   std::string templ = fmt::format("{}/.{}.tmp.XXXXXX", dir, base.substr(0, 200));
-  const int fd = ::mkstemp(templ.data());
+  int fd = -1, err = 0;
+  {
+    const signals_held held;  // created and registered before a signal can end the process
+    fd = ::mkstemp(templ.data());
+    err = errno;
+    if (fd >= 0) {
+      temp_ = templ;
+      slot_ = register_temporary(temp_.c_str());
+    }
+  }
   if (fd < 0) {
-    spdlog::error("cannot write '{}': {}", path_, std::strerror(errno));
+    spdlog::error("cannot write '{}': {}", path_, std::strerror(err));
     return false;
   }
-  temp_ = templ;
-  slot_ = register_temporary(temp_.c_str());
   // mkstemp creates 0600; give the file the permissions a plain create would.
   const mode_t mask = ::umask(0);
   ::umask(mask);
@@ -213,8 +220,15 @@ std::FILE* output_set::open(const std::string& path) {
 bool output_set::put(const std::string& path, std::string_view text) {
   std::FILE* f = open(path);
   if (!f) return false;
-  std::fwrite(text.data(), 1, text.size(), f);  // an error shows in ferror, which commit() tests
-  return true;
+  std::fwrite(text.data(), 1, text.size(), f);  // an error shows in ferror, which finish() tests
+  return finish_last();
+}
+
+bool output_set::finish_last() {
+  if (files_.empty()) return false;
+  if (files_.back()->finish()) return true;
+  discard();
+  return false;
 }
 
 bool output_set::commit() {
@@ -260,6 +274,9 @@ identity identify(const std::string& path) {
   identity id;
   struct stat st {};
   if (::stat(path.c_str(), &st) == 0) {
+    // A character device (/dev/null, a terminal) loses nothing to a write:
+    // two outputs may share it.
+    if (S_ISCHR(st.st_mode)) return id;
     id.dev = st.st_dev, id.ino = st.st_ino, id.valid = true;
     return id;
   }

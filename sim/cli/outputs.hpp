@@ -66,6 +66,10 @@ class output_set {
   /// Opens `path` and writes `text` as its whole content; false after
   /// printing why. A write error is reported by commit().
   bool put(const std::string& path, std::string_view text);
+  /// Finishes the file opened last (flushes and closes its temporary, so a
+  /// command writing many files keeps few open); false after printing why,
+  /// with every temporary removed.
+  bool finish_last();
   /// Finishes every file, then publishes every one; false after printing why.
   bool commit();
   /// Removes every temporary; nothing is published.

@@ -318,6 +318,7 @@ bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep
         spdlog::error("cannot write '{}': {}", path, err);
         return false;
       }
+      if (!outs.finish_last()) return false;
     }
   }
   return true;

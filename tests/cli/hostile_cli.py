@@ -118,6 +118,8 @@ cases = [
     ("margin --json onto the baseline it reads", ["margin", "deb.settle", "--corners", "extremes", "--baseline",
                                                   "old.json", "--json", "old.json"], 2,
      "--json old.json is the baseline file old.json", []),
+    ("run --json and --junit may share /dev/null (a character device loses nothing)",
+     ["run", "deb.settle", "--json", "/dev/null", "--junit", "/dev/null", "-q"], 0, "", []),
     # 1b. All or nothing: one output that cannot be written leaves every other target as it was.
     # /dev/full fails every write with ENOSPC (Linux device, common practice).
     ("run: --json to a full device, --vcd kept", ["run", "deb.settle", "--vcd", "old.vcd", "--json", "/dev/full"],
@@ -158,6 +160,12 @@ cases = [
     ("run --corner exhaustive#16 does not wrap", ["run", "deb.settle", "--corner", "exhaustive#16"], 2,
      "16 exhaustive corners, numbered 0..15", []),
     ("run --corner exhaustive#15 is accepted", ["run", "deb.settle", "--corner", "exhaustive#15", "-q"], 0, "", []),
+    ("run --corner random:-1", ["run", "deb.settle", "--corner", "random:-1"], 2,
+     f"a whole number from 0 to {U64_MAX}", []),
+    ("run --corner random:2^64", ["run", "deb.settle", "--corner", f"random:{U64_MAX + 1}"], 2,
+     f"a whole number from 0 to {U64_MAX}", []),
+    ("run --corner random:2^64-1 is accepted", ["run", "deb.settle", "--corner", f"random:{U64_MAX}", "-q"], 0, "",
+     []),
     ("run --format xml", ["run", "deb.settle", "--format", "xml"], 2, "'xml' is not one of auto, settle, bench", []),
     # 4. Diagnostics that name the right file and say why.
     ("explore --stim error names the stim file", ["explore", "deb.settle", "--stim", "half.stim"], 2,
@@ -169,6 +177,9 @@ cases = [
     ("no command", [], 2, "no command given", []),
     ("an unexpected argument", ["run", "deb.settle", "stray"], 2, "run: unexpected argument 'stray'", []),
     ("an option without its value", ["run", "deb.settle", "--json"], 2, "--json needs a value", []),
+    ("an output option given twice", ["run", "deb.settle", "--json", "a.json", "--json", "b.json"], 2,
+     "--json is given more than once", ["a.json", "b.json"]),
+    ("no design file", ["sweep"], 2, "sweep: no design file given", []),
     ("check an empty design: a warning", ["check", "empty.settle"], 0, "warning: empty.settle: the design is empty",
      []),
     ("run an empty design: an error", ["run", "empty.settle", "--json", "e.json"], 2,
