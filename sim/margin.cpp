@@ -107,7 +107,7 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
   if (!(o.ceiling_pct >= o.resolution_pct) || o.ceiling_pct > 10000)
     return fail("the search ceiling must lie between the resolution and 10000 percent");
   std::string err;
-  auto plan = plan_sweep(o.spec, o.seed, d.nets.gate_count(), &err);
+  auto plan = plan_sweep(o.spec, o.seed, delay_variables(d), &err);
   if (!plan) return fail(err);
   if (plan->corners == 0) return fail("the corner spec holds no corner to run");
 

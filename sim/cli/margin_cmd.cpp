@@ -252,7 +252,7 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   if (!d) return exit_status::error;
   {
     // A probe in flight and the sweep kept at the written spread hold per-corner results.
-    auto plan = plan_sweep(o.corners, o.seed, d->nets.gate_count(), &err);
+    auto plan = plan_sweep(o.corners, o.seed, delay_variables(*d), &err);
     const std::size_t steps = d->stim.steps.empty() ? 1 : d->stim.steps.size();
     if (plan && !fits_memory(*plan, steps, 2, o.max_memory_mib)) return exit_status::error;
   }
