@@ -76,8 +76,9 @@ void add_max_memory_option(CLI::App& cmd, std::uint64_t& mib) {
       ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
 }
 
-bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib) {
-  const std::uint64_t one = sweep_result_bytes(plan, steps);
+bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib,
+                 std::size_t gauges) {
+  const std::uint64_t one = sweep_result_bytes(plan, steps, gauges);
   const std::uint64_t need = one > UINT64_MAX / copies ? UINT64_MAX : one * copies;
   if (need <= (mib << 20)) return true;
   spdlog::error("--corners '{}': {} corners x {} steps need about {:.0f} MiB for their results, more than "
