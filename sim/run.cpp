@@ -44,7 +44,7 @@ run_result run_stimulus(run_context& ctx, const design& d, const delay_table& de
   simulator& sim = ctx.sim();
   sim.set_trace(trace);
   sim.reset(delays);
-  return detail::driver<simulator>(sim, d, opt).run();
+  return detail::driver<simulator>(sim, d, opt, &delays).run();
 }
 
 run_result run_stimulus(const design& d, const delay_table& delays, const run_options& opt, change_sink* trace) {

@@ -20,6 +20,7 @@ const char* expect_kind_word(expectation::kind k) {
     case expectation::kind::within: return "within";
     case expectation::kind::no_glitch: return "no_glitch";
     case expectation::kind::deterministic: return "deterministic";
+    case expectation::kind::gauge: return "gauge";
   }
   return "?";
 }

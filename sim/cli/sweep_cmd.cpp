@@ -17,6 +17,7 @@
 #include "sim/cli/interrupt.hpp"
 #include "sim/cli/report_common.hpp"
 #include "sim/culprit.hpp"
+#include "sim/interval.hpp"
 #include "sim/sweep.hpp"
 #include "sim/time_parse.hpp"
 #include "waves/html.hpp"
@@ -441,6 +442,10 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   auto plan = plan_sweep(o.corners, o.seed, delay_variables(*d), &err);
   if (!plan) {
     spdlog::error("{}", err);
+    return exit_status::error;
+  }
+  if (plan->interval && !interval_refusal(*d).empty()) {
+    spdlog::error("--corners '{}': {}", o.corners, interval_refusal(*d));
     return exit_status::error;
   }
   const std::size_t steps = d->stim.steps.empty() ? 1 : d->stim.steps.size();
