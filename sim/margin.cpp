@@ -70,7 +70,7 @@ margin_failure describe(const sweep_plan& plan, const sweep_step& s, double w) {
 }
 
 // Why a property fails at spread w: its first violating corner.
-margin_failure describe_property(const design& d, const sweep_plan& plan, const sweep_property& p, double w) {
+margin_failure describe_property(const sweep_plan& plan, const sweep_property& p, double w) {
   margin_failure f;
   f.spread = w;
   f.property = p.index;
@@ -78,8 +78,7 @@ margin_failure describe_property(const design& d, const sweep_plan& plan, const 
   f.corners = plan.corners;
   f.failing = p.violating;
   f.witness = at_spread(plan, p.witness, w).name();
-  f.detail = fmt::format("{} is violated at {} (step {})", d.stim.properties[p.index].text,
-                         format_time(p.first_violation), p.step);
+  f.detail = fmt::format("first violation at {} (step {})", format_time(p.first_violation), p.step);
   return f;
 }
 
@@ -194,7 +193,7 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
     }
     for (const auto& pr : p.sweep.properties) {
       p.pass.push_back(pr.holds());
-      p.failure.push_back(pr.holds() ? margin_failure{} : describe_property(d, *plan, pr, w));
+      p.failure.push_back(pr.holds() ? margin_failure{} : describe_property(*plan, pr, w));
       p.first_divergence.push_back(false);
       p.race.emplace_back();
       all = all && pr.holds();

@@ -464,7 +464,9 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
                              sampled_outcomes);
     st.verdict = verdict_of(st.outcomes);
     if (divergence) st.inherits = divergence;
-    else if (st.verdict != sweep_verdict::deterministic) st.first_divergence = true, divergence = st.index;
+    // A step every corner deadlocks in has not diverged: it is stuck alike everywhere.
+    else if (st.verdict != sweep_verdict::deterministic && st.verdict != sweep_verdict::deadlock)
+      st.first_divergence = true, divergence = st.index;
     if (sampled > 0 && sampled_outcomes == 1) st.unseen_outcome_bound = rule_of_three(sampled);
 
     const std::size_t n_expects = spec ? spec->expects.size() : 0;

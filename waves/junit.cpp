@@ -220,9 +220,10 @@ junit_suite junit_of_sweep(const design& d, const sweep_result& r, const replay_
           }
         if (first)
           text += fmt::format("deadlock witness {}:\n{}", first->witness_name, owed_text(d, first->owed));
-        c.failures.push_back({dead ? fmt::format("step {} deadlocks in {} of {} corners (verdict {}); first at {}",
+        c.failures.push_back({dead ? fmt::format("step {} deadlocks in {} of {} corners (verdict {}); first at {} "
+                                                 "with {} owed",
                                                  st.index, dead, r.corners, verdict_name(st.verdict),
-                                                 first->witness_name)
+                                                 first->witness_name, owed_list(d, first->owed))
                                    : fmt::format("step {} is {} over {} corners", st.index, verdict_name(st.verdict),
                                                  r.corners),
                               dead ? "deadlock" : "verdict", text});

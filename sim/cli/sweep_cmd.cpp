@@ -240,6 +240,14 @@ std::string interval_only_step(const netlist& n, const sweep_result& r, const sw
   return out;
 }
 
+// A rate with an SI prefix: 1.178e9 -> "1.178 G/s".
+std::string per_second(double v) {
+  static constexpr std::pair<double, const char*> prefixes[] = {{1e12, "T"}, {1e9, "G"}, {1e6, "M"}, {1e3, "k"}};
+  for (const auto& [scale, p] : prefixes)
+    if (v >= scale) return fmt::format("{:.4g} {}/s", v / scale, p);
+  return fmt::format("{:.4g} /s", v);
+}
+
 // The properties over the corners and the gauges' distributions, after the steps.
 template <class Paint>
 std::string closed_loop_text(const design& d, const sweep_cli_options& o, const sweep_result& r,
@@ -261,13 +269,13 @@ std::string closed_loop_text(const design& d, const sweep_cli_options& o, const 
   for (const auto& g : r.gauges) {
     const auto& spec = d.stim.gauges[g.index];
     if (g.corners == 0) {
-      out += fmt::format("  {}  {}: no sample in any corner\n", spec.name, spec.text);
+      out += fmt::format("  {}  no sample in any corner\n", spec.name);
       continue;
     }
     std::string line = fmt::format("  {}  {} / {} / {}", spec.name, format_time(g.min),
                                    format_time(static_cast<time_fs>(std::llround(g.median))), format_time(g.max));
     if (spec.what == gauge::kind::period && g.median > 0)
-      line += fmt::format("  throughput {:.4g}/s", 1e15 / g.median);
+      line += "  throughput " + per_second(1e15 / g.median);
     line += fmt::format("  ({} samples in {} corners; min at {}, max at {})\n", g.samples, g.corners,
                         g.witness_min_name, g.witness_max_name);
     out += line;
