@@ -43,7 +43,7 @@ std::string cycle_stimulus(const design& d, std::uint64_t cycles, std::uint32_t 
 void iscas_cycles(benchmark::State& st, std::string path, std::uint64_t cycles) {
   struct stat fs {};
   if (::stat(path.c_str(), &fs) != 0) {
-    st.SkipWithError((path + " is absent: the ISCAS benchmark needs ../shared/data/iscas").c_str());
+    st.SkipWithError((path + " is absent: the ISCAS benchmark needs tests/data/iscas").c_str());
     return;
   }
   diagnostics diags;

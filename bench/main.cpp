@@ -45,7 +45,7 @@ int main(int argc, char** argv) {
   std::vector<char*> args(argv, argv + argc);
   settle::bench::config cfg;
   cfg.data = "bench-data";
-  cfg.iscas = SETTLE_SOURCE_DIR "/../shared/data/iscas";
+  cfg.iscas = SETTLE_SOURCE_DIR "/tests/data/iscas";
   take_option(args, "--data", cfg.data);
   take_option(args, "--iscas", cfg.iscas);
   cfg.quick = take_flag(args, "--quick");
@@ -54,7 +54,7 @@ int main(int argc, char** argv) {
     fmt::print("settle_bench [--data DIR] [--iscas DIR] [--quick] [google benchmark options]\n"
                "  --data DIR   generated designs (scripts/bench writes random100k.settle, random1m.settle,\n"
                "               pipe500.settle, pipe12.settle)\n"
-               "  --iscas DIR  folder holding s38417.bench (default: ../shared/data/iscas)\n"
+               "  --iscas DIR  folder holding s38417.bench (default: tests/data/iscas)\n"
                "  --quick      one or a few iterations per benchmark\n"
                "  --cycles N   clock cycles of the s38417 run (default 1000)\n");
     return 0;

@@ -61,6 +61,7 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
   std::vector<std::string> labels;
   bool closed_any = false;
   std::size_t cur_inputs = 0;  // at/after/clock actions in cur (rules, properties and gauges are not inputs)
+  source_loc first_input;
   // A lower bound of the time the stimulus has reached (settle steps take at
   // least no time, `run T` exactly T): an `at` before it is an error.
   time_fs reached = 0, step_first = 0;
@@ -115,14 +116,16 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
           reached = add_sat(reached, s.time);
         }
         if (!step_has_first) step_first = reached, step_has_first = true;
-        ++cur_inputs;
         bool ok = true;
         for (std::size_t i = 0; i < s.nets.size(); ++i) {
           net_id n = input_of(s.nets[i]);
           ok = ok && n != no_id;
           a.assigns.push_back({n, s.values[i]});
         }
-        if (ok) cur.actions.push_back(std::move(a));
+        if (ok) {
+          cur.actions.push_back(std::move(a));
+          if (!cur_inputs++) first_input = s.loc;
+        }
         labels.push_back(s.text);
         break;
       }
@@ -132,7 +135,6 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
         a.what = stim_action::kind::clock;
         a.loc = s.loc;
         a.clock = clock_spec{n, s.time, s.has_time2 ? s.time2 : s.time / 2, s.cycles};
-        ++cur_inputs;
         if (s.has_at) {
           a.anchored = true;
           a.time = s.at;
@@ -145,8 +147,10 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
         if (!step_has_first) step_first = reached, step_has_first = true;
         if (!s.has_time2 && a.clock.high == 0)
           rep.error(s.loc, "a clock period of 1fs has no room for a high phase");
-        else if (n != no_id)
+        else if (n != no_id) {
           cur.actions.push_back(std::move(a));
+          if (!cur_inputs++) first_input = s.loc;
+        }
         labels.push_back(s.text);
         break;
       }
@@ -302,7 +306,7 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
     }
   }
   if (cur_inputs) {
-    rep.warning(cur.actions.front().loc, "input changes after the last settle or run: an implicit settle ends them");
+    rep.warning(first_input, "input changes after the last settle or run: an implicit settle ends them");
     close(step_spec::end_kind::settle, sb.close_loc);
   } else if (!cur.actions.empty()) {
     // Rules, properties or gauges with no step after them: an implicit settle

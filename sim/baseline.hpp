@@ -57,7 +57,8 @@ std::string baseline_text(const baseline_file& f);
 /// The entry for a margin search of `d`.
 baseline_entry baseline_of(const design& d, const std::string& design_path, const std::string& stim_path,
                            const margin_options& o, const margin_result& r);
-/// Replaces the entry with the same design and stimulus, or appends it.
+/// Replaces the entry with the same design and stimulus (removing any further
+/// duplicates of it), or appends it.
 void merge_entry(baseline_file& f, baseline_entry e);
 /// The entry for (design, stim), or null.
 const baseline_entry* find_entry(const baseline_file& f, const std::string& design_path, const std::string& stim_path);
@@ -67,6 +68,8 @@ struct baseline_change {
   std::string what;          ///< "design", "step 2 (after 2ns a = 1)", "settle within 2ns of step 3"
   double before_pct = 0, after_pct = 0;
   bool regression = false;   ///< fell by more than the tolerance
+  bool before_at_least = false,
+       after_at_least = false;  ///< the figure is a lower bound (passed at a ceiling)
 };
 
 struct baseline_comparison {
@@ -78,6 +81,11 @@ struct baseline_comparison {
 /// Compares `now` against `before`: a margin regresses when it fell by more
 /// than `tolerance_pct` percentage points (settle-time margins as a
 /// percentage of their budget), or a budget no longer settles in every corner.
+/// A margin at a search ceiling is a lower bound: an old lower bound regresses
+/// only when the new exact figure is below it minus the tolerance, and a new
+/// one only when it is below the old figure, taken at most at this run's
+/// ceiling, minus the tolerance, so a margin at this run's ceiling never
+/// regresses; it gets a note when the old figure lies above that ceiling.
 baseline_comparison compare_baseline(const baseline_entry& before, const baseline_entry& now, double tolerance_pct);
 
 }  // namespace settle

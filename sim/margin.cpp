@@ -119,9 +119,14 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
     if (error) *error = std::move(why);
     return std::nullopt;
   };
-  if (!(o.resolution_pct > 0) || o.resolution_pct > 100) return fail("--resolution must be in (0, 100] percent");
-  if (!(o.ceiling_pct >= o.resolution_pct) || o.ceiling_pct > 10000)
-    return fail("the search ceiling must lie between the resolution and 10000 percent");
+  // The floors keep the bisection grid (ceiling / resolution points) within
+  // a million, far from overflow, and the written spread inside the search.
+  if (!(o.resolution_pct >= 0.01 && o.resolution_pct <= 100))
+    return fail("the resolution must be at least 0.01 and at most 100 percentage points");
+  if (!(o.ceiling_pct >= 100 && o.ceiling_pct <= 10000))
+    return fail(
+        "the search ceiling must be at least 100 (the written spread is always judged) and at most "
+        "10000 percent");
   std::string err;
   auto plan = plan_sweep(o.spec, o.seed, delay_variables(d), &err);
   if (!plan) return fail(err);

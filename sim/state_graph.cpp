@@ -25,9 +25,27 @@ std::uint64_t hash_words(const std::uint64_t* s, std::size_t n) {
 
 }  // namespace
 
-state_graph::state_graph(std::size_t gates) : words_(std::max<std::size_t>(1, (gates + 63) / 64)) {
+state_graph::state_graph(std::size_t gates) : gates_(gates), words_(std::max<std::size_t>(1, (gates + 63) / 64)) {
   table_.assign(1024, no_id);
   mask_ = table_.size() - 1;
+}
+
+std::string state_graph::bits_text(std::uint32_t i) const {
+  std::string s(gates_, '0');
+  for (std::size_t g = 0; g < gates_; ++g) s[g] = bit(i, static_cast<gate_id>(g)) ? '1' : '0';
+  return s;
+}
+
+std::string state_text(std::span<const std::uint8_t> gates) {
+  std::string s(gates.size(), '0');
+  for (std::size_t g = 0; g < gates.size(); ++g) s[g] = gates[g] ? '1' : '0';
+  return s;
+}
+
+std::string state_order_text(const netlist& n) {
+  std::string order;
+  for (gate_id g = 0; g < n.gate_count(); ++g) order += (g ? " " : "") + n.gate_name(g);
+  return order;
 }
 
 std::size_t state_graph::bytes() const {

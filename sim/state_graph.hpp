@@ -37,6 +37,8 @@ class state_graph {
   std::uint32_t size() const { return static_cast<std::uint32_t>(arena_.size() / words_); }
   const std::uint64_t* state(std::uint32_t i) const { return arena_.data() + std::size_t{i} * words_; }
   bool bit(std::uint32_t i, gate_id g) const { return (state(i)[g >> 6] >> (g & 63)) & 1; }
+  /// State i as text: one '0' or '1' per gate, in gate order (the reports' `state_order`).
+  std::string bits_text(std::uint32_t i) const;
 
   /// Finds `s` or adds it; returns its index and whether it was added.
   std::pair<std::uint32_t, bool> intern(const std::uint64_t* s, std::uint32_t parent);
@@ -61,11 +63,19 @@ class state_graph {
 
  private:
   void grow();
+  std::size_t gates_;
   std::size_t words_;
   std::vector<std::uint64_t> arena_;
   std::vector<std::uint32_t> table_;  ///< open addressing; no_id = empty
   std::size_t mask_ = 0;
 };
+
+/// Gate outputs (one 0 or 1 per gate, in gate order) as text: the spelling of
+/// a state in every report (JSON, DOT, HTML tables and graphs alike).
+std::string state_text(std::span<const std::uint8_t> gates);
+
+/// The gates behind the characters of a state's text, space separated.
+std::string state_order_text(const netlist& n);
 
 /// Strongly connected components (Tarjan 1972, iterative) with what the analyses need.
 struct scc_info {

@@ -28,8 +28,7 @@ std::uint64_t kept_states(const explore_result& r) {
 std::string state_graph_dot(const netlist& n, const explore_result& r, const std::string& title) {
   fmt::memory_buffer b;
   auto out = std::back_inserter(b);
-  std::string order;
-  for (gate_id g = 0; g < n.gate_count(); ++g) order += (g ? " " : "") + n.gate_name(g);
+  const std::string order = state_order_text(n);
   fmt::format_to(out, "digraph \"{}\" {{\n", quoted(title));
   fmt::format_to(out, "  label=\"{} - model {} - state bits: {}\";\n  labelloc=t;\n", quoted(title),
                  model_name(r.model), quoted(order));
@@ -40,8 +39,7 @@ std::string state_graph_dot(const netlist& n, const explore_result& r, const std
     fmt::format_to(out, "  subgraph cluster_step{} {{\n    label=\"step {}: {}{}\";\n", s.index, s.index,
                    quoted(s.label), s.complete ? "" : " (incomplete)");
     for (std::uint32_t v = 0; v < g.size(); ++v) {
-      std::string bits;
-      for (gate_id k = 0; k < n.gate_count(); ++k) bits += g.bit(v, k) ? '1' : '0';
+      const std::string bits = g.bits_text(v);
       const bool stable = v < g.explored && g.is_stable(v);
       fmt::format_to(out, "    s{}_{} [label=\"{}\"{}{}];\n", s.index, v, bits, stable ? ", peripheries=2" : "",
                      v < g.starts ? ", style=bold" : "");

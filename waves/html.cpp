@@ -346,6 +346,7 @@ std::string html_report_margin(const design& d, const margin_result& r, const ru
 
 std::string html_report_explore(const design& d, const explore_result& r, const html_source& src) {
   auto p = start(d, r.reported, src);
+  p.root["state_order"] = state_order_text(d.nets);  // the gates behind each character of a node's label
   auto& graphs = p.root["graphs"] = json::array();
   for (const auto& s : r.steps) {
     if (!s.graph) continue;
@@ -360,8 +361,8 @@ std::string html_report_explore(const design& d, const explore_result& r, const 
     e["step"] = s.index;
     e["nodes"] = json::array();
     for (std::uint32_t i = 0; i < g.size(); ++i) {
-      std::string bits, label;
-      for (gate_id k = 0; k < d.nets.gate_count(); ++k) bits += g.bit(i, k) ? '1' : '0';
+      const std::string bits = g.bits_text(i);
+      std::string label;
       for (net_id net : drawn(r.reported)) {
         const gate_id drv = d.nets.driver[net];
         const char v = drv == no_id ? (net < s.inputs.size() ? to_char(s.inputs[net]) : 'x') : (g.bit(i, drv) ? '1' : '0');

@@ -543,7 +543,7 @@ const char* const html_script = R"SETTLE((function () {
   }
 
   // ---- exploration
-  function graphSvg(g, names) {
+  function graphSvg(g, names, order) {
     var layers = 0, rows = 0;
     g.nodes.forEach(function (n) { layers = Math.max(layers, n.layer + 1); rows = Math.max(rows, n.pos + 1); });
     var DX = 130, DY = 50, W = layers * DX + 60, H = rows * DY + 40;
@@ -569,9 +569,9 @@ const char* const html_script = R"SETTLE((function () {
       var p = P(n), grp = sv('g', { 'class': 'node' + (n.stable ? ' stable' : ''), 'data-state': i }, svg);
       if (n.stable) sv('rect', { x: p[0] - 15, y: p[1] - 13, width: 30, height: 26, rx: 7, fill: '#0f7b6c', stroke: '#0b5c51', 'stroke-width': n.start ? 3 : 1 }, grp);
       else sv('circle', { cx: p[0], cy: p[1], r: 13, fill: '#fffdf8', stroke: n.start ? '#22313f' : '#9aa1ab', 'stroke-width': n.start ? 3 : 1.2 }, grp);
-      sv('text', { x: p[0], y: p[1] + 25, 'text-anchor': 'middle', text: n.values }, grp);
+      sv('text', { x: p[0], y: p[1] + 25, 'text-anchor': 'middle', 'class': 'state-label', text: n.state }, grp);
       sv('text', { x: p[0], y: p[1] + 4, 'text-anchor': 'middle', fill: n.stable ? '#fff' : '#22313f', text: String(i) }, grp);
-      grp.appendChild(sv('title', { text: 'state ' + i + (n.start ? ' (start)' : '') + (n.stable ? ' (stable)' : '') + '\n' + names.join(' ') + ' = ' + n.values + '\ngate outputs ' + n.state }));
+      grp.appendChild(sv('title', { text: 'state ' + i + (n.start ? ' (start)' : '') + (n.stable ? ' (stable)' : '') + '\n' + order + ' = ' + n.state + '\n' + names.join(' ') + ' = ' + n.values }));
     });
     return svg;
   }
@@ -584,7 +584,7 @@ const char* const html_script = R"SETTLE((function () {
       sec.appendChild(banner(cls, word, 'step ' + st.index + ': ' + st.label, st.states + ' states \u00b7 ' + st.edges + ' edges' + (st.complete ? '' : ' \u00b7 incomplete')));
       var body = el('div', { cls: 'body' });
       body.appendChild(el('h3', { text: 'reachable stable states' }));
-      body.appendChild(table(['#', 'values', 'gate outputs', 'firings from a start state'], st.stable.map(function (s, k) {
+      body.appendChild(table(['#', 'values', 'state bits', 'firings from a start state'], st.stable.map(function (s, k) {
         return [k + 1, chips(s.values), el('code', { text: s.state }), s.path.length];
       })));
       body.appendChild(el('p', {}, ['ternary simulation: ', chips(st.ternary)]));
@@ -593,7 +593,8 @@ const char* const html_script = R"SETTLE((function () {
       var g = (D.graphs || []).filter(function (x) { return x.step === st.index; })[0];
       if (g) {
         body.appendChild(el('h3', { text: 'state graph (layers by firing depth; filled squares are stable states, thick outlines start states)' }));
-        body.appendChild(el('div', { cls: 'graph-box' }, [graphSvg(g, D.nets)]));
+        body.appendChild(el('p', { cls: 'legend' }, ['state bits, left to right: ', el('code', { text: D.state_order })]));
+        body.appendChild(el('div', { cls: 'graph-box' }, [graphSvg(g, D.nets, D.state_order)]));
       }
       sec.appendChild(body);
       target.appendChild(sec);

@@ -55,9 +55,7 @@ std::string result_json(const design& d, const explore_result& r, double wall) {
     for (const auto& st : s.stable) {
       nlohmann::ordered_json e;
       for (net_id net : r.reported) e["values"][n.net_name[net]] = logic_text(stable_value(n, s, st, net));
-      std::string bits;
-      for (auto b : st.gates) bits += b ? '1' : '0';
-      e["state"] = bits;
+      e["state"] = state_text(st.gates);
       auto& path = e["path"] = nlohmann::ordered_json::array();  // gates fired together, from a start state
       for (const auto& fired : st.path) {
         auto& f = path.emplace_back(nlohmann::ordered_json::array());

@@ -1,6 +1,8 @@
 // `settle margin`: the delay-spread margin of every step, settle-time margins, baselines and JUnit XML.
 #include <unistd.h>
 
+#include <cerrno>
+#include <cstring>
 #include <filesystem>
 #include <fstream>
 #include <memory>
@@ -13,6 +15,7 @@
 #include <spdlog/spdlog.h>
 
 #include "sim/baseline.hpp"
+#include "sim/baseline_store.hpp"
 #include "sim/cli/command.hpp"
 #include "sim/cli/interrupt.hpp"
 #include "sim/cli/report_common.hpp"
@@ -44,6 +47,13 @@ std::string replay(const margin_cli_options& o, const std::string& corner) {
 
 std::string pct_words(double w, bool at_least) { return (at_least ? ">= " : "") + spread_percent(w); }
 
+// What became of the baseline: compared, written, or why not.
+struct baseline_outcome {
+  bool updated = false;
+  std::string
+      not_updated;  ///< with --update-baseline and no write: why ("the search was interrupted")
+};
+
 json failure_json(const design& d, const margin_cli_options& o, const margin_failure& f) {
   json j;
   j["spread_pct"] = 100.0 * f.spread;
@@ -74,17 +84,26 @@ json failure_json(const design& d, const margin_cli_options& o, const margin_fai
   return j;
 }
 
-json baseline_json(const std::string& file, bool updated, const baseline_comparison* cmp) {
+json baseline_json(const std::string& file, const baseline_outcome& out,
+                   const baseline_comparison* cmp, const baseline_entry* old, double ceiling_pct) {
   json j;
   j["file"] = file;
-  j["updated"] = updated;
+  j["updated"] = out.updated;
+  if (!out.not_updated.empty()) j["not_updated"] = out.not_updated;
   j["compared"] = cmp != nullptr;
+  j["ceiling_pct"] = ceiling_pct;
+  if (old) j["baseline_ceiling_pct"] = old->ceiling_pct;
   j["regressions"] = json::array();
   j["changes"] = json::array();
   if (cmp) {
     for (const auto& c : cmp->changes)
       j[c.regression ? "regressions" : "changes"].push_back(
-          {{"what", c.what}, {"before_pct", c.before_pct}, {"after_pct", c.after_pct}, {"drop_pct", c.before_pct - c.after_pct}});
+          {{"what", c.what},
+           {"before_pct", c.before_pct},
+           {"after_pct", c.after_pct},
+           {"drop_pct", c.before_pct - c.after_pct},
+           {"before_at_least", c.before_at_least},
+           {"after_at_least", c.after_at_least}});
     j["notes"] = cmp->notes;
   }
   return j;
@@ -162,7 +181,8 @@ std::string failure_text(const design& d, const margin_cli_options& o, const mar
 }
 
 std::string summary(const design& d, const margin_cli_options& o, const margin_result& r,
-                    const baseline_comparison* cmp, bool updated, bool pass, bool colour) {
+                    const baseline_comparison* cmp, const baseline_outcome& bo, bool pass,
+                    bool colour) {
   auto paint = [colour](std::string text, bool good) {
     if (!colour) return text;
     return fmt::format(fmt::fg(good ? fmt::terminal_color::green : fmt::terminal_color::red) | fmt::emphasis::bold,
@@ -210,13 +230,17 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
                          w.unsettled ? fmt::format("  ({} corners do not settle)", w.unsettled) : "");
     }
   }
-  if (cmp || updated) {
-    out += fmt::format("\nbaseline {}{}\n", o.baseline, updated ? " (updated)" : "");
+  if (cmp || bo.updated || !bo.not_updated.empty()) {
+    out += fmt::format("\nbaseline {}{}\n", o.baseline,
+                       bo.updated               ? " (updated)"
+                       : bo.not_updated.empty() ? ""
+                                                : " (not updated: " + bo.not_updated + ")");
     if (cmp) {
       for (const auto& c : cmp->changes)
-        out += fmt::format("  {}  {}: {} -> {} ({:+.2f} points)\n", paint(c.regression ? "SHRANK" : "moved", !c.regression),
-                           c.what, fmt::format("{:g}%", c.before_pct), fmt::format("{:g}%", c.after_pct),
-                           c.after_pct - c.before_pct);
+        out += fmt::format("  {}  {}: {}{:g}% -> {}{:g}% ({:+.2f} points)\n",
+                           paint(c.regression ? "SHRANK" : "moved", !c.regression), c.what,
+                           c.before_at_least ? ">= " : "", c.before_pct,
+                           c.after_at_least ? ">= " : "", c.after_pct, c.after_pct - c.before_pct);
       for (const auto& n : cmp->notes) out += fmt::format("  note  {}\n", n);
       if (cmp->changes.empty()) out += "  no margin moved\n";
     }
@@ -227,14 +251,53 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
 
 // Baselines are small regular files; anything else (a device, a FIFO, a
 // folder) is refused rather than read until memory runs out.
-std::optional<std::string> read_file(const std::string& path) {
+std::optional<std::string> read_file(const std::string& path, std::string& why) {
   std::error_code ec;
-  if (!std::filesystem::is_regular_file(path, ec)) return std::nullopt;
+  const auto st = std::filesystem::status(path, ec);
+  if (!std::filesystem::exists(st)) {
+    why = "no such file";
+    return std::nullopt;
+  }
+  if (!std::filesystem::is_regular_file(st)) {
+    why = "it is not a regular file";
+    return std::nullopt;
+  }
   std::ifstream in(path, std::ios::binary);
-  if (!in) return std::nullopt;
+  if (!in) {
+    why = std::strerror(errno);
+    return std::nullopt;
+  }
   std::ostringstream ss;
   ss << in.rdbuf();
   return ss.str();
+}
+
+// The limits of the search options, checked before anything runs. The
+// resolution's floor keeps the grid of the bisection (ceiling / resolution
+// points) within a million, and the ceiling's floor keeps the written spread
+// (100%) inside the search, since it is always judged.
+bool search_options_valid(const margin_cli_options& o) {
+  if (!(o.resolution >= 0.01 && o.resolution <= 100)) {
+    spdlog::error(
+        "--resolution {:g}: the bisection step must be at least 0.01 and at most 100 percentage "
+        "points",
+        o.resolution);
+    return false;
+  }
+  if (!(o.ceiling >= 100 && o.ceiling <= 10000)) {
+    spdlog::error(
+        "--up-to {:g}: the search ceiling must be at least 100 (the written spread is always "
+        "judged) and "
+        "at most 10000 percent",
+        o.ceiling);
+    return false;
+  }
+  if (!(o.tolerance >= 0 && o.tolerance <= 10000)) {
+    spdlog::error("--tolerance {:g}: the points a margin may fall must be a number from 0 to 10000",
+                  o.tolerance);
+    return false;
+  }
+  return true;
 }
 
 exit_status run_margin_cmd(const margin_cli_options& o) {
@@ -243,9 +306,14 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
     spdlog::error("--update-baseline needs --baseline FILE to write to");
     return exit_status::error;
   }
-  if (!(o.tolerance >= 0)) {
-    spdlog::error("--tolerance must be >= 0 percentage points");
-    return exit_status::error;
+  if (!search_options_valid(o)) return exit_status::error;
+  // Refuse a baseline that cannot be written before the search spends any time.
+  if (o.update_baseline) {
+    const std::string why = baseline_unwritable(o.baseline);
+    if (!why.empty()) {
+      spdlog::error("cannot update baseline '{}': {}; nothing was run", o.baseline, why);
+      return exit_status::error;
+    }
   }
   std::string err;
   margin_options mo;
@@ -259,7 +327,8 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   // Read the baseline before the search, so a bad file fails fast.
   std::optional<baseline_file> before;
   if (!o.baseline.empty()) {
-    auto text = read_file(o.baseline);
+    std::string why;
+    auto text = read_file(o.baseline, why);
     if (text) {
       before = parse_baseline(*text, &err);
       if (!before) {
@@ -267,7 +336,7 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
         return exit_status::error;
       }
     } else if (!o.update_baseline) {
-      spdlog::error("cannot read baseline '{}'; write one with --update-baseline", o.baseline);
+      spdlog::error("cannot read baseline '{}': {}; write one with --update-baseline", o.baseline, why);
       return exit_status::error;
     }
   }
@@ -302,10 +371,11 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
 
   const baseline_entry now = baseline_of(*d, o.design.path, o.design.stim, mo, *r);
   std::optional<baseline_comparison> cmp;
+  const baseline_entry* old = before ? find_entry(*before, o.design.path, o.design.stim) : nullptr;
   if (before) {
     if (stopped) {
       // A partial search proves nothing about regressions.
-    } else if (const auto* old = find_entry(*before, o.design.path, o.design.stim)) {
+    } else if (old) {
       cmp = compare_baseline(*old, now, o.tolerance);
     } else if (!o.update_baseline) {
       spdlog::error("baseline '{}' has no entry for {}{}; add one with --update-baseline", o.baseline, o.design.path,
@@ -313,17 +383,43 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
       return exit_status::error;
     }
   }
-  if (o.update_baseline && !stopped) {
-    baseline_file f = before ? *before : baseline_file{};
-    f.format_version = baseline_format_version;  // older files are rewritten in the current format
-    f.written_by = std::string("settle ") + SETTLE_VERSION;
-    merge_entry(f, now);
-    if (!write_output(o.baseline, baseline_text(f))) return exit_status::error;
+  baseline_outcome bo;
+  bool update_interrupted = false;
+  if (o.update_baseline && stopped) {
+    bo.not_updated = r->stopped == sweep_stop::timeout
+                         ? "the search was stopped by --timeout; the file is unchanged"
+                         : "the search was interrupted; the file is unchanged";
+  } else if (o.update_baseline) {
+    // Re-read and merged under the lock, so concurrent updates keep each other's entries.
+    const auto u = update_baseline_file(
+        o.baseline, now, std::string("settle ") + SETTLE_VERSION, mo.stop, [&] {
+          spdlog::info("waiting for the lock on baseline '{}': another process is updating it",
+                       o.baseline);
+        });
+    switch (u.status) {
+      case baseline_update_status::written:
+        bo.updated = true;
+        if (!u.warning.empty()) spdlog::warn("baseline '{}': {}", o.baseline, u.warning);
+        break;
+      case baseline_update_status::stopped:
+        update_interrupted = true;
+        bo.not_updated = "interrupted before the file was replaced; the file is unchanged";
+        spdlog::error(
+            "baseline '{}' not updated: {} arrived before the new file was in place; the file is "
+            "unchanged",
+            o.baseline, interrupt_signal_name());
+        break;
+      case baseline_update_status::failed:
+        spdlog::error("cannot update baseline '{}': {}", o.baseline, u.error);
+        return exit_status::error;
+    }
   }
   const bool regressed = cmp && !o.update_baseline && cmp->regressed();
   const bool pass = r->passes_as_written() && !regressed;
 
-  const json base = o.baseline.empty() ? json() : baseline_json(o.baseline, o.update_baseline, cmp ? &*cmp : nullptr);
+  const json base = o.baseline.empty()
+                        ? json()
+                        : baseline_json(o.baseline, bo, cmp ? &*cmp : nullptr, old, o.ceiling);
   if (!o.json.empty() && !write_output(o.json, result_json(*d, o, *r, base, pass))) return exit_status::error;
   if (!o.junit.empty()) {
     std::vector<std::pair<std::string, std::string>> shrank;
@@ -340,10 +436,11 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
       !write_output(o.html, html_report_margin(*d, *r, mo.run, {"margin", result_json(*d, o, *r, base, pass), ""})))
     return exit_status::error;
   if (!o.quiet && o.json != "-" && o.junit != "-" && o.html != "-")
-    std::fputs(summary(*d, o, *r, cmp && !o.update_baseline ? &*cmp : nullptr, o.update_baseline, pass, use_colour(1))
-                   .c_str(),
-               stdout);
-  if (r->stopped == sweep_stop::interrupted) return exit_status::interrupted;
+    std::fputs(
+        summary(*d, o, *r, cmp && !o.update_baseline ? &*cmp : nullptr, bo, pass, use_colour(1))
+            .c_str(),
+        stdout);
+  if (r->stopped == sweep_stop::interrupted || update_interrupted) return exit_status::interrupted;
   return pass && !stopped ? exit_status::ok : exit_status::findings;
 }
 
@@ -355,7 +452,23 @@ void add_margin(CLI::App& app, exit_status& status) {
                   "corners run at every probed spread: extremes, exhaustive, random:N, gauss:N joined by '+' "
                   "(default extremes+random:200)");
   cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)");
-  cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)")->check(CLI::PositiveNumber);
+  cmd->add_option("--threads", o->threads, "worker threads, 1 to 4096 (default: the hardware's)")
+      ->check(CLI::Validator(
+          [](std::string& v) -> std::string {
+            std::size_t used = 0;
+            unsigned long n = 0;
+            try {
+              n = std::stoul(v, &used);
+            } catch (const std::exception&) {
+              used = 0;
+            }
+            if (used != v.size() || v.empty() || v[0] == '-' || n < 1 || n > 4096)
+              return "the number of worker threads must be a whole number from 1 to 4096; leave "
+                     "the option out "
+                     "to use every core";
+            return {};
+          },
+          "1..4096"));
   cmd->add_option("--resolution", o->resolution, "stop bisecting when the bracket is PCT percentage points wide (default 1)");
   cmd->add_option("--up-to", o->ceiling,
                   "largest spread searched, in percent of the written one (default 100; a pass there reports >= PCT)");

@@ -4,7 +4,7 @@
 # Called by ctest as: bench_check.py <settle binary> <source dir>. Exit 77 = skipped.
 # The reference figures are the ISCAS benchmark descriptions, Brglez and Fujiwara 1985
 # (ISCAS-85) and Brglez, Bryan and Kozminski 1989 (ISCAS-89), as counted from the files'
-# lines in ../shared/data/iscas/stats.csv (see SOURCE.md there).
+# lines in tests/data/iscas/stats.csv (see SOURCE.md there).
 import csv
 import json
 import os
@@ -15,7 +15,7 @@ sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."
 from settle_test import fail, failures, iscas_dir  # noqa: E402
 
 settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
-iscas = iscas_dir(src, must_hold="stats.csv")  # ../shared/data/iscas; exits 77 (skipped) without it
+iscas = iscas_dir(src, must_hold="stats.csv")  # tests/data/iscas; fails without it
 
 
 with open(os.path.join(iscas, "stats.csv"), newline="") as f:

@@ -2,7 +2,7 @@
 # Combinational ISCAS-85 circuits: settled outputs after random input vectors equal a sympy evaluation.
 #
 # Called by ctest as: bench_comb.py <settle binary> <source dir>. Exit 77 = skipped.
-# Circuits: ISCAS-85 (Brglez and Fujiwara 1985), from ../shared/data/iscas.
+# Circuits: ISCAS-85 (Brglez and Fujiwara 1985), from tests/data/iscas.
 # Reference: Debian's python3-sympy (sympy.logic.boolalg And, Or, Not, Xor, Nand, Nor,
 # Xnor), built from the same file, evaluated with zero delay by `subs` of each vector.
 # Whatever the gate delays, a combinational circuit settles to its Boolean function of
@@ -16,7 +16,7 @@ sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."
 from settle_test import fail, failures, iscas_dir, json_steps, write_file  # noqa: E402
 
 settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
-iscas = iscas_dir(src)  # ../shared/data/iscas; exits 77 (skipped) when it is absent
+iscas = iscas_dir(src)  # tests/data/iscas; fails without it
 sys.path.insert(0, os.path.join(src, "scripts"))
 from bench_reference import Circuit  # noqa: E402 (reads the file's lines; no evaluation)
 from sympy import And, Nand, Nor, Not, Or, Symbol, Xor, false, true  # noqa: E402

@@ -2,7 +2,7 @@
 # Sequential ISCAS-89 circuits with six-NAND flip-flops: the clocked output sequence equals a cycle model.
 #
 # Called by ctest as: bench_seq.py <settle binary> <source dir>. Exit 77 = skipped.
-# Circuits: ISCAS-89 (Brglez, Bryan and Kozminski 1989), from ../shared/data/iscas.
+# Circuits: ISCAS-89 (Brglez, Bryan and Kozminski 1989), from tests/data/iscas.
 # Reference: scripts/bench_reference.py (Python standard library only), written from the
 # format's meaning: a DFF's Q takes D at each rising clock edge; every flip-flop starts at
 # 0 (common practice: a reset state), as settle's importer initialises them.
@@ -19,7 +19,7 @@ sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."
 from settle_test import fail, failures, iscas_dir, json_steps, write_file  # noqa: E402
 
 settle, src = os.path.abspath(sys.argv[1]), sys.argv[2]
-iscas = iscas_dir(src)  # ../shared/data/iscas; exits 77 (skipped) when it is absent
+iscas = iscas_dir(src)  # tests/data/iscas; fails without it
 sys.path.insert(0, os.path.join(src, "scripts"))
 from bench_reference import Circuit, clocked_run  # noqa: E402
 

@@ -13,12 +13,12 @@ import sys
 import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import fail, failures  # noqa: E402
+from settle_test import fail, failures, iscas_dir  # noqa: E402
 
 settle, src = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
 build = os.path.dirname(os.path.dirname(settle))
 bench_bin = os.path.join(build, "bench", "settle_bench")
-iscas = os.path.normpath(os.path.join(src, "..", "shared", "data", "iscas"))
+iscas = iscas_dir(src, must_hold="s38417.bench")  # tests/data/iscas; fails without it
 s38417 = os.path.join(iscas, "s38417.bench")
 
 
@@ -77,10 +77,7 @@ def with_bench_binary(tmp):
         if b is None:
             fail(f"{name}: missing from the benchmark JSON")
         elif b.get("error_occurred"):
-            if name.startswith("iscas/") and not os.path.exists(s38417):
-                print(f"SKIP: {name}: {s38417} is absent")
-            else:
-                fail(f"{name}: {b.get('error_message')}")
+            fail(f"{name}: {b.get('error_message')}")
         else:
             if b.get("iterations", 0) < 1:
                 fail(f"{name}: no iteration ran")
@@ -132,9 +129,6 @@ def with_settle_binary(tmp):
     if not steps or sum(s.get("states", 0) for s in steps) <= 0:
         fail(f"explore pipeline: no states explored: {str(steps)[:200]}")
 
-    if not os.path.exists(s38417):
-        print(f"SKIP: {s38417} is absent; the s38417 run is not smoke-tested")
-        return
     c = settle_json("check s38417", "check", s38417)
     inputs = []  # from the file's INPUT lines
     with open(s38417, encoding="ascii") as f:

@@ -10,7 +10,7 @@ import sys
 import networkx as nx  # Debian python3-networkx
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import check, failures  # noqa: E402
+from settle_test import check, failures, iscas_dir  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 
@@ -115,34 +115,32 @@ for name in sorted(os.listdir(ex_dir)) if os.path.isdir(ex_dir) else []:
 # 3. ISCAS netlists (Brglez and Fujiwara 1985; Brglez, Bryan and Kozminski 1989):
 # header counts against stats.csv, and the combinational ISCAS-85 circuits are
 # acyclic (networkx finds no cycle in the .bench gate graph; settle reports none).
-iscas = os.path.join(src, "..", "shared", "data", "iscas")
-if not os.path.isdir(iscas):
-    print("skipped ISCAS checks: ../shared/data/iscas is absent")
-else:
-    stats = {r["name"]: r for r in csv.DictReader(open(os.path.join(iscas, "stats.csv")))}
-    checked = 0
-    for circuit in ("c17", "c432", "c880", "s27", "s298"):
-        path = os.path.join(iscas, circuit + ".bench")
-        if not os.path.exists(path):
-            continue
-        j = check_json(path)
-        s = j.get("source", {})
-        row = stats.get(circuit)
-        if row:
-            for key, col in (("inputs", "inputs"), ("outputs", "outputs"), ("dffs", "dffs"),
-                             ("inverters", "inverters"), ("buffers", "buffs"), ("gates", "gates")):
-                check(str(s.get(key)) == row[col], f"{circuit}: source {key} {s.get(key)} vs stats.csv {row[col]}")
-            checked += 1
-        if circuit.startswith("c"):
-            g = nx.DiGraph()
-            for line in open(path):
-                m = re.match(r"\s*(\S+)\s*=\s*\w+\((.*)\)", line)
-                if m:
-                    for i in m.group(2).split(","):
-                        g.add_edge(i.strip(), m.group(1))
-            check(nx.is_directed_acyclic_graph(g), f"{circuit}: networkx finds the netlist acyclic")
-            check(j.get("loops") == [], f"{circuit}: settle reports no loops")
+iscas = iscas_dir(src, must_hold="stats.csv")  # tests/data/iscas; fails without it
+stats = {r["name"]: r for r in csv.DictReader(open(os.path.join(iscas, "stats.csv")))}
+checked = 0
+for circuit in ("c17", "c432", "c880", "s27", "s298"):
+    path = os.path.join(iscas, circuit + ".bench")
+    check(os.path.exists(path), f"{circuit}: {path} is in the project's ISCAS copy")
+    if not os.path.exists(path):
+        continue
+    j = check_json(path)
+    s = j.get("source", {})
+    row = stats.get(circuit)
+    if row:
+        for key, col in (("inputs", "inputs"), ("outputs", "outputs"), ("dffs", "dffs"),
+                         ("inverters", "inverters"), ("buffers", "buffs"), ("gates", "gates")):
+            check(str(s.get(key)) == row[col], f"{circuit}: source {key} {s.get(key)} vs stats.csv {row[col]}")
+        checked += 1
+    if circuit.startswith("c"):
+        g = nx.DiGraph()
+        for line in open(path):
+            m = re.match(r"\s*(\S+)\s*=\s*\w+\((.*)\)", line)
+            if m:
+                for i in m.group(2).split(","):
+                    g.add_edge(i.strip(), m.group(1))
+        check(nx.is_directed_acyclic_graph(g), f"{circuit}: networkx finds the netlist acyclic")
+        check(j.get("loops") == [], f"{circuit}: settle reports no loops")
 
-    print(f"ISCAS: {checked} circuits against stats.csv")
+print(f"ISCAS: {checked} circuits against stats.csv")
 print("check_json:", "FAILED" if failures else "ok", f"({len(failures)} failures)")
 sys.exit(1 if failures else 0)

@@ -1,7 +1,7 @@
 #!/usr/bin/env python3
 # Corner counts of `settle sweep`: extremes gives 3 + 2g corners and exhaustive
 # 2^g for g gates (issue 3), with g taken from the ISCAS statistics
-# (../shared/data/iscas/stats.csv: gates + inverters + buffers of the
+# (tests/data/iscas/stats.csv: gates + inverters + buffers of the
 # combinational circuits); exhaustive refuses more than 2^20 corners with a
 # message that suggests random:N, exit 2 and no output file.
 #
@@ -13,7 +13,7 @@ import sys
 import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
-from settle_test import fail, run_settle, summary  # noqa: E402
+from settle_test import fail, iscas_dir, run_settle, summary  # noqa: E402
 
 
 def settle(binary, *args):
@@ -33,10 +33,7 @@ def main():
     if len(sys.argv) < 3:
         return 2
     binary, src = sys.argv[1], sys.argv[2]
-    iscas = os.path.normpath(os.path.join(src, "..", "shared", "data", "iscas"))
-    if not os.path.exists(os.path.join(iscas, "stats.csv")):
-        print(f"SKIP: {iscas}/stats.csv not found")
-        return 77
+    iscas = iscas_dir(src, must_hold="stats.csv")  # tests/data/iscas; fails without it
     with open(os.path.join(iscas, "stats.csv")) as f:
         stats = {row["name"]: row for row in csv.DictReader(f)}
 

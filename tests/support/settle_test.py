@@ -127,12 +127,13 @@ def released_latch(title, controls, outputs, delays, last_expect=None):
 
 
 def iscas_dir(src, must_hold=None):
-    """The shared ISCAS benchmark folder beside the source tree (../shared/data/iscas). When it is
-    absent (or lacks the file `must_hold`), prints SKIP and exits 77, ctest's skip status."""
-    iscas = os.path.normpath(os.path.join(src, "..", "shared", "data", "iscas"))
+    """The project's copy of the ISCAS benchmarks (tests/data/iscas, with its SOURCE.md). The data
+    travels with the clone, so when the folder (or the file `must_hold`) is missing the test fails
+    (exit 1): a check that passes without its data checks nothing."""
+    iscas = os.path.join(src, "tests", "data", "iscas")
     if not (os.path.isfile(os.path.join(iscas, must_hold)) if must_hold else os.path.isdir(iscas)):
-        print(f"SKIP: {iscas} is absent; the ISCAS checks need the shared benchmark folder")
-        sys.exit(77)
+        print(f"FAIL: {iscas} is missing; the ISCAS checks need the project's benchmark copy")
+        sys.exit(1)
     return iscas
 
 
