@@ -71,7 +71,8 @@ void add_quiet_flag(CLI::App& cmd, bool& quiet) {
 
 void add_max_memory_option(CLI::App& cmd, std::uint64_t& mib) {
   cmd.add_option("--max-memory", mib,
-                 fmt::format("memory for the per-corner results, in MiB (about 20 bytes per corner and step); a "
+                 fmt::format("memory for the per-corner results, in MiB (about 20 bytes per corner and step, 8 per "
+                             "corner and gauge); a "
                              "larger sweep is refused before it starts (default {})",
                              sweep_default_max_memory_mib))
       ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));

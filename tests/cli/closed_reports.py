@@ -147,6 +147,13 @@ def html_reports(binary, tmp):
               f"{cmd[0]} --html: owed blocks {blocks}, want each to list the JSON's {len(owed)} owed rules (2)")
         check('class="step closed-loop"' in dom and "cycle" in dom,
               f"{cmd[0]} --html: no section with the gauges")
+    # The margin page lists the property's own margin and the written spread's properties.
+    overlap = write_file(tmp, "overlap_h.settle", OVERLAP)
+    page = os.path.join(tmp, "margin.html")
+    run_settle(binary, "margin", overlap, "--corners", "extremes", "--up-to", "300", "--html", page, "-q")
+    dom = rendered(page, "margin", tmp)
+    check(dom is not None and dom.count("never a &amp; b") >= 2 and "150%" in dom,
+          "margin --html: the property and its 150% margin are not on the page")
 
 
 if __name__ == "__main__":
