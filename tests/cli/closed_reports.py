@@ -73,6 +73,40 @@ def property_margin(binary, tmp):
           "replay at 150%: the property should hold")
 
 
+# The buffer's delay is 40ps..120ps (typ 80ps) and the environment answers after a fixed 100ps.
+# A four-phase cycle is two round trips, 2(d + e) (common practice); widened by w the shortest
+# cycle is 2(80 - 40w + 100) ps, which leaves 250ps..500ps past w = 1.375, while the longest,
+# 2(80 + 40w + 100) ps, leaves it only past w = 1.75.
+CYCLE = """# a handshake whose cycle time has a budget
+input  req
+output ack
+ack = buf(req) delay 40ps..120ps
+stimulus {
+    at 0ns req = 0
+    settle
+    after 1ns req = 1
+    when ack after 100ps : req = 0 times 4
+    when ~ack & ~req after 100ps : req = 1 times 4
+    gauge cycle = period of ack
+    settle
+    expect cycle within 250ps..500ps
+}
+"""
+
+
+def gauge_expectation_margin(binary, tmp):
+    path = write_file(tmp, "cycle.settle", CYCLE)
+    rc, doc = report(binary, ["margin", path, "--corners", "extremes", "--up-to", "300"], "margin of the cycle",
+                     want_rc=0)
+    if doc is None:
+        return
+    # On the 1% grid the last passing spread below 137.5% is 137%.
+    check(doc.get("margin_pct") == 137.0, f"margin {doc.get('margin_pct')}%, want 137% (w <= 1.375)")
+    f = doc.get("failure") or {}
+    check(f.get("kind") == "expectation" and "cycle within" in f.get("expectation", ""),
+          f"margin failure {f}, want the gauge expectation")
+
+
 def junit_of(binary, args, path, what):
     """Runs settle with --junit; returns the parsed XML root, checked well-formed by xmllint."""
     run_settle(binary, *args, "--junit", path, "-q")
@@ -157,4 +191,4 @@ def html_reports(binary, tmp):
 
 
 if __name__ == "__main__":
-    sys.exit(run_cases([property_margin, junit_reports, html_reports], "settle-closed-reports-"))
+    sys.exit(run_cases([property_margin, gauge_expectation_margin, junit_reports, html_reports], "settle-closed-reports-"))
