@@ -125,16 +125,21 @@ junit_suite junit_of_run(const design& d, const run_result& r, const std::string
   const std::string cls = suite_name(d) + "." + corner;
   for (const auto& st : r.steps) {
     auto c = make_case(cls, step_name(st.index, st.label));
-    bool bad_status = st.status == step_status::timeout || st.status == step_status::event_limit;
+    bool bad_status = st.status == step_status::timeout || st.status == step_status::event_limit ||
+                      st.status == step_status::deadlock;
     if (st.status == step_status::oscillating) {
       bool expected = false;
       for (const auto& x : st.expects)
         expected = expected || (x.spec && x.spec->what == expectation::kind::oscillating);
       bad_status = !expected;
     }
+    std::string owed;
+    for (const auto& o : st.owed)
+      owed += fmt::format("owed: {} (fired {} of {}, condition {})\n", d.stim.rules[o.rule].text, o.fired, o.times,
+                          to_char(o.condition));
     if (bad_status)
       c.failures.push_back({fmt::format("step {} is {} at corner {}", st.index, status_name(st.status), corner),
-                            "status", fmt::format("corner: {}\nreplay: {}\n", corner, replay(corner))});
+                            "status", fmt::format("corner: {}\n{}replay: {}\n", corner, owed, replay(corner))});
     s.cases.push_back(std::move(c));
     for (const auto& x : st.expects) {
       auto e = make_case(cls, fmt::format("step {}: {}", st.index, expectation_words(d.nets, *x.spec)));
@@ -145,6 +150,20 @@ junit_suite junit_of_run(const design& d, const run_result& r, const std::string
                                                          replay(corner))});
       s.cases.push_back(std::move(e));
     }
+  }
+  // Whole-run properties: one case each, failed by a violation.
+  for (const auto& p : r.properties) {
+    const auto& spec = d.stim.properties[p.property];
+    auto c = make_case(cls, spec.text);
+    if (!p.holds) {
+      std::string vals;
+      for (const auto& [net, v] : p.values) vals += fmt::format(" {}={}", d.nets.net_name[net], to_char(v));
+      c.failures.push_back({fmt::format("{} is violated at {} in step {} at corner {}", spec.text,
+                                        format_time(p.first_violation), p.step, corner),
+                            "property",
+                            fmt::format("corner: {}\nvalues:{}\nreplay: {}\n", corner, vals, replay(corner))});
+    }
+    s.cases.push_back(std::move(c));
   }
   return s;
 }
