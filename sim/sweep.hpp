@@ -146,6 +146,11 @@ struct sweep_result {
   double wall_s = 0;
   std::vector<net_id> reported;  ///< outputs, then watched nets
   std::vector<sweep_step> steps;
+  /// The stimulus could not go on in some corner (an `at` earlier than the
+  /// time that corner reached): the lowest such corner's diagnostic. An
+  /// error of the input (exit 2), whatever the other corners did.
+  std::optional<diagnostic> error;
+  std::uint64_t error_corner = UINT64_MAX;
   bool pass() const;
 };
 
