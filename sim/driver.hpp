@@ -304,8 +304,10 @@ class driver {
           inputs.push_back(as);
         }
       }
-      sim_.process_instant(t, inputs);
+      // Activations see the values before the instant, so a gauge or a
+      // property declared before an input change at the same time sees it.
       while (next_act_ < acts_.size() && acts_[next_act_].first == t) activate(*acts_[next_act_++].second);
+      sim_.process_instant(t, inputs);
       if (observing_) observe(t, index);
       if (limited()) {
         r.status = step_status::event_limit;

@@ -92,6 +92,9 @@ struct worker_state {
   std::vector<std::vector<expect_acc>> expects;  // [step][expectation]
   std::vector<std::unordered_map<std::string, std::uint32_t>> cache;  // [step] key -> id
   std::exception_ptr error;
+  // The lowest-numbered corner whose stimulus could not go on (run_result::error).
+  std::uint64_t stim_error_corner = UINT64_MAX;
+  std::optional<diagnostic> stim_error;
 };
 
 struct shared_run {
@@ -133,6 +136,7 @@ void work(shared_run& s, worker_state& w) {
       fill_delays(s.d.nets, s.plan.corner_at(i), table);
       const run_result r = run_stimulus(ctx, s.d, table, s.opt);
       if (s.halt.load(std::memory_order_relaxed)) break;  // possibly cut short: not a result
+      if (r.error && i < w.stim_error_corner) w.stim_error_corner = i, w.stim_error = r.error;
       w.events += r.events;
       if (!w.have_reported) w.reported = r.reported, w.have_reported = true;
       unknown.assign(r.reported.size(), logic::x);
@@ -435,6 +439,7 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
   for (auto& w : workers) {
     res.events += w.events;
     if (w.have_reported && res.reported.empty()) res.reported = w.reported;
+    if (w.stim_error && w.stim_error_corner < res.error_corner) res.error_corner = w.stim_error_corner, res.error = w.stim_error;
   }
   res.corners = done.load();
   std::uint64_t sampled = plan.sampled;

@@ -177,6 +177,11 @@ struct sweep_result {
   double wall_s = 0;
   std::vector<net_id> reported;  ///< outputs, then watched nets
   std::vector<sweep_step> steps;
+  /// The stimulus could not go on in some corner (an `at` earlier than the
+  /// time that corner reached): the lowest such corner's diagnostic. An
+  /// error of the input (exit 2), whatever the other corners did.
+  std::optional<diagnostic> error;
+  std::uint64_t error_corner = UINT64_MAX;
   std::vector<sweep_property> properties;  ///< one per stimulus property, in order
   std::vector<sweep_gauge> gauges;         ///< one per stimulus gauge, in order
   /// Every step passes and every property holds in every corner, and the sweep ran to the end.

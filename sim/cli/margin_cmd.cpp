@@ -369,6 +369,11 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
     spdlog::error("{}", err);
     return exit_status::error;
   }
+  if (r->written.error) {
+    // The stimulus as written cannot go on in some corner: an input error.
+    std::fputs(format_diagnostic(*r->written.error).c_str(), stderr);
+    return exit_status::error;
+  }
   const bool stopped = r->stopped != sweep_stop::none;
   if (stopped)
     spdlog::error("margin search {}: the margins reported are those the finished probes bracketed (lower bounds); "

@@ -469,6 +469,12 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   if (progress) so.progress = [t0](std::uint64_t done, std::uint64_t total) { show_progress(done, total, t0); };
   const sweep_result r = run_sweep(*d, *plan, so);
   if (progress) std::fputs("\r\033[K", stderr);
+  if (r.error) {
+    std::fputs(format_diagnostic(*r.error).c_str(), stderr);
+    spdlog::error("the stimulus cannot go on at corner {} (replay: {})", plan->corner_at(r.error_corner).name(),
+                  replay_command(o.design, plan->corner_at(r.error_corner).name(), o.horizon, o.max_events));
+    return exit_status::error;
+  }
 
   // The gates that decide each first divergence between two settled outcomes (ddmin).
   std::vector<culprit_report> races;

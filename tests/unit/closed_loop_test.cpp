@@ -302,3 +302,45 @@ stimulus {
   const auto r = rec.rises(d.nets.find("c"));
   CHECK(r == std::vector<time_fs>{5'000'000, 7'000'000, 9'000'000});
 }
+
+TEST_CASE("an at earlier than the time a settle reached stops the run with an error at its literal", "[closed]") {
+  // The first step takes 10ns to settle (a buffer of 10ns), so `at 3ns` lies
+  // in the past when the second step begins: known only at run time.
+  const design d = load(R"(input a
+output q
+q = buf(a) delay 10ns
+init a = 0
+stimulus {
+  at 1ns a = 1
+  settle
+  at 3ns a = 0
+  settle
+}
+)");
+  const run_result r = run_at(d);
+  REQUIRE(r.error);
+  CHECK(r.error->line == 8);
+  CHECK(r.error->col == 6);
+  CHECK(r.error->file == "closed.settle");
+  CHECK(r.error->message.find("'at 3ns' is earlier than 11ns") != std::string::npos);
+  CHECK(r.steps.size() == 1);
+  CHECK_FALSE(r.pass());
+}
+
+TEST_CASE("a gauge declared before an input change at its own time sees that edge", "[closed]") {
+  // Common practice: the latency through one buffer is its delay.
+  const design d = load(R"(input a
+output q
+q = buf(a) delay 70ps
+init a = 0, q = 0
+stimulus {
+  gauge lag = latency from a rises to q rises
+  at 0fs a = 1
+  settle
+}
+)");
+  const run_result r = run_at(d);
+  const auto& g = gauge_named(d, r, "lag");
+  CHECK(g.count == 1);
+  CHECK(g.min == 70'000);
+}
