@@ -262,6 +262,7 @@ baseline_comparison compare_baseline(const baseline_entry& before, const baselin
     if (a_least && a < b) {
       // This run could see no further than its ceiling: the old figure is
       // compared only up to it, so a margin at the ceiling never shrinks.
+      c.capped = true;
       c.notes.push_back(
           fmt::format("{}: >= {:g}% now (this run's ceiling) against {}{:g}% in the baseline; not "
                       "compared above {:g}%",

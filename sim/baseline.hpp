@@ -75,6 +75,8 @@ struct baseline_change {
 struct baseline_comparison {
   std::vector<baseline_change> changes;  ///< every margin that moved, regressions first
   std::vector<std::string> notes;        ///< steps added or removed, settings that differ
+  /// Some old figure lay above this run's ceiling and was compared only up to it.
+  bool capped = false;
   bool regressed() const;
 };
 

@@ -186,6 +186,9 @@ baseline_update_result update_baseline_file(const std::string& path, const basel
     struct stat old {};
     const bool had_file = file.fd >= 0;
     if (had_file) {
+      // It may have been made read-only while the search ran.
+      if (::fstat(file.fd, &old) == 0 && !may_write(target, old, W_OK))
+        return failed(fmt::format("the file is read-only (mode {:04o})", old.st_mode & 07777));
       std::string text;
       if (::fstat(file.fd, &old) != 0 || !read_all(file.fd, text))
         return failed(fmt::format("cannot read it: {}", std::strerror(errno)));

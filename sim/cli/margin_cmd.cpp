@@ -219,7 +219,8 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
                            c.before_at_least ? ">= " : "", c.before_pct,
                            c.after_at_least ? ">= " : "", c.after_pct, c.after_pct - c.before_pct);
       for (const auto& n : cmp->notes) out += fmt::format("  note  {}\n", n);
-      if (cmp->changes.empty()) out += "  no margin moved\n";
+      if (cmp->changes.empty())
+        out += cmp->capped ? "  no margin moved up to this run's ceiling\n" : "  no margin moved\n";
     }
   }
   out += fmt::format("\nresult  {}\n", paint(pass ? "pass" : "findings", pass));
@@ -283,6 +284,10 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
     spdlog::error("--update-baseline needs --baseline FILE to write to");
     return exit_status::error;
   }
+  if (o.baseline == "-") {
+    spdlog::error("--baseline -: a baseline is a file that is read and rewritten in place; give its path");
+    return exit_status::error;
+  }
   if (!search_options_valid(o)) return exit_status::error;
   // Refuse a baseline that cannot be written before the search spends any time.
   if (o.update_baseline) {
@@ -313,7 +318,8 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
         return exit_status::error;
       }
     } else if (!o.update_baseline) {
-      spdlog::error("cannot read baseline '{}': {}; write one with --update-baseline", o.baseline, why);
+      spdlog::error("cannot read baseline '{}': {}; write one with --update-baseline", o.baseline,
+                    why);
       return exit_status::error;
     }
   }

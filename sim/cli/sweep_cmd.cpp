@@ -18,6 +18,7 @@
 #include "sim/culprit.hpp"
 #include "sim/interval.hpp"
 #include "sim/sweep.hpp"
+#include "sim/time.hpp"
 #include "sim/time_parse.hpp"
 #include "waves/html.hpp"
 #include "waves/junit.hpp"
@@ -93,6 +94,7 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
     for (const auto& out : s.outcomes) {
       nlohmann::ordered_json e;
       e["status"] = status_name(out.status);
+      if (out.end_of_time) e["detail"] = end_of_time_words;
       e["values"] = values_json(n, r.reported, out.values);
       e["count"] = out.count;
       e["share"] = out.share;
@@ -239,6 +241,7 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
       for (std::size_t k = 0; k < r.reported.size() && k < oc.values.size(); ++k)
         vals += fmt::format("{}{}={}", k ? " " : "", n.net_name[r.reported[k]], to_char(oc.values[k]));
       if (!vals.empty()) out += fmt::format("       values  {}\n", vals);
+      if (oc.end_of_time) out += fmt::format("       reason  {}\n", end_of_time_words);
       out += fmt::format("       replay  {}\n", replay(o, oc.witness_name));
     }
     for (const auto& x : s.expects) {

@@ -122,6 +122,8 @@ CASES = [
          text="none.json': no such file"),
     dict(name="baseline to compare that is a folder", files={"b.json/x": ""},
          argv=[ARB, *FAST, "--baseline", "{d}/b.json"], rc=2, text="b.json': it is not a regular file"),
+    dict(name="baseline '-' while updating (was written to standard output)",
+         argv=[ARB, *FAST, "--baseline", "-", "--update-baseline"], rc=2, text="--baseline -: a baseline is a file"),
     # --- baselines that cannot be written: exit 2 naming the file, before the search ---
     dict(name="read-only baseline (root bypasses access(2))", files={"b.json": base_text(entry())},
          mode={"b.json": 0o444}, argv=[ARB, *FAST, "--baseline", "{d}/b.json", "--update-baseline"], rc=2,

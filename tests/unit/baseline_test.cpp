@@ -1,4 +1,4 @@
-// Baselines: errors that name the entry and field, lower bounds at the search ceiling, merging, locked updates.
+// Baselines: field errors, lower bounds at the search ceiling, merging, locked updates.
 #include <fcntl.h>
 #include <sys/file.h>
 #include <sys/stat.h>
@@ -52,7 +52,8 @@ TEST_CASE("baseline: errors name the entry and the field", "[baseline]") {
       &err));
   CHECK(err == "entry \"arbiter.settle\", field \"margin_pct\": expected a number");
   CHECK_FALSE(settle::parse_baseline(
-      R"({"format_version": 1, "designs": [{"design": "a", "margin_pct": 1, "steps": [{"margin_pct": 1}]}]})",
+      R"({"format_version": 1,
+          "designs": [{"design": "a", "margin_pct": 1, "steps": [{"margin_pct": 1}]}]})",
       &err));
   CHECK(err == "entry \"a\", steps[0], field \"index\": missing");
   CHECK_FALSE(
@@ -150,6 +151,11 @@ TEST_CASE("baseline: an update re-reads the file under the lock and keeps its mo
   // Read-only even for root (the mode bits count as well as access(2)).
   ::chmod(path.c_str(), 0444);
   CHECK(settle::baseline_unwritable(path).find("read-only") != std::string::npos);
+  // Made read-only after the check before the search: the update under the lock refuses it too.
+  r = settle::update_baseline_file(path, entry("d", 4, false, 100), "settle test", nullptr);
+  CHECK(r.status == settle::baseline_update_status::failed);
+  CHECK(r.error.find("read-only") != std::string::npos);
+  CHECK(slurp(path) == bytes);
   ::chmod(path.c_str(), 0644);
   CHECK(settle::baseline_unwritable(path).empty());
   (void)std::system(("rm -rf '" + dir + "'").c_str());
