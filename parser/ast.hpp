@@ -14,6 +14,7 @@ namespace x3 = boost::spirit::x3;
 struct name {
   std::string text;
   const char* pos = nullptr;
+  bool quoted = false;  ///< written "in double quotes": `text` is taken as it stands
 };
 
 /// A time literal: the digits as written ("1.5") and the unit as a power of

@@ -26,6 +26,17 @@ source_loc reporter::loc_of(const char* p) const {
 
 void reporter::report(diagnostic::level lv, source_loc at, const std::string& msg) {
   if (!seen_.insert(fmt::format("{}:{}:{}", at.line, at.col, msg)).second) return;
+  add(make(lv, at, msg));
+}
+
+void reporter::error_with_note(source_loc at, const std::string& msg, source_loc note_at, const std::string& note) {
+  if (!seen_.insert(fmt::format("{}:{}:{}", at.line, at.col, msg)).second) return;
+  diagnostic d = make(diagnostic::level::error, at, msg);
+  d.notes.push_back(make(diagnostic::level::note, note_at, note));
+  add(std::move(d));
+}
+
+diagnostic reporter::make(diagnostic::level lv, source_loc at, const std::string& msg) const {
   diagnostic d;
   d.severity = lv;
   d.file = file_;
@@ -38,6 +49,11 @@ void reporter::report(diagnostic::level lv, source_loc at, const std::string& ms
     while (e > b && (text_[e - 1] == '\r' || text_[e - 1] == '\n')) --e;
     set_source_line(d, text_.substr(b, e - b));
   }
+  return d;
+}
+
+void reporter::add(diagnostic d) {
+  const auto lv = d.severity;
   if (holding_) {
     held_.push_back(std::move(d));
     return;
@@ -158,7 +174,14 @@ struct visitor {
     rep.error(loc(), fmt::format("'{}' is only allowed inside stimulus {{ }}", kw));
     return false;
   }
+  // Quoted names only refer to existing nets, from a stimulus.
+  bool unquoted(const ast::name& n) {
+    if (!n.quoted) return true;
+    rep.error(rep.loc_of(n.pos), "a quoted name can only refer to a net inside stimulus { }");
+    return false;
+  }
   bool plain(const ast::name& n) {
+    if (!unquoted(n)) return false;
     if (n.text.find('.') == std::string::npos) return true;
     rep.error(rep.loc_of(n.pos), fmt::format("'{}': declared names cannot contain '.'", n.text));
     return false;
@@ -216,13 +239,14 @@ struct visitor {
   void operator()(const ast::inst_stmt& i) {
     if (!design_only("'inst' is")) return;
     inst out{lower_ref(i.id, rep), lower_ref(i.block, rep), {}};
-    for (auto& b : i.binds) out.binds.push_back({lower_ref(b.port, rep), lower_ref(b.target, rep)});
+    for (auto& b : i.binds)
+      if (unquoted(b.target)) out.binds.push_back({lower_ref(b.port, rep), lower_ref(b.target, rep)});
     scope->insts.push_back(std::move(out));
   }
   void operator()(const ast::init_stmt& i) {
     if (!design_only("'init' is")) return;
     for (auto& a : i.assigns) {
-      if (at == where::block && !plain(a.net)) continue;
+      if ((at == where::block && !plain(a.net)) || !unquoted(a.net)) continue;
       scope->inits.push_back({lower_ref(a.net, rep), lower_value(a.value)});
     }
   }
@@ -230,8 +254,8 @@ struct visitor {
     if (!stim_only(t.keyword)) return;
     stim_stmt s = make(t.keyword == "at" ? stim_stmt::kind::at : stim_stmt::kind::after);
     if (!lower_time(t.time, s.time, rep)) return;
-    s.time_loc = rep.loc_of(t.time.pos);
     s.has_time = true;
+    s.time_loc = rep.loc_of(t.time.pos);
     for (auto& a : t.assigns) s.nets.push_back(lower_ref(a.net, rep)), s.values.push_back(lower_value(a.value));
     stim->stmts.push_back(std::move(s));
   }
@@ -241,18 +265,20 @@ struct visitor {
     s.nets.push_back(lower_ref(c.net, rep));
     if (!lower_time(c.period, s.time, rep)) return;
     if (s.time == 0) return rep.error(rep.loc_of(c.period.pos), "a clock period must be greater than zero");
+    s.time_loc = s.time2_loc = rep.loc_of(c.period.pos);
     if (c.high) {
       if (!lower_time(*c.high, s.time2, rep)) return;
       if (s.time2 == 0 || s.time2 >= s.time)
         return rep.error(rep.loc_of(c.high->pos), "a clock's high time must be greater than zero and shorter "
                                                   "than its period");
       s.has_time2 = true;
+      s.time2_loc = rep.loc_of(c.high->pos);
     }
     s.cycles = c.cycles.value_or(0ULL);
     if (c.at) {
       if (!lower_time(*c.at, s.at, rep)) return;
       s.has_at = true;
-      s.time_loc = rep.loc_of(c.at->pos);
+      s.at_loc = rep.loc_of(c.at->pos);
     }
     stim->stmts.push_back(std::move(s));
   }
@@ -349,6 +375,7 @@ struct visitor {
     stim_stmt s = make(stim_stmt::kind::run);
     if (!lower_time(r.time, s.time, rep)) return;
     s.has_time = true;
+    s.time_loc = rep.loc_of(r.time.pos);
     stim->stmts.push_back(std::move(s));
   }
   void operator()(const ast::expect_stmt& e) {

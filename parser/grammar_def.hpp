@@ -56,6 +56,13 @@ inline auto const set_name = [](auto& ctx) {
   auto dot = _val(ctx).text.find('.');
   _pass(ctx) = !is_reserved(std::string_view(_val(ctx).text).substr(0, dot));
 };
+// A quoted name: the bytes between the quotes, looked up as they stand.
+inline auto const set_quoted_name = [](auto& ctx) {
+  auto& r = _attr(ctx);
+  _val(ctx).text.assign(r.begin(), r.end());
+  _val(ctx).pos = &*r.begin();
+  _val(ctx).quoted = true;
+};
 inline auto const set_const_name = [](auto& ctx) {
   auto& r = _attr(ctx);
   _val(ctx).text.assign(r.begin(), r.end());
@@ -89,6 +96,7 @@ using raw_range = boost::iterator_range<const char*>;
 x3::rule<class ident_raw, raw_range> const ident_raw = "name_";
 x3::rule<class ref_raw, raw_range> const ref_raw = "ref_";
 x3::rule<class const_raw, raw_range> const const_raw = "target_";
+x3::rule<class quoted_raw, raw_range> const quoted_raw = "ref_";
 x3::rule<class number_raw, raw_range> const number_raw = "time_";
 x3::rule<class name_, ast::name> const name_ = "name_";
 x3::rule<class ref_, ast::name> const ref_ = "ref_";
@@ -160,10 +168,13 @@ auto const args_def = arg >> *(',' > arg);
 // ---- lexemes
 auto const ident_raw_def = x3::raw[x3::lexeme[ident_chars]];
 auto const ref_raw_def = x3::raw[x3::lexeme[ident_chars >> *('.' >> ident_chars)]];
+// "NAME": any bytes but a quote, a line break or a control byte, at least one.
+auto const quoted_raw_def =
+    x3::lexeme['"' >> x3::raw[+(x3::char_ - x3::char_('"') - x3::char_('\x00', '\x1f'))] >> '"'];
 auto const const_raw_def = x3::raw[x3::lexeme[x3::char_("01") >> word_end]];
 auto const number_raw_def = x3::raw[x3::lexeme[+x3::digit >> -('.' >> +x3::digit)]];
 auto const name__def = ident_raw[detail::set_name];
-auto const ref__def = ref_raw[detail::set_name];
+auto const ref__def = ref_raw[detail::set_name] | quoted_raw[detail::set_quoted_name];
 auto const const_name_def = const_raw[detail::set_const_name];
 // No semantic action at this level, so the alternative's attribute propagates.
 auto const target__def = ref_ | const_name;
@@ -237,7 +248,7 @@ auto const expect_def = x3::raw[kw("expect")] > expect_body;
 auto const statement_rule_def = decl | default_ | block_head | inst | init | timed | clock | settle_ | run |
                                 expect | when_ | property | gauge | gate;
 
-BOOST_SPIRIT_DEFINE(ident_raw, ref_raw, const_raw, number_raw, const_name, name_, ref_, target_, time_unit, time_, range_, rise_fall, delay_body, or_expr, xor_expr,
+BOOST_SPIRIT_DEFINE(ident_raw, ref_raw, quoted_raw, const_raw, number_raw, const_name, name_, ref_, target_, time_unit, time_, range_, rise_fall, delay_body, or_expr, xor_expr,
                     and_expr, unary, primary, arg, call, rhs, gate, decl, default_, port_group, block_head,
                     binding, inst, value_, assign, assigns, init, timed, clock, cycles_count, settle_, run,
                     expect_within, expect_glitch, expect_word, expect_body, expect, ref_list, name_list,

@@ -69,9 +69,10 @@ struct stim_stmt {
   std::uint64_t cycles = 0;
   std::vector<ref> nets;
   std::vector<logic> values;
+  source_loc time_loc, time2_loc;  ///< where the time literals are written (at/after/run/clock)
   std::string text;              ///< the statement as written, trimmed
   source_loc loc;
-  source_loc time_loc;           ///< at: the time literal; clock: its `at` literal (has_at)
+  source_loc at_loc;             ///< clock: its `at` literal (has_at)
   bool has_at = false;           ///< clock ... at T
   time_fs at = 0;                ///< clock ... at T
   // Closed-loop statements.
@@ -121,6 +122,8 @@ class reporter {
   /// The text of a 1-based line, without its newline ("" when out of range).
   std::string line_text(std::uint32_t line) const;
   void warning(source_loc at, const std::string& msg) { report(diagnostic::level::warning, at, msg); }
+  /// An error with a note at a second place (the other half of a conflict).
+  void error_with_note(source_loc at, const std::string& msg, source_loc note_at, const std::string& note);
   std::size_t errors() const { return errors_; }
   const std::string& file() const { return file_; }
   /// While holding, diagnostics wait aside (and do not count) until release() or drop().
@@ -129,6 +132,9 @@ class reporter {
   void drop() { held_.clear(); }
 
  private:
+  diagnostic make(diagnostic::level lv, source_loc at, const std::string& msg) const;
+  void add(diagnostic d);
+
   std::string_view text_;
   std::string file_;
   diagnostics& out_;
@@ -160,6 +166,11 @@ void check_top_gates(const file& f, reporter& rep);
 /// statements on the way; reports their syntax errors and, when there are
 /// none, elaboration errors. Releases the file's top-level lists as it goes.
 void elaborate(file& f, netlist& nl, reporter& rep);
+
+/// Reports stimulus times whose use passes the end of representable time
+/// (given the design's longest delay), two assignments to one input at one
+/// instant of a step and two clocks on one net in one step.
+void check_stimulus(const stim_block& sb, const netlist& nl, reporter& rep);
 
 /// Turns stimulus statements into steps against an elaborated netlist.
 void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, reporter& rep);

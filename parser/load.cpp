@@ -70,7 +70,10 @@ class source_text {
 
  private:
   static bool fail(const std::string& path, diagnostics& diags, std::string why) {
-    diags.add({diagnostic::level::error, path, 0, 0, std::move(why), ""});
+    diagnostic d;
+    d.file = path;
+    d.message = std::move(why);
+    diags.add(std::move(d));
     return false;
   }
   void* map_ = nullptr;
@@ -146,8 +149,10 @@ std::optional<design> load_design_text(std::string_view text, const std::string&
 
 std::optional<design> load_design(const std::string& path, const load_options& opt, diagnostics& diags) {
   if (opt.format != "auto" && opt.format != "settle" && opt.format != "bench") {
-    diags.add({diagnostic::level::error, path, 0, 0,
-               fmt::format("unknown format '{}' (use auto, settle or bench)", opt.format), ""});
+    diagnostic d;
+    d.file = path;
+    d.message = fmt::format("unknown format '{}' (use auto, settle or bench)", opt.format);
+    diags.add(std::move(d));
     return std::nullopt;
   }
   source_text src;

@@ -22,6 +22,7 @@ expectation make_expect(expectation::kind k, net_id net, const std::string& ref,
 void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, reporter& rep) {
   out = stimulus{};
   if (!sb.present) return;
+  check_stimulus(sb, nl, rep);
   auto net_of = [&](const ref& r) -> net_id {
     net_id n = nl.find(r.name);
     if (n == no_id || n <= netlist::const1) {
@@ -138,11 +139,11 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
         if (s.has_at) {
           a.anchored = true;
           a.time = s.at;
-          a.time_loc = s.time_loc;
-          a.source_line = rep.line_text(s.time_loc.line);
+          a.time_loc = s.at_loc;
+          a.source_line = rep.line_text(s.at_loc.line);
           if (s.at < reached)
-            rep.error(s.time_loc, fmt::format("'at {}' is earlier than {}, a time the stimulus has already reached",
-                                              format_time(s.at), format_time(reached)));
+            rep.error(s.at_loc, fmt::format("'at {}' is earlier than {}, a time the stimulus has already reached",
+                                            format_time(s.at), format_time(reached)));
         }
         if (!step_has_first) step_first = reached, step_has_first = true;
         if (!s.has_time2 && a.clock.high == 0)

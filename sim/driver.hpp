@@ -10,10 +10,12 @@
 
 #include "sim/kernel.hpp"
 #include "sim/simulator.hpp"
+#include "sim/time.hpp"
 
 namespace settle::detail {
 
-inline constexpr time_fs never = std::numeric_limits<time_fs>::max();
+// Also the time of an input change or clock edge past the end of representable time.
+inline constexpr time_fs never = time_never;
 inline constexpr time_fs one_ns = 1'000'000;
 
 struct timed_input {
@@ -28,12 +30,8 @@ struct clock_state {
   logic next_value = logic::one;
   time_fs rise = 0;
   std::uint64_t edges_left = 0;  // UINT64_MAX: forever
+  bool past_end = false;         // its next edge lies past the end of representable time
 };
-
-// Time is a 64-bit count of femtoseconds; a stimulus whose times add up past
-// it is clamped to the last representable instant (the step then times out)
-// instead of wrapping around.
-constexpr time_fs add_saturating(time_fs a, time_fs b) { return a > never - 1 - b ? never - 1 : a + b; }
 
 template <class Sim>
 class driver {
@@ -43,7 +41,7 @@ class driver {
   driver(Sim& sim, const design& d, const run_options& opt, const delay_table* delays = nullptr)
       : d_(d), sim_(sim), opt_(opt), delays_(delays) {
     const time_fs m = d.nets.largest_max_delay();
-    horizon_ = opt.horizon ? opt.horizon : std::max<time_fs>(m > never / 10000 ? never : m * 10000, one_ns);
+    horizon_ = opt.horizon ? opt.horizon : std::max<time_fs>(checked_mul(m, 10000).value_or(time_last), one_ns);
     auto report = [&](net_id n) {
       if (std::find(result_.reported.begin(), result_.reported.end(), n) == result_.reported.end())
         result_.reported.push_back(n);
@@ -60,6 +58,10 @@ class driver {
   }
 
   run_result run() {
+    // No instant after this one is processed: whatever it schedules, at most
+    // the longest delay later, still falls at or before time_last. Checked
+    // here, once per run, so the kernel's per-event path never needs to.
+    ceiling_ = last_safe_instant(sim_.largest_delay());
     static const step_spec initial = [] {
       step_spec s;
       s.label = "initial";
@@ -120,7 +122,9 @@ class driver {
     clock_state c;
     c.spec = spec;
     c.next = c.rise = at;
-    c.edges_left = spec.cycles ? spec.cycles * 2 : std::numeric_limits<std::uint64_t>::max();
+    constexpr std::uint64_t forever = std::numeric_limits<std::uint64_t>::max();
+    // More cycles than 2^63 outlast representable time: the same as forever.
+    c.edges_left = spec.cycles && spec.cycles < forever / 2 ? spec.cycles * 2 : forever;
     clocks_.push_back(c);
   }
 
@@ -130,17 +134,24 @@ class driver {
       if (c.next != t) continue;
       out.push_back({c.spec.net, c.next_value});
       if (c.edges_left != std::numeric_limits<std::uint64_t>::max()) --c.edges_left;
+      std::optional<time_fs> next;
       if (c.next_value == logic::one) {
-        c.next = c.rise + c.spec.high;
+        next = checked_add(c.rise, c.spec.high);
         c.next_value = logic::zero;
       } else {
-        c.rise += c.spec.period;
-        c.next = c.rise;
+        next = checked_add(c.rise, c.spec.period);
+        if (next) c.rise = *next;
         c.next_value = logic::one;
       }
+      c.next = next.value_or(never);
+      c.past_end = !next && c.edges_left != 0;
       if (c.edges_left == 0) c.next = never;
     }
-    std::erase_if(clocks_, [](const clock_state& c) { return c.next == never; });
+    std::erase_if(clocks_, [](const clock_state& c) { return c.next == never && !c.past_end; });
+  }
+
+  bool clock_past_end() const {
+    return std::any_of(clocks_.begin(), clocks_.end(), [](const clock_state& c) { return c.past_end; });
   }
 
   // --max-events reached, or the caller asked to stop.
@@ -164,7 +175,7 @@ class driver {
     for (const auto& a : spec.actions) {
       time_fs t = cursor;
       const bool absolute = a.what == stim_action::kind::at || (a.what == stim_action::kind::clock && a.anchored);
-      if (absolute && a.time < std::max(cursor, sim_.now())) {
+      if (absolute && cursor != never && a.time < std::max(cursor, sim_.now())) {
         // Applied late it would run a different stimulus than written.
         diagnostic dg;
         dg.file = d_.stim.file;
@@ -178,7 +189,7 @@ class driver {
         return;
       }
       if (a.what == stim_action::kind::at) t = a.time;
-      else if (a.what == stim_action::kind::after) t = add_saturating(cursor, a.time);
+      else if (a.what == stim_action::kind::after) t = checked_add(cursor, a.time).value_or(never);  // past the end: never
       if (a.what == stim_action::kind::rule || a.what == stim_action::kind::property ||
           a.what == stim_action::kind::gauge) {
         acts_.push_back({t, &a});
@@ -196,22 +207,7 @@ class driver {
     }
     std::stable_sort(pending_.begin(), pending_.end(),
                      [](const timed_input& x, const timed_input& y) { return x.time < y.time; });
-    r.start = start;
-    if (cursor == never - 1 || (!pending_.empty() && pending_.back().time == never - 1)) {
-      // The stimulus ran past the end of representable time: nothing of this
-      // step can happen, so it ends as a timeout and the run stops here.
-      r.status = step_status::timeout;
-      r.end = never - 1;
-      for (std::size_t i = 0; i < result_.reported.size(); ++i) {
-        r.start_values.push_back(sim_.values()[result_.reported[i]]);
-        r.values.push_back(sim_.values()[result_.reported[i]]);
-        r.transitions.push_back(0);
-      }
-      stopped_ = true;
-      ref_ = r.end;
-      result_.steps.push_back(std::move(r));
-      return;
-    }
+    r.start = std::min(start, time_last);
 
     // What the step's expectations and report need counted from its start.
     const auto& vals = sim_.values();
@@ -225,7 +221,13 @@ class driver {
         glitch_tog.push_back(sim_.toggle_count(e.net)), glitch_start.push_back(vals[e.net]);
 
     const bool settle_step = spec.end == step_spec::end_kind::settle;
-    const time_fs limit = add_saturating(start, settle_step ? horizon_ : spec.run_for);
+    // The step's limit, and the last instant it may process: a limit past
+    // ceiling_ (or past the end of time) cannot be reached, and the step then
+    // ends as a timeout at the end of representable time.
+    const auto true_limit = checked_add(start, settle_step ? horizon_ : spec.run_for);
+    const time_fs limit = true_limit.value_or(time_last);
+    const time_fs last_instant = std::min(limit, ceiling_);
+    const bool limit_unreachable = !true_limit || limit > ceiling_;
     const time_fs change_before = sim_.last_change();
     std::size_t next_input = 0;
     // Brent's cycle detection over instants once every input of the step is
@@ -254,7 +256,7 @@ class driver {
       if (next_act_ < acts_.size()) outside = std::min(outside, acts_[next_act_].first);
       time_fs t = sim_.next_event_time();
       // With rules, properties or gauges active every instant is looked at.
-      if (t < outside && t <= limit && !observing_) {
+      if (t < outside && t <= last_instant && !observing_) {
         // Instants of gate events alone go to the kernel in a batch, until
         // repeat detection is due: it starts once the step's inputs are all
         // in and `warmup` instants have passed. Batches stay short enough for
@@ -263,7 +265,7 @@ class driver {
             settle_step && next_input == pending_.size() && clock_starts_.empty() && next_act_ == acts_.size();
         const std::uint64_t budget = !counting ? 4096 : settling + 1 < warmup ? warmup - 1 - settling : 0;
         if (budget) {
-          const std::uint64_t n = sim_.run_quiet(std::min(limit, outside - 1), budget, opt_.max_events);
+          const std::uint64_t n = sim_.run_quiet(std::min(last_instant, outside - 1), budget, opt_.max_events);
           if (counting) settling += n;
           if (limited()) {
             r.status = step_status::event_limit;
@@ -275,11 +277,23 @@ class driver {
         }
       }
       t = std::min(t, outside);
-      if (t == never) {
+      // An input change or clock edge lies past the end of representable
+      // time: unreachable before the step's limit only if the limit is.
+      const bool past_end = t == never && (next_input < pending_.size() || !clock_starts_.empty() || clock_past_end() ||
+                                           !firings_.empty() || next_act_ < acts_.size());
+      if (past_end && limit_unreachable) {
+        end_of_time(r, last_instant);
+        break;
+      }
+      if (t == never && !past_end) {
         r.status = step_status::settled;
         break;
       }
-      if (t > limit) {
+      if (t > last_instant && limit_unreachable) {
+        end_of_time(r, last_instant);
+        break;
+      }
+      if (past_end || t > limit) {  // past_end: the limit comes first
         r.status = settle_step ? step_status::timeout : step_status::running;
         r.end = limit;
         break;
@@ -344,7 +358,7 @@ class driver {
         firings_.empty() && clock_starts_.empty())
       r.status = step_status::settled;
     // A `run T` window always advances by T.
-    if (!settle_step && r.status != step_status::event_limit) r.end = limit;
+    if (!settle_step && r.status != step_status::event_limit && !r.end_of_time) r.end = limit;
     // Quiet while the environment still owes firings: nothing can wake it.
     if (r.status == step_status::settled) {
       for (std::uint32_t i = 0; i < rules_.size(); ++i) {
@@ -443,7 +457,7 @@ class driver {
 
   void schedule_firing(time_fs t, std::uint32_t i) {
     auto& st = rules_[i];
-    const firing f{add_saturating(t, delay_of_rule(i, st.scheduled)), firing_seq_++, i};
+    const firing f{checked_add(t, delay_of_rule(i, st.scheduled)).value_or(never), firing_seq_++, i};
     ++st.scheduled;
     auto at = std::upper_bound(firings_.begin(), firings_.end(), f, [](const firing& x, const firing& y) {
       return x.time != y.time ? x.time < y.time : x.seq < y.seq;
@@ -534,6 +548,15 @@ class driver {
     }
   }
 
+  // The step cannot go on without passing the end of representable time: a
+  // timeout that says so, and the run stops (nothing after it is reachable).
+  void end_of_time(step_result& r, time_fs at) {
+    r.status = step_status::timeout;
+    r.end_of_time = true;
+    r.end = std::max(at, r.start);
+    stopped_ = true;
+  }
+
   void check_expectations(const step_spec& spec, step_result& r, const std::vector<std::uint32_t>& glitch_tog,
                           const std::vector<logic>& glitch_start) {
     std::size_t glitch_i = 0;
@@ -603,6 +626,7 @@ class driver {
   run_result result_;
   time_fs horizon_ = 0;
   time_fs ref_ = 0;
+  time_fs ceiling_ = time_last;
   bool stopped_ = false;
   std::vector<timed_input> pending_;
   std::vector<std::pair<time_fs, clock_spec>> clock_starts_;

@@ -64,6 +64,9 @@ struct step_result {
   step_status status = step_status::settled;
   time_fs settle = 0;     ///< last value change minus start
   time_fs period = 0;     ///< oscillating only
+  /// A timeout because the step could not go on without passing the end of
+  /// representable time (sim/time.hpp); `end` is the last instant it could process.
+  bool end_of_time = false;
   std::vector<net_id> toggling;          ///< oscillating only
   std::vector<logic> values;             ///< per reported net, at the end
   std::vector<logic> start_values;       ///< per reported net, at the start

@@ -8,6 +8,8 @@
 
 #include <fmt/format.h>
 
+#include "sim/time.hpp"
+
 namespace settle {
 namespace {
 
@@ -62,7 +64,7 @@ margin_failure describe(const sweep_plan& plan, const sweep_step& s, double w) {
         if (f.detail.empty())
           f.detail = o.status == step_status::oscillating
                          ? fmt::format("oscillating with period {}", format_time(o.period))
-                         : std::string(status_name(o.status));
+                         : std::string(o.end_of_time ? end_of_time_words : status_name(o.status));
       }
     if (f.witness.empty() && !s.outcomes.empty()) f.witness = at_spread(plan, s.outcomes[0].witness, w).name();
   }
@@ -85,9 +87,9 @@ margin_failure describe_property(const sweep_plan& plan, const sweep_property& p
 }  // namespace
 
 time_fs default_horizon(const netlist& n) {
-  constexpr time_fs never = UINT64_MAX;
+  // 10,000 x the largest delay, clamped to the last representable instant.
   const time_fs m = n.largest_max_delay();
-  return std::max<time_fs>(m > never / 10000 ? never : m * 10000, one_ns);
+  return std::max<time_fs>(checked_mul(m, 10000).value_or(time_last), one_ns);
 }
 
 std::string spread_percent(double w) {

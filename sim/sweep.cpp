@@ -18,10 +18,12 @@
 namespace settle {
 namespace {
 
-// An outcome as bytes: status, period (oscillating only), then the values.
-std::string key_of(step_status status, time_fs period, const std::vector<logic>& values) {
+// An outcome as bytes: status (0x40 set for a timeout at the end of
+// representable time), period (oscillating only), then the values.
+constexpr char end_of_time_bit = 0x40;
+std::string key_of(step_status status, time_fs period, const std::vector<logic>& values, bool end_of_time = false) {
   std::string k(1 + sizeof(time_fs) + values.size(), '\0');
-  k[0] = static_cast<char>(status);
+  k[0] = static_cast<char>(static_cast<char>(status) | (end_of_time ? end_of_time_bit : 0));
   if (status != step_status::oscillating) period = 0;
   std::memcpy(k.data() + 1, &period, sizeof period);
   for (std::size_t i = 0; i < values.size(); ++i) k[1 + sizeof(time_fs) + i] = static_cast<char>(values[i]);
@@ -29,7 +31,8 @@ std::string key_of(step_status status, time_fs period, const std::vector<logic>&
 }
 
 void decode_key(const std::string& k, sweep_outcome& o) {
-  o.status = static_cast<step_status>(k[0]);
+  o.status = static_cast<step_status>(k[0] & ~end_of_time_bit);
+  o.end_of_time = (k[0] & end_of_time_bit) != 0;
   std::memcpy(&o.period, k.data() + 1, sizeof o.period);
   for (std::size_t i = 1 + sizeof(time_fs); i < k.size(); ++i) o.values.push_back(static_cast<logic>(k[i]));
 }
@@ -143,7 +146,7 @@ void work(shared_run& s, worker_state& w) {
       for (std::size_t k = 0; k < s.steps; ++k) {
         const bool ran = k < r.steps.size();
         // A run stopped by --max-events has no later steps: they count as stopped.
-        const std::string key = ran ? key_of(r.steps[k].status, r.steps[k].period, r.steps[k].values)
+        const std::string key = ran ? key_of(r.steps[k].status, r.steps[k].period, r.steps[k].values, r.steps[k].end_of_time)
                                     : key_of(step_status::event_limit, 0, unknown);
         auto& cache = w.cache[k];
         auto it = cache.find(key);

@@ -93,6 +93,7 @@ struct time_summary {
 /// Corners of one step that ended the same way.
 struct sweep_outcome {
   step_status status = step_status::settled;
+  bool end_of_time = false;    ///< a timeout at the end of representable time (step_result::end_of_time)
   std::vector<logic> values;   ///< per reported net
   time_fs period = 0;          ///< oscillating only
   std::uint64_t count = 0;

@@ -6,6 +6,7 @@
 #include <spdlog/spdlog.h>
 
 #include "sim/sweep.hpp"
+#include "sim/time.hpp"
 #include "sim/time_parse.hpp"
 
 namespace settle::cli {
@@ -37,7 +38,7 @@ bool parse_horizon_option(const std::string& text, time_fs& out) {
   if (text.empty()) return true;
   std::string err;
   auto h = parse_time(text, &err);
-  if (!h) {
+  if (!h || !horizon_ok(*h, err)) {
     spdlog::error("--horizon: {}", err);
     return false;
   }

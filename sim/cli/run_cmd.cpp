@@ -11,6 +11,7 @@
 #include "sim/cli/command.hpp"
 #include "sim/cli/report_common.hpp"
 #include "sim/kernel.hpp"
+#include "sim/time.hpp"
 #include "sim/time_parse.hpp"
 #include "waves/html.hpp"
 #include "waves/junit.hpp"
@@ -90,6 +91,7 @@ std::string result_json(const design& d, const run_result& r, const std::string&
     st["end_fs"] = s.end;
     st["status"] = status_name(s.status);
     st["settle_fs"] = s.settle;
+    if (s.end_of_time) st["detail"] = end_of_time_words;
     if (s.status == step_status::oscillating) {
       st["period_fs"] = s.period;
       st["toggling"] = nlohmann::ordered_json::array();
@@ -187,7 +189,8 @@ std::string table(const design& d, const run_result& r, const std::string& corne
       for (std::size_t i = 0; i < s.toggling.size() && i < 8; ++i) status += " " + n.net_name[s.toggling[i]];
       if (s.toggling.size() > 8) status += fmt::format(" ... ({} nets)", s.toggling.size());
     }
-    if (s.status == step_status::timeout || s.status == step_status::event_limit)
+    if (s.end_of_time) status = end_of_time_words;
+    else if (s.status == step_status::timeout || s.status == step_status::event_limit)
       status += fmt::format(" at {}", format_time(s.end));
     if (s.status == step_status::deadlock)
       status += fmt::format(" after {}, {} rule{} owed", format_time(s.settle), s.owed.size(),

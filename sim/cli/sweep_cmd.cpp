@@ -19,6 +19,7 @@
 #include "sim/culprit.hpp"
 #include "sim/interval.hpp"
 #include "sim/sweep.hpp"
+#include "sim/time.hpp"
 #include "sim/time_parse.hpp"
 #include "waves/html.hpp"
 #include "waves/junit.hpp"
@@ -145,6 +146,7 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
     for (const auto& out : s.outcomes) {
       nlohmann::ordered_json e;
       e["status"] = status_name(out.status);
+      if (out.end_of_time) e["detail"] = end_of_time_words;
       e["values"] = values_json(n, r.reported, out.values);
       e["count"] = out.count;
       e["share"] = out.share;
@@ -338,6 +340,7 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
       for (std::size_t k = 0; k < r.reported.size() && k < oc.values.size(); ++k)
         vals += fmt::format("{}{}={}", k ? " " : "", n.net_name[r.reported[k]], to_char(oc.values[k]));
       if (!vals.empty()) out += fmt::format("       values  {}\n", vals);
+      if (oc.end_of_time) out += fmt::format("       reason  {}\n", end_of_time_words);
       for (const auto& w : oc.owed)
         out += fmt::format("       owed    {} (fired {} of {}; condition {})\n", d.stim.rules[w.rule].text, w.fired,
                            w.times, to_char(w.condition));
