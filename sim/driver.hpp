@@ -36,8 +36,10 @@ struct clock_state {
 template <class Sim>
 class driver {
  public:
-  /// `sim` must be freshly reset.
-  driver(Sim& sim, const design& d, const run_options& opt) : d_(d), sim_(sim), opt_(opt) {
+  /// `sim` must be freshly reset. `delays` is the run's table (reaction
+  /// rules draw their delays from its corner); null: rules take typ.
+  driver(Sim& sim, const design& d, const run_options& opt, const delay_table* delays = nullptr)
+      : d_(d), sim_(sim), opt_(opt), delays_(delays) {
     const time_fs m = d.nets.largest_max_delay();
     horizon_ = opt.horizon ? opt.horizon : std::max<time_fs>(checked_mul(m, 10000).value_or(time_last), one_ns);
     auto report = [&](net_id n) {
@@ -46,6 +48,13 @@ class driver {
     };
     for (net_id n : d.nets.outputs) report(n);
     for (net_id n : d.stim.watch) report(n);
+    rules_.resize(d.stim.rules.size());
+    props_.resize(d.stim.properties.size());
+    gauges_.resize(d.stim.gauges.size());
+    // Under random: and gauss: corners every firing draws its own delay, so a
+    // repeated state does not repeat the future: the firing counts join the
+    // state and such a loop is never called periodic.
+    draws_ = delays && (delays->which.what == corner::kind::random || delays->which.what == corner::kind::gauss);
   }
 
   run_result run() {
@@ -66,6 +75,18 @@ class driver {
     result_.events = sim_.events();
     result_.end = ref_;
     sim_.finish(ref_);
+    for (std::uint32_t i = 0; i < props_.size(); ++i) {
+      props_[i].result.property = i;
+      result_.properties.push_back(std::move(props_[i].result));
+    }
+    for (std::uint32_t i = 0; i < gauges_.size(); ++i) {
+      const auto& g = gauges_[i];
+      gauge_result x;
+      x.gauge = i;
+      x.count = g.count;
+      if (g.count) x.min = g.min, x.max = g.max, x.mean = static_cast<double>(g.sum) / static_cast<double>(g.count);
+      result_.gauges.push_back(x);
+    }
     return std::move(result_);
   }
 
@@ -77,10 +98,19 @@ class driver {
   }
 
   // Clock phases relative to now, part of the full state for repeat detection.
+  // Pending firings and bounded rules' counts too: they decide what the
+  // environment does next.
   void clock_state_words(std::vector<std::uint64_t>& out) const {
     out.clear();
     for (const auto& c : clocks_)
       out.insert(out.end(), {c.next - sim_.now(), static_cast<std::uint64_t>(c.next_value), c.edges_left});
+    for (const auto& f : firings_) out.insert(out.end(), {f.time - sim_.now(), f.rule});
+    for (std::size_t i = 0; i < rules_.size(); ++i) {
+      const auto& st = rules_[i];
+      if (!st.active) continue;
+      out.insert(out.end(), {i, static_cast<std::uint64_t>(st.last)});
+      if (d_.stim.rules[i].times || draws_) out.insert(out.end(), {st.scheduled, st.fired});
+    }
   }
 
   void stop_clock(net_id net) {
@@ -134,22 +164,45 @@ class driver {
     step_result r;
     r.index = index;
     r.label = spec.label;
+    for (auto& g : gauges_) g.step_begin();  // gauge expectations judge this step's samples
     // Lay out the step's input changes in time.
     pending_.clear();
     time_fs cursor = ref_;
     bool first = true;
     time_fs start = ref_;
+    acts_.clear();
+    next_act_ = 0;
     for (const auto& a : spec.actions) {
       time_fs t = cursor;
-      // An instant past the end of representable time stays `never`.
-      if (a.what == stim_action::kind::at) t = std::max(a.time, sim_.now());
-      else if (a.what == stim_action::kind::after) t = checked_add(cursor, a.time).value_or(never);
-      cursor = t;
-      if (first) start = t, first = false;
-      if (a.what == stim_action::kind::clock) {
-        clock_starts_.push_back({t, a.clock});
+      const bool absolute = a.what == stim_action::kind::at || (a.what == stim_action::kind::clock && a.anchored);
+      if (absolute && cursor != never && a.time < std::max(cursor, sim_.now())) {
+        // Applied late it would run a different stimulus than written.
+        diagnostic dg;
+        dg.file = d_.stim.file;
+        dg.line = a.time_loc.line;
+        dg.col = a.time_loc.col;
+        dg.message = fmt::format("'at {}' is earlier than {}, the time the stimulus has already reached",
+                                 format_time(a.time), format_time(std::max(cursor, sim_.now())));
+        set_source_line(dg, a.source_line);
+        result_.error = std::move(dg);
+        stopped_ = true;
+        return;
+      }
+      if (a.what == stim_action::kind::at) t = a.time;
+      else if (a.what == stim_action::kind::after) t = checked_add(cursor, a.time).value_or(never);  // past the end: never
+      if (a.what == stim_action::kind::rule || a.what == stim_action::kind::property ||
+          a.what == stim_action::kind::gauge) {
+        acts_.push_back({t, &a});
+        if (first) start = t, first = false;
         continue;
       }
+      if (a.what == stim_action::kind::clock) {
+        if (first) start = t, first = false;
+        clock_starts_.push_back({a.anchored ? a.time : t, a.clock});
+        continue;
+      }
+      cursor = t;
+      if (first) start = t, first = false;
       for (const auto& as : a.assigns) pending_.push_back({t, as});
     }
     std::stable_sort(pending_.begin(), pending_.end(),
@@ -199,13 +252,17 @@ class driver {
       time_fs outside = next_clock_edge();  // the next instant that brings inputs
       if (next_input < pending_.size()) outside = std::min(outside, pending_[next_input].time);
       for (const auto& [at, spec_c] : clock_starts_) outside = std::min(outside, at);
+      if (!firings_.empty()) outside = std::min(outside, firings_.front().time);
+      if (next_act_ < acts_.size()) outside = std::min(outside, acts_[next_act_].first);
       time_fs t = sim_.next_event_time();
-      if (t < outside && t <= last_instant) {
+      // With rules, properties or gauges active every instant is looked at.
+      if (t < outside && t <= last_instant && !observing_) {
         // Instants of gate events alone go to the kernel in a batch, until
         // repeat detection is due: it starts once the step's inputs are all
         // in and `warmup` instants have passed. Batches stay short enough for
         // the stop flag to be seen promptly.
-        const bool counting = settle_step && next_input == pending_.size() && clock_starts_.empty();
+        const bool counting =
+            settle_step && next_input == pending_.size() && clock_starts_.empty() && next_act_ == acts_.size();
         const std::uint64_t budget = !counting ? 4096 : settling + 1 < warmup ? warmup - 1 - settling : 0;
         if (budget) {
           const std::uint64_t n = sim_.run_quiet(std::min(last_instant, outside - 1), budget, opt_.max_events);
@@ -222,7 +279,8 @@ class driver {
       t = std::min(t, outside);
       // An input change or clock edge lies past the end of representable
       // time: unreachable before the step's limit only if the limit is.
-      const bool past_end = t == never && (next_input < pending_.size() || !clock_starts_.empty() || clock_past_end());
+      const bool past_end = t == never && (next_input < pending_.size() || !clock_starts_.empty() || clock_past_end() ||
+                                           !firings_.empty() || next_act_ < acts_.size());
       if (past_end && limit_unreachable) {
         end_of_time(r, last_instant);
         break;
@@ -250,14 +308,29 @@ class driver {
         inputs.push_back(pending_[next_input++].a);
       }
       if (!clocks_.empty()) clock_edges_at(t, inputs);
+      // The environment's firings due now, after the step's own changes.
+      while (!firings_.empty() && firings_.front().time == t) {
+        const firing f = firings_.front();
+        firings_.erase(firings_.begin());
+        ++rules_[f.rule].fired;
+        for (const auto& as : d_.stim.rules[f.rule].assigns) {
+          stop_clock(as.net);
+          inputs.push_back(as);
+        }
+      }
+      // Activations see the values before the instant, so a gauge or a
+      // property declared before an input change at the same time sees it.
+      while (next_act_ < acts_.size() && acts_[next_act_].first == t) activate(*acts_[next_act_++].second);
       sim_.process_instant(t, inputs);
+      if (observing_) observe(t, index);
       if (limited()) {
         r.status = step_status::event_limit;
         r.end = t;
         stopped_ = true;
         break;
       }
-      if (!settle_step || next_input < pending_.size() || !clock_starts_.empty()) continue;
+      if (!settle_step || next_input < pending_.size() || !clock_starts_.empty() || next_act_ < acts_.size())
+        continue;
       if (++settling < warmup) continue;
       if (settling == warmup) sim_.track_state(true);
       clock_state_words(extra);
@@ -281,8 +354,24 @@ class driver {
     const time_fs last = sim_.last_change();
     r.settle = last > change_before && last >= start ? last - start : 0;
     if (r.status == step_status::settled) r.end = start + r.settle;
-    if (r.status == step_status::running && sim_.quiet() && pending_.size() == next_input && clocks_.empty())
+    if (r.status == step_status::running && sim_.quiet() && pending_.size() == next_input && clocks_.empty() &&
+        firings_.empty() && clock_starts_.empty())
       r.status = step_status::settled;
+    // A `run T` window always advances by T.
+    if (!settle_step && r.status != step_status::event_limit && !r.end_of_time) r.end = limit;
+    // Quiet while the environment still owes firings: nothing can wake it.
+    if (r.status == step_status::settled) {
+      for (std::uint32_t i = 0; i < rules_.size(); ++i) {
+        const auto& st = rules_[i];
+        const auto& rule = d_.stim.rules[i];
+        if (st.active && rule.times && st.fired < rule.times)
+          r.owed.push_back({i, st.fired, rule.times, eval_expr(rule.condition, sim_.values().data())});
+      }
+      if (!r.owed.empty()) r.status = step_status::deadlock;
+    }
+    // Activations the step did not reach (it stopped early) still take effect
+    // for the steps after, at the end of this one.
+    while (next_act_ < acts_.size()) activate(*acts_[next_act_++].second);
     for (std::size_t i = 0; i < result_.reported.size(); ++i) {
       r.values.push_back(sim_.values()[result_.reported[i]]);
       r.transitions.push_back(sim_.toggle_count(result_.reported[i]) - tog_start[i]);
@@ -290,6 +379,173 @@ class driver {
     check_expectations(spec, r, glitch_tog, glitch_start);
     ref_ = r.end;
     result_.steps.push_back(std::move(r));
+  }
+
+  // ---- the closed-loop environment: reaction rules, properties, gauges
+  struct firing {
+    time_fs time;
+    std::uint64_t seq;
+    std::uint32_t rule;
+  };
+  struct rule_state {
+    bool active = false;
+    logic last = logic::x;  // the condition after the last instant looked at
+    std::uint64_t scheduled = 0, fired = 0;
+  };
+  struct prop_state {
+    bool active = false;
+    logic last = logic::x;  // rises/falls: the watched net after the last instant looked at
+    property_result result;
+  };
+  struct gauge_state {
+    bool active = false;
+    logic a = logic::x, b = logic::x;  // the nets after the last instant looked at
+    time_fs mark = never;              // period: the last rise; pulse: the start of the pulse
+    std::vector<time_fs> starts;       // latency: edges of the first net not yet paired
+    std::uint64_t count = 0, step_count = 0;
+    time_fs min = never, max = 0, step_min = never, step_max = 0;
+    unsigned __int128 sum = 0;
+    void sample(time_fs v) {
+      ++count, ++step_count;
+      min = std::min(min, v), max = std::max(max, v), sum += v;
+      step_min = std::min(step_min, v), step_max = std::max(step_max, v);
+    }
+    void step_begin() { step_count = 0, step_min = never, step_max = 0; }
+  };
+
+  void watch_nets(const std::vector<net_id>& nets) {
+    for (net_id n : nets)
+      if (std::find(observed_.begin(), observed_.end(), n) == observed_.end())
+        observed_.push_back(n), observed_last_.push_back(sim_.values()[n]);
+  }
+
+  void activate(const stim_action& a) {
+    const auto& vals = sim_.values();
+    observing_ = force_ = true;
+    switch (a.what) {
+      case stim_action::kind::rule: {
+        auto& st = rules_[a.index];
+        st.active = true;
+        st.last = logic::x;  // so a condition already true at the rule's line triggers it
+        watch_nets(d_.stim.rules[a.index].condition.nets);
+        break;
+      }
+      case stim_action::kind::property: {
+        auto& st = props_[a.index];
+        st.active = true;
+        st.last = vals[d_.stim.properties[a.index].net];
+        watch_nets(d_.stim.properties[a.index].nets);
+        break;
+      }
+      case stim_action::kind::gauge: {
+        auto& st = gauges_[a.index];
+        const auto& g = d_.stim.gauges[a.index];
+        st.active = true;
+        st.a = vals[g.nets[0]];
+        st.b = vals[g.nets.back()];
+        watch_nets(g.nets);
+        break;
+      }
+      default: break;
+    }
+  }
+
+  time_fs delay_of_rule(std::uint32_t i, std::uint64_t firing_no) const {
+    const auto& r = d_.stim.rules[i].delay;
+    return delays_ ? rule_delay(*delays_, r, i, firing_no) : r.typ;
+  }
+
+  void schedule_firing(time_fs t, std::uint32_t i) {
+    auto& st = rules_[i];
+    const firing f{checked_add(t, delay_of_rule(i, st.scheduled)).value_or(never), firing_seq_++, i};
+    ++st.scheduled;
+    auto at = std::upper_bound(firings_.begin(), firings_.end(), f, [](const firing& x, const firing& y) {
+      return x.time != y.time ? x.time < y.time : x.seq < y.seq;
+    });
+    firings_.insert(at, f);
+  }
+
+  static bool rises(logic before, logic after) { return before == logic::zero && after == logic::one; }
+  static bool falls(logic before, logic after) { return before == logic::one && after == logic::zero; }
+
+  // After the instant t (of step `step`): rules trigger, properties and
+  // gauges look at the values after all of the instant's changes.
+  void observe(time_fs t, std::size_t step) {
+    const auto& vals = sim_.values();
+    bool changed = force_;
+    for (std::size_t i = 0; i < observed_.size(); ++i)
+      if (vals[observed_[i]] != observed_last_[i]) changed = true, observed_last_[i] = vals[observed_[i]];
+    if (!changed) return;
+    force_ = false;
+    for (std::uint32_t i = 0; i < rules_.size(); ++i) {
+      auto& st = rules_[i];
+      if (!st.active) continue;
+      const auto& rule = d_.stim.rules[i];
+      const logic c = eval_expr(rule.condition, vals.data());
+      if (c == logic::one && st.last != logic::one && (!rule.times || st.scheduled < rule.times))
+        schedule_firing(t, i);
+      st.last = c;
+    }
+    for (std::uint32_t i = 0; i < props_.size(); ++i) {
+      auto& st = props_[i];
+      if (!st.active) continue;
+      const auto& p = d_.stim.properties[i];
+      bool bad = false;
+      switch (p.what) {
+        case property::kind::always: bad = eval_expr(p.expr, vals.data()) == logic::zero; break;
+        case property::kind::never: bad = eval_expr(p.expr, vals.data()) == logic::one; break;
+        case property::kind::never_rises_while:
+          bad = rises(st.last, vals[p.net]) && eval_expr(p.expr, vals.data()) == logic::one;
+          break;
+        case property::kind::never_falls_while:
+          bad = falls(st.last, vals[p.net]) && eval_expr(p.expr, vals.data()) == logic::one;
+          break;
+      }
+      st.last = vals[p.net];
+      if (bad && st.result.holds) {
+        st.result.holds = false;
+        st.result.first_violation = t;
+        st.result.step = step;
+        for (net_id n : p.nets) st.result.values.emplace_back(n, vals[n]);
+      }
+    }
+    for (std::uint32_t i = 0; i < gauges_.size(); ++i) {
+      auto& st = gauges_[i];
+      if (!st.active) continue;
+      const auto& g = d_.stim.gauges[i];
+      const logic a = vals[g.nets[0]], b = vals[g.nets.back()];
+      switch (g.what) {
+        case gauge::kind::period:
+          if (rises(st.a, a)) {
+            if (st.mark != never) st.sample(t - st.mark);
+            st.mark = t;
+          }
+          break;
+        case gauge::kind::pulse_high:
+        case gauge::kind::pulse_low: {
+          const bool high = g.what == gauge::kind::pulse_high;
+          if (high ? rises(st.a, a) : falls(st.a, a)) st.mark = t;
+          else if ((high ? falls(st.a, a) : rises(st.a, a)) && st.mark != never) st.sample(t - st.mark), st.mark = never;
+          else if (a == logic::x) st.mark = never;  // a pulse through x has no width
+          break;
+        }
+        case gauge::kind::latency: {
+          const bool from = g.from_rises ? rises(st.a, a) : falls(st.a, a);
+          const bool to = g.to_rises ? rises(st.b, b) : falls(st.b, b);
+          // Each edge of the first net pairs with the next edge of the
+          // second; on one net and one edge the edge closes the earlier ones.
+          const bool same = g.nets[0] == g.nets[1] && g.from_rises == g.to_rises;
+          if (from && !same) st.starts.push_back(t);
+          if (to) {
+            for (time_fs s0 : st.starts) st.sample(t - s0);
+            st.starts.clear();
+          }
+          if (from && same) st.starts.push_back(t);
+          break;
+        }
+      }
+      st.a = a, st.b = b;
+    }
   }
 
   // The step cannot go on without passing the end of representable time: a
@@ -346,6 +602,19 @@ class driver {
           // One corner cannot diverge from itself; sweeps judge this across corners.
           x.pass = true;
           break;
+        case expectation::kind::gauge: {
+          // Every sample the gauge took in this step lies inside; a step
+          // with none fails (a gauge that never ticks proves nothing).
+          const auto& g = gauges_[e.gauge];
+          x.pass = g.step_count && g.step_min >= e.lo && g.step_max <= e.hi;
+          if (!g.step_count)
+            x.detail = fmt::format("{} took no sample in this step", e.ref);
+          else if (!x.pass)
+            x.detail = fmt::format("{} ranged {}..{} over {} samples, expected within {}..{}", e.ref,
+                                   format_time(g.step_min), format_time(g.step_max), g.step_count,
+                                   format_time(e.lo), format_time(e.hi));
+          break;
+        }
       }
       r.expects.push_back(std::move(x));
     }
@@ -362,6 +631,19 @@ class driver {
   std::vector<timed_input> pending_;
   std::vector<std::pair<time_fs, clock_spec>> clock_starts_;
   std::vector<clock_state> clocks_;
+  const delay_table* delays_ = nullptr;
+  bool draws_ = false;      // rule delays drawn per firing (random:, gauss:)
+  bool observing_ = false;  // some rule, property or gauge is active
+  bool force_ = false;      // look at the next instant even if no observed net changed
+  std::vector<std::pair<time_fs, const stim_action*>> acts_;  // this step's activations, in order
+  std::size_t next_act_ = 0;
+  std::vector<rule_state> rules_;
+  std::vector<prop_state> props_;
+  std::vector<gauge_state> gauges_;
+  std::vector<firing> firings_;  // pending, by time then trigger order
+  std::uint64_t firing_seq_ = 0;
+  std::vector<net_id> observed_;
+  std::vector<logic> observed_last_;
 };
 
 }  // namespace settle::detail

@@ -205,7 +205,16 @@ class interval_kernel {
 
 }  // namespace
 
+std::string interval_refusal(const design& d) {
+  if (d.stim.rules.empty()) return {};
+  return "the interval run does not take reaction rules ('when'); run the corners without 'interval'";
+}
+
 interval_result run_interval(const design& d, const run_options& opt) {
+  if (!interval_refusal(d).empty()) {
+    interval_result none;
+    return none;
+  }
   interval_kernel k(d.nets);
   run_result r = detail::driver<interval_kernel>(k, d, opt).run();
   interval_result out;

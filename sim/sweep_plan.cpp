@@ -36,15 +36,17 @@ corner sweep_plan::corner_at(std::uint64_t i) const {
   return corner{};  // out of range: the caller's bug; typ is harmless
 }
 
-std::uint64_t sweep_result_bytes(const sweep_plan& plan, std::size_t steps) {
+std::uint64_t sweep_result_bytes(const sweep_plan& plan, std::size_t steps, std::size_t gauges) {
   // outcome_of (4) + settle_of (8) + the outcome's kept settle time (8) per
-  // corner and step, and one finished flag per corner. corners <= 2^26, so
-  // the product overflows only past 2^37 steps; saturate anyway.
+  // corner and step, one gauge mean (8) per corner and gauge, and one
+  // finished flag per corner. corners <= 2^26, so the product overflows only
+  // past 2^37 steps; saturate anyway.
   constexpr std::uint64_t per_cell = sizeof(std::uint32_t) + 2 * sizeof(time_fs);
-  const std::uint64_t cells_max = (UINT64_MAX - plan.corners) / per_cell;
   const std::uint64_t s = std::max<std::uint64_t>(steps, 1);
-  if (plan.corners && s > cells_max / plan.corners) return UINT64_MAX;
-  return plan.corners * s * per_cell + plan.corners;
+  if (s > UINT64_MAX / 64 / per_cell || gauges > UINT64_MAX / 64 / sizeof(double)) return UINT64_MAX;
+  const std::uint64_t per_corner = s * per_cell + gauges * sizeof(double) + 1;
+  if (plan.corners && per_corner > UINT64_MAX / plan.corners) return UINT64_MAX;
+  return plan.corners * per_corner;
 }
 
 bool sweep_plan::is_sampled(std::uint64_t i) const {

@@ -205,6 +205,12 @@ exit_status run_explore(const explore_cli_options& o) {
   if (!check_paths(uses)) return exit_status::error;
   auto d = load(o.design);
   if (!d) return exit_status::error;
+  if (!d->stim.rules.empty()) {
+    // Exploration applies each step's inputs and explores what follows; an
+    // environment that answers the circuit is not part of its model.
+    spdlog::error("explore does not take reaction rules ('when'); use run or sweep for a closed-loop stimulus");
+    return exit_status::error;
+  }
   const auto t0 = std::chrono::steady_clock::now();
   std::string err;
   auto r = explore_design(*d, eo, &err);

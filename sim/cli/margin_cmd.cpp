@@ -58,7 +58,10 @@ json failure_json(const design& d, const margin_cli_options& o, const margin_fai
   json j;
   j["spread_pct"] = 100.0 * f.spread;
   j["step"] = f.step;
-  if (f.expect_index && f.step <= d.stim.steps.size()) {
+  if (f.property && *f.property < d.stim.properties.size()) {
+    j["kind"] = "property";
+    j["property"] = d.stim.properties[*f.property].text;
+  } else if (f.expect_index && f.step <= d.stim.steps.size()) {
     j["kind"] = "expectation";
     j["expectation"] = expectation_words(d.nets, d.stim.steps[f.step - 1].expects[*f.expect_index]);
   } else {
@@ -138,6 +141,16 @@ std::string result_json(const design& d, const margin_cli_options& o, const marg
     if (s.failure) st["failure"] = failure_json(d, o, *s.failure);
     j["steps"].push_back(std::move(st));
   }
+  j["properties"] = json::array();
+  for (const auto& p : r.properties) {
+    json e;
+    e["text"] = d.stim.properties[p.index].text;
+    e["margin_pct"] = 100.0 * p.margin;
+    e["at_least"] = p.at_ceiling;
+    e["fails_at_zero"] = p.fails_at_zero;
+    if (p.failure) e["failure"] = failure_json(d, o, *p.failure);
+    j["properties"].push_back(std::move(e));
+  }
   j["settle_within"] = json::array();
   for (const auto& w : r.within) {
     json e = {{"step", w.step}, {"budget_fs", w.budget}, {"worst_fs", w.worst}, {"worst_corner", w.worst_corner},
@@ -152,7 +165,9 @@ std::string result_json(const design& d, const margin_cli_options& o, const marg
 
 std::string failure_text(const design& d, const margin_cli_options& o, const margin_failure& f, const std::string& in) {
   std::string what;
-  if (f.expect_index && f.step <= d.stim.steps.size())
+  if (f.property && *f.property < d.stim.properties.size())
+    what = fmt::format("{}: violated in {} of {} corners", d.stim.properties[*f.property].text, f.failing, f.corners);
+  else if (f.expect_index && f.step <= d.stim.steps.size())
     what = fmt::format("{}: fails in {} of {} corners", expectation_words(d.nets, d.stim.steps[f.step - 1].expects[*f.expect_index]),
                        f.failing, f.corners);
   else
@@ -191,10 +206,18 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
   for (const auto& s : r.steps)
     out += fmt::format("  {:>3}  {:<10}  {}\n", s.index, pct_words(s.margin, s.at_ceiling),
                        s.label.empty() ? "(no input change)" : s.label);
+  for (const auto& p : r.properties)
+    out += fmt::format("  {:>3}  {:<10}  {}\n", "", pct_words(p.margin, p.at_ceiling), d.stim.properties[p.index].text);
   for (const auto& s : r.steps)
-    if (s.failure && r.failure && s.index != r.failure->step) {
+    if (s.failure && r.failure && (r.failure->property || s.index != r.failure->step)) {
       out += fmt::format("\nstep {} fails at {}:\n", s.index, spread_percent(s.failure->spread));
       out += failure_text(d, o, *s.failure, "  ");
+    }
+  for (const auto& p : r.properties)
+    if (p.failure && r.failure && r.failure->property != p.failure->property) {
+      out += fmt::format("\n{} is violated at {}:\n", d.stim.properties[p.index].text,
+                         spread_percent(p.failure->spread));
+      out += failure_text(d, o, *p.failure, "  ");
     }
   if (!r.within.empty()) {
     out += "\nsettle-time margins at the written spread:\n";
@@ -335,9 +358,9 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   if (!d) return exit_status::error;
   {
     // A probe in flight and the sweep kept at the written spread hold per-corner results.
-    auto plan = plan_sweep(o.corners, o.seed, d->nets.gate_count(), &err);
+    auto plan = plan_sweep(o.corners, o.seed, delay_variables(*d), &err);
     const std::size_t steps = d->stim.steps.empty() ? 1 : d->stim.steps.size();
-    if (plan && !fits_memory(*plan, steps, 2, o.max_memory_mib)) return exit_status::error;
+    if (plan && !fits_memory(*plan, steps, 2, o.max_memory_mib, d->stim.gauges.size())) return exit_status::error;
   }
   if (!o.quiet && ::isatty(2) == 1)
     mo.progress = [](double w, std::uint64_t corners, bool pass) {
@@ -352,6 +375,11 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   if (mo.progress) std::fputs("\r\033[K", stderr);
   if (!r) {
     spdlog::error("{}", err);
+    return exit_status::error;
+  }
+  if (r->written.error) {
+    // The stimulus as written cannot go on in some corner: an input error.
+    std::fputs(format_diagnostic(*r->written.error).c_str(), stderr);
     return exit_status::error;
   }
   const bool stopped = r->stopped != sweep_stop::none;

@@ -26,6 +26,7 @@ const char* expect_kind_word(expectation::kind k) {
     case expectation::kind::within: return "within";
     case expectation::kind::no_glitch: return "no_glitch";
     case expectation::kind::deterministic: return "deterministic";
+    case expectation::kind::gauge: return "gauge";
   }
   return "?";
 }
@@ -128,14 +129,15 @@ void add_max_memory_option(CLI::App& cmd, std::uint64_t& mib) {
   auto* opt = cmd.add_option(
       "--max-memory", mib,
       fmt::format(
-          "memory for the per-corner results, in MiB (about 20 bytes per corner and step); a "
-          "larger sweep is refused before it starts (default {})",
+          "memory for the per-corner results, in MiB (about 20 bytes per corner and step, 8 per "
+          "corner and gauge); a larger sweep is refused before it starts (default {})",
           sweep_default_max_memory_mib));
   check_whole_number(opt, 1, std::uint64_t{1} << 40, "the memory in MiB");
 }
 
-bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib) {
-  const std::uint64_t one = sweep_result_bytes(plan, steps);
+bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib,
+                 std::size_t gauges) {
+  const std::uint64_t one = sweep_result_bytes(plan, steps, gauges);
   const std::uint64_t need = one > UINT64_MAX / copies ? UINT64_MAX : one * copies;
   if (need <= (mib << 20)) return true;
   spdlog::error("--corners '{}': {} corners x {} steps need about {:.0f} MiB for their results, more than "

@@ -60,9 +60,10 @@ void add_junit_option(CLI::App& cmd, std::string& path);
 void add_quiet_flag(CLI::App& cmd, bool& quiet);
 /// --max-memory MIB on sweep and margin: the per-corner results a sweep may hold.
 void add_max_memory_option(CLI::App& cmd, std::uint64_t& mib);
-/// True when `copies` sweeps of `plan` over `steps` steps fit in `mib` MiB of
-/// per-corner results (sweep_result_bytes); otherwise prints why on stderr
-/// (the caller exits 2 before any corner runs).
-bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib);
+/// True when `copies` sweeps of `plan` over `steps` steps and `gauges` gauges
+/// fit in `mib` MiB of per-corner results (sweep_result_bytes); otherwise
+/// prints why on stderr (the caller exits 2 before any corner runs).
+bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib,
+                 std::size_t gauges = 0);
 
 }  // namespace settle::cli

@@ -125,9 +125,14 @@ CASES = [
      ["run", "d.settle"], 2, ["d.settle:6:15: error: input 'a' is assigned twice", "d.settle:5:12: note:"], None),
     ("two clocks on one net", {"d.settle": lamp("clock a period 10ns", "clock a period 20ns", "run 100ns")},
      ["run", "d.settle"], 2, ["d.settle:6:11: error: input 'a' already has a clock", "d.settle:5:11: note:"], None),
-    ("the same instant in two steps is no conflict", {"d.settle": lamp("at 1ns a = 1", "settle", "at 1ns a = 0",
-                                                                       "settle", "expect q = 0")},
+    ("the same offset in two steps is no conflict", {"d.settle": lamp("after 1ns a = 1", "settle", "after 1ns a = 0",
+                                                                      "settle", "expect q = 0")},
      ["run", "d.settle"], 0, ["result  pass"], None),
+    # An absolute instant the stimulus has already passed would run another stimulus than the
+    # one written (parser/LANGUAGE.md, 'at' earlier than the time reached).
+    ("an 'at' a later step has passed is an error", {"d.settle": lamp("at 1ns a = 1", "settle", "at 1ns a = 0",
+                                                                       "settle")},
+     ["run", "d.settle"], 2, ["d.settle:7:8: error: 'at 1ns' is earlier than"], None),
     ("conflict in a --stim file names that file",
      {"d.settle": LAMP, "x.stim": "stimulus {\n  after 2ns a = 1\n  after 0ns a = 0\n  settle\n}\n"},
      ["run", "d.settle", "--stim", "x.stim"], 2, ["x.stim:3:13: error:", "x.stim:2:13: note:"], None),
