@@ -76,7 +76,7 @@ void iscas_cycles(benchmark::State& st, std::string path, std::uint64_t cycles) 
   }
   std::string error;
   delay_table table;
-  fill_delays(d->nets, *parse_corner("random:1", &error), table);
+  fill_delays(*d, *parse_corner("random:1", &error), table);
   run_context ctx(d->nets);
   std::uint64_t events = 0, settled = 0, steps = 0;
   for (auto _ : st) {

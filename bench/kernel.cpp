@@ -16,7 +16,7 @@ void kernel_run(benchmark::State& st, std::string path) {
   const design* d = design_or_skip(st, path);
   if (!d) return;
   delay_table table;
-  fill_delays(d->nets, *parse_corner("random:1", &error), table);
+  fill_delays(*d, *parse_corner("random:1", &error), table);
   run_context ctx(d->nets);
   std::uint64_t events = 0, runs = 0;
   for (auto _ : st) {

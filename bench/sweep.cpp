@@ -58,7 +58,7 @@ void sweep_setup(benchmark::State& st, std::string path) {
   for (auto _ : st) {
     for (std::uint64_t i = 0; i < plan->corners; ++i) {
       const auto t0 = clock::now();
-      fill_delays(d->nets, plan->corner_at(i), table);
+      fill_delays(*d, plan->corner_at(i), table);
       const auto t1 = clock::now();
       ctx.sim().reset(table);
       const auto t2 = clock::now();

@@ -26,7 +26,7 @@ void vcd_write(benchmark::State& st, std::string path) {
   const design* d = design_or_skip(st, path);
   if (!d) return;
   delay_table table;
-  fill_delays(d->nets, *parse_corner("random:1", &error), table);
+  fill_delays(*d, *parse_corner("random:1", &error), table);
   recording_sink rec(keep_changes);
   run_stimulus(*d, table, run_options{}, &rec);
   std::unique_ptr<std::FILE, int (*)(std::FILE*)> f(std::tmpfile(), &std::fclose);

@@ -48,7 +48,38 @@ bool parse_u64(std::string_view s, std::uint64_t& out) {
   return ec == std::errc{} && p == s.data() + s.size();
 }
 
+// Where variable `var` sits in corner `c`: min, max or typ (extremes#2). Only
+// extremes and exhaustive corners move a variable; the caller handles the rest.
+time_fs enumerated(const corner& c, std::uint64_t var, const delay_range& r) {
+  if (c.what == corner::kind::exhaustive) return (var < 64 && (c.index >> var & 1)) ? r.max : r.min;
+  // extremes: 0 all-min, 1 all-max, 2 typ, then per variable: it at max with
+  // the others at min, and it at min with the others at max.
+  if (c.index == 0) return r.min;
+  if (c.index == 1) return r.max;
+  if (c.index == 2) return r.typ;
+  const auto k = c.index - 3;
+  const bool self = k / 2 == var, slow_self = k % 2 == 0;
+  return self == slow_self ? r.max : r.min;
+}
+
+bool fixed(const delay_range& r) { return r.min == r.max; }
+
 }  // namespace
+
+gate_variables variables_of(const gate_delay& d) {
+  gate_variables v;
+  v.rise = !fixed(d.rise);
+  v.fall = !fixed(d.fall);
+  v.shared = v.rise && d.rise == d.fall;
+  return v;
+}
+
+std::size_t delay_variables(const design& d) {
+  std::size_t count = 0;
+  for (gate_id g = 0; g < d.nets.gate_count(); ++g) count += variables_of(d.nets.delay[g]).count();
+  for (const auto& r : d.stim.rules) count += !fixed(r.delay);
+  return count;
+}
 
 delay_range scaled(const delay_range& r, double spread) {
   if (spread == 1.0) return r;
@@ -131,7 +162,6 @@ std::string corner_range_error(const corner& c, std::size_t variables) {
 time_fs rule_delay(const delay_table& t, const delay_range& range, std::uint32_t rule, std::uint64_t firing) {
   const corner& c = t.which;
   const delay_range r = scaled(range, c.spread);
-  const std::uint64_t var = t.rise.size() + rule;  // the rule's number among the corner variables
   // A stream of its own: the rule's draws never meet a gate's.
   const std::uint64_t key = mix(corner_key(c.seed, c.index) ^ mix(0x72756c65ull + rule));
   switch (c.what) {
@@ -140,15 +170,13 @@ time_fs rule_delay(const delay_table& t, const delay_range& range, std::uint32_t
     case corner::kind::max: return r.max;
     case corner::kind::random: return uniform(mix(key ^ (firing << 1)), r.min, r.max);
     case corner::kind::gauss: return gaussian(mix(key ^ (firing << 1)), mix(key ^ (firing << 1 | 1)), r);
-    case corner::kind::extremes: {
-      if (c.index == 0) return r.min;
-      if (c.index == 1) return r.max;
-      if (c.index == 2) return r.typ;
-      const auto k = c.index - 3;
-      const bool self = k / 2 == var, slow_self = k % 2 == 0;
-      return self == slow_self ? r.max : r.min;
+    case corner::kind::extremes:
+    case corner::kind::exhaustive: {
+      if (fixed(r)) return r.min;
+      // A table filled from the netlist alone numbers rules after the gates in order.
+      const std::uint64_t var = rule < t.rule_var.size() ? t.rule_var[rule] : t.gate_vars + rule;
+      return enumerated(c, var, r);
     }
-    case corner::kind::exhaustive: return (var < 64 && (c.index >> var & 1)) ? r.max : r.min;
   }
   return r.typ;
 }
@@ -156,38 +184,50 @@ time_fs rule_delay(const delay_table& t, const delay_range& range, std::uint32_t
 void fill_delays(const netlist& n, const corner& c, delay_table& out) {
   const auto gates = n.gate_count();
   out.which = c;
+  out.rule_var.clear();
   const std::uint64_t key = corner_key(c.seed, c.index);
   out.rise.resize(gates);
   out.fall.resize(gates);
+  const bool enumerating = c.what == corner::kind::extremes || c.what == corner::kind::exhaustive;
+  std::uint64_t var = 0;  // the next corner variable's number
   for (gate_id g = 0; g < gates; ++g) {
-    const delay_range rise = scaled(n.delay[g].rise, c.spread);
-    const delay_range fall = scaled(n.delay[g].fall, c.spread);
+    const gate_delay& d = n.delay[g];
+    const delay_range rise = scaled(d.rise, c.spread);
+    const delay_range fall = scaled(d.fall, c.spread);
+    if (enumerating) {
+      const gate_variables v = variables_of(d);
+      const std::uint64_t rise_var = var;
+      if (v.rise) ++var;
+      const std::uint64_t fall_var = v.shared ? rise_var : var;
+      if (v.fall && !v.shared) ++var;
+      out.rise[g] = v.rise ? enumerated(c, rise_var, rise) : rise.min;
+      out.fall[g] = v.fall ? enumerated(c, fall_var, fall) : fall.min;
+      continue;
+    }
+    // Draws are keyed by (gate, edge), not by variable: a random corner's
+    // name means the same delays whatever the other gates are.
     auto pick = [&](const delay_range& r, int edge) -> time_fs {
       switch (c.what) {
         case corner::kind::min: return r.min;
-        case corner::kind::typ: return r.typ;
         case corner::kind::max: return r.max;
         case corner::kind::random: return uniform(draw(key, g, edge, 0), r.min, r.max);
-        case corner::kind::gauss:
-          return gaussian(draw(key, g, edge, 0), draw(key, g, edge, 1), r);
-        case corner::kind::extremes: {
-          // 0 all-min, 1 all-max, 2 typ, then per gate: it at max with the
-          // others at min, and it at min with the others at max.
-          if (c.index == 0) return r.min;
-          if (c.index == 1) return r.max;
-          if (c.index == 2) return r.typ;
-          const auto k = c.index - 3;
-          const bool self = k / 2 == g, slow_self = k % 2 == 0;
-          return self == slow_self ? r.max : r.min;
-        }
-        case corner::kind::exhaustive:
-          return (g < 64 && (c.index >> g & 1)) ? r.max : r.min;
+        case corner::kind::gauss: return gaussian(draw(key, g, edge, 0), draw(key, g, edge, 1), r);
+        default: return r.typ;
       }
-      return r.typ;
     };
     out.rise[g] = pick(rise, 0);
     out.fall[g] = pick(fall, 1);
   }
+  out.gate_vars = var;
+}
+
+void fill_delays(const design& d, const corner& c, delay_table& out) {
+  fill_delays(d.nets, c, out);
+  if (c.what != corner::kind::extremes && c.what != corner::kind::exhaustive) return;
+  std::uint64_t var = out.gate_vars;
+  out.rule_var.resize(d.stim.rules.size());
+  for (std::size_t i = 0; i < d.stim.rules.size(); ++i)
+    out.rule_var[i] = fixed(d.stim.rules[i].delay) ? delay_table::none_var : var++;
 }
 
 }  // namespace settle

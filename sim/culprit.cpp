@@ -198,8 +198,8 @@ culprit_report find_culprits(const design& d, const run_options& opt, std::size_
 culprit_report find_culprits(const design& d, const run_options& opt, std::size_t step, const corner& a,
                              const corner& b, std::size_t max_tests) {
   delay_table ta, tb;
-  fill_delays(d.nets, a, ta);
-  fill_delays(d.nets, b, tb);
+  fill_delays(d, a, ta);
+  fill_delays(d, b, tb);
   const std::string names[2] = {a.name(), b.name()};
   return find_culprits(d, opt, step, ta, tb, names, max_tests);
 }

@@ -101,7 +101,8 @@ std::string spread_percent(double w) {
 
 std::string margin_result::confidence_note() const {
   if (exact)
-    return "exact over the corners searched: exhaustive covers every min/max assignment of the gate delays";
+    return "exact over the corners searched: exhaustive covers every min/max assignment of the delay variables "
+           "(each gate's rise and fall ranges, each rule's range)";
   if (sampled)
     return "a lower-confidence estimate: random corners can miss a failing corner, so the true margin may be "
            "smaller; only an exhaustive spec gives an exact figure";

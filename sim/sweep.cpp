@@ -136,7 +136,7 @@ void work(shared_run& s, worker_state& w) {
     for (;;) {
       const std::uint64_t i = s.next.fetch_add(1, std::memory_order_relaxed);
       if (i >= s.plan.corners || s.halt.load(std::memory_order_relaxed)) break;
-      fill_delays(s.d.nets, s.plan.corner_at(i), table);
+      fill_delays(s.d, s.plan.corner_at(i), table);
       const run_result r = run_stimulus(ctx, s.d, table, s.opt);
       if (s.halt.load(std::memory_order_relaxed)) break;  // possibly cut short: not a result
       if (r.error && i < w.stim_error_corner) w.stim_error_corner = i, w.stim_error = r.error;
@@ -357,7 +357,7 @@ void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt
       if (o.status != step_status::deadlock) continue;
       auto it = replays.find(o.witness);
       if (it == replays.end()) {
-        fill_delays(d.nets, plan.corner_at(o.witness), table);
+        fill_delays(d, plan.corner_at(o.witness), table);
         it = replays.emplace(o.witness, run_stimulus(d, table, opt)).first;
       }
       const auto& steps = it->second.steps;

@@ -47,13 +47,14 @@ struct sweep_plan {
 };
 
 /// Parses SPEC (`extremes`, `exhaustive`, `random:N`, `gauss:N`, `interval`,
-/// joined by `+`) for a design of `gates` gates. `extremes` gives 3 + 2g
-/// corners `extremes#k`; `exhaustive` 2^g corners `exhaustive#k` (refused
+/// joined by `+`) for a design of `variables` delay variables (delay_variables,
+/// sim/corner.hpp). `extremes` gives 3 + 2v
+/// corners `extremes#k`; `exhaustive` 2^v corners `exhaustive#k` (refused
 /// above 2^20); `random:N` corners `random:S#i`; `gauss:N` corners
 /// `gauss:S#i`. A second random (or gauss) item continues the numbering of
 /// the first, so no corner repeats. `interval` alone is a plan of 0 corners
 /// whose steps the min-max run judges. On error returns nullopt and sets *error.
-std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, std::size_t gates,
+std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, std::size_t variables,
                                      std::string* error);
 
 /// The default --max-memory of sweep and margin, in MiB (explore's is the same).

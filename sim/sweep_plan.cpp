@@ -56,7 +56,7 @@ bool sweep_plan::is_sampled(std::uint64_t i) const {
   return false;
 }
 
-std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, std::size_t gates,
+std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, std::size_t variables,
                                      std::string* error) {
   auto fail = [&](std::string why) -> std::optional<sweep_plan> {
     if (error) *error = std::move(why);
@@ -91,14 +91,14 @@ std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, 
       plan.interval = true;
     } else if (tok == "extremes") {
       it.what = corner::kind::extremes;
-      it.count = 3 + 2 * static_cast<std::uint64_t>(gates);
+      it.count = 3 + 2 * static_cast<std::uint64_t>(variables);
     } else if (tok == "exhaustive") {
-      if (gates >= 64 || (std::uint64_t{1} << gates) > exhaustive_limit)
-        return fail(fmt::format("--corners exhaustive: {} gates need 2^{} corners, more than the limit of 2^20 "
-                                "({}); sample instead, e.g. --corners extremes+random:10000",
-                                gates, gates, exhaustive_limit));
+      if (variables >= 64 || (std::uint64_t{1} << variables) > exhaustive_limit)
+        return fail(fmt::format("--corners exhaustive: {} delay variables need 2^{} corners, more than the limit "
+                                "of 2^20 ({}); sample instead, e.g. --corners extremes+random:10000",
+                                variables, variables, exhaustive_limit));
       it.what = corner::kind::exhaustive;
-      it.count = std::uint64_t{1} << gates;
+      it.count = std::uint64_t{1} << variables;
     } else if (tok.starts_with("random:") || tok.starts_with("gauss:")) {
       const bool random = tok[0] == 'r';
       it.what = random ? corner::kind::random : corner::kind::gauss;

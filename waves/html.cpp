@@ -114,7 +114,7 @@ replay replay_corner(const design& d, const corner& c, const run_options& ro, co
   replay r;
   r.rec = std::make_unique<html_recorder>(d.nets.net_count(), nets);
   delay_table delays;
-  fill_delays(d.nets, c, delays);
+  fill_delays(d, c, delays);
   r.result = run_stimulus(d, delays, ro, r.rec.get());
   r.changes = r.rec->changes_between(0, std::numeric_limits<time_fs>::max());
   return r;

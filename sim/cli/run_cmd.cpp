@@ -283,7 +283,7 @@ exit_status run_run(const run_cli_options& o) {
   }
 
   delay_table delays;
-  fill_delays(d->nets, *c, delays);
+  fill_delays(*d, *c, delays);
   // Every output is opened before the run (a bad path fails at once) and put
   // in place only when all of them are written.
   output_set outs;

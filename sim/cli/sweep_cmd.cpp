@@ -419,7 +419,7 @@ bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep
       vo.version = std::string("settle ") + SETTLE_VERSION;
       vcd_writer vcd(d.nets, std::move(vo));
       if (interrupted()) return false;  // the caller reports it
-      fill_delays(d.nets, plan.corner_at(oc.witness), delays);
+      fill_delays(d, plan.corner_at(oc.witness), delays);
       run_stimulus(d, delays, ro, &vcd);
       std::FILE* f = outs.open(path);
       std::string err;

@@ -22,7 +22,7 @@ std::size_t format_all(const settle::diagnostics& diags) {
 void run_small(const settle::design& d) {
   if (d.nets.gate_count() > 200) return;
   settle::delay_table delays;
-  settle::fill_delays(d.nets, settle::corner{}, delays);
+  settle::fill_delays(d, settle::corner{}, delays);
   settle::run_options opt;
   opt.max_events = 5000;
   (void)settle::run_stimulus(d, delays, opt);

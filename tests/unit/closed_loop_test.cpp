@@ -46,7 +46,7 @@ struct recorder final : change_sink {
 
 run_result run_at(const design& d, const corner& c, change_sink* trace = nullptr) {
   delay_table t;
-  fill_delays(d.nets, c, t);
+  fill_delays(d, c, t);
   return run_stimulus(d, t, run_options{}, trace);
 }
 run_result run_at(const design& d, corner::kind k = corner::kind::typ,

@@ -72,7 +72,7 @@ TEST_CASE("sweep gauges and properties equal the corners' own runs", "[sweep]") 
   std::uint64_t lo_at = 0, hi_at = 0, violating = 0, first = UINT64_MAX;
   delay_table t;
   for (std::uint64_t i = 0; i < plan.corners; ++i) {
-    fill_delays(d.nets, plan.corner_at(i), t);
+    fill_delays(d, plan.corner_at(i), t);
     const run_result one = run_stimulus(d, t, run_options{});
     REQUIRE(one.gauges.size() == 2);
     const gauge_result& g = one.gauges[0];

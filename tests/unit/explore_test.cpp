@@ -298,7 +298,7 @@ TEST_CASE("ternary, gmw, single winner and timed corners agree on random feedbac
       const auto c = parse_corner(name, &err);
       REQUIRE(c);
       delay_table t;
-      fill_delays(d.nets, *c, t);
+      fill_delays(d, *c, t);
       const run_result rr = run_stimulus(d, t, run_options{});
       for (std::size_t k = 0; k < rr.steps.size() && k < g.steps.size(); ++k) {
         const auto& ks = rr.steps[k];

@@ -47,7 +47,7 @@ double seconds_since(std::chrono::steady_clock::time_point t0) {
 TEST_CASE("a raised stop flag ends a kernel run at the next instant", "[harden]") {
   const design d = load_text(ring_text);
   delay_table delays;
-  fill_delays(d.nets, corner{}, delays);
+  fill_delays(d, corner{}, delays);
   std::atomic<bool> stop{true};
   run_options opt;
   opt.stop = &stop;

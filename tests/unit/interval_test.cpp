@@ -93,7 +93,7 @@ TEST_CASE("no sampled corner contradicts a binary interval value", "[interval][p
       cn.seed = c;
       cn.index = k;
       delay_table t;
-      fill_delays(d.nets, cn, t);
+      fill_delays(d, cn, t);
       auto r = run_stimulus(d, t, opt);
       for (std::size_t s = 0; s < r.steps.size() && s < iv.steps.size(); ++s) {
         if (iv.steps[s].status != step_status::settled) continue;

@@ -17,7 +17,7 @@ run_result run_at(const design& d, corner::kind k = corner::kind::typ, run_optio
   delay_table t;
   corner c;
   c.what = k;
-  fill_delays(d.nets, c, t);
+  fill_delays(d, c, t);
   return run_stimulus(d, t, opt);
 }
 
@@ -270,16 +270,16 @@ TEST_CASE("corner names print and parse back; extremes follow their formula", "[
   corner c;
   c.what = corner::kind::extremes;
   c.index = 3;  // gate 0 at max, others at min
-  fill_delays(d.nets, c, t);
+  fill_delays(d, c, t);
   CHECK(t.rise == std::vector<time_fs>{20, 100});
   c.index = 4;  // gate 0 at min, others at max
-  fill_delays(d.nets, c, t);
+  fill_delays(d, c, t);
   CHECK(t.rise == std::vector<time_fs>{10, 200});
   c.what = corner::kind::random;
   c.seed = 5;
   delay_table t2;
-  fill_delays(d.nets, c, t);
-  fill_delays(d.nets, c, t2);
+  fill_delays(d, c, t);
+  fill_delays(d, c, t2);
   CHECK(t.rise == t2.rise);
   for (int g = 0; g < 2; ++g) CHECK((t.rise[g] >= d.nets.delay[g].rise.min && t.rise[g] <= d.nets.delay[g].rise.max));
 }
@@ -316,7 +316,7 @@ TEST_CASE("runs with and without a trace agree on random feedback circuits", "[k
     const auto c = parse_corner("random:" + std::to_string(seed), &error);
     REQUIRE(c);
     delay_table t;
-    fill_delays(d.nets, *c, t);
+    fill_delays(d, *c, t);
     counting_sink sink;
     const run_result traced = run_stimulus(d, t, run_options{}, &sink);
     const run_result plain = run_stimulus(d, t, run_options{});

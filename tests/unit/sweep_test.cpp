@@ -129,8 +129,8 @@ TEST_CASE("every sweep corner's name replays the same delay table", "[sweep][pla
     std::string err;
     const auto back = parse_corner(c.name(), &err);
     REQUIRE(back);
-    fill_delays(d.nets, c, a);
-    fill_delays(d.nets, *back, b);
+    fill_delays(d, c, a);
+    fill_delays(d, *back, b);
     CHECK(a.rise == b.rise);
     CHECK(a.fall == b.fall);
   }
@@ -161,7 +161,7 @@ TEST_CASE("overlapping delay ranges: the latch release settles two ways, and eac
     const auto c = parse_corner(o.witness_name, &err);
     REQUIRE(c);
     delay_table t;
-    fill_delays(d.nets, *c, t);
+    fill_delays(d, *c, t);
     const auto run = run_stimulus(d, t, run_options{});
     CHECK(run.steps[1].status == o.status);
     CHECK(run.steps[1].values == o.values);
@@ -226,7 +226,7 @@ TEST_CASE("outcome shares carry their Wilson interval and the lower median", "[s
     std::uint64_t first = UINT64_MAX;
     delay_table t;
     for (std::uint64_t i = 0; i < p.corners; ++i) {
-      fill_delays(d.nets, p.corner_at(i), t);
+      fill_delays(d, p.corner_at(i), t);
       const auto run = run_stimulus(d, t, run_options{});
       if (run.steps[1].status != o.status || run.steps[1].values != o.values) continue;
       if (first == UINT64_MAX) first = i;
