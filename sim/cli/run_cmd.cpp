@@ -293,6 +293,7 @@ exit_status run_run(const run_cli_options& o) {
     vcd_options vo;
     vo.top = file_stem(d->path);
     vo.version = std::string("settle ") + SETTLE_VERSION;
+    vo.timescale = design_timescale(*d, ro.horizon);  // the same under every corner
     if (o.vcd_nets == "outputs") {
       vo.only = d->nets.outputs;
       vo.only.insert(vo.only.end(), d->stim.watch.begin(), d->stim.watch.end());

@@ -417,6 +417,7 @@ bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep
       vcd_options vo;
       vo.top = file_stem(d.path);
       vo.version = std::string("settle ") + SETTLE_VERSION;
+      vo.timescale = design_timescale(d, ro.horizon);  // every witness of the design alike
       vcd_writer vcd(d.nets, std::move(vo));
       if (interrupted()) return false;  // the caller reports it
       fill_delays(d.nets, plan.corner_at(oc.witness), delays);
