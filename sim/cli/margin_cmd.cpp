@@ -171,7 +171,8 @@ std::string failure_text(const design& d, const margin_cli_options& o, const mar
     what = fmt::format("{}: fails in {} of {} corners", expectation_words(d.nets, d.stim.steps[f.step - 1].expects[*f.expect_index]),
                        f.failing, f.corners);
   else
-    what = fmt::format("{} ({} of {} corners off the main outcome)", verdict_name(f.verdict), f.failing, f.corners);
+    what = fmt::format("{} ({} of {} corners off the main outcome)",
+                       mark(verdict_name(f.verdict), false, false), f.failing, f.corners);
   std::string out = fmt::format("{}step {}, {}{}\n", in, f.step, what, f.detail.empty() ? "" : "; " + f.detail);
   out += fmt::format("{}  witness  {}\n{}  replay   {}\n", in, f.witness, in, replay(o, f.witness));
   if (!f.other_witness.empty())
