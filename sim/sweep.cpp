@@ -357,11 +357,17 @@ void gather_closed_loop(const design& d, const sweep_plan& plan, const std::vect
 void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt, sweep_result& res) {
   std::map<std::uint64_t, run_result> replays;
   delay_table table;
+  // A timeout runs to its time limit: its explanation is worth a bounded
+  // number of replays (the deadlocks' owed rules are always replayed).
+  constexpr std::size_t timeout_replays = 32;
+  std::size_t timeouts = 0;
   for (auto& st : res.steps)
     for (auto& o : st.outcomes) {
-      if (o.status != step_status::deadlock && o.status != step_status::timeout) continue;
+      const bool timeout = o.status == step_status::timeout && !o.end_of_time;
+      if (o.status != step_status::deadlock && !timeout) continue;
       auto it = replays.find(o.witness);
       if (it == replays.end()) {
+        if (o.status != step_status::deadlock && timeouts++ >= timeout_replays) continue;
         fill_delays(d.nets, plan.corner_at(o.witness), table);
         it = replays.emplace(o.witness, run_stimulus(d, table, opt)).first;
       }
@@ -369,7 +375,7 @@ void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt
       if (st.index - 1 >= steps.size()) continue;
       const auto& w = steps[st.index - 1];
       o.owed = w.owed;
-      if (o.status == step_status::timeout)
+      if (timeout)
         o.reached = w.end - w.start, o.events = w.events, o.values_repeat_at = w.values_repeat_at,
         o.values_period = w.values_period;
     }

@@ -110,7 +110,8 @@ struct sweep_outcome {
   std::vector<time_fs> settle_times;  ///< its corners' settle times, ascending (for histograms)
   /// deadlock only: the rules owed at the witness corner (replayed once the corners ran).
   std::vector<owed_rule> owed;
-  /// timeout only, at the witness corner (replayed once the corners ran): the
+  /// timeout only, at the witness corner (replayed once the corners ran, for
+  /// the first 32 distinct timeout witnesses; `reached` stays 0 beyond): the
   /// time from the step's start to where it stopped, the value changes it
   /// applied, and when its net values (not its full state) had repeated
   /// (step_result::values_repeat_at, values_period; 0: they had not).

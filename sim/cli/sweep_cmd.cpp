@@ -164,7 +164,7 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
       e[outcome_times_key(out.status)] = {
           {"min", out.settle.min}, {"median", out.settle.median}, {"max", out.settle.max}};
       if (out.status == step_status::oscillating) e["period_fs"] = out.period;
-      if (out.status == step_status::timeout && !out.end_of_time) {
+      if (out.status == step_status::timeout && !out.end_of_time && out.reached) {
         e["reached_fs"] = out.reached;
         e["witness_events"] = out.events;
         if (out.values_period)
@@ -362,7 +362,7 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
         vals += fmt::format("{}{}={}", k ? " " : "", n.net_name[r.reported[k]], to_char(oc.values[k]));
       if (!vals.empty()) out += fmt::format("       values  {}\n", vals);
       if (oc.end_of_time) out += fmt::format("       reason  {}\n", end_of_time_words);
-      else if (oc.status == step_status::timeout)
+      else if (oc.status == step_status::timeout && oc.reached)
         out += fmt::format(
             "       reason  at {}: {}\n", oc.witness_name,
             timeout_words(oc.reached, oc.events, oc.values_repeat_at, oc.values_period));
