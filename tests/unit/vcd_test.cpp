@@ -81,6 +81,9 @@ TEST_CASE("identifier codes are base-94 over printable ASCII", "[waves][vcd]") {
 
 TEST_CASE("the timescale is the coarsest power of ten dividing every time", "[waves][vcd]") {
   // IEEE 1364-2005 18.2.3.5: time_number is 1, 10 or 100; units s ms us ns ps fs.
+  // Without vcd_options::timescale the writer picks the unit from the times
+  // it wrote; the commands always pass the design's (next test), and this
+  // choice remains the fallback when a written time does not fit it.
   fixture f;
   CHECK(between(f.dump({{5000, f.a, logic::one}, {15000, f.a, logic::zero}}, 20000), "$timescale ", " $end") == "1 ps");
   CHECK(between(f.dump({{1500, f.a, logic::one}}, 3000), "$timescale ", " $end") == "100 fs");
@@ -266,6 +269,23 @@ TEST_CASE("the timescale is the design's, the same under every corner", "[waves]
       "cycles 2\n run 40ns\n}\n");
   CHECK(design_timescale(clk) == 5);
   CHECK(run_timescale(clk, "min") == "100 ps");
+  // A time that does not fit the given unit refines it rather than being rounded.
+  {
+    fixture f;
+    vcd_options o;
+    o.timescale = 4;  // 10 ps
+    o.date = "fixed";
+    vcd_writer w(f.n, o);
+    std::vector<logic> init(f.n.net_count(), logic::x);
+    w.on_start(init);
+    const std::vector<change> c{{20000, f.a, logic::one}, {25500, f.a, logic::zero}};
+    w.on_changes(c);
+    w.on_finish(30000);
+    const auto v = w.str();
+    CHECK(w.timescale_refined());
+    CHECK(between(v, "$timescale ", " $end") == "100 fs");
+    CHECK(v.find("\n#255\n") != std::string::npos);
+  }
   // A given step limit joins them: --horizon 1234fs needs 1 fs.
   CHECK(design_timescale(fixed, 1234) == 0);
   CHECK(design_timescale(fixed, 5'000'000) == 4);
