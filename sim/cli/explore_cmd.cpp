@@ -123,6 +123,9 @@ std::string table(const design& d, const explore_result& r, double wall, bool co
     std::string osc = s.must_oscillate == answer::yes  ? "must"
                       : s.may_oscillate == answer::yes ? "may"
                                                        : yes_no(s.may_oscillate, "may");
+    // An oscillation no `expect oscillating` asked for is a finding too (capitals,
+    // never coloured inside the table, so its columns stay aligned).
+    if (!s.pass() && (osc == "must" || osc == "may")) osc = mark(osc, false, false);
     std::string hz, tx;
     for (net_id h : s.hazards) hz += (hz.empty() ? "" : ",") + n.net_name[h];
     for (net_id net : r.reported)
