@@ -366,7 +366,6 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
         out += fmt::format(
             "       reason  at {}: {}\n", oc.witness_name,
             timeout_words(oc.reached, oc.events, oc.values_repeat_at, oc.values_period));
-
       for (const auto& w : oc.owed)
         out += fmt::format("       owed    {} (fired {} of {}; condition {})\n", d.stim.rules[w.rule].text, w.fired,
                            w.times, to_char(w.condition));
