@@ -229,6 +229,7 @@ class driver {
     const time_fs last_instant = std::min(limit, ceiling_);
     const bool limit_unreachable = !true_limit || limit > ceiling_;
     const time_fs change_before = sim_.last_change();
+    const std::uint64_t events_before = sim_.events();
     std::size_t next_input = 0;
     // Brent's cycle detection over instants once every input of the step is
     // in. Most steps settle within a few instants, so detection starts only
@@ -334,8 +335,14 @@ class driver {
       if (++settling < warmup) continue;
       if (settling == warmup) sim_.track_state(true);
       clock_state_words(extra);
+      if (have_snap && sim_.hash() == snap.hash && r.values_period == 0 &&
+          sim_.values() == snap.values && !sim_.same_state(snap, extra)) {
+        r.values_repeat_at = t;  // the waveform repeats, its full state not (yet)
+        r.values_period = t - snap.time;
+      }
       if (have_snap && sim_.hash() == snap.hash && sim_.same_state(snap, extra)) {
         r.status = step_status::oscillating;
+        r.values_repeat_at = r.values_period = 0;
         r.period = t - snap.time;
         r.end = t;
         for (net_id n = 2; n < snap.toggles.size(); ++n)
@@ -351,6 +358,7 @@ class driver {
     }
 
     if (settling >= warmup) sim_.track_state(false);
+    r.events = sim_.events() - events_before;
     const time_fs last = sim_.last_change();
     r.settle = last > change_before && last >= start ? last - start : 0;
     if (r.status == step_status::settled) r.end = start + r.settle;

@@ -74,6 +74,12 @@ struct step_result {
   std::vector<expect_result> expects;
   std::vector<owed_rule> owed;           ///< deadlock only
   bool pass() const;  ///< no finding in this step
+  std::uint64_t events = 0;  ///< value changes applied within the step
+  /// A settle step whose net values at an instant equalled those at an
+  /// earlier instant (repeat detection's snapshot) while the full state,
+  /// pending events included, did not: the first such instant and the time
+  /// between the two. 0 when it never happened (or the step oscillates).
+  time_fs values_repeat_at = 0, values_period = 0;
 };
 
 /// A whole-run property's verdict: holds, or its first violation.

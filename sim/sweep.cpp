@@ -152,7 +152,11 @@ void work(shared_run& s, worker_state& w) {
         auto it = cache.find(key);
         const std::uint32_t id = it != cache.end() ? it->second : cache.emplace(key, s.registry.id(k, key)).first->second;
         s.outcome_of[i * s.steps + k] = id;
-        s.settle_of[i * s.steps + k] = ran ? r.steps[k].settle : 0;
+        // An oscillating step's time is when its repeat was detected, not a settle time.
+        s.settle_of[i * s.steps + k] = !ran ? 0
+                                       : r.steps[k].status == step_status::oscillating
+                                           ? r.steps[k].end - r.steps[k].start
+                                           : r.steps[k].settle;
         auto& accs = w.expects[k];
         for (std::size_t e = 0; e < accs.size(); ++e) {
           const bool pass = ran && e < r.steps[k].expects.size() && r.steps[k].expects[e].pass;
@@ -347,21 +351,33 @@ void gather_closed_loop(const design& d, const sweep_plan& plan, const std::vect
   }
 }
 
-// The rules owed at each deadlocked outcome's witness: one replay per witness
+// The rules owed at each deadlocked outcome's witness, and how far each timed-out
+// outcome's witness got: one replay per witness
 // corner (outcomes only keep their end state while the corners run).
 void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt, sweep_result& res) {
   std::map<std::uint64_t, run_result> replays;
   delay_table table;
+  // A timeout runs to its time limit: its explanation is worth a bounded
+  // number of replays (the deadlocks' owed rules are always replayed).
+  constexpr std::size_t timeout_replays = 32;
+  std::size_t timeouts = 0;
   for (auto& st : res.steps)
     for (auto& o : st.outcomes) {
-      if (o.status != step_status::deadlock) continue;
+      const bool timeout = o.status == step_status::timeout && !o.end_of_time;
+      if (o.status != step_status::deadlock && !timeout) continue;
       auto it = replays.find(o.witness);
       if (it == replays.end()) {
+        if (o.status != step_status::deadlock && timeouts++ >= timeout_replays) continue;
         fill_delays(d, plan.corner_at(o.witness), table);
         it = replays.emplace(o.witness, run_stimulus(d, table, opt)).first;
       }
       const auto& steps = it->second.steps;
-      if (st.index - 1 < steps.size()) o.owed = steps[st.index - 1].owed;
+      if (st.index - 1 >= steps.size()) continue;
+      const auto& w = steps[st.index - 1];
+      o.owed = w.owed;
+      if (timeout)
+        o.reached = w.end - w.start, o.events = w.events, o.values_repeat_at = w.values_repeat_at,
+        o.values_period = w.values_period;
     }
 }
 

@@ -102,11 +102,23 @@ struct sweep_outcome {
   proportion_interval share_ci95;  ///< Wilson score interval
   std::uint64_t witness = 0;   ///< the lowest-numbered corner with this outcome
   std::string witness_name;
-  time_summary settle;         ///< settle times over its corners
+  /// Over its corners: settle times (settled, running: the last change;
+  /// deadlock: when it went quiet); oscillating: the time from the step's
+  /// start to the instant the repeat was detected; timeout and event_limit:
+  /// the last value change, minus the start.
+  time_summary settle;
   std::uint64_t slowest = 0;   ///< the lowest-numbered corner whose settle time is settle.max
   std::vector<time_fs> settle_times;  ///< its corners' settle times, ascending (for histograms)
   /// deadlock only: the rules owed at the witness corner (replayed once the corners ran).
   std::vector<owed_rule> owed;
+  /// timeout only, at the witness corner (replayed once the corners ran, for
+  /// the first 32 distinct timeout witnesses; `reached` stays 0 beyond): the
+  /// time from the step's start to where it stopped, the value changes it
+  /// applied, and when its net values (not its full state) had repeated
+  /// (step_result::values_repeat_at, values_period; 0: they had not).
+  time_fs reached = 0;
+  std::uint64_t events = 0;
+  time_fs values_repeat_at = 0, values_period = 0;
 };
 
 /// An expectation of a step judged over every corner.

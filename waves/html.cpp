@@ -210,7 +210,12 @@ json sweep_json(const design& d, const sweep_result& r) {
       e["share"] = oc.share;
       e["share_ci95"] = {oc.share_ci95.lo, oc.share_ci95.hi};
       e["witness"] = oc.witness_name;
-      e["settle_fs"] = {{"min", oc.settle.min}, {"median", oc.settle.median}, {"max", oc.settle.max}};
+      // Settle times only for outcomes that went quiet (the sweep command's JSON names).
+      const char* key = oc.status == step_status::oscillating ? "detected_fs"
+                        : oc.status == step_status::timeout || oc.status == step_status::event_limit
+                            ? "last_change_fs"
+                            : "settle_fs";
+      e[key] = {{"min", oc.settle.min}, {"median", oc.settle.median}, {"max", oc.settle.max}};
       if (oc.status == step_status::oscillating) e["period_fs"] = oc.period;
       if (oc.status == step_status::deadlock) {
         e["owed"] = json::array();

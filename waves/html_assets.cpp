@@ -353,7 +353,7 @@ const char* const html_script = R"SETTLE((function () {
     }
     sv('text', { x: L, y: H - B + 14, text: fmtTime(h.lo_fs) }, svg);
     sv('text', { x: W - 8, y: H - B + 14, 'text-anchor': 'end', text: fmtTime(h.hi_fs) }, svg);
-    sv('text', { x: (W + L) / 2, y: H - 6, 'text-anchor': 'middle', text: 'settle time (corners per bin; ' + bins + ' bin' + (bins > 1 ? 's' : '') + ')' }, svg);
+    sv('text', { x: (W + L) / 2, y: H - 6, 'text-anchor': 'middle', text: 'settle, detection or last-change time (corners per bin; ' + bins + ' bin' + (bins > 1 ? 's' : '') + ')' }, svg);
     return svg;
   }
 
@@ -416,13 +416,17 @@ const char* const html_script = R"SETTLE((function () {
       var body = el('div', { cls: 'body' });
       var outs = el('div', { cls: 'outcomes' });
       st.outcomes.forEach(function (o, k) {
+        // Settle times only for outcomes that went quiet; an oscillation's times are when its repeat was detected.
+        var tm = o.settle_fs || o.detected_fs || o.last_change_fs || { min: 0, median: 0, max: 0 };
+        var tw = o.settle_fs ? 'settle ' : o.detected_fs ? 'repeat detected ' : 'last change ';
         var card = el('div', { cls: 'outcome', style: '--c:' + colour(k + 1), 'data-step': st.index, 'data-rank': k + 1,
           'data-count': o.count, 'data-share': o.share, 'data-witness': o.witness,
-          'data-settle-min': o.settle_fs.min, 'data-settle-median': o.settle_fs.median, 'data-settle-max': o.settle_fs.max });
+          'data-settle-min': tm.min, 'data-settle-median': tm.median, 'data-settle-max': tm.max });
         card.appendChild(el('div', {}, [el('span', { cls: 'big', text: pct(o.share) }),
           el('span', { cls: 'sub', text: '  ' + o.count + ' of ' + corners + ' corners \u00b7 #' + (k + 1) + ' ' + o.status + (o.period_fs ? ' (period ' + fmtTime(o.period_fs) + ')' : '') })]));
         card.appendChild(el('div', { cls: 'sub', text: '95% interval ' + pct(o.share_ci95[0]) + ' \u2013 ' + pct(o.share_ci95[1]) + ' (Wilson)' }));
-        card.appendChild(el('div', { cls: 'sub', text: 'settle ' + fmtTime(o.settle_fs.min) + ' / ' + fmtTime(o.settle_fs.median) + ' / ' + fmtTime(o.settle_fs.max) + '  (min / median / max)' }));
+        card.appendChild(el('div', { cls: 'sub', text: tw + fmtTime(tm.min) + ' / ' + fmtTime(tm.median) + ' / ' + fmtTime(tm.max) + '  (min / median / max)' }));
+        if (o.detail) card.appendChild(el('div', { cls: 'sub', text: o.detail }));
         card.appendChild(el('div', { cls: 'sub' }, ['witness ', el('code', { text: o.witness })]));
         card.appendChild(chips(o.values));
         var ob = owedBlock(o.owed);
@@ -433,7 +437,7 @@ const char* const html_script = R"SETTLE((function () {
       if (st.unseen_outcome_bound !== undefined)
         body.appendChild(el('p', { cls: 'sub', text: 'Chance of an outcome not seen: below ' + pct(st.unseen_outcome_bound, 3) + ' (rule of three over the random corners).' }));
       var h = (D.hist || []).filter(function (x) { return x.step === st.index; })[0];
-      if (h) { body.appendChild(el('h3', { text: 'settle times over corners' })); body.appendChild(el('div', { cls: 'hist-wrap' }, [histogram(h, st.outcomes)])); }
+      if (h) { body.appendChild(el('h3', { text: 'times over corners (settle; oscillating: repeat detected; timeout: last change)' })); body.appendChild(el('div', { cls: 'hist-wrap' }, [histogram(h, st.outcomes)])); }
       if (st.expect && st.expect.length) {
         body.appendChild(el('h3', { text: 'expectations' }));
         body.appendChild(table(['', 'kind', 'net', 'failing corners', 'witness'], st.expect.map(function (e) {
@@ -469,7 +473,9 @@ const char* const html_script = R"SETTLE((function () {
   function runSteps(target, R, D) {
     (R.steps || []).forEach(function (st) {
       var sec = el('section', { cls: 'step', 'data-step': st.index, 'data-status': st.status });
-      var more = st.status === 'oscillating' ? 'period ' + fmtTime(st.period_fs) : 'settle ' + fmtTime(st.settle_fs);
+      var more = st.status === 'oscillating' ? 'period ' + fmtTime(st.period_fs) + ', repeat detected at ' + fmtTime(st.detected_fs)
+        : st.settle_fs !== undefined ? 'settle ' + fmtTime(st.settle_fs) : 'last change ' + fmtTime(st.last_change_fs);
+      if (st.status === 'timeout' && st.detail) more += ' \u00b7 ' + st.detail;
       more += ' \u00b7 ' + fmtTime(st.start_fs) + ' \u2026 ' + fmtTime(st.end_fs);
       sec.appendChild(banner('s-' + st.status, st.status, 'step ' + st.index + ': ' + st.label, more));
       var body = el('div', { cls: 'body' });

@@ -1,15 +1,18 @@
-// VCD writer (IEEE Std 1364-2005 clause 18): buffered formatting, timescale chosen at the end.
+// VCD writer (IEEE Std 1364-2005 clause 18): buffered formatting, one timescale per design.
 #include "waves/vcd.hpp"
 
+#include <fmt/format.h>
+
+#include <algorithm>
 #include <charconv>
 #include <cstdlib>
 #include <cstring>
 #include <ctime>
 #include <deque>
-#include <unordered_set>
 #include <string_view>
+#include <unordered_set>
 
-#include <fmt/format.h>
+#include "sim/time.hpp"
 
 namespace settle {
 namespace {
@@ -75,7 +78,51 @@ std::string vcd_timescale(int k) {
   return fmt::format("{} {}", numbers[k % 3], units[k / 3]);
 }
 
+namespace {
+
+// The largest k <= max_k with 10^k dividing t (t > 0); max_k for t = 0.
+int trailing_zeros(time_fs t) {
+  int k = 0;
+  while (k < max_k && t != 0 && t % pow10_table[k + 1] == 0) ++k;
+  return t == 0 ? max_k : k;
+}
+
+}  // namespace
+
+int design_timescale(const design& d, time_fs horizon) {
+  int k = max_k;
+  bool any = false;
+  auto take = [&](time_fs t) {
+    if (t == 0) return;
+    any = true;
+    k = std::min(k, trailing_zeros(t));
+  };
+  auto range = [&](const delay_range& r) {
+    // A corner may pick any fs in a true range (random, gauss, spread @f).
+    if (r.min != r.max) k = 0, any = true;
+    take(r.min), take(r.typ), take(r.max);
+  };
+  for (const auto& g : d.nets.delay.records()) range(g.rise), range(g.fall);
+  for (const auto& r : d.stim.rules) range(r.delay);
+  for (const auto& s : d.stim.steps) {
+    take(s.run_for);
+    for (const auto& a : s.actions) {
+      take(a.time);
+      if (a.what == stim_action::kind::clock) take(a.clock.period), take(a.clock.high);
+    }
+  }
+  // The step time limit ends a timeout step; the default of driver.hpp is
+  // 10,000 x the largest max delay, at least 1 ns.
+  if (horizon)
+    take(horizon);
+  else
+    take(std::max<time_fs>(checked_mul(d.nets.largest_max_delay(), 10000).value_or(1), 1'000'000));
+  return any ? k : 0;
+}
+
 vcd_writer::vcd_writer(const netlist& n, vcd_options opt) : n_(n), opt_(std::move(opt)) {
+  if (opt_.timescale > max_k) opt_.timescale = max_k;
+  if (opt_.timescale >= 0) k_ = opt_.timescale;
   const auto nets = n_.net_count();
   selected_.assign(nets, 0);
   if (opt_.only.empty()) {
@@ -192,7 +239,8 @@ void vcd_writer::flush_instant() {
 void vcd_writer::on_finish(time_fs end) {
   flush_instant();
   if (end > now_ || (end > 0 && pos_ == 0 && spilled_.empty())) put_time(end);
-  if (pos_ == 0 && spilled_.empty()) k_ = 0;  // nothing after time 0: the kernel's resolution
+  // Nothing after time 0 and no timescale given: the kernel's resolution.
+  if (pos_ == 0 && spilled_.empty() && opt_.timescale < 0) k_ = 0;
   finished_ = true;
 }
 

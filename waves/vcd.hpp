@@ -8,6 +8,7 @@
 #include <string>
 #include <vector>
 
+#include "sim/design.hpp"
 #include "sim/kernel.hpp"
 
 namespace settle {
@@ -17,7 +18,21 @@ struct vcd_options {
   std::string version;         ///< text of $version, e.g. "settle 0.1.0"
   std::string date;            ///< text of $date; empty: now (SOURCE_DATE_EPOCH when set)
   std::vector<net_id> only;    ///< nets to dump; empty: every net but the two constants
+  /// log10 of the timescale in femtoseconds (design_timescale); -1: the
+  /// coarsest that represents every time the run wrote (chosen at the end).
+  int timescale = -1;
 };
+
+/// log10, in femtoseconds, of the one VCD timescale of design `d` under every
+/// corner: the largest k (0..17) such that 10^k fs divides every time that can
+/// put an event at an instant: each min, typ and max of every gate edge and
+/// reaction rule, every `at`, `after`, `run`, clock period and high time, and
+/// the step time limit (`horizon`, 0 for the default of driver.hpp). A delay
+/// range with min < max gives 0 (1 fs): random corners draw any whole number
+/// of fs in it, gauss corners round to the fs, and a spread `@f` scales it to
+/// any fs; a fixed delay stays fixed under every corner and spread. With no
+/// time above 0 at all it is 0 (1 fs).
+int design_timescale(const design& d, time_fs horizon = 0);
 
 /// Turns a net or scope name into one VCD reference token: '.', '/', '[', ']',
 /// whitespace and other non-printables become '_'. Empty names become "_".
@@ -32,8 +47,10 @@ std::string vcd_timescale(int k);
 
 /// Collects a run's changes and writes a VCD file once the run has finished.
 ///
-/// The timescale must be the coarsest of 1/10/100 x s..fs that represents every
-/// written time exactly, which is known only when the run ends. So the value
+/// The timescale is vcd_options::timescale, a function of the design alone
+/// (design_timescale), so every corner of a design writes the same one; should
+/// a written time not be a multiple of it (a step cut at the end of
+/// representable time) the writer falls back to the coarsest exact one. So the value
 /// change section is formatted as it arrives, with times in femtoseconds, into
 /// a memory buffer (spilled in large chunks to an anonymous temporary file past
 /// 32 MiB); `write` then emits the header and copies the section, cutting the
@@ -60,6 +77,8 @@ class vcd_writer final : public change_sink {
 
   /// log10 of the chosen timescale in femtoseconds (valid after on_finish).
   int timescale_exponent() const { return k_; }
+  /// True when a written time forced a finer timescale than vcd_options::timescale.
+  bool timescale_refined() const { return opt_.timescale >= 0 && k_ < opt_.timescale; }
   /// Value changes written after time 0.
   std::uint64_t changes_written() const { return changes_; }
 

@@ -106,7 +106,7 @@ std::string result_json(const design& d, const explore_result& r, double wall) {
 
 std::string yes_no(answer a, const char* yes) { return a == answer::unknown ? "?" : a == answer::yes ? yes : "no"; }
 
-std::string table(const design& d, const explore_result& r, double wall) {
+std::string table(const design& d, const explore_result& r, double wall, bool colour) {
   const netlist& n = d.nets;
   std::string t = fmt::format("settle explore {} (model {}, {} gates)\n", d.path, model_name(r.model), n.gate_count());
   for (const auto& note : r.notes) t += fmt::format("  note: {}\n", note);
@@ -114,13 +114,18 @@ std::string table(const design& d, const explore_result& r, double wall) {
                    "race", "oscillation", "hazards", "ternary x");
   for (const auto& s : r.steps) {
     std::string label = s.label.size() > 28 ? s.label.substr(0, 25) + "..." : s.label;
-    std::string race = s.critical_race == answer::yes      ? "critical"
+    // A critical race is a finding: marked in capitals (mark), like every finding.
+    std::string race = s.critical_race == answer::yes      ? "CRITICAL"
                        : s.noncritical_race == answer::yes ? "non-critical"
-                       : s.critical_race == answer::no     ? (s.noncritical_race == answer::no ? "none" : "not critical")
-                                                           : "?";
+                       : s.critical_race == answer::no
+                           ? (s.noncritical_race == answer::no ? "none" : "not critical")
+                           : "?";
     std::string osc = s.must_oscillate == answer::yes  ? "must"
                       : s.may_oscillate == answer::yes ? "may"
                                                        : yes_no(s.may_oscillate, "may");
+    // An oscillation no `expect oscillating` asked for is a finding too (capitals,
+    // never coloured inside the table, so its columns stay aligned).
+    if (!s.pass() && (osc == "must" || osc == "may")) osc = mark(osc, false, false);
     std::string hz, tx;
     for (net_id h : s.hazards) hz += (hz.empty() ? "" : ",") + n.net_name[h];
     for (net_id net : r.reported)
@@ -144,11 +149,13 @@ std::string table(const design& d, const explore_result& r, double wall) {
                                    ? fmt::format("{} = {}", e.spec->ref.empty() ? n.net_name[e.spec->net] : e.spec->ref,
                                                  to_char(e.spec->want))
                                    : expect_kind_word(e.spec->what);
-      t += fmt::format("        expect {}: {}{}\n", what, !e.checked ? "not checked" : "FAILED",
+      t += fmt::format("        expect {}: {}{}\n", what,
+                       !e.checked ? "not checked" : mark("fail", false, colour),
                        e.detail.empty() ? "" : " (" + e.detail + ")");
     }
   }
-  t += fmt::format("result: {} ({:.3f} s)\n", r.pass() ? "pass" : "findings", wall);
+  t += fmt::format("result: {} ({:.3f} s)\n",
+                   mark(r.pass() ? "pass" : "findings", r.pass(), colour), wall);
   return t;
 }
 
@@ -232,7 +239,8 @@ exit_status run_explore(const explore_cli_options& o) {
       !outs.put(o.html, html_report_explore(*d, *r, {"explore", result_json(*d, *r, wall), ""})))
     return exit_status::error;
   if (!outs.commit()) return exit_status::error;
-  if (o.json != "-" && o.dot != "-" && o.html != "-") std::fputs(table(*d, *r, wall).c_str(), stdout);
+  if (o.json != "-" && o.dot != "-" && o.html != "-")
+    std::fputs(table(*d, *r, wall, use_colour(1)).c_str(), stdout);
   return r->pass() ? exit_status::ok : exit_status::findings;
 }
 

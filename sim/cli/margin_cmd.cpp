@@ -171,7 +171,8 @@ std::string failure_text(const design& d, const margin_cli_options& o, const mar
     what = fmt::format("{}: fails in {} of {} corners", expectation_words(d.nets, d.stim.steps[f.step - 1].expects[*f.expect_index]),
                        f.failing, f.corners);
   else
-    what = fmt::format("{} ({} of {} corners off the main outcome)", verdict_name(f.verdict), f.failing, f.corners);
+    what = fmt::format("{} ({} of {} corners off the main outcome)",
+                       mark(verdict_name(f.verdict), false, false), f.failing, f.corners);
   std::string out = fmt::format("{}step {}, {}{}\n", in, f.step, what, f.detail.empty() ? "" : "; " + f.detail);
   out += fmt::format("{}  witness  {}\n{}  replay   {}\n", in, f.witness, in, replay(o, f.witness));
   if (!f.other_witness.empty())
@@ -183,6 +184,7 @@ std::string failure_text(const design& d, const margin_cli_options& o, const mar
 std::string summary(const design& d, const margin_cli_options& o, const margin_result& r,
                     const baseline_comparison* cmp, const baseline_outcome& bo, bool pass,
                     bool colour) {
+  // Verdict words are marked (mark); a margin figure is coloured only.
   auto paint = [colour](std::string text, bool good) {
     if (!colour) return text;
     return fmt::format(fmt::fg(good ? fmt::terminal_color::green : fmt::terminal_color::red) | fmt::emphasis::bold,
@@ -238,7 +240,7 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
     if (cmp) {
       for (const auto& c : cmp->changes)
         out += fmt::format("  {}  {}: {}{:g}% -> {}{:g}% ({:+.2f} points)\n",
-                           paint(c.regression ? "SHRANK" : "moved", !c.regression), c.what,
+                           mark(c.regression ? "shrank" : "moved", !c.regression, colour), c.what,
                            c.before_at_least ? ">= " : "", c.before_pct,
                            c.after_at_least ? ">= " : "", c.after_pct, c.after_pct - c.before_pct);
       for (const auto& n : cmp->notes) out += fmt::format("  note  {}\n", n);
@@ -246,7 +248,7 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
         out += cmp->capped ? "  no margin moved up to this run's ceiling\n" : "  no margin moved\n";
     }
   }
-  out += fmt::format("\nresult  {}\n", paint(pass ? "pass" : "findings", pass));
+  out += fmt::format("\nresult  {}\n", mark(pass ? "pass" : "findings", pass, colour));
   return out;
 }
 

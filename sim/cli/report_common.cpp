@@ -1,14 +1,16 @@
 // Small helpers the report-writing commands (run, sweep, explore, margin) share.
 #include "sim/cli/report_common.hpp"
 
+#include <fmt/color.h>
+#include <fmt/format.h>
+#include <spdlog/spdlog.h>
+
+#include <CLI/CLI.hpp>
+#include <cctype>
 #include <cerrno>
 #include <charconv>
 #include <cmath>
 #include <cstdlib>
-
-#include <CLI/CLI.hpp>
-#include <fmt/format.h>
-#include <spdlog/spdlog.h>
 
 #include "sim/sweep.hpp"
 #include "sim/time.hpp"
@@ -98,6 +100,32 @@ void check_number_at_least(CLI::Option* opt, double lo, const char* what) {
         return "";
       },
       fmt::format(">= {:g}", lo)));
+}
+
+std::string mark(std::string_view word, bool good, bool colour) {
+  std::string text(word);
+  if (!good)
+    for (auto& c : text) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
+  if (!colour) return text;
+  return fmt::format(
+      fmt::fg(good ? fmt::terminal_color::green : fmt::terminal_color::red) | fmt::emphasis::bold,
+      "{}", text);
+}
+
+std::string values_repeat_words(time_fs at, time_fs period) {
+  if (!period) return "";
+  return fmt::format(
+      "the net values repeated (every {}, first seen at {}) but the full state with its pending "
+      "events did not yet; a longer --horizon may let the repeat show as an oscillation",
+      format_time(period), format_time(at));
+}
+
+std::string timeout_words(time_fs reached, std::uint64_t events, time_fs at, time_fs period) {
+  std::string s =
+      fmt::format("stopped at the step's time limit, {} after its start, after {} event{}",
+                  format_time(reached), events, events == 1 ? "" : "s");
+  if (period) s += "; " + values_repeat_words(at, period);
+  return s;
 }
 
 double seconds_since(std::chrono::steady_clock::time_point t0) {

@@ -2,9 +2,9 @@
 #pragma once
 
 #include <chrono>
-#include <string>
-
 #include <nlohmann/json.hpp>
+#include <string>
+#include <string_view>
 
 #include "sim/logic.hpp"
 #include "sim/netlist.hpp"
@@ -45,6 +45,20 @@ void check_whole_number(CLI::Option* opt, std::uint64_t lo, std::uint64_t hi, co
                         const char* hint = "");
 /// Accepts only a finite number of at least `lo` (a decimal or exponent form).
 void check_number_at_least(CLI::Option* opt, double lo, const char* what);
+
+/// The one way text reports mark a verdict: a finding in capitals ("FAIL",
+/// "NONDETERMINISTIC", "TIMEOUT", "FINDINGS"), anything else as written in
+/// lower case ("pass", "deterministic"); with `colour` (use_colour: a
+/// terminal and NO_COLOR unset) a finding is bold red, the rest bold green.
+std::string mark(std::string_view word, bool good, bool colour);
+
+/// Why a timeout step stopped, in words, from its step_result figures: how
+/// far it got ("stopped 10ns after its start, 123 events") and, when its net
+/// values had repeated without its full state, that and the --horizon hint.
+std::string timeout_words(time_fs reached, std::uint64_t events, time_fs values_repeat_at,
+                          time_fs values_period);
+/// Only the hint part (empty when the values never repeated).
+std::string values_repeat_words(time_fs values_repeat_at, time_fs values_period);
 
 /// Seconds of wall-clock time since `t0`.
 double seconds_since(std::chrono::steady_clock::time_point t0);

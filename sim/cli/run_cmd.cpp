@@ -92,10 +92,24 @@ std::string result_json(const design& d, const run_result& r, const std::string&
     st["start_fs"] = s.start;
     st["end_fs"] = s.end;
     st["status"] = status_name(s.status);
-    st["settle_fs"] = s.settle;
+    // A settle time only where the step went quiet (or, for a `run` window, its
+    // last change); an oscillation has its detection time, a timeout how far it got.
+    if (s.status == step_status::settled || s.status == step_status::running ||
+        s.status == step_status::deadlock)
+      st["settle_fs"] = s.settle;
+    else
+      st["last_change_fs"] = s.settle;
+    st["events"] = s.events;
     if (s.end_of_time) st["detail"] = end_of_time_words;
+    if (s.status == step_status::timeout && !s.end_of_time) {
+      st["reached_fs"] = s.end - s.start;
+      st["detail"] = timeout_words(s.end - s.start, s.events, s.values_repeat_at, s.values_period);
+    }
+    if (s.values_period)
+      st["values_repeat"] = {{"at_fs", s.values_repeat_at}, {"period_fs", s.values_period}};
     if (s.status == step_status::oscillating) {
       st["period_fs"] = s.period;
+      st["detected_fs"] = s.end;  // the instant the repeated full state was recognised
       st["toggling"] = nlohmann::ordered_json::array();
       for (net_id t : s.toggling) st["toggling"].push_back(n.net_name[t]);
     }
@@ -174,10 +188,7 @@ std::string gauge_nets(const netlist& n, const gauge& g) {
 std::string table(const design& d, const run_result& r, const std::string& corner_name, bool colour, bool verbose,
                   double wall) {
   const netlist& n = d.nets;
-  auto paint = [colour](std::string text, bool good) {
-    if (!colour) return text;
-    return fmt::format(fmt::fg(good ? fmt::terminal_color::green : fmt::terminal_color::red), "{}", text);
-  };
+  auto paint = [colour](std::string_view text, bool good) { return mark(text, good, colour); };
   std::string out = fmt::format("design {}, corner {}, {} step{}\n", d.path, r.corner.empty() ? corner_name : r.corner, r.steps.size(),
                                 r.steps.size() == 1 ? "" : "s");
   std::size_t width = 3;
@@ -185,22 +196,29 @@ std::string table(const design& d, const run_result& r, const std::string& corne
   for (const auto& s : r.steps) {
     out += fmt::format("\nstep {}: {}\n", s.index, s.label.empty() ? "(no input change)" : s.label);
     const bool good_status = s.status == step_status::settled || s.status == step_status::running;
-    std::string status = status_name(s.status);
+    // The status word is the verdict, marked; the words after it explain.
+    const bool expected_osc = s.status == step_status::oscillating && s.pass();
+    std::string word = status_name(s.status), status;
     if (s.status == step_status::settled) status += fmt::format(" after {}", format_time(s.settle));
     if (s.status == step_status::running) status += fmt::format(", last change after {}", format_time(s.settle));
     if (s.status == step_status::oscillating) {
-      status += fmt::format(", period {}, toggling", format_time(s.period));
+      status += fmt::format(", period {}, repeat detected at {}, toggling", format_time(s.period),
+                            format_time(s.end));
       for (std::size_t i = 0; i < s.toggling.size() && i < 8; ++i) status += " " + n.net_name[s.toggling[i]];
       if (s.toggling.size() > 8) status += fmt::format(" ... ({} nets)", s.toggling.size());
     }
-    if (s.end_of_time) status = end_of_time_words;
+    if (s.end_of_time)
+      status = " at the end of representable time";
     else if (s.status == step_status::timeout || s.status == step_status::event_limit)
       status += fmt::format(" at {}", format_time(s.end));
     if (s.status == step_status::deadlock)
       status += fmt::format(" after {}, {} rule{} owed", format_time(s.settle), s.owed.size(),
                             s.owed.size() == 1 ? "" : "s");
-    out += fmt::format("  status  {}   ({} .. {})\n", paint(status, good_status), format_time(s.start),
-                       format_time(s.end));
+    out += fmt::format("  status  {}{}   ({} .. {})\n", paint(word, good_status || expected_osc),
+                       status, format_time(s.start), format_time(s.end));
+    if (s.status == step_status::timeout && !s.end_of_time)
+      out += fmt::format("  reason  {}\n", timeout_words(s.end - s.start, s.events,
+                                                         s.values_repeat_at, s.values_period));
     for (const auto& o : s.owed)
       out += fmt::format("  owed    {}: fired {} of {}, condition {}\n", d.stim.rules[o.rule].text, o.fired,
                          o.times, to_char(o.condition));
@@ -293,6 +311,7 @@ exit_status run_run(const run_cli_options& o) {
     vcd_options vo;
     vo.top = file_stem(d->path);
     vo.version = std::string("settle ") + SETTLE_VERSION;
+    vo.timescale = design_timescale(*d, ro.horizon);  // the same under every corner
     if (o.vcd_nets == "outputs") {
       vo.only = d->nets.outputs;
       vo.only.insert(vo.only.end(), d->stim.watch.begin(), d->stim.watch.end());

@@ -54,6 +54,15 @@ std::string stop_words(const sweep_result& r) {
 /// The most witness VCDs written for one step.
 constexpr std::size_t vcd_per_step_limit = 32;
 
+// The JSON name of an outcome's times: settle times only where the corners
+// went quiet (settled, running: last change, deadlock); an oscillating
+// outcome's are detection times, a timeout's (or event limit's) last changes.
+const char* outcome_times_key(step_status s) {
+  if (s == step_status::oscillating) return "detected_fs";
+  if (s == step_status::timeout || s == step_status::event_limit) return "last_change_fs";
+  return "settle_fs";
+}
+
 // The command that replays one corner with `settle run`.
 std::string replay(const sweep_cli_options& o, const std::string& corner) {
   return replay_command(o.design, corner, o.horizon, o.max_events);
@@ -152,8 +161,17 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
       e["share"] = out.share;
       e["share_ci95"] = {out.share_ci95.lo, out.share_ci95.hi};
       e["witness"] = out.witness_name;
-      e["settle_fs"] = {{"min", out.settle.min}, {"median", out.settle.median}, {"max", out.settle.max}};
+      e[outcome_times_key(out.status)] = {
+          {"min", out.settle.min}, {"median", out.settle.median}, {"max", out.settle.max}};
       if (out.status == step_status::oscillating) e["period_fs"] = out.period;
+      if (out.status == step_status::timeout && !out.end_of_time && out.reached) {
+        e["reached_fs"] = out.reached;
+        e["witness_events"] = out.events;
+        if (out.values_period)
+          e["values_repeat"] = {{"at_fs", out.values_repeat_at}, {"period_fs", out.values_period}};
+        e["detail"] =
+            timeout_words(out.reached, out.events, out.values_repeat_at, out.values_period);
+      }
       if (out.status == step_status::deadlock) e["owed"] = owed_json(d, out.owed);
       st["outcomes"].push_back(std::move(e));
     }
@@ -289,11 +307,7 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
                     const std::vector<culprit_report>& races = {}) {
   const netlist& n = d.nets;
   const bool interval_only = r.planned == 0;
-  auto paint = [colour](std::string text, bool good) {
-    if (!colour) return text;
-    return fmt::format(fmt::fg(good ? fmt::terminal_color::green : fmt::terminal_color::red) | fmt::emphasis::bold,
-                       "{}", text);
-  };
+  auto paint = [colour](std::string_view text, bool good) { return mark(text, good, colour); };
   std::string out = fmt::format("design   {}\n", d.path);
   if (interval_only)
     out += fmt::format("corners  none ({}): one min-max ambiguity run covers every delay in range, {:.2f} s\n",
@@ -306,10 +320,8 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
                        paint("STOPPED", false), stop_words(r), r.corners, r.planned);
   for (const auto& s : r.steps) {
     out += fmt::format("\nstep {}: {}\n", s.index, s.label.empty() ? "(no input change)" : s.label);
-    // Findings stand out in capitals, with or without colour.
-    std::string verdict = verdict_name(s.verdict);
-    if (!s.pass)
-      for (auto& c : verdict) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
+    // Findings stand out in capitals, with or without colour (mark).
+    const std::string verdict = verdict_name(s.verdict);
     if (interval_only) {
       out += interval_only_step(n, r, s, paint(verdict, s.pass), paint);
       continue;
@@ -325,22 +337,35 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
     if (s.unseen_outcome_bound)
       out += fmt::format("  chance of an outcome not seen < {:.3g}% (rule of three over the random corners)\n",
                          100.0 * *s.unseen_outcome_bound);
-    out += fmt::format("  {:>3}  {:<12} {:>8}  {:>6}  {:<17}  {:<28}  {}\n", "#", "status", "count", "share",
-                       "95% CI", "settle min / median / max", "witness");
+    // The times column holds settle times for outcomes that settle; an
+    // oscillating outcome's are the times from the step's start to the
+    // detected repeat, a timeout's its last change: each line says which.
+    out += fmt::format("  {:>3}  {:<12} {:>8}  {:>6}  {:<17}  {:<40}  {}\n", "#", "status", "count",
+                       "share", "95% CI", "times min / median / max", "witness");
     for (std::size_t i = 0; i < s.outcomes.size(); ++i) {
       const auto& oc = s.outcomes[i];
       std::string status = status_name(oc.status);
       if (oc.status == step_status::oscillating) status += " " + format_time(oc.period);
       const std::string ci = fmt::format("[{}, {}]", percent(oc.share_ci95.lo), percent(oc.share_ci95.hi));
-      const std::string times = fmt::format("{} / {} / {}", format_time(oc.settle.min),
-                                            format_time(oc.settle.median), format_time(oc.settle.max));
-      out += fmt::format("  {:>3}  {:<12} {:>8}  {:>6}  {:<17}  {:<28}  {}\n", i + 1, status, oc.count,
-                         percent(oc.share), ci, times, oc.witness_name);
+      const char* label =
+          oc.status == step_status::oscillating ? "detected "
+          : oc.status == step_status::timeout || oc.status == step_status::event_limit
+              ? "last change "
+              : "settle ";
+      const std::string times =
+          fmt::format("{}{} / {} / {}", label, format_time(oc.settle.min),
+                      format_time(oc.settle.median), format_time(oc.settle.max));
+      out += fmt::format("  {:>3}  {:<12} {:>8}  {:>6}  {:<17}  {:<40}  {}\n", i + 1, status,
+                         oc.count, percent(oc.share), ci, times, oc.witness_name);
       std::string vals;
       for (std::size_t k = 0; k < r.reported.size() && k < oc.values.size(); ++k)
         vals += fmt::format("{}{}={}", k ? " " : "", n.net_name[r.reported[k]], to_char(oc.values[k]));
       if (!vals.empty()) out += fmt::format("       values  {}\n", vals);
       if (oc.end_of_time) out += fmt::format("       reason  {}\n", end_of_time_words);
+      else if (oc.status == step_status::timeout && oc.reached)
+        out += fmt::format(
+            "       reason  at {}: {}\n", oc.witness_name,
+            timeout_words(oc.reached, oc.events, oc.values_repeat_at, oc.values_period));
       for (const auto& w : oc.owed)
         out += fmt::format("       owed    {} (fired {} of {}; condition {})\n", d.stim.rules[w.rule].text, w.fired,
                            w.times, to_char(w.condition));
@@ -417,6 +442,7 @@ bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep
       vcd_options vo;
       vo.top = file_stem(d.path);
       vo.version = std::string("settle ") + SETTLE_VERSION;
+      vo.timescale = design_timescale(d, ro.horizon);  // every witness of the design alike
       vcd_writer vcd(d.nets, std::move(vo));
       if (interrupted()) return false;  // the caller reports it
       fill_delays(d, plan.corner_at(oc.witness), delays);

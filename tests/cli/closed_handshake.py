@@ -82,8 +82,9 @@ def never_acknowledged(binary, tmp):
               f"stuck run: owed rule {lower}, want fired 0 of 5 with condition 0")
         check(doc.get("result") == "findings", f"stuck run: result {doc.get('result')}, want findings")
     rc, out, err = run_settle(binary, "run", path)
-    check(rc == 1 and "deadlock" in out and "when ack after 100ps" in out,
-          f"stuck run (text): exit {rc}, want 1 with 'deadlock' and the owed rule in: {out[-600:]!r}")
+    # Text output marks a finding in capitals (README "Reading the output"), so the status reads DEADLOCK.
+    check(rc == 1 and "DEADLOCK" in out and "when ack after 100ps" in out,
+          f"stuck run (text): exit {rc}, want 1 with 'DEADLOCK' and the owed rule in: {out[-600:]!r}")
     rc, doc = report(binary, ["sweep", path, "--corners", "extremes+random:20"], "sweep of the stuck circuit",
                      want_rc=1)
     if doc is not None:

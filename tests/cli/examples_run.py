@@ -72,9 +72,16 @@ def check_run_json(doc, label, want_status):
     if not steps:
         fail(f"{label}: JSON has no steps")
     for s in steps:
-        for key in ("index", "status", "start_fs", "end_fs", "settle_fs", "values", "transitions", "expect"):
+        for key in ("index", "status", "start_fs", "end_fs", "values", "transitions", "expect"):
             if key not in s:
                 fail(f"{label}: step {s.get('index')} lacks '{key}'")
+        # A settle time only for a step that went quiet (README "JSON"); an oscillating
+        # step gives detected_fs, a timeout last_change_fs (corrected when they stopped
+        # carrying settle_fs, which was the last change, not a settle time).
+        want = {"oscillating": "detected_fs", "timeout": "last_change_fs",
+                "event_limit": "last_change_fs"}.get(s.get("status"), "settle_fs")
+        if want not in s:
+            fail(f"{label}: step {s.get('index')} ({s.get('status')}) lacks '{want}'")
         for e in s.get("expect", []):
             if want_status == 0 and not e.get("pass"):
                 fail(f"{label}: step {s.get('index')} expectation {e} failed")

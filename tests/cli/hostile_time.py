@@ -17,6 +17,10 @@ from settle_test import check, run_settle, scratch, summary  # noqa: E402
 settle, src = sys.argv[1], sys.argv[2]
 tmp = scratch("settle-hostile-time-")
 EOT = "timeout at the end of representable time"
+# The run table marks its verdicts the README way (a finding in capitals), so
+# there the status reads "TIMEOUT at the end ..." and the result "FINDINGS";
+# JSON and the sweep's reason line keep the words above.
+EOT_TEXT = "TIMEOUT at the end of representable time"
 # 2^64 - 1 fs is never; the last instant is 2^64 - 2 fs (README, "Time at its edges").
 TOP = "18446744073709551615fs"
 
@@ -103,7 +107,7 @@ CASES = [
      ["run", "slow.settle", "--json", "-"], 0,
      ['"end_fs": 6000000000002000000', '"result": "pass"'], None),
     ("a slow ring reaches the end of time honestly", {"ring.settle": RING},
-     ["run", "ring.settle"], 1, [EOT, "result  findings"], None),
+     ["run", "ring.settle"], 1, [EOT_TEXT, "result  FINDINGS"], None),
     ("a slow ring in JSON says why", {"ring.settle": RING},
      ["run", "ring.settle", "--json", "-"], 1, [f'"detail": "{EOT}"', '"status": "timeout"'], None),
     ("a sweep of the slow ring says why, in text", {"ring.settle": RING},
@@ -117,7 +121,7 @@ CASES = [
      ['"end_fs": 18000000000000000000', '"status": "timeout"'],
      lambda so, se: (EOT not in so, "an ordinary timeout, not the end of time")),
     ("a slow clock under the longest horizon reaches the end of time", {"s.settle": STROBE},
-     ["run", "s.settle", "--horizon", "18446744073709551614fs"], 1, [EOT], None),
+     ["run", "s.settle", "--horizon", "18446744073709551614fs"], 1, [EOT_TEXT], None),
     ("two assignments on one line", {"d.settle": lamp("at 0ns a = 1, a = 0", "settle")},
      ["run", "d.settle"], 2, ["d.settle:5:19: error: input 'a' is assigned twice", "d.settle:5:12: note:"],
      lambda so, se: (caret_under(se, "a = 0") and caret_under(se, "a = 1"), "a caret under each")),

@@ -218,6 +218,27 @@ mdata = json.loads(mdom.data)
 fig = [e for e in mdom.elements if "data-margin" in e]
 check(len(fig) == 1 and float(fig[0]["data-margin"]) == mdata["result"]["margin_pct"], "margin figure")
 
+# ---- oscillating and timed-out outcomes: their times are labelled for what they are
+# (detection, last change), never as settle times, and the pages still render cleanly.
+ring = [os.path.join(src, "examples", "delay_ring.settle"), "--stim", os.path.join(src, "examples", "delay_ring_free.stim")]
+for name, extra in (("ring-osc", []), ("ring-timeout", ["--horizon", "500ps"])):
+    rpage, rjson = os.path.join(tmp, name + ".html"), os.path.join(tmp, name + ".json")
+    subprocess.run([settle, "sweep", *ring, "--corners", "extremes", *extra, "--json", rjson, "--html", rpage, "-q"],
+                   capture_output=True, text=True)
+    rdom2 = parse(load(rpage, name))
+    rsweep = json.load(open(rjson))
+    key = "detected_fs" if name == "ring-osc" else "last_change_fs"
+    word = "repeat detected " if name == "ring-osc" else "last change "
+    cards = [e for e in rdom2.with_class("outcome") if e["data-step"] == "2"]
+    check(cards, f"{name}: outcome blocks for step 2")
+    for e in cards:
+        o = rsweep["steps"][1]["outcomes"][int(e["data-rank"]) - 1]
+        check("settle_fs" not in o and key in o, f"{name}: outcome times under {key}, not settle_fs ({list(o)})")
+        for k in ("min", "median", "max"):
+            check(int(e["data-settle-" + k]) == o[key][k], f"{name}: outcome block {k} is its {key}")
+    check(word.strip() in "".join(re.findall(r'class="sub">([^<]*)<', load(rpage, name + "-text"))),
+          f"{name}: the outcome card labels its times '{word.strip()}'")
+
 if failures:
     print(f"{len(failures)} failure(s)")
     sys.exit(1)

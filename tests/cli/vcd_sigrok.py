@@ -72,11 +72,9 @@ def check_structure(path, name):
             dumped.add(line[1:])
     check(times[:1] == [0], f"{name}: the dump starts at #0")
     check(dumped == codes, f"{name}: $dumpvars gives every variable a value")
-    if scale:
-        fs = [t * scale for t in times]
-        coarser = scale * 10
-        check(scale == 10**17 or any(t % coarser for t in fs),
-              f"{name}: timescale {scale} fs is the coarsest exact one")
+    # The timescale is the design's, the same under every corner (README "VCD"),
+    # so it need not be the coarsest for this one run's times: that check was
+    # dropped when the per-run choice went; vcd_timescale.py checks the choice.
     return scale, [t * scale for t in times] if scale else []
 
 

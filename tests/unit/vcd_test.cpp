@@ -1,12 +1,15 @@
-// VCD writer: timescale choice, identifier codes, same-instant coalescing, scopes (IEEE Std 1364-2005 clause 18).
-#include <catch2/catch.hpp>
+// VCD writer: timescale choice (one per design), identifier codes, same-instant coalescing, scopes
+// (IEEE Std 1364-2005 clause 18).
+#include "waves/vcd.hpp"
 
+#include <catch2/catch.hpp>
 #include <set>
 #include <sstream>
 #include <string>
 #include <vector>
 
-#include "waves/vcd.hpp"
+#include "parser/load.hpp"
+#include "sim/corner.hpp"
 
 using namespace settle;
 
@@ -78,6 +81,9 @@ TEST_CASE("identifier codes are base-94 over printable ASCII", "[waves][vcd]") {
 
 TEST_CASE("the timescale is the coarsest power of ten dividing every time", "[waves][vcd]") {
   // IEEE 1364-2005 18.2.3.5: time_number is 1, 10 or 100; units s ms us ns ps fs.
+  // Without vcd_options::timescale the writer picks the unit from the times
+  // it wrote; the commands always pass the design's (next test), and this
+  // choice remains the fallback when a written time does not fit it.
   fixture f;
   CHECK(between(f.dump({{5000, f.a, logic::one}, {15000, f.a, logic::zero}}, 20000), "$timescale ", " $end") == "1 ps");
   CHECK(between(f.dump({{1500, f.a, logic::one}}, 3000), "$timescale ", " $end") == "100 fs");
@@ -202,4 +208,85 @@ TEST_CASE("names that meet after sanitising stay distinct", "[waves][vcd]") {
   CHECK(names.count("a_b") == 1);
   CHECK(names.count("a_b_2") == 1);
   CHECK(names.count("a_b_3") == 1);  // a.b: a_b and a_b_2 are taken as written
+}
+
+namespace {
+
+settle::design load_text(const std::string& text) {
+  diagnostics diags;
+  auto d = load_design_text(text, "ts.settle", load_options{}, diags);
+  for (const auto& x : diags.items) UNSCOPED_INFO(format_diagnostic(x));
+  REQUIRE(d);
+  return std::move(*d);
+}
+
+// The $timescale line of a run of `d` at corner `name` with the design's timescale.
+std::string run_timescale(const settle::design& d, const std::string& name) {
+  std::string err;
+  const auto c = parse_corner(name, &err);
+  REQUIRE(c);
+  delay_table t;
+  fill_delays(d.nets, *c, t);
+  vcd_options o;
+  o.date = "fixed";
+  o.timescale = design_timescale(d);
+  vcd_writer w(d.nets, o);
+  run_stimulus(d, t, run_options{}, &w);
+  const auto v = w.str();
+  CHECK_FALSE(w.timescale_refined());
+  return between(v, "$timescale ", " $end");
+}
+
+}  // namespace
+
+TEST_CASE("the timescale is the design's, the same under every corner", "[waves][vcd]") {
+  // IEEE 1364-2005 18.2.3.5: the timescale is 1, 10 or 100 of s, ms, us, ns,
+  // ps or fs; every #time is a whole multiple of it.
+  // Fixed delays of 20 ps and 30 ps, inputs on whole nanoseconds: 10 ps
+  // divides every time any corner can produce (typ, min and max coincide).
+  const auto fixed = load_text(
+      "input a\noutput y\nwire m\nm = not(a) delay 20ps\ny = not(m) delay 30ps\n"
+      "stimulus {\n at 0ns a = 0\n settle\n after 1ns a = 1\n settle\n}\n");
+  CHECK(design_timescale(fixed) == 4);  // 10^4 fs = 10 ps
+  for (const char* c : {"min", "typ", "max", "random:1", "gauss:3#2", "typ@2"})
+    CHECK(run_timescale(fixed, c) == "10 ps");
+  // A true range (20..30 ps): random corners draw any whole fs in it, so only
+  // 1 fs represents every corner, and every corner uses it, typ included.
+  const auto ranged = load_text(
+      "input a\noutput y\nwire m\nm = not(a) delay 20ps..30ps\ny = not(m) delay 30ps\n"
+      "stimulus {\n at 0ns a = 0\n settle\n after 1ns a = 1\n settle\n}\n");
+  CHECK(design_timescale(ranged) == 0);
+  for (const char* c : {"min", "typ", "max", "random:1"}) CHECK(run_timescale(ranged, c) == "1 fs");
+  // Stimulus times count: an input at 1.5 ps needs 100 fs.
+  const auto stim = load_text(
+      "input a\noutput y\ny = not(a) delay 20ps\nstimulus {\n at 0ns a = 0\n settle\n after 1500fs "
+      "a = 1\n settle\n}\n");
+  CHECK(design_timescale(stim) == 2);
+  CHECK(run_timescale(stim, "max") == "100 fs");
+  // So do clock periods and high times: a 10 ns clock high for 2.5 ns, 100 ps.
+  const auto clk = load_text(
+      "input ck\noutput y\ny = not(ck) delay 1ns\nstimulus {\n clock ck period 10ns high 2500ps "
+      "cycles 2\n run 40ns\n}\n");
+  CHECK(design_timescale(clk) == 5);
+  CHECK(run_timescale(clk, "min") == "100 ps");
+  // A time that does not fit the given unit refines it rather than being rounded.
+  {
+    fixture f;
+    vcd_options o;
+    o.timescale = 4;  // 10 ps
+    o.date = "fixed";
+    vcd_writer w(f.n, o);
+    std::vector<logic> init(f.n.net_count(), logic::x);
+    w.on_start(init);
+    const std::vector<change> c{{20000, f.a, logic::one}, {25500, f.a, logic::zero}};
+    w.on_changes(c);
+    w.on_finish(30000);
+    const auto v = w.str();
+    CHECK(w.timescale_refined());
+    CHECK(between(v, "$timescale ", " $end") == "100 fs");
+    CHECK(v.find("\n#255\n") != std::string::npos);
+  }
+  // A given step limit joins them: --horizon 1234fs needs 1 fs.
+  CHECK(design_timescale(fixed, 1234) == 0);
+  CHECK(design_timescale(fixed, 5'000'000) == 4);
 }
