@@ -66,10 +66,12 @@ int register_command(command c) {
 const std::vector<command>& commands() { return table(); }
 
 void add_design_options(CLI::App& cmd, design_options& o) {
-  cmd.add_option("DESIGN", o.path, "design file (.settle, or .bench for ISCAS netlists)")->required();
+  cmd.add_option("DESIGN", o.path, "design file (.settle, .bench for ISCAS netlists, .v for structural Verilog)")
+      ->required();
   cmd.add_option("--stim", o.stim, "file with one stimulus { } block replacing the design's own");
-  cmd.add_option("--format", o.format, "input format: auto (by extension), settle or bench")
-      ->check(CLI::IsMember({"auto", "settle", "bench"}));
+  cmd.add_option("--format", o.format, "input format: auto (by extension), settle, bench or verilog")
+      ->check(CLI::IsMember({"auto", "settle", "bench", "verilog"}));
+  cmd.add_option("--top", o.top, "Verilog: the top module (default: the one no other module instantiates)");
   cmd.add_option("--dff", o.dff, "imported flip-flops: gates (six NAND gates) or primitive")
       ->check(CLI::IsMember({"gates", "primitive"}));
   cmd.add_option("--delay", o.delay, "delay of imported gates: MIN..MAX (e.g. 40ps..60ps)");
@@ -80,6 +82,7 @@ std::optional<design> load(const design_options& o) {
   lo.stim_path = o.stim;
   lo.format = o.format;
   lo.dff = o.dff;
+  lo.top = o.top;
   if (!o.delay.empty()) {
     std::string err;
     auto r = parse_delay_range(o.delay, &err);
@@ -209,6 +212,7 @@ std::string replay_command(const design_options& o, const std::string& corner, c
   if (!o.stim.empty()) cmd += " --stim " + word(o.stim);
   if (o.format != "auto") cmd += " --format " + o.format;
   if (o.dff != "gates") cmd += " --dff " + o.dff;
+  if (!o.top.empty()) cmd += " --top " + word(o.top);
   if (!o.delay.empty()) cmd += " --delay " + word(o.delay);
   cmd += " --corner " + word(corner);
   if (!horizon.empty()) cmd += " --horizon " + word(horizon);
