@@ -21,6 +21,11 @@ namespace {
 bool id_start(char c) { return std::isalpha(static_cast<unsigned char>(c)) || c == '_'; }
 bool id_char(char c) { return std::isalnum(static_cast<unsigned char>(c)) || c == '_' || c == '$'; }
 bool space(char c) { return std::isspace(static_cast<unsigned char>(c)) != 0; }
+bool is_primitive(std::string_view w) {
+  for (const char* k : {"and", "nand", "or", "nor", "xor", "xnor", "buf", "not", "assign"})
+    if (w == k) return true;
+  return false;
+}
 
 /// The `timescale in effect from an offset of the text on: the unit in fs
 /// (0 before any directive) and the precision delays are rounded to.
@@ -314,6 +319,16 @@ class reader {
                    fmt::format("{} is not supported by settle's structural reader", what));
         return;  // the rest would be misread
       }
+      if (!first.empty() && first != "module") {
+        auto k = i + first.size();
+        while (k < s.size() && space(s[k])) ++k;
+        if (k < s.size() && s[k] == '#' && !is_primitive(first)) {
+          rep_.error(loc_at(k),
+                     "parameter overrides (#(...) on a module instance) are not supported by "
+                     "settle's structural reader");
+          return;
+        }
+      }
       // The statement runs to the next ';' (an 'endmodule' first means it is missing).
       std::size_t e = i + first.size();
       std::size_t last_text = e;
@@ -341,9 +356,7 @@ class reader {
       if (rep_.errors()) return;
       i = e + 1;
     }
-    if (cur)
-      rep_.error(loc(s.data() + s.size()),
-                 fmt::format("module '{}' has no 'endmodule'", cur->name));
+    if (cur) rep_.error(cur->loc, fmt::format("module '{}' has no 'endmodule'", cur->name));
   }
 
   void statement(std::string_view text, vmodule*& cur) {
