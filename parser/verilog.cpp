@@ -7,6 +7,7 @@
 #include <algorithm>
 #include <cctype>
 #include <cmath>
+#include <cstring>
 #include <deque>
 #include <unordered_map>
 #include <unordered_set>
@@ -57,7 +58,6 @@ const char* unsupported_word(std::string_view w) {
       {"wand", "'wand'"},
       {"wor", "'wor'"},
       {"specify", "a 'specify' block"},
-      {"primitive", "a user-defined primitive ('primitive')"},
       {"bufif0", "the 'bufif0' gate"},
       {"bufif1", "the 'bufif1' gate"},
       {"notif0", "the 'notif0' gate"},
@@ -101,6 +101,27 @@ struct vmodule {
   std::vector<vast::inst_stmt> insts;
 };
 
+/// A user-defined primitive: its ports, state and table (level-sensitive rows).
+struct udp_def {
+  std::string_view name;
+  source_loc loc;
+  std::vector<std::string> ports;  // the output first
+  bool sequential = false;
+  logic initial = logic::x;
+  bool has_initial = false;
+  struct row {
+    std::string ins;  // one symbol per input
+    char state = 0;   // sequential tables: the present-state symbol
+    char out = 0;
+    source_loc loc;
+  };
+  std::vector<row> rows;
+  // The lowering: a C-element (sequential) or, for combinational tables, the
+  // output for every binary input combination (bit k of the index = input k).
+  bool celem = false;
+  std::vector<bool> truth;
+};
+
 /// A bit of a connection: a net's full name in its scope, "0" or "1".
 using bits = std::vector<std::string_view>;
 
@@ -114,6 +135,7 @@ class reader {
     clean_ = std::string(text_);
     preprocess();
     if (rep_.errors()) return std::nullopt;
+    find_udp_names();
     statements();
     if (rep_.errors()) return std::nullopt;
     if (modules_.empty()) {
@@ -310,6 +332,17 @@ class reader {
         i += first.size();
         continue;
       }
+      if (first == "primitive") {
+        if (cur) {
+          rep_.error(
+              loc_at(i),
+              fmt::format("'primitive' inside module '{}' (no 'endmodule' before it)", cur->name));
+          return;
+        }
+        i = udp(i);
+        if (rep_.errors()) return;
+        continue;
+      }
       if (first == "endprimitive" || first == "endspecify") {
         rep_.error(loc_at(i), fmt::format("'{}' without its opening keyword", first));
         return;
@@ -322,7 +355,7 @@ class reader {
       if (!first.empty() && first != "module") {
         auto k = i + first.size();
         while (k < s.size() && space(s[k])) ++k;
-        if (k < s.size() && s[k] == '#' && !is_primitive(first)) {
+        if (k < s.size() && s[k] == '#' && !is_primitive(first) && !udp_names_.count(first)) {
           rep_.error(loc_at(k),
                      "parameter overrides (#(...) on a module instance) are not supported by "
                      "settle's structural reader");
@@ -504,6 +537,333 @@ class reader {
     }
     for (auto& n : d.names)
       add_signal(m, n, d.kind == "wire" ? std::string() : d.kind, d.range, false);
+  }
+
+  // ---- User-defined primitives --------------------------------------------
+
+  void find_udp_names() {
+    const std::string& s = clean_;
+    for (std::size_t i = s.find("primitive"); i != std::string::npos;
+         i = s.find("primitive", i + 1)) {
+      if ((i > 0 && id_char(s[i - 1])) || (i + 9 < s.size() && id_char(s[i + 9]))) continue;
+      auto k = i + 9;
+      while (k < s.size() && space(s[k])) ++k;
+      if (k < s.size() && id_start(s[k])) udp_names_.insert(intern(std::string(word_at(k))));
+    }
+  }
+
+  const udp_def* udp_named(std::string_view n) const {
+    for (auto& u : udps_)
+      if (u.name == n) return &u;
+    return nullptr;
+  }
+
+  /// Reads `primitive NAME (PORTS); declarations; [initial Q = V;] table ROWS endtable
+  /// endprimitive` starting at `at`; returns the offset after `endprimitive`.
+  std::size_t udp(std::size_t at) {
+    const std::string& s = clean_;
+    std::size_t i = at + 9;
+    auto skip = [&] {
+      while (i < s.size() && space(s[i])) ++i;
+    };
+    auto fail = [&](std::size_t where, std::string msg) {
+      rep_.error(loc_at(where), std::move(msg));
+      return s.size();
+    };
+    auto word = [&]() -> std::string {
+      skip();
+      if (i >= s.size() || !id_start(s[i])) return {};
+      auto w = std::string(word_at(i));
+      i += w.size();
+      return w;
+    };
+    auto expect = [&](char c) {
+      skip();
+      if (i < s.size() && s[i] == c) {
+        ++i;
+        return true;
+      }
+      return false;
+    };
+    auto found = [&] {
+      skip();
+      return i >= s.size() ? std::string("the end of the file") : fmt::format("'{}'", s[i]);
+    };
+    udp_def u;
+    skip();
+    const auto name_at = i;
+    const std::string name = word();
+    if (name.empty()) return fail(i, "expected the primitive's name, found " + found());
+    u.name = intern(name);
+    u.loc = loc_at(name_at);
+    if (udp_named(u.name) || module_named(u.name))
+      return fail(name_at, fmt::format("'{}' is already defined", name));
+    if (!expect('(')) return fail(i, "expected '(' and the primitive's ports, found " + found());
+    do {
+      skip();
+      const auto p_at = i;
+      auto p = word();
+      if (p.empty()) return fail(p_at, "expected a port name, found " + found());
+      u.ports.push_back(p);
+    } while (expect(','));
+    if (!expect(')')) return fail(i, "expected ')', found " + found());
+    if (!expect(';')) return fail(i, "expected ';', found " + found());
+    if (u.ports.size() < 2)
+      return fail(name_at, "a primitive needs an output and at least one input");
+    std::unordered_set<std::string> outputs, inputs, regs;
+    for (;;) {
+      skip();
+      const auto w_at = i;
+      const std::string w = word();
+      if (w == "output" || w == "input" || w == "reg") {
+        std::string kind = w;
+        if (w == "output") {
+          auto save = i;
+          if (word() == "reg")
+            regs.insert("");  // marks "output reg" for the name below
+          else
+            i = save;
+        }
+        do {
+          skip();
+          const auto n_at = i;
+          auto n = word();
+          if (n.empty()) return fail(n_at, "expected a port name, found " + found());
+          if (std::find(u.ports.begin(), u.ports.end(), n) == u.ports.end())
+            return fail(n_at, fmt::format("'{}' is not a port of primitive '{}'", n, name));
+          if (kind == "output") outputs.insert(n);
+          if (kind == "input") inputs.insert(n);
+          if (kind == "reg" || regs.count("")) regs.insert(n);
+        } while (expect(','));
+        regs.erase("");
+        if (!expect(';')) return fail(i, "expected ';', found " + found());
+        continue;
+      }
+      if (w == "initial") {
+        skip();
+        const auto q_at = i;
+        if (word() != u.ports[0]) return fail(q_at, "expected the output after 'initial'");
+        if (!expect('=')) return fail(i, "expected '=', found " + found());
+        skip();
+        const auto v_at = i;
+        while (i < s.size() && (std::isalnum(static_cast<unsigned char>(s[i])) || s[i] == '\''))
+          ++i;
+        const std::string v = s.substr(v_at, i - v_at);
+        if (v == "0" || v == "1'b0" || v == "1'B0")
+          u.initial = logic::zero;
+        else if (v == "1" || v == "1'b1" || v == "1'B1")
+          u.initial = logic::one;
+        else if (v == "1'bx" || v == "1'bX")
+          u.initial = logic::x;
+        else
+          return fail(v_at, "expected 0, 1, 1'b0, 1'b1 or 1'bx after 'initial Q ='");
+        u.has_initial = true;
+        if (!expect(';')) return fail(i, "expected ';', found " + found());
+        continue;
+      }
+      if (w == "table") break;
+      return fail(w_at,
+                  w.empty()
+                      ? "expected 'table', found " + found()
+                      : fmt::format("expected a declaration, 'initial' or 'table', found '{}'", w));
+    }
+    if (outputs.size() != 1 || !outputs.count(u.ports[0]))
+      return fail(name_at,
+                  fmt::format("primitive '{}' must declare its first port '{}' as its one output",
+                              name, u.ports[0]));
+    for (std::size_t k = 1; k < u.ports.size(); ++k)
+      if (!inputs.count(u.ports[k]))
+        return fail(name_at, fmt::format("port '{}' of primitive '{}' is not declared an input",
+                                         u.ports[k], name));
+    u.sequential = regs.count(u.ports[0]) > 0;
+    if (u.has_initial && !u.sequential)
+      return fail(name_at, "'initial' needs a sequential primitive (declare its output 'reg')");
+    const std::size_t n = u.ports.size() - 1;
+    // Rows: N input symbols, ':' [state ':'] output ';'.
+    for (;;) {
+      skip();
+      const auto r_at = i;
+      if (word_at(i) == "endtable") {
+        i += 8;
+        break;
+      }
+      if (i >= s.size()) return fail(at, "this primitive's table has no 'endtable'");
+      udp_def::row r;
+      r.loc = loc_at(r_at);
+      std::vector<std::string> fields(1);
+      std::vector<std::size_t> field_at{i};
+      while (i < s.size() && s[i] != ';') {
+        const char c = s[i];
+        if (c == ':') {
+          fields.emplace_back();
+          field_at.push_back(i + 1);
+        } else if (c == '(' || std::strchr("rRfFpPnN*", c)) {
+          return fail(
+              i,
+              "edge-sensitive table entries are not supported yet by settle's structural reader "
+              "(only level-sensitive tables)");
+        } else if (std::strchr("01xX?bB-", c)) {
+          fields.back() += static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+        } else if (!space(c)) {
+          return fail(i, fmt::format("'{}' is not a table symbol (0 1 x ? b -)", c));
+        }
+        ++i;
+      }
+      if (i >= s.size()) return fail(r_at, "expected ';' at the end of this table row");
+      ++i;
+      const std::size_t want = u.sequential ? 3 : 2;
+      if (fields.size() != want)
+        return fail(r_at, fmt::format("a {} table row has {} fields separated by ':'",
+                                      u.sequential ? "sequential" : "combinational", want));
+      if (fields[0].size() != n)
+        return fail(r_at,
+                    fmt::format("this row gives {} input symbols; primitive '{}' has {} inputs",
+                                fields[0].size(), name, n));
+      r.ins = fields[0];
+      if (u.sequential) {
+        if (fields[1].size() != 1) return fail(field_at[1], "expected one present-state symbol");
+        r.state = fields[1][0];
+      }
+      const auto& o = fields.back();
+      if (o.size() != 1 || std::strchr("01x-", o[0]) == nullptr || (o[0] == '-' && !u.sequential))
+        return fail(field_at.back(), u.sequential ? "expected an output 0, 1, x or -"
+                                                  : "expected an output 0, 1 or x");
+      r.out = o[0];
+      u.rows.push_back(r);
+    }
+    skip();
+    if (word_at(i) != "endprimitive") return fail(i, "expected 'endprimitive', found " + found());
+    i += 12;
+    if (!analyse(u)) return s.size();
+    udps_.push_back(std::move(u));
+    return i;
+  }
+
+  /// The output a level-sensitive table gives for binary inputs (and present
+  /// state q): '0', '1', 'x', '-' or 0 when no row matches; reports conflicts.
+  char table_out(const udp_def& u, std::uint32_t m, int q, bool& ok) {
+    auto match = [](char sym, int v) { return sym == '?' || sym == 'b' || sym == (v ? '1' : '0'); };
+    char got = 0;
+    const udp_def::row* first = nullptr;
+    for (auto& r : u.rows) {
+      bool hit = true;
+      for (std::size_t k = 0; k < r.ins.size() && hit; ++k) hit = match(r.ins[k], (m >> k) & 1);
+      if (hit && u.sequential) hit = match(r.state, q);
+      if (!hit) continue;
+      char o = r.out == '-' ? (q ? '1' : '0') : r.out;
+      if (got && o != got) {
+        rep_.error(r.loc, fmt::format("this row contradicts the row at {}:{}", first->loc.line,
+                                      first->loc.col));
+        ok = false;
+        return 0;
+      }
+      got = o;
+      first = first ? first : &r;
+    }
+    return got;
+  }
+
+  bool analyse(udp_def& u) {
+    const std::size_t n = u.ports.size() - 1;
+    if (n > 10) {
+      rep_.error(u.loc, "primitives with more than 10 inputs are not supported");
+      return false;
+    }
+    auto combo = [&](std::uint32_t m) {
+      std::string t;
+      for (std::size_t k = 0; k < n; ++k)
+        t += fmt::format("{}{}={}", k ? ", " : "", u.ports[k + 1], (m >> k) & 1);
+      return t;
+    };
+    bool ok = true;
+    const std::uint32_t count = 1u << n;
+    if (!u.sequential) {
+      u.truth.assign(count, false);
+      for (std::uint32_t m = 0; m < count && ok; ++m) {
+        const char o = table_out(u, m, 0, ok);
+        if (!ok) return false;
+        if (o != '0' && o != '1') {
+          rep_.error(
+              u.loc,
+              fmt::format("primitive '{}' gives no binary output for {} (settle's reader needs one "
+                          "for every binary input)",
+                          u.name, combo(m)));
+          return false;
+        }
+        u.truth[m] = o == '1';
+      }
+      return true;
+    }
+    // Sequential: only the C-element (Muller and Bartky 1959) is supported: the
+    // output follows the inputs when they all agree and holds otherwise.
+    for (std::uint32_t m = 0; m < count; ++m)
+      for (int q = 0; q < 2; ++q) {
+        const char o = table_out(u, m, q, ok);
+        if (!ok) return false;
+        const char want = m == 0 ? '0' : m == count - 1 ? '1' : (q ? '1' : '0');
+        if (o != want) {
+          rep_.error(
+              u.loc,
+              fmt::format("the sequential table of '{}' is not a C-element (for {} and present "
+                          "state {} it gives {}, a C-element {}); other sequential tables are "
+                          "not supported yet",
+                          u.name, combo(m), q, o ? std::string(1, o) : "nothing", want));
+          return false;
+        }
+      }
+    u.celem = true;
+    return true;
+  }
+
+  /// One instance of a primitive: terms[0] the output, the rest its inputs.
+  void lower_udp(const udp_def& u, const std::vector<std::string_view>& term,
+                 const std::vector<source_loc>& at, const gate_delay& delay, source_loc where,
+                 ir::scope_def& s) {
+    if (term.size() != u.ports.size()) {
+      rep_.error(where, fmt::format("primitive '{}' has {} ports; this instance connects {}",
+                                    u.name, u.ports.size(), term.size()));
+      return;
+    }
+    ir::gate gt;
+    gt.out = ref_of(term[0], at[0]);
+    gt.has_delay = true;
+    gt.delay = delay;
+    gt.reads_begin = static_cast<std::uint32_t>(s.read_pool.size());
+    gt.code_begin = static_cast<std::uint32_t>(s.code_pool.size());
+    if (u.celem) {
+      gt.kind = gate_kind::celem;
+      for (std::size_t k = 1; k < term.size(); ++k) s.read_pool.push_back(ref_of(term[k], at[k]));
+      if (u.has_initial) s.inits.push_back({ref_of(term[0], at[0]), u.initial});
+    } else {
+      // Sum of the minterms whose output is 1 (the gate is evaluated over the
+      // binary resolutions of its x inputs, so x follows exactly).
+      gt.kind = gate_kind::expr;
+      std::vector<std::string_view> reads;
+      std::vector<std::uint32_t> index;
+      for (std::size_t k = 1; k < term.size(); ++k) {
+        auto it = std::find(reads.begin(), reads.end(), term[k]);
+        index.push_back(static_cast<std::uint32_t>(it - reads.begin()));
+        if (it == reads.end()) {
+          reads.push_back(term[k]);
+          s.read_pool.push_back(ref_of(term[k], at[k]));
+        }
+      }
+      bool any = false;
+      for (std::uint32_t m = 0; m < u.truth.size(); ++m) {
+        if (!u.truth[m]) continue;
+        for (std::size_t k = 0; k < index.size(); ++k) {
+          s.code_pool.push_back(encode(op::input, index[k]));
+          if (!((m >> k) & 1)) s.code_pool.push_back(encode(op::inv));
+          if (k) s.code_pool.push_back(encode(op::and2));
+        }
+        if (any) s.code_pool.push_back(encode(op::or2));
+        any = true;
+      }
+      if (!any) s.code_pool.push_back(encode(op::const0));
+    }
+    gt.reads_end = static_cast<std::uint32_t>(s.read_pool.size());
+    gt.code_end = static_cast<std::uint32_t>(s.code_pool.size());
+    s.gates.push_back(gt);
   }
 
   // ---- Top module ----------------------------------------------------------
@@ -742,7 +1102,15 @@ class reader {
         {"and", gate_kind::and_}, {"nand", gate_kind::nand}, {"or", gate_kind::or_},
         {"nor", gate_kind::nor},  {"xor", gate_kind::xor_},  {"xnor", gate_kind::xnor},
         {"buf", gate_kind::buf},  {"not", gate_kind::inv}};
-    const gate_kind kind = kinds.at(g.kind.text);
+    const udp_def* u = nullptr;
+    if (!kinds.count(g.kind.text)) {
+      u = udp_named(g.kind.text);
+      if (!u) {
+        rep_.error(loc(g.kind.pos), fmt::format("unknown primitive '{}'", g.kind.text));
+        return;
+      }
+    }
+    const gate_kind kind = u ? gate_kind::expr : kinds.at(g.kind.text);
     const bool multi_out = kind == gate_kind::buf || kind == gate_kind::inv;
     for (auto& inst : g.insts) {
       std::vector<std::string_view> term;
@@ -769,6 +1137,10 @@ class reader {
       }
       if (!ok) continue;
       const source_loc where = inst.name ? loc(inst.name->pos) : loc(g.kind.pos);
+      if (u) {
+        lower_udp(*u, term, at, delay, where, s);
+        continue;
+      }
       if (term.size() < 2) {
         rep_.error(where, fmt::format("'{}' needs an output and at least one input", g.kind.text));
         continue;
@@ -1049,6 +1421,38 @@ class reader {
 
   void lower_insts(const vmodule& m, const vast::inst_stmt& st, ir::scope_def& s) {
     const vmodule* sub = module_named(st.module.text);
+    if (const udp_def* u = sub ? nullptr : udp_named(st.module.text)) {
+      for (auto& in : st.insts) {
+        std::vector<std::string_view> term;
+        std::vector<source_loc> at;
+        bool ok = true;
+        for (auto& c : in.conns) {
+          bits b;
+          if (c.port) {
+            rep_.error(loc(c.port->pos),
+                       "a user-defined primitive is connected by position, not by port name");
+            ok = false;
+            break;
+          }
+          if (!conn_bits(m, c.value, b)) {
+            ok = false;
+            break;
+          }
+          if (b.size() != 1) {
+            rep_.error(loc(c.value.front().pos),
+                       fmt::format("a primitive terminal is one bit; this one is {} "
+                                   "bits wide",
+                                   b.size()));
+            ok = false;
+            break;
+          }
+          term.push_back(b[0]);
+          at.push_back(loc(c.value.front().pos));
+        }
+        if (ok) lower_udp(*u, term, at, default_delay(), loc(in.name.pos), s);
+      }
+      return;
+    }
     if (!sub) {
       rep_.error(loc(st.module.pos), fmt::format("unknown module '{}'", st.module.text));
       return;
@@ -1108,6 +1512,8 @@ class reader {
   std::vector<timescale_mark> scales_;
   std::deque<vmodule> modules_;
   std::deque<std::string> pool_;
+  std::deque<udp_def> udps_;
+  std::unordered_set<std::string_view> udp_names_;
 };
 
 }  // namespace

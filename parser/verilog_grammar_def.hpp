@@ -123,6 +123,7 @@ x3::rule<class assign_item, vast::assign_item> const assign_item = "assignment";
 x3::rule<class assign_stmt, vast::assign_stmt> const assign_stmt = "assign";
 x3::rule<class gate_inst, vast::gate_inst> const gate_inst = "gate terminals";
 x3::rule<class gate_stmt, vast::gate_stmt> const gate_stmt = "gate";
+x3::rule<class udp_stmt, vast::gate_stmt> const udp_stmt = "gate";
 x3::rule<class port_conn, vast::port_conn> const port_conn = "port connection";
 x3::rule<class mod_inst, vast::mod_inst> const mod_inst = "instance";
 x3::rule<class inst_stmt, vast::inst_stmt> const inst_stmt = "instance";
@@ -163,16 +164,18 @@ auto const assign_item_def = conn > '=' > expr;
 auto const assign_stmt_def = kw("assign") > -delay > (assign_item % ',');
 auto const gate_inst_def = -ident >> '(' > (conn % ',') > ')';
 auto const gate_stmt_def = gate_kind > -delay > (gate_inst % ',');
+// An instance of a user-defined primitive with a delay (without one it reads as a module instance).
+auto const udp_stmt_def = ident >> &x3::lit('#') >> -delay > (gate_inst % ',');
 auto const port_conn_def =
     ('.' > ident > '(' > -conn > ')') | (x3::attr(boost::optional<vast::raw>()) >> conn);
 auto const mod_inst_def = ident > '(' > -(port_conn % ',') > ')';
 auto const inst_stmt_def = ident >> &(x3::alpha | '_') > (mod_inst % ',');
-auto const statement_rule_def = module_hdr | decl_stmt | assign_stmt | gate_stmt | inst_stmt;
+auto const statement_rule_def = module_hdr | decl_stmt | assign_stmt | gate_stmt | udp_stmt | inst_stmt;
 
 BOOST_SPIRIT_DEFINE(ident_raw, ident, kind_raw, gate_kind, number, based, select, range_syn,
                     range_raw, range_, term_raw, term, conn, mtm, delay_raw, delay, primary, unary,
                     and_e, xor_e, or_e, cond_e, expr_raw, expr, dir_word, port_item, module_hdr,
-                    decl_kind, decl_stmt, assign_item, assign_stmt, gate_inst, gate_stmt, port_conn,
+                    decl_kind, decl_stmt, assign_item, assign_stmt, gate_inst, gate_stmt, udp_stmt, port_conn,
                     mod_inst, inst_stmt, statement_rule)
 
 }  // namespace settle::vgrammar
