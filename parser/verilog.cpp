@@ -22,6 +22,10 @@ namespace {
 bool id_start(char c) { return std::isalpha(static_cast<unsigned char>(c)) || c == '_'; }
 bool id_char(char c) { return std::isalnum(static_cast<unsigned char>(c)) || c == '_' || c == '$'; }
 bool space(char c) { return std::isspace(static_cast<unsigned char>(c)) != 0; }
+/// Bounds on one statement (see reader::statement).
+constexpr int max_nesting = 256;
+constexpr std::size_t max_operators = 10000;
+
 bool is_primitive(std::string_view w) {
   for (const char* k : {"and", "nand", "or", "nor", "xor", "xnor", "buf", "not", "assign"})
     if (w == k) return true;
@@ -393,6 +397,29 @@ class reader {
   }
 
   void statement(std::string_view text, vmodule*& cur) {
+    // The grammar and the expression lowering recurse once per level of
+    // parentheses or ?:, and the lowering once per binary operator: bound both
+    // so that no input can exhaust the stack.
+    int depth = 0;
+    std::size_t ops = 0;
+    for (std::size_t k = 0; k < text.size(); ++k) {
+      const char c = text[k];
+      depth += c == '(' || c == '?';
+      depth -= c == ')';
+      ops += c == '&' || c == '|' || c == '^' || c == '?';
+      if (depth > max_nesting) {
+        rep_.error(
+            loc(text.data() + k),
+            fmt::format("expressions nested deeper than {} levels are not supported", max_nesting));
+        return;
+      }
+      if (ops > max_operators) {
+        rep_.error(
+            loc(text.data() + k),
+            fmt::format("a statement with more than {} operators is not supported", max_operators));
+        return;
+      }
+    }
     vast::statement st;
     vgrammar::syntax_error err;
     if (!vgrammar::parse_statement(text, st, err)) {
@@ -1251,8 +1278,13 @@ class reader {
     }
     int unary() {
       skip();
-      if (i_ < s_.size() && s_[i_] == '~' && (i_ + 1 >= s_.size() || s_[i_ + 1] != '^')) {
+      bool odd = false;  // ~~a is a: only the parity of the '~' matters
+      while (i_ < s_.size() && s_[i_] == '~' && (i_ + 1 >= s_.size() || s_[i_ + 1] != '^')) {
+        odd = !odd;
         ++i_;
+        skip();
+      }
+      if (odd) {
         node n;
         n.kind = node::inv;
         n.a = unary();
