@@ -14,6 +14,7 @@ namespace x3 = boost::spirit::x3;
 struct name {
   std::string text;
   const char* pos = nullptr;
+  bool quoted = false;  ///< written "in double quotes": `text` is taken as it stands
 };
 
 /// A time literal: the digits as written ("1.5") and the unit as a power of
@@ -116,6 +117,71 @@ struct clock_stmt {
   time_lit period;
   boost::optional<time_lit> high;
   boost::optional<unsigned long long> cycles;
+  boost::optional<time_lit> at;  ///< `at T`: the clock's absolute reference time
+};
+
+/// Condition and property expressions: the gate expression operators over
+/// nets, where a net may be written `NET = 1` (NET) or `NET = 0` (~NET).
+struct cond_or;
+struct cond_atom {
+  name net;
+  boost::optional<char> eq;  ///< '0' or '1' after '='
+};
+struct cond_primary : x3::variant<cond_atom, char, x3::forward_ast<cond_or>> {
+  using base_type::base_type;
+  using base_type::operator=;
+};
+struct cond_unary {
+  std::string nots;
+  cond_primary operand;
+};
+struct cond_and : std::vector<cond_unary> {};
+struct cond_xor : std::vector<cond_and> {};
+struct cond_or : std::vector<cond_xor> {};
+
+/// A whole number as written (`times N`), with its position.
+using count_lit = name;
+
+/// `when COND [after RANGE] : ASSIGN {, ASSIGN} [times N]`
+struct when_stmt {
+  cond_or cond;
+  boost::optional<range> delay;
+  std::vector<assign> assigns;
+  boost::optional<count_lit> times;
+};
+/// `NET rises|falls while` in `never NET rises while EXPR`.
+struct edge_part {
+  name net;
+  std::string edge;
+};
+/// `always EXPR`, `never EXPR`, `never NET rises|falls while EXPR`.
+struct property_stmt {
+  std::string keyword;
+  boost::optional<edge_part> edge;
+  cond_or expr;
+};
+struct gauge_period {
+  std::string word;  ///< "period"
+  name net;
+};
+struct gauge_pulse {
+  name net;
+  std::string level;  ///< "high" or "low"
+};
+struct gauge_latency {
+  name from;
+  std::string from_edge;  ///< "rises" or "falls"
+  name to;
+  std::string to_edge;
+};
+struct gauge_body : x3::variant<gauge_period, gauge_pulse, gauge_latency> {
+  using base_type::base_type;
+  using base_type::operator=;
+};
+/// `gauge NAME = period of NET | pulse of NET high|low | latency from NET rises|falls to NET rises|falls`
+struct gauge_stmt {
+  name id;
+  gauge_body body;
 };
 struct settle_stmt {
   std::string keyword;
@@ -139,7 +205,12 @@ struct expect_word {
   std::string word;
   boost::optional<range> period;
 };
-struct expect_body : x3::variant<std::vector<assign>, expect_within, expect_glitch, expect_word> {
+/// `expect NAME within A..B` (a gauge).
+struct expect_gauge {
+  name gauge;
+  range within;
+};
+struct expect_body : x3::variant<std::vector<assign>, expect_within, expect_glitch, expect_gauge, expect_word> {
   using base_type::base_type;
   using base_type::operator=;
 };
@@ -149,7 +220,8 @@ struct expect_stmt {
 };
 
 struct statement : x3::variant<gate_stmt, decl, default_stmt, block_head, inst_stmt, init_stmt, timed_stmt,
-                               clock_stmt, settle_stmt, run_stmt, expect_stmt> {
+                               clock_stmt, settle_stmt, run_stmt, expect_stmt, when_stmt, property_stmt,
+                               gauge_stmt> {
   using base_type::base_type;
   using base_type::operator=;
 };

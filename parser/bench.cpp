@@ -65,10 +65,11 @@ struct bench_file {
   std::vector<std::string_view> lines;  // every line of the text, for diagnostics
 };
 
-// A net name runs until white space or one of the punctuation characters.
+// A net name runs until white space, a control byte or one of the punctuation
+// characters (a NUL in a name is a damaged file; the diagnostic shows it as \0).
 bool name_char(char c) {
-  return c != '(' && c != ')' && c != ',' && c != '=' && c != '#' && c != ' ' && c != '\t' &&
-         c != '\r' && c != '\n';
+  const auto u = static_cast<unsigned char>(c);
+  return c != '(' && c != ')' && c != ',' && c != '=' && c != '#' && u > 0x20 && u != 0x7f;
 }
 
 class reader {

@@ -26,6 +26,17 @@ source_loc reporter::loc_of(const char* p) const {
 
 void reporter::report(diagnostic::level lv, source_loc at, const std::string& msg) {
   if (!seen_.insert(fmt::format("{}:{}:{}", at.line, at.col, msg)).second) return;
+  add(make(lv, at, msg));
+}
+
+void reporter::error_with_note(source_loc at, const std::string& msg, source_loc note_at, const std::string& note) {
+  if (!seen_.insert(fmt::format("{}:{}:{}", at.line, at.col, msg)).second) return;
+  diagnostic d = make(diagnostic::level::error, at, msg);
+  d.notes.push_back(make(diagnostic::level::note, note_at, note));
+  add(std::move(d));
+}
+
+diagnostic reporter::make(diagnostic::level lv, source_loc at, const std::string& msg) const {
   diagnostic d;
   d.severity = lv;
   d.file = file_;
@@ -38,6 +49,11 @@ void reporter::report(diagnostic::level lv, source_loc at, const std::string& ms
     while (e > b && (text_[e - 1] == '\r' || text_[e - 1] == '\n')) --e;
     set_source_line(d, text_.substr(b, e - b));
   }
+  return d;
+}
+
+void reporter::add(diagnostic d) {
+  const auto lv = d.severity;
   if (holding_) {
     held_.push_back(std::move(d));
     return;
@@ -54,9 +70,71 @@ void reporter::release() {
   held_.clear();
 }
 
+std::string reporter::line_text(std::uint32_t line) const {
+  if (line < 1 || line > line_start_.size()) return {};
+  std::size_t b = line_start_[line - 1];
+  std::size_t e = line < line_start_.size() ? line_start_[line] - 1 : text_.size();
+  while (e > b && (text_[e - 1] == '\r' || text_[e - 1] == '\n')) --e;
+  return std::string(text_.substr(b, e - b));
+}
+
 namespace {
 
 enum class where { top, block, stim };
+
+/// Compiles a condition or property expression to postfix code (the encoding
+/// of complex gates), its distinct nets into `reads`.
+class cond_compiler {
+ public:
+  cond_compiler(std::vector<std::uint32_t>& code, std::vector<ref>& reads, const reporter& rep)
+      : code_(code), reads_(reads), rep_(rep) {}
+  void expr(const ast::cond_or& e) {
+    for (std::size_t i = 0; i < e.size(); ++i) {
+      xor_term(e[i]);
+      if (i) code_.push_back(encode(op::or2));
+    }
+  }
+
+ private:
+  void xor_term(const ast::cond_xor& e) {
+    for (std::size_t i = 0; i < e.size(); ++i) {
+      and_term(e[i]);
+      if (i) code_.push_back(encode(op::xor2));
+    }
+  }
+  void and_term(const ast::cond_and& e) {
+    for (std::size_t i = 0; i < e.size(); ++i) {
+      unary(e[i]);
+      if (i) code_.push_back(encode(op::and2));
+    }
+  }
+  void unary(const ast::cond_unary& u) {
+    if (auto a = boost::get<ast::cond_atom>(&u.operand)) {
+      std::uint32_t i = 0;
+      while (i < reads_.size() && reads_[i].name != a->net.text) ++i;
+      if (i == reads_.size()) reads_.push_back(lower_ref(a->net, rep_));
+      code_.push_back(encode(op::input, i));
+      if (a->eq && *a->eq == '0') code_.push_back(encode(op::inv));
+    } else if (auto c = boost::get<char>(&u.operand)) {
+      code_.push_back(encode(*c == '1' ? op::const1 : op::const0));
+    } else {
+      expr(boost::get<boost::spirit::x3::forward_ast<ast::cond_or>>(u.operand).get());
+    }
+    if (u.nots.size() % 2) code_.push_back(encode(op::inv));
+  }
+
+  std::vector<std::uint32_t>& code_;
+  std::vector<ref>& reads_;
+  const reporter& rep_;
+};
+
+/// The text of a condition as written: from `from` to the end of its last name,
+/// digit or parenthesis before `stop` (or the end of `text`).
+std::string span_text(std::string_view text, const char* from, const char* stop) {
+  const char* end = stop ? stop : text.data() + text.size();
+  while (end > from && (end[-1] == ' ' || end[-1] == '\t')) --end;
+  return std::string(from, static_cast<std::size_t>(end - from));
+}
 
 /// Lowers each parsed statement into the file, checking it is allowed where it stands.
 struct visitor {
@@ -96,7 +174,14 @@ struct visitor {
     rep.error(loc(), fmt::format("'{}' is only allowed inside stimulus {{ }}", kw));
     return false;
   }
+  // Quoted names only refer to existing nets, from a stimulus.
+  bool unquoted(const ast::name& n) {
+    if (!n.quoted) return true;
+    rep.error(rep.loc_of(n.pos), "a quoted name can only refer to a net inside stimulus { }");
+    return false;
+  }
   bool plain(const ast::name& n) {
+    if (!unquoted(n)) return false;
     if (n.text.find('.') == std::string::npos) return true;
     rep.error(rep.loc_of(n.pos), fmt::format("'{}': declared names cannot contain '.'", n.text));
     return false;
@@ -154,13 +239,14 @@ struct visitor {
   void operator()(const ast::inst_stmt& i) {
     if (!design_only("'inst' is")) return;
     inst out{lower_ref(i.id, rep), lower_ref(i.block, rep), {}};
-    for (auto& b : i.binds) out.binds.push_back({lower_ref(b.port, rep), lower_ref(b.target, rep)});
+    for (auto& b : i.binds)
+      if (unquoted(b.target)) out.binds.push_back({lower_ref(b.port, rep), lower_ref(b.target, rep)});
     scope->insts.push_back(std::move(out));
   }
   void operator()(const ast::init_stmt& i) {
     if (!design_only("'init' is")) return;
     for (auto& a : i.assigns) {
-      if (at == where::block && !plain(a.net)) continue;
+      if ((at == where::block && !plain(a.net)) || !unquoted(a.net)) continue;
       scope->inits.push_back({lower_ref(a.net, rep), lower_value(a.value)});
     }
   }
@@ -169,6 +255,7 @@ struct visitor {
     stim_stmt s = make(t.keyword == "at" ? stim_stmt::kind::at : stim_stmt::kind::after);
     if (!lower_time(t.time, s.time, rep)) return;
     s.has_time = true;
+    s.time_loc = rep.loc_of(t.time.pos);
     for (auto& a : t.assigns) s.nets.push_back(lower_ref(a.net, rep)), s.values.push_back(lower_value(a.value));
     stim->stmts.push_back(std::move(s));
   }
@@ -178,14 +265,100 @@ struct visitor {
     s.nets.push_back(lower_ref(c.net, rep));
     if (!lower_time(c.period, s.time, rep)) return;
     if (s.time == 0) return rep.error(rep.loc_of(c.period.pos), "a clock period must be greater than zero");
+    s.time_loc = s.time2_loc = rep.loc_of(c.period.pos);
     if (c.high) {
       if (!lower_time(*c.high, s.time2, rep)) return;
       if (s.time2 == 0 || s.time2 >= s.time)
         return rep.error(rep.loc_of(c.high->pos), "a clock's high time must be greater than zero and shorter "
                                                   "than its period");
       s.has_time2 = true;
+      s.time2_loc = rep.loc_of(c.high->pos);
     }
     s.cycles = c.cycles.value_or(0ULL);
+    if (c.at) {
+      if (!lower_time(*c.at, s.at, rep)) return;
+      s.has_at = true;
+      s.at_loc = rep.loc_of(c.at->pos);
+    }
+    stim->stmts.push_back(std::move(s));
+  }
+  // Finds a keyword (a whole word) in the statement after `from`; null if absent.
+  const char* find_word(const char* from, std::string_view w) const {
+    const char* end = text.data() + text.size();
+    for (const char* p = from; p + w.size() <= end; ++p) {
+      if (std::string_view(p, w.size()) != w) continue;
+      const bool left = p == text.data() || !(std::isalnum(static_cast<unsigned char>(p[-1])) || p[-1] == '_');
+      const bool right = p + w.size() == end ||
+                         !(std::isalnum(static_cast<unsigned char>(p[w.size()])) || p[w.size()] == '_');
+      if (left && right) return p;
+    }
+    return nullptr;
+  }
+  void operator()(const ast::when_stmt& w) {
+    if (!stim_only("when")) return;
+    stim_stmt s = make(stim_stmt::kind::when);
+    cond_compiler(s.code, s.reads, rep).expr(w.cond);
+    // The condition runs from after `when` to `after` or ':'.
+    const char* cb = text.data() + 4;
+    while (*cb == ' ' || *cb == '\t') ++cb;
+    const char* colon = std::find(text.data(), text.data() + text.size(), ':');
+    const char* after = find_word(cb, "after");
+    s.expr_text = span_text(text, cb, after && after < colon ? after : colon);
+    if (w.delay) {
+      gate_delay gd;
+      if (!lower_delay({*w.delay}, false, gd, rep)) return;
+      s.range = gd.rise;
+      s.has_time = true;
+    }
+    for (auto& a : w.assigns) s.nets.push_back(lower_ref(a.net, rep)), s.values.push_back(lower_value(a.value));
+    if (w.times) {
+      const auto at = rep.loc_of(w.times->pos);
+      std::uint64_t n = 0;
+      bool big = false;
+      for (char c : w.times->text) {
+        if (n > (UINT64_MAX - 9) / 10) big = true;
+        n = n * 10 + static_cast<std::uint64_t>(c - '0');
+      }
+      if (big) return rep.error(at, "'times' takes a count below 2^64");
+      if (n == 0) return rep.error(at, "'times 0' would never fire; give a count of at least 1 or leave 'times' out");
+      s.count = n;
+      // The rule's text is written without its `times N`.
+      s.text = span_text(text, text.data(), find_word(colon, "times"));
+    }
+    stim->stmts.push_back(std::move(s));
+  }
+  void operator()(const ast::property_stmt& p) {
+    if (!stim_only(p.keyword)) return;
+    stim_stmt s = make(stim_stmt::kind::property);
+    s.word = p.keyword;
+    if (p.edge) {
+      if (p.keyword == "always")
+        return rep.error(rep.loc_of(p.edge->net.pos), "'always' takes an expression; write 'never NET rises while "
+                                                      "EXPR' for an edge");
+      s.word = p.edge->edge;
+      s.nets.push_back(lower_ref(p.edge->net, rep));
+    }
+    cond_compiler(s.code, s.reads, rep).expr(p.expr);
+    stim->stmts.push_back(std::move(s));
+  }
+  void operator()(const ast::gauge_stmt& g) {
+    if (!stim_only("gauge")) return;
+    stim_stmt s = make(stim_stmt::kind::gauge);
+    s.name = lower_ref(g.id, rep);
+    if (auto p = boost::get<ast::gauge_period>(&g.body)) {
+      s.word = "period";
+      s.nets.push_back(lower_ref(p->net, rep));
+    } else if (auto u = boost::get<ast::gauge_pulse>(&g.body)) {
+      s.word = u->level == "high" ? "pulse_high" : "pulse_low";
+      s.nets.push_back(lower_ref(u->net, rep));
+    } else {
+      auto& l = boost::get<ast::gauge_latency>(g.body);
+      s.word = "latency";
+      s.nets.push_back(lower_ref(l.from, rep));
+      s.nets.push_back(lower_ref(l.to, rep));
+      s.from_rises = l.from_edge == "rises";
+      s.to_rises = l.to_edge == "rises";
+    }
     stim->stmts.push_back(std::move(s));
   }
   void operator()(const ast::settle_stmt& st) {
@@ -202,6 +375,7 @@ struct visitor {
     stim_stmt s = make(stim_stmt::kind::run);
     if (!lower_time(r.time, s.time, rep)) return;
     s.has_time = true;
+    s.time_loc = rep.loc_of(r.time.pos);
     stim->stmts.push_back(std::move(s));
   }
   void operator()(const ast::expect_stmt& e) {
@@ -217,6 +391,13 @@ struct visitor {
     } else if (auto g = boost::get<ast::expect_glitch>(&e.body)) {
       s.what = stim_stmt::kind::expect_no_glitch;
       for (auto& n : g->nets) s.nets.push_back(lower_ref(n, rep));
+    } else if (auto gg = boost::get<ast::expect_gauge>(&e.body)) {
+      s.what = stim_stmt::kind::expect_gauge;
+      s.name = lower_ref(gg->gauge, rep);
+      auto& r = gg->within;
+      if (r.c || !r.b) return rep.error(rep.loc_of(r.a.pos), "a gauge's range is written A..B");
+      if (!lower_time(r.a, s.range.min, rep) || !lower_time(*r.b, s.range.max, rep)) return;
+      if (s.range.max < s.range.min) return rep.error(rep.loc_of(r.a.pos), "a gauge's range needs A <= B");
     } else {
       auto& word = boost::get<ast::expect_word>(e.body);
       s.what = word.word == "stable"          ? stim_stmt::kind::expect_stable

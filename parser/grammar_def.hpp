@@ -37,7 +37,8 @@ inline constexpr kw_parser kw(const char* w) { return kw_parser(w); }
 /// Words that cannot name a net, block or instance (they begin statements or delays).
 inline bool is_reserved(std::string_view w) {
   for (const char* k : {"input", "output", "wire", "default", "delay", "rise", "fall", "transport", "block",
-                        "inst", "init", "stimulus", "at", "after", "clock", "settle", "run", "expect", "watch"})
+                        "inst", "init", "stimulus", "at", "after", "clock", "settle", "run", "expect", "watch",
+                        "when", "always", "never", "gauge"})
     if (w == k) return true;
   return false;
 }
@@ -54,6 +55,13 @@ inline auto const set_name = [](auto& ctx) {
   // A dotted reference may not start with a keyword; a plain one may not be one.
   auto dot = _val(ctx).text.find('.');
   _pass(ctx) = !is_reserved(std::string_view(_val(ctx).text).substr(0, dot));
+};
+// A quoted name: the bytes between the quotes, looked up as they stand.
+inline auto const set_quoted_name = [](auto& ctx) {
+  auto& r = _attr(ctx);
+  _val(ctx).text.assign(r.begin(), r.end());
+  _val(ctx).pos = &*r.begin();
+  _val(ctx).quoted = true;
 };
 inline auto const set_const_name = [](auto& ctx) {
   auto& r = _attr(ctx);
@@ -88,6 +96,7 @@ using raw_range = boost::iterator_range<const char*>;
 x3::rule<class ident_raw, raw_range> const ident_raw = "name_";
 x3::rule<class ref_raw, raw_range> const ref_raw = "ref_";
 x3::rule<class const_raw, raw_range> const const_raw = "target_";
+x3::rule<class quoted_raw, raw_range> const quoted_raw = "ref_";
 x3::rule<class number_raw, raw_range> const number_raw = "time_";
 x3::rule<class name_, ast::name> const name_ = "name_";
 x3::rule<class ref_, ast::name> const ref_ = "ref_";
@@ -127,6 +136,23 @@ x3::rule<class expect_glitch, ast::expect_glitch> const expect_glitch = "expect_
 x3::rule<class expect_word, ast::expect_word> const expect_word = "expect_word";
 x3::rule<class expect_body, ast::expect_body> const expect_body = "expect_body";
 x3::rule<class expect, ast::expect_stmt> const expect = "expect";
+x3::rule<class cond_or, ast::cond_or> const cond_or = "cond_or";
+x3::rule<class cond_xor, ast::cond_xor> const cond_xor = "cond_xor";
+x3::rule<class cond_and, ast::cond_and> const cond_and = "cond_and";
+x3::rule<class cond_unary, ast::cond_unary> const cond_unary = "cond_unary";
+x3::rule<class cond_primary, ast::cond_primary> const cond_primary = "cond_primary";
+x3::rule<class cond_atom, ast::cond_atom> const cond_atom = "cond_atom";
+x3::rule<class count_, ast::name> const count_ = "count_";
+x3::rule<class count_raw, raw_range> const count_raw = "count_";
+x3::rule<class when_, ast::when_stmt> const when_ = "when_";
+x3::rule<class edge_part, ast::edge_part> const edge_part = "edge_part";
+x3::rule<class property, ast::property_stmt> const property = "property";
+x3::rule<class gauge_period, ast::gauge_period> const gauge_period = "gauge_period";
+x3::rule<class gauge_pulse, ast::gauge_pulse> const gauge_pulse = "gauge_pulse";
+x3::rule<class gauge_latency, ast::gauge_latency> const gauge_latency = "gauge_latency";
+x3::rule<class gauge_body, ast::gauge_body> const gauge_body = "gauge_body";
+x3::rule<class gauge, ast::gauge_stmt> const gauge = "gauge";
+x3::rule<class expect_gauge, ast::expect_gauge> const expect_gauge = "expect_gauge";
 x3::rule<class ref_list, std::vector<ast::name>> const ref_list = "ref_list";
 x3::rule<class name_list, std::vector<ast::name>> const name_list = "name_list";
 x3::rule<class port_groups, std::vector<ast::port_group>> const port_groups = "port_groups";
@@ -142,10 +168,13 @@ auto const args_def = arg >> *(',' > arg);
 // ---- lexemes
 auto const ident_raw_def = x3::raw[x3::lexeme[ident_chars]];
 auto const ref_raw_def = x3::raw[x3::lexeme[ident_chars >> *('.' >> ident_chars)]];
+// "NAME": any bytes but a quote, a line break or a control byte, at least one.
+auto const quoted_raw_def =
+    x3::lexeme['"' >> x3::raw[+(x3::char_ - x3::char_('"') - x3::char_('\x00', '\x1f'))] >> '"'];
 auto const const_raw_def = x3::raw[x3::lexeme[x3::char_("01") >> word_end]];
 auto const number_raw_def = x3::raw[x3::lexeme[+x3::digit >> -('.' >> +x3::digit)]];
 auto const name__def = ident_raw[detail::set_name];
-auto const ref__def = ref_raw[detail::set_name];
+auto const ref__def = ref_raw[detail::set_name] | quoted_raw[detail::set_quoted_name];
 auto const const_name_def = const_raw[detail::set_const_name];
 // No semantic action at this level, so the alternative's attribute propagates.
 auto const target__def = ref_ | const_name;
@@ -186,24 +215,47 @@ auto const init_def = x3::raw[kw("init")] > assigns;
 auto const timed_def = x3::raw[kw("at") | kw("after")] > time_ > assigns;
 auto const cycles_count_def = x3::lexeme[x3::ulong_long >> word_end];
 auto const clock_def = kw("clock") > ref_ > kw("period") > time_ > -(kw("high") > time_) >
-                       -(kw("cycles") > cycles_count);
+                       -(kw("cycles") > cycles_count) > -(kw("at") > time_);
 auto const settle__def = x3::raw[kw("settle")] >> -(kw("within") > time_);
 auto const run_def = x3::raw[kw("run")] > time_;
 auto const expect_within_def = x3::raw[kw("settle")] > kw("within") > time_;
 auto const expect_glitch_def = x3::raw[kw("no")] > kw("glitch") > kw("on") > ref_list;
 auto const expect_word_def =
     x3::raw[kw("stable") | kw("oscillating") | kw("deterministic")] >> -(kw("period") > range_);
-auto const expect_body_def = assigns | expect_within | expect_glitch | expect_word;
+auto const expect_gauge_def = name_ >> kw("within") > range_;
+auto const expect_body_def = assigns | expect_within | expect_glitch | expect_gauge | expect_word;
+
+// ---- closed-loop environments: conditions, reaction rules, properties, gauges
+auto const cond_or_def = cond_xor >> *('|' > cond_xor);
+auto const cond_xor_def = cond_and >> *('^' > cond_and);
+auto const cond_and_def = cond_unary >> *('&' > cond_unary);
+auto const cond_unary_def = *x3::char_('~') > cond_primary;
+auto const cond_atom_def = ref_ >> -('=' > x3::lexeme[x3::char_("01") >> word_end]);
+auto const cond_primary_def = cond_atom | x3::lexeme[x3::char_("01") >> word_end] | ('(' > cond_or > ')');
+auto const count_raw_def = x3::raw[x3::lexeme[+x3::digit >> word_end]];
+auto const count__def = count_raw[detail::set_const_name];
+auto const when__def = kw("when") > cond_or > -(kw("after") > range_) > ':' > assigns > -(kw("times") > count_);
+auto const edge_part_def = ref_ >> x3::raw[kw("rises") | kw("falls")] >> kw("while");
+auto const property_def = x3::raw[kw("always") | kw("never")] > -edge_part > cond_or;
+auto const gauge_period_def = x3::raw[kw("period")] > kw("of") > ref_;
+auto const gauge_pulse_def = kw("pulse") > kw("of") > ref_ > x3::raw[kw("high") | kw("low")];
+auto const gauge_latency_def = kw("latency") > kw("from") > ref_ > x3::raw[kw("rises") | kw("falls")] > kw("to") >
+                               ref_ > x3::raw[kw("rises") | kw("falls")];
+auto const gauge_body_def = gauge_period | gauge_pulse | gauge_latency;
+auto const gauge_def = kw("gauge") > name_ > '=' > gauge_body;
 auto const expect_def = x3::raw[kw("expect")] > expect_body;
 
 auto const statement_rule_def = decl | default_ | block_head | inst | init | timed | clock | settle_ | run |
-                                expect | gate;
+                                expect | when_ | property | gauge | gate;
 
-BOOST_SPIRIT_DEFINE(ident_raw, ref_raw, const_raw, number_raw, const_name, name_, ref_, target_, time_unit, time_, range_, rise_fall, delay_body, or_expr, xor_expr,
+BOOST_SPIRIT_DEFINE(ident_raw, ref_raw, quoted_raw, const_raw, number_raw, const_name, name_, ref_, target_, time_unit, time_, range_, rise_fall, delay_body, or_expr, xor_expr,
                     and_expr, unary, primary, arg, call, rhs, gate, decl, default_, port_group, block_head,
                     binding, inst, value_, assign, assigns, init, timed, clock, cycles_count, settle_, run,
                     expect_within, expect_glitch, expect_word, expect_body, expect, ref_list, name_list,
                     port_groups, bindings, args, statement_rule)
+// The closed-loop statements (a second DEFINE: one takes a bounded number of rules).
+BOOST_SPIRIT_DEFINE(cond_or, cond_xor, cond_and, cond_unary, cond_primary, cond_atom, count_raw, count_, when_,
+                    edge_part, property, gauge_period, gauge_pulse, gauge_latency, gauge_body, gauge, expect_gauge)
 
 }  // namespace settle::grammar
 

@@ -62,14 +62,28 @@ struct stim_stmt {
   enum class kind : std::uint8_t {
     at, after, clock, settle, run, watch,
     expect_value, expect_stable, expect_oscillating, expect_within, expect_no_glitch, expect_deterministic,
+    when, property, gauge, expect_gauge,
   } what = kind::settle;
   time_fs time = 0, time2 = 0;   ///< at/after/run/within time; clock period+high; oscillating lo+hi
   bool has_time = false, has_time2 = false;
   std::uint64_t cycles = 0;
   std::vector<ref> nets;
   std::vector<logic> values;
+  source_loc time_loc, time2_loc;  ///< where the time literals are written (at/after/run/clock)
   std::string text;              ///< the statement as written, trimmed
   source_loc loc;
+  source_loc at_loc;             ///< clock: its `at` literal (has_at)
+  bool has_at = false;           ///< clock ... at T
+  time_fs at = 0;                ///< clock ... at T
+  // Closed-loop statements.
+  std::vector<std::uint32_t> code;  ///< when/property: the expression in postfix (operands index reads)
+  std::vector<ref> reads;           ///< the distinct nets the expression reads
+  std::string expr_text;            ///< the expression as written
+  delay_range range;                ///< when: the delay; expect_gauge: the range
+  std::uint64_t count = 0;          ///< when: times N (0: none)
+  std::string word;                 ///< property: always/never/rises/falls; gauge: its kind name
+  ref name;                         ///< gauge / expect_gauge: the gauge's name
+  bool from_rises = true, to_rises = true;  ///< gauge latency edges
 };
 
 struct stim_block {
@@ -105,14 +119,22 @@ class reporter {
   /// Adds a diagnostic once per (position, message).
   void report(diagnostic::level lv, source_loc at, const std::string& msg);
   void error(source_loc at, const std::string& msg) { report(diagnostic::level::error, at, msg); }
+  /// The text of a 1-based line, without its newline ("" when out of range).
+  std::string line_text(std::uint32_t line) const;
   void warning(source_loc at, const std::string& msg) { report(diagnostic::level::warning, at, msg); }
+  /// An error with a note at a second place (the other half of a conflict).
+  void error_with_note(source_loc at, const std::string& msg, source_loc note_at, const std::string& note);
   std::size_t errors() const { return errors_; }
+  const std::string& file() const { return file_; }
   /// While holding, diagnostics wait aside (and do not count) until release() or drop().
   void hold(bool on) { holding_ = on; }
   void release();
   void drop() { held_.clear(); }
 
  private:
+  diagnostic make(diagnostic::level lv, source_loc at, const std::string& msg) const;
+  void add(diagnostic d);
+
   std::string_view text_;
   std::string file_;
   diagnostics& out_;
@@ -144,6 +166,11 @@ void check_top_gates(const file& f, reporter& rep);
 /// statements on the way; reports their syntax errors and, when there are
 /// none, elaboration errors. Releases the file's top-level lists as it goes.
 void elaborate(file& f, netlist& nl, reporter& rep);
+
+/// Reports stimulus times whose use passes the end of representable time
+/// (given the design's longest delay), two assignments to one input at one
+/// instant of a step and two clocks on one net in one step.
+void check_stimulus(const stim_block& sb, const netlist& nl, reporter& rep);
 
 /// Turns stimulus statements into steps against an elaborated netlist.
 void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, reporter& rep);

@@ -32,6 +32,10 @@ class source_text {
     int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
     if (fd < 0) return fail(path, diags, fmt::format("cannot open file: {}", std::strerror(errno)));
     struct stat st {};
+    if (::fstat(fd, &st) == 0 && S_ISDIR(st.st_mode)) {
+      ::close(fd);
+      return fail(path, diags, "cannot read file: it is a directory");
+    }
     if (::fstat(fd, &st) == 0 && S_ISREG(st.st_mode) && st.st_size > 0) {
       void* p = ::mmap(nullptr, static_cast<std::size_t>(st.st_size), PROT_READ, MAP_PRIVATE, fd, 0);
       if (p != MAP_FAILED) {
@@ -47,8 +51,9 @@ class source_text {
       auto n = ::read(fd, buf, sizeof buf);
       if (n < 0 && errno == EINTR) continue;
       if (n < 0) {
+        const int err = errno;
         ::close(fd);
-        return fail(path, diags, "cannot read file");
+        return fail(path, diags, fmt::format("cannot read file: {}", std::strerror(err)));
       }
       if (n == 0) break;
       data_.append(buf, static_cast<std::size_t>(n));
@@ -71,7 +76,10 @@ class source_text {
 
  private:
   static bool fail(const std::string& path, diagnostics& diags, std::string why) {
-    diags.add({diagnostic::level::error, path, 0, 0, std::move(why), ""});
+    diagnostic d;
+    d.file = path;
+    d.message = std::move(why);
+    diags.add(std::move(d));
     return false;
   }
   void* map_ = nullptr;
@@ -148,8 +156,10 @@ std::optional<design> load_design_text(std::string_view text, const std::string&
 
 std::optional<design> load_design(const std::string& path, const load_options& opt, diagnostics& diags) {
   if (opt.format != "auto" && opt.format != "settle" && opt.format != "bench" && opt.format != "verilog") {
-    diags.add({diagnostic::level::error, path, 0, 0,
-               fmt::format("unknown format '{}' (use auto, settle, bench or verilog)", opt.format), ""});
+    diagnostic d;
+    d.file = path;
+    d.message = fmt::format("unknown format '{}' (use auto, settle, bench or verilog)", opt.format);
+    diags.add(std::move(d));
     return std::nullopt;
   }
   source_text src;

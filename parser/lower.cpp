@@ -8,6 +8,7 @@
 
 #include "parser/parse.hpp"
 #include "parser/time_literal.hpp"
+#include "sim/time.hpp"
 
 namespace settle::ir {
 namespace {
@@ -168,9 +169,18 @@ bool lower_call(const ast::call& c, gate& out, scope_def& pools, reporter& rep) 
 
 bool lower_range(const ast::range& r, delay_range& out, reporter& rep) {
   time_fs a = 0, b = 0, c = 0;
-  if (!lower_time(r.a, a, rep)) return false;
-  if (r.b && !lower_time(*r.b, b, rep)) return false;
-  if (r.c && !lower_time(*r.c, c, rep)) return false;
+  // A delay reaches at least that far past time 0, so one past the last
+  // representable instant (2^64 - 1 fs, the value meaning never) is refused.
+  auto delay_time = [&](const ast::time_lit& t, time_fs& v) {
+    if (!lower_time(t, v, rep)) return false;
+    if (v <= time_last) return true;
+    rep.error(rep.loc_of(t.pos), fmt::format("a delay of {}fs passes the end of representable time ({}fs)", v,
+                                             time_last));
+    return false;
+  };
+  if (!delay_time(r.a, a)) return false;
+  if (r.b && !delay_time(*r.b, b)) return false;
+  if (r.c && !delay_time(*r.c, c)) return false;
   if (!r.b) {
     out = {a, a, a};
   } else if (!r.c) {

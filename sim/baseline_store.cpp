@@ -1,6 +1,8 @@
 // Baseline updates under flock(2): re-read under the lock, merge, write a temporary, rename it in.
 #include "sim/baseline_store.hpp"
 
+#include <chrono>
+#include <thread>
 #include <fcntl.h>
 #include <sys/file.h>
 #include <sys/stat.h>
@@ -65,12 +67,13 @@ lock_outcome lock(int fd, const std::atomic<bool>* stop, const std::function<voi
   if (errno != EWOULDBLOCK) return lock_outcome::failed;
   if (!waited && on_wait) on_wait();
   waited = true;
-  // The signal handlers are installed without SA_RESTART, so a signal ends
-  // the wait with EINTR and the flag is seen here.
+  // The signal handlers restart blocked calls (SA_RESTART), so a blocking
+  // flock would never see the stop flag: poll without blocking instead.
   for (;;) {
     if (stop && stop->load(std::memory_order_acquire)) return lock_outcome::stopped;
-    if (::flock(fd, LOCK_EX) == 0) return lock_outcome::held;
-    if (errno != EINTR) return lock_outcome::failed;
+    if (::flock(fd, LOCK_EX | LOCK_NB) == 0) return lock_outcome::held;
+    if (errno != EWOULDBLOCK && errno != EINTR) return lock_outcome::failed;
+    std::this_thread::sleep_for(std::chrono::milliseconds(20));
   }
 }
 

@@ -97,7 +97,9 @@ std::optional<corner> parse_corner(std::string_view text, std::string* error) {
     c.what = s[0] == 'r' ? corner::kind::random : corner::kind::gauss;
     s.remove_prefix(s.find(':') + 1);
     auto hash = s.find('#');
-    if (!parse_u64(s.substr(0, hash), c.seed)) return fail("expected a seed, e.g. random:7 or random:7#3");
+    if (!parse_u64(s.substr(0, hash), c.seed))
+      return fail("expected a seed, a whole number from 0 to 18446744073709551615 (2^64-1), e.g. random:7 or "
+                  "random:7#3");
     if (hash != std::string_view::npos && !parse_u64(s.substr(hash + 1), c.index))
       return fail("expected a corner number after '#'");
   } else if (s.starts_with("extremes#") || s.starts_with("exhaustive#")) {
@@ -109,8 +111,51 @@ std::optional<corner> parse_corner(std::string_view text, std::string* error) {
   return c;
 }
 
+std::string corner_range_error(const corner& c, std::size_t variables) {
+  const auto g = static_cast<std::uint64_t>(variables);
+  if (c.what == corner::kind::extremes) {
+    const std::uint64_t count = 3 + 2 * g;  // all-min, all-max, typ, then two per variable
+    if (c.index < count) return "";
+    return fmt::format("this design has {} extremes corners, numbered 0..{}", count, count - 1);
+  }
+  if (c.what == corner::kind::exhaustive) {
+    if (g >= 64) return "";  // every 64-bit number names one
+    const std::uint64_t count = std::uint64_t{1} << g;
+    if (c.index < count) return "";
+    return fmt::format("this design's {} delay variable{} give {} exhaustive corners, numbered 0..{}", g,
+                       g == 1 ? "" : "s", count, count - 1);
+  }
+  return "";
+}
+
+time_fs rule_delay(const delay_table& t, const delay_range& range, std::uint32_t rule, std::uint64_t firing) {
+  const corner& c = t.which;
+  const delay_range r = scaled(range, c.spread);
+  const std::uint64_t var = t.rise.size() + rule;  // the rule's number among the corner variables
+  // A stream of its own: the rule's draws never meet a gate's.
+  const std::uint64_t key = mix(corner_key(c.seed, c.index) ^ mix(0x72756c65ull + rule));
+  switch (c.what) {
+    case corner::kind::min: return r.min;
+    case corner::kind::typ: return r.typ;
+    case corner::kind::max: return r.max;
+    case corner::kind::random: return uniform(mix(key ^ (firing << 1)), r.min, r.max);
+    case corner::kind::gauss: return gaussian(mix(key ^ (firing << 1)), mix(key ^ (firing << 1 | 1)), r);
+    case corner::kind::extremes: {
+      if (c.index == 0) return r.min;
+      if (c.index == 1) return r.max;
+      if (c.index == 2) return r.typ;
+      const auto k = c.index - 3;
+      const bool self = k / 2 == var, slow_self = k % 2 == 0;
+      return self == slow_self ? r.max : r.min;
+    }
+    case corner::kind::exhaustive: return (var < 64 && (c.index >> var & 1)) ? r.max : r.min;
+  }
+  return r.typ;
+}
+
 void fill_delays(const netlist& n, const corner& c, delay_table& out) {
   const auto gates = n.gate_count();
+  out.which = c;
   const std::uint64_t key = corner_key(c.seed, c.index);
   out.rise.resize(gates);
   out.fall.resize(gates);

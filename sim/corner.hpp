@@ -26,10 +26,26 @@ struct corner {
 /// Parses a corner name; on failure returns nullopt and sets *error.
 std::optional<corner> parse_corner(std::string_view text, std::string* error);
 
-/// Concrete delays per gate, one table per run.
+/// Empty when corner `c` exists for a design of `variables` delay variables
+/// (its gates and reaction rules, delay_variables); otherwise why not, with
+/// the valid range ("this design has 11 extremes corners, numbered 0..10").
+/// extremes#k exists for k < 3 + 2 x variables, exhaustive#k for
+/// k < 2^variables; min, typ, max and the sampled corners always exist.
+std::string corner_range_error(const corner& c, std::size_t variables);
+
+/// Concrete delays per gate, one table per run. It also records the corner,
+/// which reaction rules' delays are drawn from (rule_delay).
 struct delay_table {
   std::vector<time_fs> rise, fall;
+  corner which;
 };
+
+/// The delay of firing `firing` (0-based) of reaction rule `rule` whose range
+/// is `r`, at the corner `t` was filled for. A rule is one more corner
+/// variable after the gates (number gates + rule in `extremes` and
+/// `exhaustive`); `random:` and `gauss:` draw afresh for every firing from the
+/// corner's counter-based stream, so the corner replays exactly.
+time_fs rule_delay(const delay_table& t, const delay_range& r, std::uint32_t rule, std::uint64_t firing);
 
 /// Fills `out` with the delays corner `c` gives every gate of `n`. Depends on
 /// (corner, gate index) alone, so any thread computes the same table.

@@ -22,4 +22,8 @@ struct design {
   source_counts source;
 };
 
+/// The delay variables a corner sets: every gate, then every reaction rule
+/// (what `extremes` and `exhaustive` enumerate).
+inline std::size_t delay_variables(const design& d) { return d.nets.gate_count() + d.stim.rules.size(); }
+
 }  // namespace settle

@@ -13,6 +13,30 @@ std::size_t diagnostics::error_count() const {
   }));
 }
 
+namespace {
+
+bool is_control(unsigned char c) { return c < 0x20 || c == 0x7f; }
+
+// How a byte is shown: itself, or an escape ("\0", "\x01").
+std::string shown_byte(unsigned char c) {
+  static constexpr char hex[] = "0123456789abcdef";
+  if (c == 0) return "\\0";
+  return {'\\', 'x', hex[c >> 4], hex[c & 15]};
+}
+
+}  // namespace
+
+std::string escape_controls(std::string_view text, bool keep_tabs) {
+  std::string out;
+  out.reserve(text.size());
+  for (char ch : text) {
+    const auto c = static_cast<unsigned char>(ch);
+    if (!is_control(c) || (keep_tabs && c == '\t')) out += ch;
+    else out += shown_byte(c);
+  }
+  return out;
+}
+
 std::string format_diagnostic(const diagnostic& d) {
   static constexpr const char* words[] = {"error", "warning", "note"};
   std::string out = d.file;
@@ -23,21 +47,26 @@ std::string format_diagnostic(const diagnostic& d) {
   out += ": ";
   out += words[static_cast<int>(d.severity)];
   out += ": ";
-  out += d.message;
+  out += escape_controls(d.message);
   out += '\n';
   if (d.line && !d.source_line.empty()) {
     const bool cut_front = d.source_col > 1;
     if (cut_front) out += "...";
-    out += d.source_line;
+    out += escape_controls(d.source_line, true);
     out += '\n';
     if (d.col >= d.source_col) {
       if (cut_front) out += "   ";
-      // Keep tabs so the caret lines up under the same column in a terminal.
-      for (std::uint32_t i = 0; i + d.source_col < d.col; ++i)
-        out += i < d.source_line.size() && d.source_line[i] == '\t' ? '\t' : ' ';
+      // Keep tabs so the caret lines up under the same column in a terminal;
+      // an escaped byte takes as many columns as its escape.
+      for (std::uint32_t i = 0; i + d.source_col < d.col; ++i) {
+        const auto c = i < d.source_line.size() ? static_cast<unsigned char>(d.source_line[i]) : ' ';
+        if (c == '\t') out += '\t';
+        else out.append(is_control(c) ? shown_byte(c).size() : 1, ' ');
+      }
       out += "^\n";
     }
   }
+  for (const auto& n : d.notes) out += format_diagnostic(n);
   return out;
 }
 

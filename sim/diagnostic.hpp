@@ -15,6 +15,8 @@ struct diagnostic {
   std::string message;
   std::string source_line;          ///< the text of that line (or a window of it), without its newline
   std::uint32_t source_col = 1;     ///< the column where source_line starts (> 1: a window)
+  /// Notes printed right after this diagnostic (e.g. where the other half of a conflict is).
+  std::vector<diagnostic> notes;
 };
 
 /// Sets d.source_line from the whole line, keeping only a window around d.col
@@ -30,7 +32,13 @@ struct diagnostics {
   std::size_t error_count() const;
 };
 
-/// "file:line:col: error: message\n<line>\n    ^\n" (the caret under col).
+/// "file:line:col: error: message\n<line>\n    ^\n" (the caret under col),
+/// then its notes the same way. Control bytes in the message and the line are
+/// shown escaped (a NUL as \0, others as \xHH; tabs kept), with the caret
+/// still under the byte at col.
 std::string format_diagnostic(const diagnostic& d);
+
+/// `text` with its control bytes escaped as format_diagnostic shows them.
+std::string escape_controls(std::string_view text, bool keep_tabs = false);
 
 }  // namespace settle

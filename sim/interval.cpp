@@ -59,6 +59,7 @@ class interval_kernel {
     for (gate_id g = 0; g < n.gate_count(); ++g) {
       dmin_[g] = std::min(n.delay[g].rise.min, n.delay[g].fall.min);
       dmax_[g] = std::max(n.delay[g].rise.max, n.delay[g].fall.max);
+      largest_ = std::max(largest_, dmax_[g]);
     }
     for (net_id i = 0; i < val_.size(); ++i) hash_ ^= key(i, val_[i]);
   }
@@ -102,6 +103,7 @@ class interval_kernel {
   bool quiet() const { return !eval_all_ && std::none_of(heap_.begin(), heap_.end(), [&](auto& e) { return live(e); }); }
   time_fs now() const { return now_; }
   time_fs last_change() const { return last_change_; }
+  time_fs largest_delay() const { return largest_; }
   std::uint64_t events() const { return events_; }
   const std::vector<logic>& values() const { return val_; }
   std::uint32_t toggle_count(net_id net) const { return toggles_[net]; }
@@ -197,13 +199,22 @@ class interval_kernel {
   std::vector<ambiguous_event> heap_;
   std::uint64_t seq_ = 0, events_ = 0, hash_ = 0;
   std::uint32_t stamp_ = 0;
-  time_fs now_ = 0, last_change_ = 0;
+  time_fs now_ = 0, last_change_ = 0, largest_ = 0;
   bool eval_all_ = true;
 };
 
 }  // namespace
 
+std::string interval_refusal(const design& d) {
+  if (d.stim.rules.empty()) return {};
+  return "the interval run does not take reaction rules ('when'); run the corners without 'interval'";
+}
+
 interval_result run_interval(const design& d, const run_options& opt) {
+  if (!interval_refusal(d).empty()) {
+    interval_result none;
+    return none;
+  }
   interval_kernel k(d.nets);
   run_result r = detail::driver<interval_kernel>(k, d, opt).run();
   interval_result out;

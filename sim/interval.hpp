@@ -3,6 +3,7 @@
 // and Friedman 1990, ch. 3).
 #pragma once
 
+#include <string>
 #include <vector>
 
 #include "sim/design.hpp"
@@ -26,6 +27,13 @@ struct interval_result {
   std::vector<net_id> reported;  ///< outputs, then watched nets (as run_stimulus)
   std::vector<interval_step> steps;
 };
+
+/// Why the min-max run cannot judge this design's stimulus, or "" when it
+/// can. Reaction rules (`when`) are refused: a rule whose condition is x in
+/// the ambiguity run may or may not fire, and its firing time spans the
+/// condition's whole ambiguity, so the environment itself would branch; the
+/// run would be sound only by giving up (x on every input it drives).
+std::string interval_refusal(const design& d);
 
 /// Runs the stimulus once with every gate change ambiguous (x) from t + min
 /// until t + max before it takes its new value.

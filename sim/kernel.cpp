@@ -338,7 +338,9 @@ void simulator::reset(const delay_table& delays) {
           std::any_of(delays.fall.begin(), delays.fall.end(), [](time_fs d) { return d > narrow; });
   wide_delay_.clear();
   within_reach_ = true;
+  largest_delay_ = 0;
   for (gate_id g = 0; g < n_.gate_count(); ++g) {
+    largest_delay_ = std::max({largest_delay_, delays.rise[g], delays.fall[g]});
     within_reach_ = within_reach_ && std::max(delays.rise[g], delays.fall[g]) < queue_.reach();
     if (wide_) {
       wide_delay_.push_back({delays.rise[g], delays.fall[g]});

@@ -4,12 +4,14 @@
 #include <atomic>
 #include <cstdint>
 #include <memory>
+#include <optional>
 #include <span>
 #include <string>
 #include <vector>
 
 #include "sim/corner.hpp"
 #include "sim/design.hpp"
+#include "sim/diagnostic.hpp"
 
 namespace settle {
 
@@ -37,6 +39,7 @@ enum class step_status : std::uint8_t {
   timeout,      ///< neither quiet nor a repeat before the horizon
   running,      ///< a `run` step that ended with events still pending
   event_limit,  ///< stopped by --max-events
+  deadlock,     ///< quiet (no gate event, no pending firing) while a reaction rule is owed
 };
 const char* status_name(step_status s);
 
@@ -47,6 +50,13 @@ struct expect_result {
   std::string detail;     ///< a short human reason when it fails
 };
 
+/// A `times N` rule that had not fired N times when its step deadlocked.
+struct owed_rule {
+  std::uint32_t rule = 0;        ///< index in stimulus::rules (its text is there)
+  std::uint64_t fired = 0, times = 0;
+  logic condition = logic::x;    ///< the condition's value at the end of the step
+};
+
 struct step_result {
   std::size_t index = 0;  ///< 1-based
   std::string label;
@@ -54,12 +64,33 @@ struct step_result {
   step_status status = step_status::settled;
   time_fs settle = 0;     ///< last value change minus start
   time_fs period = 0;     ///< oscillating only
+  /// A timeout because the step could not go on without passing the end of
+  /// representable time (sim/time.hpp); `end` is the last instant it could process.
+  bool end_of_time = false;
   std::vector<net_id> toggling;          ///< oscillating only
   std::vector<logic> values;             ///< per reported net, at the end
   std::vector<logic> start_values;       ///< per reported net, at the start
   std::vector<std::uint32_t> transitions;///< per reported net, within the step
   std::vector<expect_result> expects;
+  std::vector<owed_rule> owed;           ///< deadlock only
   bool pass() const;  ///< no finding in this step
+};
+
+/// A whole-run property's verdict: holds, or its first violation.
+struct property_result {
+  std::uint32_t property = 0;  ///< index in stimulus::properties
+  bool holds = true;
+  time_fs first_violation = 0;
+  std::size_t step = 0;        ///< 1-based step of the first violation
+  std::vector<std::pair<net_id, logic>> values;  ///< the nets involved, at the violation
+};
+
+/// A gauge's samples over the run.
+struct gauge_result {
+  std::uint32_t gauge = 0;     ///< index in stimulus::gauges
+  std::uint64_t count = 0;
+  time_fs min = 0, max = 0;    ///< 0 when count is 0
+  double mean = 0;             ///< fs; 0 when count is 0
 };
 
 struct run_options {
@@ -76,7 +107,12 @@ struct run_result {
   std::vector<step_result> steps;
   std::uint64_t events = 0;      ///< value changes applied
   time_fs end = 0;
-  bool pass() const;
+  std::vector<property_result> properties;  ///< one per stimulus property, in order
+  std::vector<gauge_result> gauges;         ///< one per stimulus gauge, in order
+  /// Set when the stimulus cannot go on (an `at` earlier than the time
+  /// reached): an error of the input (exit 2), not a finding; the run stops there.
+  std::optional<diagnostic> error;
+  bool pass() const;  ///< every step passes and every property holds
 };
 
 class simulator;

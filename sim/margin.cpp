@@ -8,6 +8,8 @@
 
 #include <fmt/format.h>
 
+#include "sim/time.hpp"
+
 namespace settle {
 namespace {
 
@@ -62,19 +64,32 @@ margin_failure describe(const sweep_plan& plan, const sweep_step& s, double w) {
         if (f.detail.empty())
           f.detail = o.status == step_status::oscillating
                          ? fmt::format("oscillating with period {}", format_time(o.period))
-                         : std::string(status_name(o.status));
+                         : std::string(o.end_of_time ? end_of_time_words : status_name(o.status));
       }
     if (f.witness.empty() && !s.outcomes.empty()) f.witness = at_spread(plan, s.outcomes[0].witness, w).name();
   }
   return f;
 }
 
+// Why a property fails at spread w: its first violating corner.
+margin_failure describe_property(const sweep_plan& plan, const sweep_property& p, double w) {
+  margin_failure f;
+  f.spread = w;
+  f.property = p.index;
+  f.step = p.step;
+  f.corners = plan.corners;
+  f.failing = p.violating;
+  f.witness = at_spread(plan, p.witness, w).name();
+  f.detail = fmt::format("first violation at {} (step {})", format_time(p.first_violation), p.step);
+  return f;
+}
+
 }  // namespace
 
 time_fs default_horizon(const netlist& n) {
-  constexpr time_fs never = UINT64_MAX;
+  // 10,000 x the largest delay, clamped to the last representable instant.
   const time_fs m = n.largest_max_delay();
-  return std::max<time_fs>(m > never / 10000 ? never : m * 10000, one_ns);
+  return std::max<time_fs>(checked_mul(m, 10000).value_or(time_last), one_ns);
 }
 
 std::string spread_percent(double w) {
@@ -94,7 +109,10 @@ std::string margin_result::confidence_note() const {
 }
 
 bool margin_result::passes_as_written() const {
-  return std::all_of(steps.begin(), steps.end(), [](const step_margin& s) { return s.at_ceiling || s.margin >= 1.0; });
+  return std::all_of(steps.begin(), steps.end(),
+                     [](const step_margin& s) { return s.at_ceiling || s.margin >= 1.0; }) &&
+         std::all_of(properties.begin(), properties.end(),
+                     [](const property_margin& p) { return p.at_ceiling || p.margin >= 1.0; });
 }
 
 std::optional<margin_result> find_margin(const design& d, const margin_options& o, std::string* error) {
@@ -112,7 +130,7 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
         "the search ceiling must be at least 100 (the written spread is always judged) and at most "
         "10000 percent");
   std::string err;
-  auto plan = plan_sweep(o.spec, o.seed, d.nets.gate_count(), &err);
+  auto plan = plan_sweep(o.spec, o.seed, delay_variables(d), &err);
   if (!plan) return fail(err);
   if (plan->corners == 0) return fail("the corner spec holds no corner to run");
 
@@ -135,6 +153,8 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
   struct halted {};  // a probe was stopped part-way: its verdicts are not used
   if (!so.run.horizon) so.run.horizon = default_horizon(d.nets);
   const std::size_t steps = d.stim.steps.empty() ? 1 : d.stim.steps.size();
+  // Brackets: one per step, then one per property.
+  const std::size_t entries = steps + d.stim.properties.size();
 
   std::map<double, probe_outcome> cache;
   auto probe = [&](double w) -> const probe_outcome& {
@@ -147,6 +167,9 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
       to[r].rise = scaled(from[r].rise, w);
       to[r].fall = scaled(from[r].fall, w);
     }
+    // The environment's delays widen with the gates' (as `--corner NAME@w` does).
+    for (std::size_t r = 0; r < d.stim.rules.size(); ++r)
+      scaled_d.stim.rules[r].delay = scaled(d.stim.rules[r].delay, w);
     probe_outcome p;
     if (o.timeout_s > 0) {
       const double left = o.timeout_s - std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
@@ -175,6 +198,13 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
       else p.race.emplace_back();
       all = all && s.pass;
     }
+    for (const auto& pr : p.sweep.properties) {
+      p.pass.push_back(pr.holds());
+      p.failure.push_back(pr.holds() ? margin_failure{} : describe_property(*plan, pr, w));
+      p.first_divergence.push_back(false);
+      p.race.emplace_back();
+      all = all && pr.holds();
+    }
     // The pointers into the scaled copy's stimulus are not kept past this probe.
     for (auto& s : p.sweep.steps)
       for (auto& x : s.expects) x.spec = nullptr;
@@ -194,28 +224,28 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
   // falls in.
   const auto K = static_cast<std::int64_t>(std::llround(o.ceiling_pct / o.resolution_pct));
   auto w_of = [&](std::int64_t k) { return k == K ? res.ceiling : static_cast<double>(k) * o.resolution_pct / 100.0; };
-  std::vector<std::int64_t> lo(steps, -1), hi(steps, -1);
+  std::vector<std::int64_t> lo(entries, -1), hi(entries, -1);
   try {
     {
       const auto& top = probe(w_of(K));
-      for (std::size_t k = 0; k < steps; ++k) (top.pass[k] ? lo : hi)[k] = K;
+      for (std::size_t k = 0; k < entries; ++k) (top.pass[k] ? lo : hi)[k] = K;
     }
     if (std::any_of(hi.begin(), hi.end(), [](std::int64_t h) { return h >= 0; })) {
       const auto& zero = probe(0.0);
-      for (std::size_t k = 0; k < steps; ++k)
+      for (std::size_t k = 0; k < entries; ++k)
         if (hi[k] >= 0) (zero.pass[k] ? lo[k] = 0 : hi[k] = 0);
     }
     for (;;) {
-      std::size_t pick = steps;
-      for (std::size_t k = 0; k < steps; ++k)
+      std::size_t pick = entries;
+      for (std::size_t k = 0; k < entries; ++k)
         if (lo[k] >= 0 && hi[k] > lo[k] + 1) {
           pick = k;
           break;
         }
-      if (pick == steps) break;
+      if (pick == entries) break;
       const std::int64_t mid = (lo[pick] + hi[pick]) / 2;
       const auto& p = probe(w_of(mid));
-      for (std::size_t k = 0; k < steps; ++k)
+      for (std::size_t k = 0; k < entries; ++k)
         if (lo[k] >= 0 && lo[k] < mid && mid < hi[k]) (p.pass[k] ? lo[k] : hi[k]) = mid;
     }
   } catch (const halted&) {
@@ -244,13 +274,30 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
     }
     res.steps.push_back(std::move(sm));
   }
-  const step_margin* worst = nullptr;
-  for (const auto& s : res.steps)
-    if (!s.at_ceiling && (!worst || s.margin < worst->margin)) worst = &s;
-  res.at_ceiling = worst == nullptr;
-  res.margin = worst ? worst->margin : res.ceiling;
-  res.fails_at_zero = worst && worst->fails_at_zero;
-  if (worst) res.failure = worst->failure;
+  for (std::size_t q = 0; q < d.stim.properties.size(); ++q) {
+    const std::size_t k = steps + q;
+    property_margin pm;
+    pm.index = q;
+    pm.at_ceiling = hi[k] < 0 && lo[k] >= 0;
+    pm.fails_at_zero = hi[k] == 0;
+    pm.margin = lo[k] >= 0 ? w_of(lo[k]) : 0.0;
+    if (hi[k] >= 0) pm.failure = cache.at(w_of(hi[k])).failure[k];
+    res.properties.push_back(std::move(pm));
+  }
+  // The design's margin: the smallest over steps and properties (a step first on a tie).
+  const std::optional<margin_failure>* worst_failure = nullptr;
+  double worst_margin = 0;
+  bool worst_at_zero = false;
+  auto consider = [&](double m, bool at_ceiling, bool at_zero, const std::optional<margin_failure>& f) {
+    if (at_ceiling || (worst_failure && m >= worst_margin)) return;
+    worst_failure = &f, worst_margin = m, worst_at_zero = at_zero;
+  };
+  for (const auto& s : res.steps) consider(s.margin, s.at_ceiling, s.fails_at_zero, s.failure);
+  for (const auto& p : res.properties) consider(p.margin, p.at_ceiling, p.fails_at_zero, p.failure);
+  res.at_ceiling = worst_failure == nullptr;
+  res.margin = worst_failure ? worst_margin : res.ceiling;
+  res.fails_at_zero = worst_failure && worst_at_zero;
+  if (worst_failure) res.failure = *worst_failure;
 
   // Settle-time margins of every `settle within T` at the written spread.
   if (stopped && !cache.count(1.0)) {

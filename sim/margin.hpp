@@ -45,6 +45,9 @@ struct margin_failure {
   std::uint64_t failing = 0;       ///< corners that fail (expectation) or leave the main outcome (verdict)
   std::uint64_t corners = 0;
   std::optional<culprit_report> culprits;  ///< two settled outcomes at the first divergence
+  /// A whole-run property that is violated (its index in stimulus::properties);
+  /// `step` is then the step of its first violation at the witness.
+  std::optional<std::size_t> property;
 };
 
 /// The delay-spread margin of one step.
@@ -55,6 +58,16 @@ struct step_margin {
   bool at_ceiling = false;         ///< passes at the ceiling: the margin is at least that
   bool fails_at_zero = false;      ///< fails with every gate at its typical delay
   std::optional<margin_failure> failure;  ///< at the smallest failing spread probed
+};
+
+/// The delay-spread margin of one whole-run property (`always`, `never`): the
+/// largest spread at which it holds in every corner, found by the same
+/// bisection as the steps' (a property is an expectation like any other).
+struct property_margin {
+  std::size_t index = 0;           ///< into stimulus::properties
+  double margin = 0;
+  bool at_ceiling = false, fails_at_zero = false;
+  std::optional<margin_failure> failure;  ///< at the smallest violating spread probed
 };
 
 /// The settle-time margin of one `settle within T` budget at the written spread.
@@ -74,11 +87,12 @@ struct margin_probe {
 };
 
 struct margin_result {
-  double margin = 0;               ///< the design's margin: the smallest step margin
+  double margin = 0;               ///< the design's margin: the smallest step or property margin
   bool at_ceiling = false, fails_at_zero = false;
   double resolution = 0.01, ceiling = 1.0;  ///< as fractions of the written spread
   std::optional<margin_failure> failure;    ///< the first failure just above the margin
   std::vector<step_margin> steps;
+  std::vector<property_margin> properties;  ///< one per stimulus property
   std::vector<within_margin> within;
   std::vector<margin_probe> probes;         ///< in the order run
   /// The sweep at the written spread (w = 1); its expects' spec pointers are
@@ -96,7 +110,7 @@ struct margin_result {
   sweep_stop stopped = sweep_stop::none;
   /// Plain words on how far the number can be trusted.
   std::string confidence_note() const;
-  /// True when every step passes at the written spread (w = 1).
+  /// True when every step passes and every property holds at the written spread (w = 1).
   bool passes_as_written() const;
 };
 

@@ -12,6 +12,7 @@ const char* status_name(step_status s) {
     case step_status::timeout: return "timeout";
     case step_status::running: return "running";
     case step_status::event_limit: return "event_limit";
+    case step_status::deadlock: return "deadlock";
   }
   return "?";
 }
@@ -31,7 +32,8 @@ bool step_result::pass() const {
 }
 
 bool run_result::pass() const {
-  return std::all_of(steps.begin(), steps.end(), [](const step_result& s) { return s.pass(); });
+  return !error && std::all_of(steps.begin(), steps.end(), [](const step_result& s) { return s.pass(); }) &&
+         std::all_of(properties.begin(), properties.end(), [](const property_result& p) { return p.holds; });
 }
 
 run_context::run_context(const netlist& n) : sim_(std::make_unique<simulator>(n)) {}
@@ -42,7 +44,7 @@ run_result run_stimulus(run_context& ctx, const design& d, const delay_table& de
   simulator& sim = ctx.sim();
   sim.set_trace(trace);
   sim.reset(delays);
-  return detail::driver<simulator>(sim, d, opt).run();
+  return detail::driver<simulator>(sim, d, opt, &delays).run();
 }
 
 run_result run_stimulus(const design& d, const delay_table& delays, const run_options& opt, change_sink* trace) {

@@ -308,6 +308,8 @@ class simulator {
 
   time_fs now() const { return now_; }
   time_fs last_change() const { return last_change_; }
+  /// The longest rise or fall delay of the delay table given to reset().
+  time_fs largest_delay() const { return largest_delay_; }
   std::uint64_t events() const { return events_; }
   const std::vector<logic>& values() const { return val_; }
   /// Transitions of `net` since reset().
@@ -410,7 +412,8 @@ class simulator {
   // A delay of 2^32 fs (4.3 us) or more anywhere puts every delay here instead.
   std::vector<edge_delays> wide_delay_;
   bool wide_ = false;
-  bool within_reach_ = false;  // every delay of this run shorter than queue_.reach()
+  bool within_reach_ = false;
+  time_fs largest_delay_ = 0;  // of this run's delay table  // every delay of this run shorter than queue_.reach()
   std::vector<logic> clock_seen_;   // flip-flop primitives: CK at their last evaluation
   std::vector<std::uint32_t> slot_;  // transport gates: index into tq_, else no_id
 

@@ -4,7 +4,10 @@
 #include <algorithm>
 #include <atomic>
 #include <chrono>
+#include <cmath>
 #include <cstring>
+#include <limits>
+#include <map>
 #include <exception>
 #include <mutex>
 #include <thread>
@@ -15,10 +18,12 @@
 namespace settle {
 namespace {
 
-// An outcome as bytes: status, period (oscillating only), then the values.
-std::string key_of(step_status status, time_fs period, const std::vector<logic>& values) {
+// An outcome as bytes: status (0x40 set for a timeout at the end of
+// representable time), period (oscillating only), then the values.
+constexpr char end_of_time_bit = 0x40;
+std::string key_of(step_status status, time_fs period, const std::vector<logic>& values, bool end_of_time = false) {
   std::string k(1 + sizeof(time_fs) + values.size(), '\0');
-  k[0] = static_cast<char>(status);
+  k[0] = static_cast<char>(static_cast<char>(status) | (end_of_time ? end_of_time_bit : 0));
   if (status != step_status::oscillating) period = 0;
   std::memcpy(k.data() + 1, &period, sizeof period);
   for (std::size_t i = 0; i < values.size(); ++i) k[1 + sizeof(time_fs) + i] = static_cast<char>(values[i]);
@@ -26,7 +31,8 @@ std::string key_of(step_status status, time_fs period, const std::vector<logic>&
 }
 
 void decode_key(const std::string& k, sweep_outcome& o) {
-  o.status = static_cast<step_status>(k[0]);
+  o.status = static_cast<step_status>(k[0] & ~end_of_time_bit);
+  o.end_of_time = (k[0] & end_of_time_bit) != 0;
   std::memcpy(&o.period, k.data() + 1, sizeof o.period);
   for (std::size_t i = 1 + sizeof(time_fs); i < k.size(); ++i) o.values.push_back(static_cast<logic>(k[i]));
 }
@@ -60,13 +66,38 @@ class outcome_registry {
   std::vector<std::vector<std::string>> keys_;
 };
 
+// What one worker learns about one property: its violating corners and the lowest of them.
+struct property_acc {
+  std::uint64_t violating = 0;
+  std::uint64_t first = UINT64_MAX;
+  time_fs at = 0;
+  std::size_t step = 0;
+};
+
+// What one worker learns about one gauge: the extremes with their corners (a
+// smaller value wins, then a lower corner, so merging is order-free).
+struct gauge_acc {
+  std::uint64_t corners = 0, samples = 0;
+  time_fs min = std::numeric_limits<time_fs>::max(), max = 0;
+  std::uint64_t min_at = UINT64_MAX, max_at = UINT64_MAX;
+  void add(time_fs lo, std::uint64_t lo_at, time_fs hi, std::uint64_t hi_at) {
+    if (lo < min || (lo == min && lo_at < min_at)) min = lo, min_at = lo_at;
+    if (max_at == UINT64_MAX || hi > max || (hi == max && hi_at < max_at)) max = hi, max_at = hi_at;
+  }
+};
+
 struct worker_state {
   std::uint64_t events = 0;
+  std::vector<property_acc> properties;  // [property]
+  std::vector<gauge_acc> gauges;         // [gauge]
   std::vector<net_id> reported;
   bool have_reported = false;
   std::vector<std::vector<expect_acc>> expects;  // [step][expectation]
   std::vector<std::unordered_map<std::string, std::uint32_t>> cache;  // [step] key -> id
   std::exception_ptr error;
+  // The lowest-numbered corner whose stimulus could not go on (run_result::error).
+  std::uint64_t stim_error_corner = UINT64_MAX;
+  std::optional<diagnostic> stim_error;
 };
 
 struct shared_run {
@@ -77,6 +108,7 @@ struct shared_run {
   std::vector<std::uint32_t>& outcome_of;  // [corner * steps + step]
   std::vector<time_fs>& settle_of;         // [corner * steps + step]
   std::vector<std::uint8_t>& finished;     // [corner]: 1 once its results are stored
+  std::vector<double>& gauge_mean_of;      // [corner * gauges + gauge]: NaN without samples
   const std::atomic<bool>& halt;           // stop taking corners, drop the one running
   outcome_registry& registry;
   std::atomic<std::uint64_t>& next;
@@ -97,6 +129,9 @@ void work(shared_run& s, worker_state& w) {
       const step_spec* spec = spec_of(s.d, k);
       w.expects[k].resize(spec ? spec->expects.size() : 0);
     }
+    const std::size_t n_gauges = s.d.stim.gauges.size();
+    w.properties.resize(s.d.stim.properties.size());
+    w.gauges.resize(n_gauges);
     std::vector<logic> unknown;
     for (;;) {
       const std::uint64_t i = s.next.fetch_add(1, std::memory_order_relaxed);
@@ -104,13 +139,14 @@ void work(shared_run& s, worker_state& w) {
       fill_delays(s.d.nets, s.plan.corner_at(i), table);
       const run_result r = run_stimulus(ctx, s.d, table, s.opt);
       if (s.halt.load(std::memory_order_relaxed)) break;  // possibly cut short: not a result
+      if (r.error && i < w.stim_error_corner) w.stim_error_corner = i, w.stim_error = r.error;
       w.events += r.events;
       if (!w.have_reported) w.reported = r.reported, w.have_reported = true;
       unknown.assign(r.reported.size(), logic::x);
       for (std::size_t k = 0; k < s.steps; ++k) {
         const bool ran = k < r.steps.size();
         // A run stopped by --max-events has no later steps: they count as stopped.
-        const std::string key = ran ? key_of(r.steps[k].status, r.steps[k].period, r.steps[k].values)
+        const std::string key = ran ? key_of(r.steps[k].status, r.steps[k].period, r.steps[k].values, r.steps[k].end_of_time)
                                     : key_of(step_status::event_limit, 0, unknown);
         auto& cache = w.cache[k];
         auto it = cache.find(key);
@@ -128,6 +164,21 @@ void work(shared_run& s, worker_state& w) {
           }
         }
       }
+      for (const auto& p : r.properties) {
+        if (p.holds || p.property >= w.properties.size()) continue;
+        auto& acc = w.properties[p.property];
+        ++acc.violating;
+        if (i < acc.first) acc.first = i, acc.at = p.first_violation, acc.step = p.step;
+      }
+      for (std::size_t g = 0; g < n_gauges; ++g) s.gauge_mean_of[i * n_gauges + g] = std::nan("");
+      for (const auto& g : r.gauges) {
+        if (g.count == 0 || g.gauge >= n_gauges) continue;
+        auto& acc = w.gauges[g.gauge];
+        ++acc.corners;
+        acc.samples += g.count;
+        acc.add(g.min, i, g.max, i);
+        s.gauge_mean_of[i * n_gauges + g.gauge] = g.mean;
+      }
       s.finished[i] = 1;
       s.done.fetch_add(1, std::memory_order_relaxed);
     }
@@ -138,12 +189,15 @@ void work(shared_run& s, worker_state& w) {
 
 sweep_verdict verdict_of(const std::vector<sweep_outcome>& outs) {
   if (outs.empty()) return sweep_verdict::timeout;  // a stopped sweep that finished no corner
-  bool settled = false, osc = false, other = false;
+  bool settled = false, osc = false, other = false, dead = false;
   for (const auto& o : outs) {
     if (settles(o.status)) settled = true;
     else if (o.status == step_status::oscillating) osc = true;
+    else if (o.status == step_status::deadlock) dead = true;
     else other = true;
   }
+  // A deadlock in some corners is never hidden behind the others' verdict.
+  if (dead) return settled || osc || other ? sweep_verdict::mixed : sweep_verdict::deadlock;
   if (!osc && !other) return outs.size() == 1 ? sweep_verdict::deterministic : sweep_verdict::nondeterministic;
   if (!settled && !other) return sweep_verdict::oscillating;
   if (!settled && !osc) return sweep_verdict::timeout;
@@ -238,6 +292,79 @@ void judge_by_interval(const step_spec* spec, const std::optional<interval_resul
   st.pass = step_passes(st);
 }
 
+// Properties and gauges over the finished corners, merged from every worker.
+// The result does not depend on which worker ran which corner: counts add up,
+// extremes keep the lower corner on a tie, and the median is taken over the
+// per-corner means in corner order.
+void gather_closed_loop(const design& d, const sweep_plan& plan, const std::vector<worker_state>& workers,
+                        const std::vector<double>& gauge_mean_of, const std::vector<std::uint8_t>& finished,
+                        sweep_result& res) {
+  for (std::uint32_t p = 0; p < d.stim.properties.size(); ++p) {
+    sweep_property sp;
+    sp.index = p;
+    std::uint64_t first = UINT64_MAX;
+    for (const auto& w : workers) {
+      if (p >= w.properties.size()) continue;
+      const auto& a = w.properties[p];
+      sp.violating += a.violating;
+      if (a.first < first) first = a.first, sp.first_violation = a.at, sp.step = a.step;
+    }
+    if (sp.violating) sp.witness = first, sp.witness_name = plan.corner_at(first).name();
+    res.properties.push_back(std::move(sp));
+  }
+  const std::size_t n_gauges = d.stim.gauges.size();
+  std::vector<double> means;
+  for (std::uint32_t g = 0; g < n_gauges; ++g) {
+    sweep_gauge sg;
+    sg.index = g;
+    gauge_acc all;
+    for (const auto& w : workers) {
+      if (g >= w.gauges.size() || w.gauges[g].corners == 0) continue;
+      const auto& a = w.gauges[g];
+      all.corners += a.corners;
+      all.samples += a.samples;
+      all.add(a.min, a.min_at, a.max, a.max_at);
+    }
+    sg.corners = all.corners;
+    sg.samples = all.samples;
+    if (all.corners) {
+      sg.min = all.min, sg.max = all.max;
+      sg.witness_min = all.min_at, sg.witness_max = all.max_at;
+      sg.witness_min_name = plan.corner_at(all.min_at).name();
+      sg.witness_max_name = plan.corner_at(all.max_at).name();
+      means.clear();
+      for (std::uint64_t i = 0; i < plan.corners; ++i) {
+        if (!finished[i]) continue;
+        const double m = gauge_mean_of[i * n_gauges + g];
+        if (!std::isnan(m)) means.push_back(m);
+      }
+      // The lower median, the ((n-1)/2)-th smallest, as for settle times.
+      const auto mid = means.begin() + static_cast<std::ptrdiff_t>((means.size() - 1) / 2);
+      std::nth_element(means.begin(), mid, means.end());
+      sg.median = *mid;
+    }
+    res.gauges.push_back(std::move(sg));
+  }
+}
+
+// The rules owed at each deadlocked outcome's witness: one replay per witness
+// corner (outcomes only keep their end state while the corners run).
+void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt, sweep_result& res) {
+  std::map<std::uint64_t, run_result> replays;
+  delay_table table;
+  for (auto& st : res.steps)
+    for (auto& o : st.outcomes) {
+      if (o.status != step_status::deadlock) continue;
+      auto it = replays.find(o.witness);
+      if (it == replays.end()) {
+        fill_delays(d.nets, plan.corner_at(o.witness), table);
+        it = replays.emplace(o.witness, run_stimulus(d, table, opt)).first;
+      }
+      const auto& steps = it->second.steps;
+      if (st.index - 1 < steps.size()) o.owed = steps[st.index - 1].owed;
+    }
+}
+
 }  // namespace
 
 const char* verdict_name(sweep_verdict v) {
@@ -248,12 +375,15 @@ const char* verdict_name(sweep_verdict v) {
     case sweep_verdict::mixed: return "mixed";
     case sweep_verdict::timeout: return "timeout";
     case sweep_verdict::inconclusive: return "inconclusive";
+    case sweep_verdict::deadlock: return "deadlock";
   }
   return "?";
 }
 
 bool sweep_result::pass() const {
-  return stopped == sweep_stop::none && std::all_of(steps.begin(), steps.end(), [](const sweep_step& s) { return s.pass; });
+  return stopped == sweep_stop::none &&
+         std::all_of(steps.begin(), steps.end(), [](const sweep_step& s) { return s.pass; }) &&
+         std::all_of(properties.begin(), properties.end(), [](const sweep_property& p) { return p.holds(); });
 }
 
 sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_options& opt) {
@@ -268,6 +398,8 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
   std::vector<std::uint32_t> outcome_of(plan.corners * steps);
   std::vector<time_fs> settle_of(plan.corners * steps);
   std::vector<std::uint8_t> finished_corner(plan.corners, 0);
+  const std::size_t n_gauges = d.stim.gauges.size();
+  std::vector<double> gauge_mean_of(plan.corners * n_gauges, std::nan(""));
   outcome_registry registry(steps);
   std::atomic<std::uint64_t> next{0}, done{0};
   std::atomic<unsigned> finished{0};
@@ -276,7 +408,8 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
   std::atomic<bool> halt{false};
   run_options ro = opt.run;
   ro.stop = &halt;
-  shared_run shared{d, plan, ro, steps, outcome_of, settle_of, finished_corner, halt, registry, next, done};
+  shared_run shared{d,      plan,    ro, steps, outcome_of, settle_of, finished_corner, gauge_mean_of,
+                    halt, registry, next, done};
   std::vector<worker_state> workers(threads);
   {
     std::vector<std::thread> pool;
@@ -309,6 +442,7 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
   for (auto& w : workers) {
     res.events += w.events;
     if (w.have_reported && res.reported.empty()) res.reported = w.reported;
+    if (w.stim_error && w.stim_error_corner < res.error_corner) res.error_corner = w.stim_error_corner, res.error = w.stim_error;
   }
   res.corners = done.load();
   std::uint64_t sampled = plan.sampled;
@@ -338,7 +472,9 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
                              sampled_outcomes);
     st.verdict = verdict_of(st.outcomes);
     if (divergence) st.inherits = divergence;
-    else if (st.verdict != sweep_verdict::deterministic) st.first_divergence = true, divergence = st.index;
+    // A step every corner deadlocks in has not diverged: it is stuck alike everywhere.
+    else if (st.verdict != sweep_verdict::deterministic && st.verdict != sweep_verdict::deadlock)
+      st.first_divergence = true, divergence = st.index;
     if (sampled > 0 && sampled_outcomes == 1) st.unseen_outcome_bound = rule_of_three(sampled);
 
     const std::size_t n_expects = spec ? spec->expects.size() : 0;
@@ -375,6 +511,10 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
     if (iv && k < iv->steps.size()) st.interval = iv->steps[k];
     st.pass = step_passes(st);
     res.steps.push_back(std::move(st));
+  }
+  if (!plan.interval_only()) {
+    gather_closed_loop(d, plan, workers, gauge_mean_of, finished_corner, res);
+    if (res.stopped == sweep_stop::none) replay_owed(d, plan, opt.run, res);
   }
   res.wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
   return res;

@@ -60,25 +60,29 @@ std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, 
 inline constexpr std::uint64_t sweep_default_max_memory_mib = 2048;
 
 /// Bytes a sweep of `plan` holds for its per-corner results over `steps`
-/// steps: an outcome id and a settle time per corner and step while the
-/// corners run, then the settle times each outcome keeps for the report,
-/// about 20 bytes per corner and step in all. Known before any corner runs,
-/// so an oversized sweep is refused up front (--max-memory) instead of
-/// running out of memory part-way.
-std::uint64_t sweep_result_bytes(const sweep_plan& plan, std::size_t steps);
+/// steps and `gauges` gauges: an outcome id and a settle time per corner and
+/// step while the corners run, then the settle times each outcome keeps for
+/// the report, about 20 bytes per corner and step in all, plus one mean (8
+/// bytes) per corner and gauge for the gauges' exact medians. Known before
+/// any corner runs, so an oversized sweep is refused up front (--max-memory)
+/// instead of running out of memory part-way.
+std::uint64_t sweep_result_bytes(const sweep_plan& plan, std::size_t steps, std::size_t gauges = 0);
 
 /// A step's verdict across all corners.
 enum class sweep_verdict : std::uint8_t {
   deterministic,     ///< one settled outcome
   nondeterministic,  ///< more than one settled outcome: a critical race
   oscillating,       ///< every corner oscillates
-  mixed,             ///< some corners settle, others oscillate or time out (or a mix of the two)
+  /// Some corners settle, others oscillate, time out or deadlock (or a mix of those); also
+  /// where some corners deadlock and the others do anything else.
+  mixed,
   timeout,           ///< every corner timed out (or hit the event limit)
   /// `interval` alone: the min-max run left a reported net at x (or did not
   /// settle), so it proves nothing either way about this step.
   inconclusive,
+  deadlock,          ///< every corner deadlocks: quiet with a reaction rule still owed
 };
-/// "deterministic", "nondeterministic", "oscillating", "mixed", "timeout", "inconclusive".
+/// "deterministic", "nondeterministic", "oscillating", "mixed", "timeout", "inconclusive", "deadlock".
 const char* verdict_name(sweep_verdict v);
 
 /// Minimum, lower median (the ((n-1)/2)-th of n sorted values) and maximum.
@@ -89,6 +93,7 @@ struct time_summary {
 /// Corners of one step that ended the same way.
 struct sweep_outcome {
   step_status status = step_status::settled;
+  bool end_of_time = false;    ///< a timeout at the end of representable time (step_result::end_of_time)
   std::vector<logic> values;   ///< per reported net
   time_fs period = 0;          ///< oscillating only
   std::uint64_t count = 0;
@@ -99,6 +104,8 @@ struct sweep_outcome {
   time_summary settle;         ///< settle times over its corners
   std::uint64_t slowest = 0;   ///< the lowest-numbered corner whose settle time is settle.max
   std::vector<time_fs> settle_times;  ///< its corners' settle times, ascending (for histograms)
+  /// deadlock only: the rules owed at the witness corner (replayed once the corners ran).
+  std::vector<owed_rule> owed;
 };
 
 /// An expectation of a step judged over every corner.
@@ -134,6 +141,31 @@ struct sweep_step {
   bool pass = true;
 };
 
+/// A whole-run property judged over every corner.
+struct sweep_property {
+  std::uint32_t index = 0;        ///< into stimulus::properties
+  std::uint64_t violating = 0;    ///< corners in which it is violated
+  std::uint64_t witness = 0;      ///< the lowest-numbered violating corner (when violating > 0)
+  std::string witness_name;
+  time_fs first_violation = 0;    ///< at the witness
+  std::size_t step = 0;           ///< at the witness, 1-based
+  bool holds() const { return violating == 0; }
+};
+
+/// A timing gauge's distribution over corners. Each corner contributes its
+/// samples' min, mean and max; the sweep keeps the extremes with their
+/// corners (mergeable across threads: the smaller value, then the lower
+/// corner) and every corner's mean for an exact median.
+struct sweep_gauge {
+  std::uint32_t index = 0;        ///< into stimulus::gauges
+  std::uint64_t corners = 0;      ///< corners with at least one sample
+  std::uint64_t samples = 0;      ///< over all corners
+  time_fs min = 0, max = 0;       ///< the smallest and largest sample of any corner
+  double median = 0;              ///< the lower median of the corners' mean samples (fs)
+  std::uint64_t witness_min = 0, witness_max = 0;  ///< the lowest-numbered corners showing min, max
+  std::string witness_min_name, witness_max_name;
+};
+
 /// Why a sweep stopped before running every corner.
 enum class sweep_stop : std::uint8_t { none, interrupted, timeout };
 
@@ -146,6 +178,14 @@ struct sweep_result {
   double wall_s = 0;
   std::vector<net_id> reported;  ///< outputs, then watched nets
   std::vector<sweep_step> steps;
+  /// The stimulus could not go on in some corner (an `at` earlier than the
+  /// time that corner reached): the lowest such corner's diagnostic. An
+  /// error of the input (exit 2), whatever the other corners did.
+  std::optional<diagnostic> error;
+  std::uint64_t error_corner = UINT64_MAX;
+  std::vector<sweep_property> properties;  ///< one per stimulus property, in order
+  std::vector<sweep_gauge> gauges;         ///< one per stimulus gauge, in order
+  /// Every step passes and every property holds in every corner, and the sweep ran to the end.
   bool pass() const;
 };
 

@@ -1,6 +1,7 @@
 // Corner spec parsing and enumeration for sweeps: extremes, exhaustive, random:N, gauss:N, interval.
 #include <algorithm>
 #include <charconv>
+#include <utility>
 
 #include <fmt/format.h>
 
@@ -35,15 +36,17 @@ corner sweep_plan::corner_at(std::uint64_t i) const {
   return corner{};  // out of range: the caller's bug; typ is harmless
 }
 
-std::uint64_t sweep_result_bytes(const sweep_plan& plan, std::size_t steps) {
+std::uint64_t sweep_result_bytes(const sweep_plan& plan, std::size_t steps, std::size_t gauges) {
   // outcome_of (4) + settle_of (8) + the outcome's kept settle time (8) per
-  // corner and step, and one finished flag per corner. corners <= 2^26, so
-  // the product overflows only past 2^37 steps; saturate anyway.
+  // corner and step, one gauge mean (8) per corner and gauge, and one
+  // finished flag per corner. corners <= 2^26, so the product overflows only
+  // past 2^37 steps; saturate anyway.
   constexpr std::uint64_t per_cell = sizeof(std::uint32_t) + 2 * sizeof(time_fs);
-  const std::uint64_t cells_max = (UINT64_MAX - plan.corners) / per_cell;
   const std::uint64_t s = std::max<std::uint64_t>(steps, 1);
-  if (plan.corners && s > cells_max / plan.corners) return UINT64_MAX;
-  return plan.corners * s * per_cell + plan.corners;
+  if (s > UINT64_MAX / 64 / per_cell || gauges > UINT64_MAX / 64 / sizeof(double)) return UINT64_MAX;
+  const std::uint64_t per_corner = s * per_cell + gauges * sizeof(double) + 1;
+  if (plan.corners && per_corner > UINT64_MAX / plan.corners) return UINT64_MAX;
+  return plan.corners * per_corner;
 }
 
 bool sweep_plan::is_sampled(std::uint64_t i) const {
@@ -63,11 +66,23 @@ std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, 
   plan.spec = std::string(spec);
   plan.seed = seed;
   std::uint64_t next_random = 0, next_gauss = 0;
+  bool seen_extremes = false, seen_exhaustive = false, seen_interval = false;
   std::string_view rest = spec;
   for (;;) {
     const auto plus = rest.find('+');
     const std::string_view tok = trim(rest.substr(0, plus));
     sweep_plan::item it;
+    // A part given twice would count the same corners twice and narrow every
+    // interval with no new information; random:N and gauss:N parts draw new corners.
+    bool& seen = tok == "extremes"     ? seen_extremes
+                 : tok == "exhaustive" ? seen_exhaustive
+                                       : seen_interval;
+    if ((tok == "extremes" || tok == "exhaustive" || tok == "interval") &&
+        std::exchange(seen, true))
+      return fail(fmt::format(
+          "--corners '{}': '{}' appears twice; each of extremes, exhaustive and interval may be "
+          "given once",
+          spec, tok));
     if (tok.empty()) {
       return fail(fmt::format("--corners '{}': empty item; expected extremes, exhaustive, random:N, gauss:N or "
                               "interval joined by '+'",

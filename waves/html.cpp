@@ -188,7 +188,8 @@ void sweep_histograms(const sweep_result& r, page_data& p) {
 }
 
 /// The sweep's figures in the sweep command's JSON shape (for the margin report's written spread).
-json sweep_json(const netlist& n, const sweep_result& r) {
+json sweep_json(const design& d, const sweep_result& r) {
+  const netlist& n = d.nets;
   json j;
   j["corners"] = r.corners;
   j["steps"] = json::array();
@@ -211,9 +212,35 @@ json sweep_json(const netlist& n, const sweep_result& r) {
       e["witness"] = oc.witness_name;
       e["settle_fs"] = {{"min", oc.settle.min}, {"median", oc.settle.median}, {"max", oc.settle.max}};
       if (oc.status == step_status::oscillating) e["period_fs"] = oc.period;
+      if (oc.status == step_status::deadlock) {
+        e["owed"] = json::array();
+        for (const auto& w : oc.owed)
+          e["owed"].push_back({{"rule", w.rule < d.stim.rules.size() ? d.stim.rules[w.rule].text : std::string()},
+                               {"fired", w.fired},
+                               {"times", w.times},
+                               {"condition", one(w.condition)}});
+      }
       st["outcomes"].push_back(std::move(e));
     }
     j["steps"].push_back(std::move(st));
+  }
+  // Whole-run properties and gauges over the corners, in the sweep command's shape.
+  j["properties"] = json::array();
+  for (const auto& p : r.properties) {
+    json e = {{"text", d.stim.properties[p.index].text}, {"violating", p.violating}, {"corners", r.corners}};
+    if (p.violating) e["witness"] = p.witness_name;
+    j["properties"].push_back(std::move(e));
+  }
+  j["gauges"] = json::array();
+  for (const auto& g : r.gauges) {
+    const auto& spec = d.stim.gauges[g.index];
+    json e = {{"name", spec.name}, {"kind", gauge_kind_name(spec.what)}, {"corners", g.corners}};
+    if (g.corners) {
+      e["min_fs"] = g.min, e["median_fs"] = g.median, e["max_fs"] = g.max;
+      e["witness_min"] = g.witness_min_name, e["witness_max"] = g.witness_max_name;
+      if (spec.what == gauge::kind::period && g.median > 0) e["throughput_per_s"] = 1e15 / g.median;
+    }
+    j["gauges"].push_back(std::move(e));
   }
   return j;
 }
@@ -309,7 +336,7 @@ std::string html_report_sweep(const design& d, const sweep_result& r, const run_
 std::string html_report_margin(const design& d, const margin_result& r, const run_options& ro,
                                const html_source& src) {
   auto p = start(d, r.written.reported, src);
-  p.root["written"] = sweep_json(d.nets, r.written);
+  p.root["written"] = sweep_json(d, r.written);
   run_options wro = ro;
   if (wro.horizon == 0) wro.horizon = default_horizon(d.nets);
   sweep_waves(d, r.written, wro, p);

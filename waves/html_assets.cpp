@@ -27,6 +27,9 @@ code,.mono{font-family:var(--mono);font-size:12.5px}
 .v-nondeterministic,.e-race{border-left-color:var(--nondet)}.v-nondeterministic .word,.e-race .word{background:var(--nondet)}
 .v-oscillating,.s-oscillating,.e-stuck{border-left-color:var(--osc)}.v-oscillating .word,.s-oscillating .word,.e-stuck .word{background:var(--osc)}
 .v-mixed,.e-maybe{border-left-color:var(--mixed)}.v-mixed .word,.e-maybe .word{background:var(--mixed)}
+.v-deadlock,.s-deadlock,.p-violated{border-left-color:var(--nondet)}.v-deadlock .word,.s-deadlock .word,.p-violated .word{background:var(--nondet)}
+.p-holds{border-left-color:var(--det)}.p-holds .word{background:var(--det)}
+.owed{border-left:4px solid var(--nondet);background:#fbe9e4;padding:6px 10px;margin:6px 0;border-radius:0 4px 4px 0}
 .body{padding:8px 14px 14px}
 .outcomes{display:flex;flex-wrap:wrap;gap:10px}
 .outcome{flex:1 1 260px;border:1px solid var(--rule);border-radius:5px;padding:8px 10px;position:relative;border-top:5px solid var(--c)}
@@ -354,6 +357,54 @@ const char* const html_script = R"SETTLE((function () {
     return svg;
   }
 
+  // ---- closed loops: the rules a deadlocked step owes, whole-run properties, timing gauges
+  function owedBlock(owed) {
+    if (!owed || !owed.length) return null;
+    var box = el('div', { cls: 'owed', 'data-owed': owed.length });
+    box.appendChild(el('div', { text: 'deadlock: everything went quiet while these reaction rules were still owed' }));
+    box.appendChild(table(['rule', 'fired', 'times', 'condition at the end'], owed.map(function (o) {
+      return [el('code', { text: o.rule }), o.fired, o.times, o.condition];
+    })));
+    return box;
+  }
+  function valuesText(v) { return Object.keys(v || {}).map(function (k) { return k + '=' + v[k]; }).join(' '); }
+  function closedLoopPart(target, R, corners) {
+    var props = R.properties || [], gauges = R.gauges || [];
+    if (!props.length && !gauges.length) return;
+    var sec = el('section', { cls: 'step closed-loop' });
+    var bad = props.filter(function (p) { return p.holds === false || p.violating > 0; }).length;
+    sec.appendChild(banner(bad ? 'p-violated' : 'p-holds', bad ? 'violated' : 'holds', 'whole-run properties and gauges',
+      props.length + ' propert' + (props.length === 1 ? 'y' : 'ies') + ' \u00b7 ' + gauges.length + ' gauge' + (gauges.length === 1 ? '' : 's')));
+    var body = el('div', { cls: 'body' });
+    if (props.length) {
+      body.appendChild(el('h3', { text: 'properties' }));
+      if (corners === undefined)
+        body.appendChild(table(['', 'property', 'first violation', 'step', 'values there'], props.map(function (p) {
+          return [passCell(p.holds), el('code', { text: p.text }), p.holds ? '-' : fmtTime(p.first_violation_fs), p.holds ? '' : p.step, valuesText(p.values)];
+        })));
+      else
+        body.appendChild(table(['', 'property', 'violating corners', 'witness'], props.map(function (p) {
+          return [passCell(!p.violating), el('code', { text: p.text }), p.violating + ' of ' + p.corners, p.witness || ''];
+        })));
+    }
+    if (gauges.length) {
+      body.appendChild(el('h3', { text: corners === undefined ? 'gauges (samples of this run)' : 'gauges over corners' }));
+      if (corners === undefined)
+        body.appendChild(table(['gauge', 'kind', 'nets', 'samples', 'min', 'mean', 'max'], gauges.map(function (g) {
+          var none = !g.count;
+          return [el('code', { text: g.name }), g.kind, (g.nets || []).join(' \u2192 '), g.count, none ? '-' : fmtTime(g.min_fs), none ? '-' : fmtTime(Math.round(g.mean_fs)), none ? '-' : fmtTime(g.max_fs)];
+        })));
+      else
+        body.appendChild(table(['gauge', 'kind', 'min (witness)', 'median of corner means', 'max (witness)', 'throughput'], gauges.map(function (g) {
+          if (!g.corners) return [el('code', { text: g.name }), g.kind, 'no sample', '', '', ''];
+          return [el('code', { text: g.name }), g.kind, fmtTime(g.min_fs) + ' (' + g.witness_min + ')', fmtTime(Math.round(g.median_fs)),
+            fmtTime(g.max_fs) + ' (' + g.witness_max + ')', g.throughput_per_s ? (g.throughput_per_s / 1e6).toPrecision(4) + ' M/s' : ''];
+        })));
+    }
+    sec.appendChild(body);
+    target.appendChild(sec);
+  }
+
   // ---- sweep steps (sweep report, and the margin report's written spread)
   function sweepSteps(target, steps, corners, D) {
     steps.forEach(function (st) {
@@ -374,6 +425,8 @@ const char* const html_script = R"SETTLE((function () {
         card.appendChild(el('div', { cls: 'sub', text: 'settle ' + fmtTime(o.settle_fs.min) + ' / ' + fmtTime(o.settle_fs.median) + ' / ' + fmtTime(o.settle_fs.max) + '  (min / median / max)' }));
         card.appendChild(el('div', { cls: 'sub' }, ['witness ', el('code', { text: o.witness })]));
         card.appendChild(chips(o.values));
+        var ob = owedBlock(o.owed);
+        if (ob) card.appendChild(ob);
         outs.appendChild(card);
       });
       body.appendChild(outs);
@@ -384,7 +437,7 @@ const char* const html_script = R"SETTLE((function () {
       if (st.expect && st.expect.length) {
         body.appendChild(el('h3', { text: 'expectations' }));
         body.appendChild(table(['', 'kind', 'net', 'failing corners', 'witness'], st.expect.map(function (e) {
-          return [passCell(e.pass), e.kind, e.net || '', 'failing' in e ? e.failing : (e.proven ? 'proven' : 'not proven'), e.witness || ''];
+          return [passCell(e.pass), e.kind + (e.want ? ' ' + e.want : ''), e.net || e.gauge || '', 'failing' in e ? e.failing : (e.proven ? 'proven' : 'not proven'), e.witness || ''];
         })));
       }
       if (st.culprits) {
@@ -425,8 +478,10 @@ const char* const html_script = R"SETTLE((function () {
       })));
       if (st.expect && st.expect.length)
         body.appendChild(table(['', 'expectation', 'want', 'got'], st.expect.map(function (e) {
-          return [passCell(e.pass), (e.kind || 'value') + (e.net ? ' ' + e.net : ''), e.want || (e.budget_fs !== undefined ? fmtTime(e.budget_fs) : ''), e.got || (e.got_fs !== undefined ? fmtTime(e.got_fs) : '')];
+          return [passCell(e.pass), e.gauge ? 'gauge ' + e.gauge : (e.kind || 'value') + (e.net ? ' ' + e.net : ''), e.want || (e.budget_fs !== undefined ? fmtTime(e.budget_fs) : ''), e.got || (e.got_fs !== undefined ? fmtTime(e.got_fs) : '')];
         })));
+      var ob = owedBlock(st.owed);
+      if (ob) body.appendChild(ob);
       var w = (D.waves || []).filter(function (x) { return x.step === st.index; })[0];
       if (w) body.appendChild(wavePanel(w, D.nets));
       sec.appendChild(body);
@@ -474,9 +529,16 @@ const char* const html_script = R"SETTLE((function () {
     }
     sec.appendChild(body);
     target.appendChild(sec);
+    if ((R.properties || []).length) {
+      body.appendChild(el('h3', { text: 'per property' }));
+      body.appendChild(table(['property', 'margin', 'first violation above it'], R.properties.map(function (p) {
+        return [el('code', { text: p.text }), (p.at_least ? '\u2265 ' : '') + p.margin_pct + '%', p.failure ? 'at ' + p.failure.spread_pct + '%, witness ' + p.failure.witness : '-'];
+      })));
+    }
     if (D.written) {
       target.appendChild(el('h2', { text: 'At the written spread' }));
       sweepSteps(target, D.written.steps, D.written.corners, D);
+      closedLoopPart(target, D.written, D.written.corners);
     }
   }
 
@@ -556,8 +618,8 @@ const char* const html_script = R"SETTLE((function () {
     head.appendChild(el('div', { cls: 'facts', text: facts }));
     root.appendChild(head);
     (D.notes || []).concat(R.notes || []).forEach(function (n) { root.appendChild(el('div', { cls: 'note', text: n })); });
-    if (D.kind === 'sweep') sweepSteps(root, R.steps || [], R.corners, D);
-    else if (D.kind === 'run') runSteps(root, R, D);
+    if (D.kind === 'sweep') { sweepSteps(root, R.steps || [], R.corners, D); closedLoopPart(root, R, R.corners); }
+    else if (D.kind === 'run') { runSteps(root, R, D); closedLoopPart(root, R, undefined); }
     else if (D.kind === 'margin') marginPart(root, R, D);
     else if (D.kind === 'explore') exploreSteps(root, R, D);
     var panels = document.querySelectorAll('.wave');

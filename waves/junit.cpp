@@ -45,6 +45,23 @@ std::string step_name(std::size_t index, const std::string& label) {
 
 std::string suite_name(const design& d) { return d.path.empty() ? std::string("design") : d.path; }
 
+// The owed rules of a deadlocked step, one a line: "owed: when ack after 1ns : req = 0 (fired 0 of 5; condition 0)".
+std::string owed_text(const design& d, const std::vector<owed_rule>& owed) {
+  std::string out;
+  for (const auto& w : owed)
+    out += fmt::format("owed: {} (fired {} of {}; condition {})\n",
+                       w.rule < d.stim.rules.size() ? d.stim.rules[w.rule].text : std::string("?"), w.fired, w.times,
+                       to_char(w.condition));
+  return out;
+}
+
+std::string owed_list(const design& d, const std::vector<owed_rule>& owed) {
+  std::string out;
+  for (const auto& w : owed)
+    out += (out.empty() ? "" : "; ") + (w.rule < d.stim.rules.size() ? d.stim.rules[w.rule].text : std::string("?"));
+  return out;
+}
+
 }  // namespace
 
 std::string xml_escape(std::string_view text, bool attribute) {
@@ -125,14 +142,20 @@ junit_suite junit_of_run(const design& d, const run_result& r, const std::string
   const std::string cls = suite_name(d) + "." + corner;
   for (const auto& st : r.steps) {
     auto c = make_case(cls, step_name(st.index, st.label));
-    bool bad_status = st.status == step_status::timeout || st.status == step_status::event_limit;
+    bool bad_status = st.status == step_status::timeout || st.status == step_status::event_limit ||
+                      st.status == step_status::deadlock;
     if (st.status == step_status::oscillating) {
       bool expected = false;
       for (const auto& x : st.expects)
         expected = expected || (x.spec && x.spec->what == expectation::kind::oscillating);
       bad_status = !expected;
     }
-    if (bad_status)
+    if (bad_status && st.status == step_status::deadlock)
+      c.failures.push_back({fmt::format("step {} deadlocks at corner {}: quiet with {} owed", st.index, corner,
+                                        owed_list(d, st.owed)),
+                            "deadlock",
+                            fmt::format("corner: {}\n{}replay: {}\n", corner, owed_text(d, st.owed), replay(corner))});
+    else if (bad_status)
       c.failures.push_back({fmt::format("step {} is {} at corner {}", st.index, status_name(st.status), corner),
                             "status", fmt::format("corner: {}\nreplay: {}\n", corner, replay(corner))});
     s.cases.push_back(std::move(c));
@@ -145,6 +168,21 @@ junit_suite junit_of_run(const design& d, const run_result& r, const std::string
                                                          replay(corner))});
       s.cases.push_back(std::move(e));
     }
+  }
+  for (const auto& p : r.properties) {
+    const std::string& text = p.property < d.stim.properties.size() ? d.stim.properties[p.property].text : "?";
+    auto c = make_case(cls, "property: " + text);
+    if (!p.holds) {
+      std::string vals;
+      for (const auto& [net, v] : p.values)
+        vals += fmt::format("{}{}={}", vals.empty() ? "" : " ", d.nets.net_name[net], to_char(v));
+      c.failures.push_back({fmt::format("{} is violated at {} (step {}) at corner {}", text,
+                                        format_time(p.first_violation), p.step, corner),
+                            "property",
+                            fmt::format("corner: {}\nfirst violation: {} in step {}\nvalues: {}\nreplay: {}\n", corner,
+                                        format_time(p.first_violation), p.step, vals, replay(corner))});
+    }
+    s.cases.push_back(std::move(c));
   }
   return s;
 }
@@ -172,6 +210,24 @@ junit_suite junit_of_sweep(const design& d, const sweep_result& r, const replay_
       if (st.verdict == sweep_verdict::inconclusive)  // `interval` alone: no corner ran
         c.failures.push_back({fmt::format("step {} is inconclusive: the interval run does not prove it", st.index),
                               "verdict", ""});
+      else if (st.verdict == sweep_verdict::deadlock || st.verdict == sweep_verdict::mixed) {
+        std::uint64_t dead = 0;
+        const sweep_outcome* first = nullptr;
+        for (const auto& o : st.outcomes)
+          if (o.status == step_status::deadlock) {
+            dead += o.count;
+            if (!first || o.witness < first->witness) first = &o;
+          }
+        if (first)
+          text += fmt::format("deadlock witness {}:\n{}", first->witness_name, owed_text(d, first->owed));
+        c.failures.push_back({dead ? fmt::format("step {} deadlocks in {} of {} corners (verdict {}); first at {} "
+                                                 "with {} owed",
+                                                 st.index, dead, r.corners, verdict_name(st.verdict),
+                                                 first->witness_name, owed_list(d, first->owed))
+                                   : fmt::format("step {} is {} over {} corners", st.index, verdict_name(st.verdict),
+                                                 r.corners),
+                              dead ? "deadlock" : "verdict", text});
+      }
       else
         c.failures.push_back({fmt::format("step {} is {} over {} corners", st.index, verdict_name(st.verdict),
                                           r.corners),
@@ -191,6 +247,17 @@ junit_suite junit_of_sweep(const design& d, const sweep_result& r, const replay_
                                                          x.detail, replay(x.witness_name))});
       s.cases.push_back(std::move(e));
     }
+  }
+  for (const auto& p : r.properties) {
+    const std::string& text = p.index < d.stim.properties.size() ? d.stim.properties[p.index].text : "?";
+    auto c = make_case(cls, "property: " + text);
+    if (!p.holds())
+      c.failures.push_back({fmt::format("{} is violated in {} of {} corners; first at {}", text, p.violating,
+                                        r.corners, p.witness_name),
+                            "property",
+                            fmt::format("witness: {}\nfirst violation: {} in step {}\nreplay: {}\n", p.witness_name,
+                                        format_time(p.first_violation), p.step, replay(p.witness_name))});
+    s.cases.push_back(std::move(c));
   }
   return s;
 }
@@ -232,6 +299,21 @@ junit_suite junit_of_margin(const design& d, const margin_result& r, const repla
                                                           x.detail, replay(x.witness_name))});
       s.cases.push_back(std::move(ec));
     }
+  }
+  for (const auto& p : r.properties) {
+    const std::string& text = p.index < d.stim.properties.size() ? d.stim.properties[p.index].text : "?";
+    auto c = make_case(cls, "property: " + text);
+    if (!p.at_ceiling && p.margin < 1.0 && p.failure) {
+      const auto& f = *p.failure;
+      c.failures.push_back({fmt::format("{} margin {} is below the written spread; violated at {}", text,
+                                        spread_percent(p.margin), f.witness),
+                            "property",
+                            fmt::format("margin: {} of the written spread\nfirst violation at {}: {}\nwitness: {}\n"
+                                        "replay: {}\n",
+                                        spread_percent(p.margin), spread_percent(f.spread), f.detail, f.witness,
+                                        replay(f.witness))});
+    }
+    s.cases.push_back(std::move(c));
   }
   for (const auto& w : r.within) {
     auto c = make_case(cls, fmt::format("step {}: settle-time margin of {}", w.step, format_time(w.budget)));

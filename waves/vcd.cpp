@@ -6,6 +6,7 @@
 #include <cstring>
 #include <ctime>
 #include <deque>
+#include <unordered_set>
 #include <string_view>
 
 #include <fmt/format.h>
@@ -314,14 +315,24 @@ std::string vcd_writer::header() const {
   // Sanitised names (only those that change are copied), and the map of them.
   std::string renamed;
   std::deque<std::string> cleaned;  // stable storage for rewritten names
-  auto clean = [&](std::string_view name, std::string_view where) -> std::string_view {
+  auto needs_cleaning = [](std::string_view name) {
     bool bad = name.empty();
     for (char c : name) {
       const auto u = static_cast<unsigned char>(c);
       bad |= c == '.' || c == '/' || c == '[' || c == ']' || u <= 32 || u >= 127;
     }
-    if (!bad) return name;
-    const std::string_view s = cleaned.emplace_back(vcd_sanitise(name));
+    return bad;
+  };
+  // `taken`: the names already used in the scope; a sanitised name that meets
+  // one (nets a.b and a_b) gets the first free suffix _2, _3, ...
+  auto clean = [&](std::string_view name, std::string_view where,
+                   std::unordered_set<std::string_view>* taken = nullptr) -> std::string_view {
+    if (!needs_cleaning(name)) return name;
+    std::string fresh = vcd_sanitise(name);
+    if (taken)
+      for (std::size_t k = 2; taken->count(fresh); ++k) fresh = vcd_sanitise(name) + "_" + std::to_string(k);
+    const std::string_view s = cleaned.emplace_back(std::move(fresh));
+    if (taken) taken->insert(s);
     renamed += '\t';
     if (!where.empty()) renamed.append(where), renamed += '.';
     renamed.append(s), renamed += " = ";
@@ -332,8 +343,15 @@ std::string vcd_writer::header() const {
   std::vector<std::string_view> scope_name(scopes);
   scope_name[0] = clean(opt_.top.empty() ? std::string_view("top") : std::string_view(opt_.top), "");
   for (std::size_t s = 1; s < scopes; ++s) scope_name[s] = clean(n_.scopes[s].name, path[n_.scopes[s].parent < scopes ? n_.scopes[s].parent : 0]);
-  for (std::size_t s = 0; s < scopes; ++s)
-    for (auto j = per_scope[s]; j < per_scope[s + 1]; ++j) vars[j].name = clean(vars[j].name, path[s]);
+  for (std::size_t s = 0; s < scopes; ++s) {
+    bool any = false;  // most scopes need no renaming, and then no set
+    for (auto j = per_scope[s]; j < per_scope[s + 1] && !any; ++j) any = needs_cleaning(vars[j].name);
+    if (!any) continue;
+    std::unordered_set<std::string_view> taken;
+    for (auto j = per_scope[s]; j < per_scope[s + 1]; ++j)
+      if (!needs_cleaning(vars[j].name)) taken.insert(vars[j].name);
+    for (auto j = per_scope[s]; j < per_scope[s + 1]; ++j) vars[j].name = clean(vars[j].name, path[s], &taken);
+  }
 
   // Scopes with something to show, their children, then the declarations.
   std::vector<std::uint8_t> live(scopes, 0);

@@ -43,7 +43,10 @@ std::vector<loop_info> loops_of(const netlist& n) {
 constexpr std::size_t shown_members = 4;
 
 exit_status run_check(const check_options& o) {
-  auto d = load(o.design);
+  auto uses = design_inputs(o.design);
+  uses.push_back({path_use::kind::output, "--json", o.json, ""});
+  if (!check_paths(uses)) return exit_status::error;
+  auto d = load(o.design, true);
   if (!d) return exit_status::error;
   const netlist& n = d->nets;
   std::array<std::size_t, gate_kind_count> by_kind{};
@@ -75,7 +78,9 @@ exit_status run_check(const check_options& o) {
       j["source"] = {{"format", s.format}, {"inputs", s.inputs},         {"outputs", s.outputs}, {"dffs", s.dffs},
                      {"inverters", s.inverters}, {"buffers", s.buffers}, {"gates", s.gates}};
     }
-    if (!write_output(o.json, j.dump(2) + "\n")) return exit_status::error;
+    if (!write_output(
+            o.json, j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n"))
+      return exit_status::error;
     if (o.json == "-") return exit_status::ok;  // stdout carries the JSON alone
   }
 
@@ -111,7 +116,8 @@ void add_check(CLI::App& app, exit_status& status) {
   auto o = std::make_shared<check_options>();
   auto* cmd = app.add_subcommand("check", "parse, elaborate and lint a design; print counts and feedback loops");
   add_design_options(*cmd, o->design);
-  cmd->add_option("--json", o->json, "write the counts as JSON to PATH ('-' for stdout)");
+  check_output_path(
+      cmd->add_option("--json", o->json, "write the counts as JSON to PATH ('-' for stdout)"));
   cmd->callback([o, &status] { status = run_check(*o); });
 }
 

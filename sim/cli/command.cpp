@@ -1,4 +1,4 @@
-// The command table and the helpers every settle command shares (loading, atomic output, colour).
+// The command table and the helpers every settle command shares (loading, replay commands, colour).
 #include "sim/cli/command.hpp"
 
 #include <fcntl.h>
@@ -65,19 +65,46 @@ int register_command(command c) {
 
 const std::vector<command>& commands() { return table(); }
 
+CLI::Validator one_of(std::vector<std::string> words) {
+  std::string list;
+  for (const auto& w : words) list += (list.empty() ? "" : ", ") + w;
+  return CLI::Validator(
+      [words, list](std::string& v) -> std::string {
+        if (std::find(words.begin(), words.end(), v) != words.end()) return "";
+        return fmt::format("'{}' is not one of {}", v, list);
+      },
+      list);
+}
+
+CLI::Validator file_name(const char* what) {
+  return CLI::Validator(
+      [what](std::string& v) -> std::string {
+        return v.empty() ? fmt::format("the {} path is empty", what) : "";
+      },
+      "FILE");
+}
+
 void add_design_options(CLI::App& cmd, design_options& o) {
   cmd.add_option("DESIGN", o.path, "design file (.settle, .bench for ISCAS netlists, .v for structural Verilog)")
-      ->required();
-  cmd.add_option("--stim", o.stim, "file with one stimulus { } block replacing the design's own");
+      ->required()
+      ->check(file_name("design file"));
+  cmd.add_option("--stim", o.stim, "file with one stimulus { } block replacing the design's own")
+      ->check(file_name("--stim file"));
   cmd.add_option("--format", o.format, "input format: auto (by extension), settle, bench or verilog")
-      ->check(CLI::IsMember({"auto", "settle", "bench", "verilog"}));
+      ->check(one_of({"auto", "settle", "bench", "verilog"}));
   cmd.add_option("--top", o.top, "Verilog: the top module (default: the one no other module instantiates)");
   cmd.add_option("--dff", o.dff, "imported flip-flops: gates (six NAND gates) or primitive")
-      ->check(CLI::IsMember({"gates", "primitive"}));
+      ->check(one_of({"gates", "primitive"}));
   cmd.add_option("--delay", o.delay, "delay of imported gates: MIN..MAX (e.g. 40ps..60ps)");
 }
 
-std::optional<design> load(const design_options& o) {
+std::vector<path_use> design_inputs(const design_options& o) {
+  std::vector<path_use> uses{{path_use::kind::input, "design file", o.path, ""}};
+  if (!o.stim.empty()) uses.push_back({path_use::kind::input, "--stim file", o.stim, ""});
+  return uses;
+}
+
+std::optional<design> load(const design_options& o, bool empty_ok) {
   load_options lo;
   lo.stim_path = o.stim;
   lo.format = o.format;
@@ -99,102 +126,15 @@ std::optional<design> load(const design_options& o) {
     if (diags.items.empty()) spdlog::error("cannot load '{}'", o.path);
     return std::nullopt;
   }
+  if (d->nets.gate_count() == 0 && d->nets.inputs.empty()) {
+    if (!empty_ok) {
+      spdlog::error(
+          "{}: the design is empty (no gates and no inputs): there is nothing to simulate", o.path);
+      return std::nullopt;
+    }
+    spdlog::warn("{}: the design is empty (no gates and no inputs)", o.path);
+  }
   return d;
-}
-
-bool atomic_file::open() {
-  if (path_ == "-") {
-    file_ = stdout;
-    return true;
-  }
-  target_ = path_;
-  struct stat st {};
-  if (::lstat(path_.c_str(), &st) == 0 && S_ISLNK(st.st_mode)) {
-    // Replace what the link points at, not the link.
-    if (char* real = ::realpath(path_.c_str(), nullptr)) target_ = real, std::free(real);
-  }
-  if (::stat(target_.c_str(), &st) == 0 && !S_ISREG(st.st_mode)) {
-    if (S_ISDIR(st.st_mode)) {
-      spdlog::error("cannot write '{}': it is a directory", path_);
-      return false;
-    }
-    file_ = std::fopen(target_.c_str(), "w");  // a device or FIFO: no temporary, no rename
-    if (!file_) {
-      spdlog::error("cannot write '{}': {}", path_, std::strerror(errno));
-      return false;
-    }
-    direct_ = true;
-    return true;
-  }
-  const auto slash = target_.rfind('/');
-  const std::string dir = slash == std::string::npos ? "." : slash == 0 ? "/" : target_.substr(0, slash);
-  const std::string base = slash == std::string::npos ? target_ : target_.substr(slash + 1);
-  // The temporary's name stays within NAME_MAX however long the target's is.
-  std::string templ = fmt::format("{}/.{}.tmp.XXXXXX", dir, base.substr(0, 200));
-  const int fd = ::mkstemp(templ.data());
-  if (fd < 0) {
-    spdlog::error("cannot write '{}': {}", path_, std::strerror(errno));
-    return false;
-  }
-  // mkstemp creates 0600; give the file the permissions a plain create would.
-  const mode_t mask = ::umask(0);
-  ::umask(mask);
-  ::fchmod(fd, 0666 & ~mask);
-  file_ = ::fdopen(fd, "w");
-  if (!file_) {
-    ::close(fd);
-    ::unlink(templ.c_str());
-    spdlog::error("cannot write '{}': {}", path_, std::strerror(errno));
-    return false;
-  }
-  temp_ = templ;
-  return true;
-}
-
-bool atomic_file::commit() {
-  if (!file_) return false;
-  if (file_ == stdout) {
-    file_ = nullptr;
-    if (std::fflush(stdout) == 0 && !std::ferror(stdout)) return true;
-    spdlog::error("cannot write '-' (standard output): {}", std::strerror(errno));
-    return false;
-  }
-  const bool flushed = std::fflush(file_) == 0 && !std::ferror(file_);
-  const int err = errno;
-  const bool closed = std::fclose(file_) == 0;
-  file_ = nullptr;
-  if (direct_) {
-    direct_ = false;
-    if (flushed && closed) return true;
-    spdlog::error("cannot write '{}': {}", path_, std::strerror(flushed ? errno : err));
-    return false;
-  }
-  if (!flushed || !closed || ::rename(temp_.c_str(), target_.c_str()) != 0) {
-    spdlog::error("cannot write '{}': {}", path_, std::strerror(flushed && closed ? errno : err));
-    ::unlink(temp_.c_str());
-    temp_.clear();
-    return false;
-  }
-  temp_.clear();
-  return true;
-}
-
-void atomic_file::discard() {
-  if (file_ && file_ != stdout) std::fclose(file_);
-  file_ = nullptr;
-  direct_ = false;
-  if (!temp_.empty()) ::unlink(temp_.c_str());
-  temp_.clear();
-}
-
-bool write_output(const std::string& path, std::string_view text) {
-  atomic_file f(path);
-  if (!f.open()) return false;
-  if (std::fwrite(text.data(), 1, text.size(), f.get()) != text.size()) {
-    spdlog::error("cannot write '{}': {}", path, std::strerror(errno));
-    return false;
-  }
-  return f.commit();
 }
 
 std::string replay_command(const design_options& o, const std::string& corner, const std::string& horizon,

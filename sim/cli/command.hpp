@@ -8,9 +8,11 @@
 #include <string_view>
 
 #include "parser/load.hpp"
+#include "sim/cli/outputs.hpp"
 
 namespace CLI {
 class App;
+class Validator;
 }
 
 namespace settle::cli {
@@ -46,6 +48,9 @@ struct design_options {
 };
 void add_design_options(CLI::App& cmd, design_options& o);
 
+/// A CLI11 check that accepts only one of `words`, with a message in words.
+CLI::Validator one_of(std::vector<std::string> words);
+
 /// The `settle run` command line that replays `corner` of this design (words
 /// the shell would change are single-quoted); empty `horizon` and zero
 /// `max_events` are left out.
@@ -57,39 +62,15 @@ std::string replay_command(const design_options& o, const std::string& corner, c
 /// how many more were not shown ("settle: N more warnings not shown").
 void print_diagnostics(const diagnostics& diags, std::size_t max_errors = 50, std::size_t max_warnings = 20);
 
+/// The files a design's options read, for check_paths: the design file and
+/// the --stim file when there is one.
+std::vector<path_use> design_inputs(const design_options& o);
+
 /// Loads the design; prints diagnostics (file:line:col, caret) on stderr.
+/// A design with no gates and no inputs is an error unless `empty_ok`, when
+/// it is a warning (`settle check`).
 /// Returns nullopt when there was an error (the command then exits 2).
-std::optional<design> load(const design_options& o);
-
-/// Writes `text` to `path` atomically: a temporary file in the target's folder,
-/// renamed into place only on success. "-" writes to stdout. On failure prints
-/// a message naming the path and returns false (the command then exits 2).
-bool write_output(const std::string& path, std::string_view text);
-
-/// A file written under a temporary name in its target's folder and renamed
-/// into place by commit(); discarded (unlinked) otherwise. "-" is stdout. A
-/// target that is a device or FIFO is written in place (renaming would
-/// replace the device); a symbolic link is followed, so the link stays.
-class atomic_file {
- public:
-  explicit atomic_file(std::string path) : path_(std::move(path)) {}
-  ~atomic_file() { discard(); }
-  atomic_file(const atomic_file&) = delete;
-  atomic_file& operator=(const atomic_file&) = delete;
-  /// Creates the temporary file; on failure prints a message naming the path.
-  bool open();
-  std::FILE* get() const { return file_; }
-  const std::string& path() const { return path_; }
-  /// Flushes, closes and renames into place; prints a message on failure.
-  bool commit();
-  /// Closes and removes the temporary file (nothing appears at the path).
-  void discard();
-
- private:
-  std::string path_, temp_, target_;
-  std::FILE* file_ = nullptr;
-  bool direct_ = false;  ///< a device or FIFO (/dev/null, /dev/full): written in place, never replaced
-};
+std::optional<design> load(const design_options& o, bool empty_ok = false);
 
 /// True when colour may be used on this stream (a terminal, NO_COLOR unset).
 bool use_colour(int fd);

@@ -1,5 +1,8 @@
 // `settle explore`: every interleaving under unbounded gate delays, and ternary simulation.
 #include <chrono>
+#include <cstdio>
+#include <fstream>
+#include <optional>
 #include <memory>
 
 #include <CLI/CLI.hpp>
@@ -98,7 +101,7 @@ std::string result_json(const design& d, const explore_result& r, double wall) {
   }
   j["wall_s"] = wall;  // the one timing field: reports compare equal apart from wall_s (issue 7)
   j["result"] = r.pass() ? "pass" : "findings";
-  return j.dump(2) + "\n";
+  return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
 }
 
 std::string yes_no(answer a, const char* yes) { return a == answer::unknown ? "?" : a == answer::yes ? yes : "no"; }
@@ -149,6 +152,41 @@ std::string table(const design& d, const explore_result& r, double wall) {
   return t;
 }
 
+// The text of line `line` (1-based) of `path`, or nullopt when it cannot be read.
+std::optional<std::string> line_of(const std::string& path, std::uint32_t line) {
+  std::ifstream in(path, std::ios::binary);
+  std::string text;
+  for (std::uint32_t i = 0; in && i < line; ++i)
+    if (!std::getline(in, text)) return std::nullopt;
+  if (!text.empty() && text.back() == '\r') text.pop_back();
+  return text;
+}
+
+// The engine names a stimulus position as "DESIGN:LINE:COL: why". The
+// stimulus came from the --stim file when one was given: print it as a
+// diagnostic of that file, with its source line and a caret.
+void report_explore_error(const design_options& o, const std::string& design_path,
+                          const std::string& err) {
+  const std::string prefix = design_path + ":";
+  unsigned line = 0, col = 0;
+  int used = 0;
+  if (err.starts_with(prefix) &&
+      std::sscanf(err.c_str() + prefix.size(), "%u:%u: %n", &line, &col, &used) == 2 && used > 0 &&
+      line > 0) {
+    diagnostic dg;
+    dg.file = o.stim.empty() ? design_path : o.stim;
+    dg.line = line;
+    dg.col = col;
+    dg.message = err.substr(prefix.size() + static_cast<std::size_t>(used));
+    if (auto text = line_of(dg.file, line)) set_source_line(dg, *text);
+    diagnostics diags;
+    diags.add(std::move(dg));
+    print_diagnostics(diags);
+    return;
+  }
+  spdlog::error("{}", err);
+}
+
 exit_status run_explore(const explore_cli_options& o) {
   explore_options eo;
   eo.model = o.model == "single" ? explore_model::single : o.model == "ternary" ? explore_model::ternary
@@ -160,13 +198,24 @@ exit_status run_explore(const explore_cli_options& o) {
     spdlog::error("--dot needs a state graph: use --model gmw or single");
     return exit_status::error;
   }
+  auto uses = design_inputs(o.design);
+  for (const auto& [opt, path] :
+       {std::pair{"--json", &o.json}, {"--dot", &o.dot}, {"--html", &o.html}})
+    uses.push_back({path_use::kind::output, opt, *path, ""});
+  if (!check_paths(uses)) return exit_status::error;
   auto d = load(o.design);
   if (!d) return exit_status::error;
+  if (!d->stim.rules.empty()) {
+    // Exploration applies each step's inputs and explores what follows; an
+    // environment that answers the circuit is not part of its model.
+    spdlog::error("explore does not take reaction rules ('when'); use run or sweep for a closed-loop stimulus");
+    return exit_status::error;
+  }
   const auto t0 = std::chrono::steady_clock::now();
   std::string err;
   auto r = explore_design(*d, eo, &err);
   if (!r) {
-    spdlog::error("{}", err);
+    report_explore_error(o.design, d->path, err);
     return exit_status::error;
   }
   const double wall = seconds_since(t0);
@@ -175,10 +224,14 @@ exit_status run_explore(const explore_cli_options& o) {
                   kept_states(*r), dot_state_limit);
     return exit_status::error;
   }
-  if (!o.json.empty() && !write_output(o.json, result_json(*d, *r, wall))) return exit_status::error;
-  if (!o.dot.empty() && !write_output(o.dot, state_graph_dot(d->nets, *r, d->path))) return exit_status::error;
-  if (!o.html.empty() && !write_output(o.html, html_report_explore(*d, *r, {"explore", result_json(*d, *r, wall), ""})))
+  output_set outs;  // all or nothing
+  if (!o.json.empty() && !outs.put(o.json, result_json(*d, *r, wall))) return exit_status::error;
+  if (!o.dot.empty() && !outs.put(o.dot, state_graph_dot(d->nets, *r, d->path)))
     return exit_status::error;
+  if (!o.html.empty() &&
+      !outs.put(o.html, html_report_explore(*d, *r, {"explore", result_json(*d, *r, wall), ""})))
+    return exit_status::error;
+  if (!outs.commit()) return exit_status::error;
   if (o.json != "-" && o.dot != "-" && o.html != "-") std::fputs(table(*d, *r, wall).c_str(), stdout);
   return r->pass() ? exit_status::ok : exit_status::findings;
 }
@@ -187,18 +240,25 @@ void add_explore(CLI::App& app, exit_status& status) {
   auto o = std::make_shared<explore_cli_options>();
   auto* cmd = app.add_subcommand("explore", "every interleaving under unbounded gate delays, and ternary simulation");
   add_design_options(*cmd, o->design);
-  cmd->add_option("--model", o->model, "gmw (any subset of excited gates fires, default), single, or ternary")
-      ->check(CLI::IsMember({"gmw", "single", "ternary"}));
-  cmd->add_option("--max-states", o->max_states, "state budget per step (default 2,000,000)")
-      ->check(CLI::PositiveNumber);
-  cmd->add_option("--max-memory", o->max_memory_mib,
-                  fmt::format("memory the stored state graphs may hold, in MiB; past it the step stops incomplete "
-                              "(default {}, or half the available memory when less)",
-                              default_max_memory_mib))
-      ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
+  cmd->add_option("--model", o->model,
+                  "gmw (any subset of excited gates fires, default), single, or ternary")
+      ->check(one_of({"gmw", "single", "ternary"}));
+  check_whole_number(
+      cmd->add_option("--max-states", o->max_states, "state budget per step (default 2,000,000)"),
+      1, UINT64_MAX, "the state budget");
+  auto* mem = cmd->add_option(
+      "--max-memory", o->max_memory_mib,
+      fmt::format(
+          "memory the stored state graphs may hold, in MiB; past it the step stops incomplete "
+          "(default {}, or half the available memory when less)",
+          default_max_memory_mib));
+  check_whole_number(mem, 1, std::uint64_t{1} << 40, "the memory in MiB");
   add_json_option(*cmd, o->json);
-  cmd->add_option("--dot", o->dot, "write the explored state graphs as Graphviz DOT to PATH");
-  cmd->add_option("--html", o->html, "write a self-contained HTML report (stable states, small state graphs) to PATH");
+  check_output_path(
+      cmd->add_option("--dot", o->dot, "write the explored state graphs as Graphviz DOT to PATH"));
+  check_output_path(cmd->add_option(
+      "--html", o->html,
+      "write a self-contained HTML report (stable states, small state graphs) to PATH"));
   cmd->callback([o, &status] { status = run_explore(*o); });
 }
 

@@ -58,7 +58,10 @@ json failure_json(const design& d, const margin_cli_options& o, const margin_fai
   json j;
   j["spread_pct"] = 100.0 * f.spread;
   j["step"] = f.step;
-  if (f.expect_index && f.step <= d.stim.steps.size()) {
+  if (f.property && *f.property < d.stim.properties.size()) {
+    j["kind"] = "property";
+    j["property"] = d.stim.properties[*f.property].text;
+  } else if (f.expect_index && f.step <= d.stim.steps.size()) {
     j["kind"] = "expectation";
     j["expectation"] = expectation_words(d.nets, d.stim.steps[f.step - 1].expects[*f.expect_index]);
   } else {
@@ -138,6 +141,16 @@ std::string result_json(const design& d, const margin_cli_options& o, const marg
     if (s.failure) st["failure"] = failure_json(d, o, *s.failure);
     j["steps"].push_back(std::move(st));
   }
+  j["properties"] = json::array();
+  for (const auto& p : r.properties) {
+    json e;
+    e["text"] = d.stim.properties[p.index].text;
+    e["margin_pct"] = 100.0 * p.margin;
+    e["at_least"] = p.at_ceiling;
+    e["fails_at_zero"] = p.fails_at_zero;
+    if (p.failure) e["failure"] = failure_json(d, o, *p.failure);
+    j["properties"].push_back(std::move(e));
+  }
   j["settle_within"] = json::array();
   for (const auto& w : r.within) {
     json e = {{"step", w.step}, {"budget_fs", w.budget}, {"worst_fs", w.worst}, {"worst_corner", w.worst_corner},
@@ -147,12 +160,14 @@ std::string result_json(const design& d, const margin_cli_options& o, const marg
   }
   if (!base.is_null()) j["baseline"] = base;
   j["result"] = pass ? "pass" : "findings";
-  return j.dump(2) + "\n";
+  return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
 }
 
 std::string failure_text(const design& d, const margin_cli_options& o, const margin_failure& f, const std::string& in) {
   std::string what;
-  if (f.expect_index && f.step <= d.stim.steps.size())
+  if (f.property && *f.property < d.stim.properties.size())
+    what = fmt::format("{}: violated in {} of {} corners", d.stim.properties[*f.property].text, f.failing, f.corners);
+  else if (f.expect_index && f.step <= d.stim.steps.size())
     what = fmt::format("{}: fails in {} of {} corners", expectation_words(d.nets, d.stim.steps[f.step - 1].expects[*f.expect_index]),
                        f.failing, f.corners);
   else
@@ -191,10 +206,18 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
   for (const auto& s : r.steps)
     out += fmt::format("  {:>3}  {:<10}  {}\n", s.index, pct_words(s.margin, s.at_ceiling),
                        s.label.empty() ? "(no input change)" : s.label);
+  for (const auto& p : r.properties)
+    out += fmt::format("  {:>3}  {:<10}  {}\n", "", pct_words(p.margin, p.at_ceiling), d.stim.properties[p.index].text);
   for (const auto& s : r.steps)
-    if (s.failure && r.failure && s.index != r.failure->step) {
+    if (s.failure && r.failure && (r.failure->property || s.index != r.failure->step)) {
       out += fmt::format("\nstep {} fails at {}:\n", s.index, spread_percent(s.failure->spread));
       out += failure_text(d, o, *s.failure, "  ");
+    }
+  for (const auto& p : r.properties)
+    if (p.failure && r.failure && r.failure->property != p.failure->property) {
+      out += fmt::format("\n{} is violated at {}:\n", d.stim.properties[p.index].text,
+                         spread_percent(p.failure->spread));
+      out += failure_text(d, o, *p.failure, "  ");
     }
   if (!r.within.empty()) {
     out += "\nsettle-time margins at the written spread:\n";
@@ -297,6 +320,14 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
       return exit_status::error;
     }
   }
+  auto uses = design_inputs(o.design);
+  // Read only, the baseline is an input; updated, it is one more output.
+  uses.push_back({o.update_baseline ? path_use::kind::output : path_use::kind::input,
+                  o.update_baseline ? "--baseline" : "baseline file", o.baseline, ""});
+  for (const auto& [opt, path] :
+       {std::pair{"--json", &o.json}, {"--junit", &o.junit}, {"--html", &o.html}})
+    uses.push_back({path_use::kind::output, opt, *path, ""});
+  if (!check_paths(uses)) return exit_status::error;
   std::string err;
   margin_options mo;
   mo.spec = o.corners;
@@ -327,9 +358,9 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   if (!d) return exit_status::error;
   {
     // A probe in flight and the sweep kept at the written spread hold per-corner results.
-    auto plan = plan_sweep(o.corners, o.seed, d->nets.gate_count(), &err);
+    auto plan = plan_sweep(o.corners, o.seed, delay_variables(*d), &err);
     const std::size_t steps = d->stim.steps.empty() ? 1 : d->stim.steps.size();
-    if (plan && !fits_memory(*plan, steps, 2, o.max_memory_mib)) return exit_status::error;
+    if (plan && !fits_memory(*plan, steps, 2, o.max_memory_mib, d->stim.gauges.size())) return exit_status::error;
   }
   if (!o.quiet && ::isatty(2) == 1)
     mo.progress = [](double w, std::uint64_t corners, bool pass) {
@@ -344,6 +375,11 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   if (mo.progress) std::fputs("\r\033[K", stderr);
   if (!r) {
     spdlog::error("{}", err);
+    return exit_status::error;
+  }
+  if (r->written.error) {
+    // The stimulus as written cannot go on in some corner: an input error.
+    std::fputs(format_diagnostic(*r->written.error).c_str(), stderr);
     return exit_status::error;
   }
   const bool stopped = r->stopped != sweep_stop::none;
@@ -403,7 +439,10 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   const json base = o.baseline.empty()
                         ? json()
                         : baseline_json(o.baseline, bo, cmp ? &*cmp : nullptr, old, o.ceiling);
-  if (!o.json.empty() && !write_output(o.json, result_json(*d, o, *r, base, pass))) return exit_status::error;
+  // The reports are written to temporary files and put in place together, all or nothing. The
+  // baseline, updated under its own lock just above, is already in place by then.
+  output_set outs;
+  if (!o.json.empty() && !outs.put(o.json, result_json(*d, o, *r, base, pass))) return exit_status::error;
   if (!o.junit.empty()) {
     std::vector<std::pair<std::string, std::string>> shrank;
     if (regressed)
@@ -413,11 +452,13 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
                                                   c.what, c.before_pct, c.after_pct, c.before_pct - c.after_pct,
                                                   o.tolerance));
     const auto suite = junit_of_margin(*d, *r, [&](const std::string& c) { return replay(o, c); }, shrank);
-    if (!write_output(o.junit, junit_xml({suite}))) return exit_status::error;
+    if (!outs.put(o.junit, junit_xml({suite}))) return exit_status::error;
   }
   if (!o.html.empty() &&
-      !write_output(o.html, html_report_margin(*d, *r, mo.run, {"margin", result_json(*d, o, *r, base, pass), ""})))
+      !outs.put(o.html, html_report_margin(*d, *r, mo.run,
+                                           {"margin", result_json(*d, o, *r, base, pass), ""})))
     return exit_status::error;
+  if (!outs.commit()) return exit_status::error;
   if (!o.quiet && o.json != "-" && o.junit != "-" && o.html != "-")
     std::fputs(
         summary(*d, o, *r, cmp && !o.update_baseline ? &*cmp : nullptr, bo, pass, use_colour(1))
@@ -434,7 +475,9 @@ void add_margin(CLI::App& app, exit_status& status) {
   cmd->add_option("--corners", o->corners,
                   "corners run at every probed spread: extremes, exhaustive, random:N, gauss:N joined by '+' "
                   "(default extremes+random:200)");
-  cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)");
+  check_whole_number(
+      cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)"), 0,
+      UINT64_MAX, "the seed");
   cmd->add_option("--threads", o->threads, "worker threads, 1 to 4096 (default: the hardware's)")
       ->check(CLI::Validator(
           [](std::string& v) -> std::string {
@@ -458,13 +501,20 @@ void add_margin(CLI::App& app, exit_status& status) {
   add_json_option(*cmd, o->json);
   cmd->add_option("--baseline", o->baseline, "compare the margins with this baseline file (exit 1 when one shrank)");
   cmd->add_flag("--update-baseline", o->update_baseline, "write this run's margins into the --baseline file instead");
-  cmd->add_option("--tolerance", o->tolerance, "percentage points a margin may fall before it counts (default 2)");
-  cmd->add_option("--timeout", o->timeout_s,
-                  "wall-clock budget in seconds for the whole search; when it runs out the margins found so far are "
-                  "reported and the command exits 1");
+  check_number_at_least(
+      cmd->add_option("--tolerance", o->tolerance,
+                      "percentage points a margin may fall before it counts (default 2)"),
+      0, "the tolerance in percentage points");
+  check_number_at_least(
+      cmd->add_option("--timeout", o->timeout_s,
+                      "wall-clock budget in seconds for the whole search; when it runs out the "
+                      "margins found so far are reported and the command exits 1"),
+      0, "the timeout in seconds");
   add_junit_option(*cmd, o->junit);
   add_max_memory_option(*cmd, o->max_memory_mib);
-  cmd->add_option("--html", o->html, "write a self-contained HTML report (margins, culprits, witness waveforms) to PATH");
+  check_output_path(cmd->add_option(
+      "--html", o->html,
+      "write a self-contained HTML report (margins, culprits, witness waveforms) to PATH"));
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest written gate delay)");
   cmd->add_flag("--no-culprits", o->no_culprits, "skip the search for the gates that decide a race");
   add_quiet_flag(*cmd, o->quiet);

@@ -1,11 +1,17 @@
 // Small helpers the report-writing commands (run, sweep, explore, margin) share.
 #include "sim/cli/report_common.hpp"
 
+#include <cerrno>
+#include <charconv>
+#include <cmath>
+#include <cstdlib>
+
 #include <CLI/CLI.hpp>
 #include <fmt/format.h>
 #include <spdlog/spdlog.h>
 
 #include "sim/sweep.hpp"
+#include "sim/time.hpp"
 #include "sim/time_parse.hpp"
 
 namespace settle::cli {
@@ -20,6 +26,7 @@ const char* expect_kind_word(expectation::kind k) {
     case expectation::kind::within: return "within";
     case expectation::kind::no_glitch: return "no_glitch";
     case expectation::kind::deterministic: return "deterministic";
+    case expectation::kind::gauge: return "gauge";
   }
   return "?";
 }
@@ -36,12 +43,61 @@ bool parse_horizon_option(const std::string& text, time_fs& out) {
   if (text.empty()) return true;
   std::string err;
   auto h = parse_time(text, &err);
-  if (!h) {
+  if (!h || !horizon_ok(*h, err)) {
     spdlog::error("--horizon: {}", err);
+    return false;
+  }
+  if (*h == 0) {
+    spdlog::error(
+        "--horizon {}: the time limit of a step must be greater than 0 (leave --horizon out for "
+        "the "
+        "default of 10,000 x the largest gate delay)",
+        text);
     return false;
   }
   out = *h;
   return true;
+}
+
+void check_output_path(CLI::Option* opt) {
+  opt->check(CLI::Validator(
+      [](std::string& v) -> std::string {
+        return v.empty() ? "the path is empty; give a file name, or '-' for standard output" : "";
+      },
+      "PATH"));
+}
+
+void check_whole_number(CLI::Option* opt, std::uint64_t lo, std::uint64_t hi, const char* what,
+                        const char* hint) {
+  opt->check(CLI::Validator(
+      [lo, hi, what, hint](std::string& v) -> std::string {
+        const auto range = fmt::format("{} must be a whole number from {} to {}{}{}", what, lo, hi,
+                                       hi == UINT64_MAX ? " (2^64-1)" : "", hint);
+        std::uint64_t n = 0;
+        const bool digits = !v.empty() && v.find_first_not_of("0123456789") == std::string::npos;
+        if (!digits) return fmt::format("'{}' is not accepted: {}", v, range);
+        auto [p, ec] = std::from_chars(v.data(), v.data() + v.size(), n);
+        if (ec == std::errc::result_out_of_range)
+          return fmt::format("{} is too large: {}", v, range);
+        if (ec != std::errc{} || p != v.data() + v.size() || n < lo || n > hi)
+          return fmt::format("{} is out of range: {}", v, range);
+        return "";
+      },
+      fmt::format("{}..{}", lo, hi)));
+}
+
+void check_number_at_least(CLI::Option* opt, double lo, const char* what) {
+  opt->check(CLI::Validator(
+      [lo, what](std::string& v) -> std::string {
+        char* end = nullptr;
+        errno = 0;
+        const double x = std::strtod(v.c_str(), &end);
+        if (v.empty() || *end || !std::isfinite(x) || errno == ERANGE || !(x >= lo))
+          return fmt::format("'{}' is not accepted: {} must be a finite number of at least {:g}", v,
+                             what, lo);
+        return "";
+      },
+      fmt::format(">= {:g}", lo)));
 }
 
 double seconds_since(std::chrono::steady_clock::time_point t0) {
@@ -57,11 +113,12 @@ nlohmann::ordered_json report_head(const std::string& design_path) {
 }
 
 void add_json_option(CLI::App& cmd, std::string& path) {
-  cmd.add_option("--json", path, "write the results as JSON to PATH ('-' for stdout)");
+  check_output_path(
+      cmd.add_option("--json", path, "write the results as JSON to PATH ('-' for stdout)"));
 }
 
 void add_junit_option(CLI::App& cmd, std::string& path) {
-  cmd.add_option("--junit", path, "write a JUnit-style XML report to PATH");
+  check_output_path(cmd.add_option("--junit", path, "write a JUnit-style XML report to PATH"));
 }
 
 void add_quiet_flag(CLI::App& cmd, bool& quiet) {
@@ -69,15 +126,18 @@ void add_quiet_flag(CLI::App& cmd, bool& quiet) {
 }
 
 void add_max_memory_option(CLI::App& cmd, std::uint64_t& mib) {
-  cmd.add_option("--max-memory", mib,
-                 fmt::format("memory for the per-corner results, in MiB (about 20 bytes per corner and step); a "
-                             "larger sweep is refused before it starts (default {})",
-                             sweep_default_max_memory_mib))
-      ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
+  auto* opt = cmd.add_option(
+      "--max-memory", mib,
+      fmt::format(
+          "memory for the per-corner results, in MiB (about 20 bytes per corner and step, 8 per "
+          "corner and gauge); a larger sweep is refused before it starts (default {})",
+          sweep_default_max_memory_mib));
+  check_whole_number(opt, 1, std::uint64_t{1} << 40, "the memory in MiB");
 }
 
-bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib) {
-  const std::uint64_t one = sweep_result_bytes(plan, steps);
+bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib,
+                 std::size_t gauges) {
+  const std::uint64_t one = sweep_result_bytes(plan, steps, gauges);
   const std::uint64_t need = one > UINT64_MAX / copies ? UINT64_MAX : one * copies;
   if (need <= (mib << 20)) return true;
   spdlog::error("--corners '{}': {} corners x {} steps need about {:.0f} MiB for their results, more than "

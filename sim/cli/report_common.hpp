@@ -12,6 +12,7 @@
 
 namespace CLI {
 class App;
+class Option;
 }
 namespace settle {
 struct sweep_plan;
@@ -31,8 +32,19 @@ const char* expect_kind_word(expectation::kind k);
 std::string file_stem(const std::string& path);
 
 /// Parses the --horizon option into `out` when `text` is not empty; on a bad
-/// time prints "--horizon: why" on stderr and returns false (exit 2).
+/// time, or a horizon of 0, prints "--horizon: why" on stderr and returns
+/// false (exit 2).
 bool parse_horizon_option(const std::string& text, time_fs& out);
+
+/// Refuses an empty value of an output path option (`--json ''`), in words.
+void check_output_path(CLI::Option* opt);
+/// Accepts only a whole number from `lo` to `hi` written in decimal digits
+/// (no sign, nothing above 2^64-1, never clamped); `what` names the quantity
+/// in the message ("the seed", "the thread count"), `hint` is added after it.
+void check_whole_number(CLI::Option* opt, std::uint64_t lo, std::uint64_t hi, const char* what,
+                        const char* hint = "");
+/// Accepts only a finite number of at least `lo` (a decimal or exponent form).
+void check_number_at_least(CLI::Option* opt, double lo, const char* what);
 
 /// Seconds of wall-clock time since `t0`.
 double seconds_since(std::chrono::steady_clock::time_point t0);
@@ -48,9 +60,10 @@ void add_junit_option(CLI::App& cmd, std::string& path);
 void add_quiet_flag(CLI::App& cmd, bool& quiet);
 /// --max-memory MIB on sweep and margin: the per-corner results a sweep may hold.
 void add_max_memory_option(CLI::App& cmd, std::uint64_t& mib);
-/// True when `copies` sweeps of `plan` over `steps` steps fit in `mib` MiB of
-/// per-corner results (sweep_result_bytes); otherwise prints why on stderr
-/// (the caller exits 2 before any corner runs).
-bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib);
+/// True when `copies` sweeps of `plan` over `steps` steps and `gauges` gauges
+/// fit in `mib` MiB of per-corner results (sweep_result_bytes); otherwise
+/// prints why on stderr (the caller exits 2 before any corner runs).
+bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib,
+                 std::size_t gauges = 0);
 
 }  // namespace settle::cli

@@ -9,8 +9,10 @@
 #include <spdlog/spdlog.h>
 
 #include "sim/cli/command.hpp"
+#include "sim/cli/interrupt.hpp"
 #include "sim/cli/report_common.hpp"
 #include "sim/kernel.hpp"
+#include "sim/time.hpp"
 #include "sim/time_parse.hpp"
 #include "waves/html.hpp"
 #include "waves/junit.hpp"
@@ -28,10 +30,17 @@ struct run_cli_options {
   bool verbose = false, quiet = false;
 };
 
-std::uint32_t glitches(const step_result& s, std::size_t i) {
+// Transitions beyond the one net change the step needed (0 or 1). An input's
+// changes are the environment's own (stimulus and reaction rules), each as
+// asked for: they are never glitches unless they pass through x.
+std::uint32_t glitches(const design& d, const run_result& r, const step_result& s, std::size_t i) {
+  const net_id net = r.reported[i];
+  if (d.nets.driver[net] == no_id && s.start_values[i] != logic::x && s.values[i] != logic::x) return 0;
   const std::uint32_t needed = s.start_values[i] != s.values[i] ? 1 : 0;
   return s.transitions[i] > needed ? s.transitions[i] - needed : 0;
 }
+
+std::string range_text(time_fs lo, time_fs hi) { return format_time(lo) + ".." + format_time(hi); }
 
 nlohmann::ordered_json expect_json(const netlist& n, const step_result& s, const expect_result& x) {
   nlohmann::ordered_json e;
@@ -56,6 +65,10 @@ nlohmann::ordered_json expect_json(const netlist& n, const step_result& s, const
       if (spec.has_range) e["period_min_fs"] = spec.lo, e["period_max_fs"] = spec.hi;
       if (s.status == step_status::oscillating) e["got_fs"] = s.period;
       break;
+    case expectation::kind::gauge:
+      e["gauge"] = spec.ref;
+      e["want"] = range_text(spec.lo, spec.hi);
+      break;
     default:
       e["kind"] = expect_kind_word(spec.what);
   }
@@ -64,7 +77,8 @@ nlohmann::ordered_json expect_json(const netlist& n, const step_result& s, const
   return e;
 }
 
-std::string result_json(const design& d, const run_result& r, const std::string& corner_name, double wall) {
+std::string result_json(const design& d, const run_result& r, const std::string& corner_name,
+                        double wall, bool stopped) {
   const netlist& n = d.nets;
   nlohmann::ordered_json j = report_head(d.path);
   j["corner"] = r.corner.empty() ? corner_name : r.corner;
@@ -79,24 +93,68 @@ std::string result_json(const design& d, const run_result& r, const std::string&
     st["end_fs"] = s.end;
     st["status"] = status_name(s.status);
     st["settle_fs"] = s.settle;
+    if (s.end_of_time) st["detail"] = end_of_time_words;
     if (s.status == step_status::oscillating) {
       st["period_fs"] = s.period;
       st["toggling"] = nlohmann::ordered_json::array();
       for (net_id t : s.toggling) st["toggling"].push_back(n.net_name[t]);
     }
+    if (s.status == step_status::deadlock) {
+      st["owed"] = nlohmann::ordered_json::array();
+      for (const auto& o : s.owed)
+        st["owed"].push_back({{"rule", d.stim.rules[o.rule].text},
+                              {"fired", o.fired},
+                              {"times", o.times},
+                              {"condition", logic_text(o.condition)}});
+    }
     st["values"] = nlohmann::ordered_json::object();
     st["transitions"] = nlohmann::ordered_json::object();
+    st["glitches"] = nlohmann::ordered_json::object();
     for (std::size_t i = 0; i < r.reported.size(); ++i) {
       const auto& name = n.net_name[r.reported[i]];
       st["values"][name] = logic_text(s.values[i]);
       st["transitions"][name] = s.transitions[i];
+      st["glitches"][name] = glitches(d, r, s, i);
     }
     st["expect"] = nlohmann::ordered_json::array();
     for (const auto& x : s.expects) st["expect"].push_back(expect_json(n, s, x));
     j["steps"].push_back(std::move(st));
   }
-  j["result"] = r.pass() ? "pass" : "findings";
-  return j.dump(2) + "\n";
+  if (!d.stim.properties.empty()) {
+    j["properties"] = nlohmann::ordered_json::array();
+    for (const auto& p : r.properties) {
+      nlohmann::ordered_json e;
+      e["text"] = d.stim.properties[p.property].text;
+      e["holds"] = p.holds;
+      if (!p.holds) {
+        e["first_violation_fs"] = p.first_violation;
+        e["step"] = p.step;
+        e["values"] = nlohmann::ordered_json::object();
+        for (const auto& [net, v] : p.values) e["values"][n.net_name[net]] = logic_text(v);
+      }
+      j["properties"].push_back(std::move(e));
+    }
+  }
+  if (!d.stim.gauges.empty()) {
+    j["gauges"] = nlohmann::ordered_json::array();
+    for (const auto& g : r.gauges) {
+      const auto& spec = d.stim.gauges[g.gauge];
+      nlohmann::ordered_json e;
+      e["name"] = spec.name;
+      e["kind"] = gauge_kind_name(spec.what);
+      e["nets"] = nlohmann::ordered_json::array();
+      for (net_id x : spec.nets) e["nets"].push_back(n.net_name[x]);
+      e["count"] = g.count;
+      e["min_fs"] = g.min;
+      e["mean_fs"] = g.mean;
+      e["max_fs"] = g.max;
+      j["gauges"].push_back(std::move(e));
+    }
+  }
+  j["result"] = r.pass() && !stopped ? "pass" : "findings";
+  j["interrupted"] = stopped;  // the steps above are those reached before the signal
+  if (stopped) j["stop_reason"] = "signal";
+  return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
 }
 
 std::string expect_text(const netlist& n, const step_result& s, const expect_result& x) {
@@ -105,6 +163,12 @@ std::string expect_text(const netlist& n, const step_result& s, const expect_res
   if (e.what == expectation::kind::value) return fmt::format("{}: got {}", words, to_char(x.got));
   if (e.what == expectation::kind::within) return fmt::format("{}: took {}", words, format_time(s.settle));
   return words;
+}
+
+std::string gauge_nets(const netlist& n, const gauge& g) {
+  if (g.what != gauge::kind::latency) return n.net_name[g.nets[0]];
+  return fmt::format("{} {} to {} {}", n.net_name[g.nets[0]], g.from_rises ? "rises" : "falls", n.net_name[g.nets[1]],
+                     g.to_rises ? "rises" : "falls");
 }
 
 std::string table(const design& d, const run_result& r, const std::string& corner_name, bool colour, bool verbose,
@@ -129,15 +193,22 @@ std::string table(const design& d, const run_result& r, const std::string& corne
       for (std::size_t i = 0; i < s.toggling.size() && i < 8; ++i) status += " " + n.net_name[s.toggling[i]];
       if (s.toggling.size() > 8) status += fmt::format(" ... ({} nets)", s.toggling.size());
     }
-    if (s.status == step_status::timeout || s.status == step_status::event_limit)
+    if (s.end_of_time) status = end_of_time_words;
+    else if (s.status == step_status::timeout || s.status == step_status::event_limit)
       status += fmt::format(" at {}", format_time(s.end));
+    if (s.status == step_status::deadlock)
+      status += fmt::format(" after {}, {} rule{} owed", format_time(s.settle), s.owed.size(),
+                            s.owed.size() == 1 ? "" : "s");
     out += fmt::format("  status  {}   ({} .. {})\n", paint(status, good_status), format_time(s.start),
                        format_time(s.end));
+    for (const auto& o : s.owed)
+      out += fmt::format("  owed    {}: fired {} of {}, condition {}\n", d.stim.rules[o.rule].text, o.fired,
+                         o.times, to_char(o.condition));
     if (!r.reported.empty()) {
       out += fmt::format("  {:<{}}  start  end  transitions  glitches\n", "net", width);
       for (std::size_t i = 0; i < r.reported.size(); ++i)
         out += fmt::format("  {:<{}}  {:<5}  {:<3}  {:<11}  {}\n", n.net_name[r.reported[i]], width,
-                           to_char(s.start_values[i]), to_char(s.values[i]), s.transitions[i], glitches(s, i));
+                           to_char(s.start_values[i]), to_char(s.values[i]), s.transitions[i], glitches(d, r, s, i));
     }
     for (const auto& x : s.expects) {
       std::string line = expect_text(n, s, x);
@@ -145,11 +216,39 @@ std::string table(const design& d, const run_result& r, const std::string& corne
       out += fmt::format("  {}  {}\n", paint(x.pass ? "pass" : "FAIL", x.pass), line);
     }
   }
+  if (!r.properties.empty()) out += "\nproperties\n";
+  for (const auto& p : r.properties) {
+    const auto& spec = d.stim.properties[p.property];
+    if (p.holds) {
+      out += fmt::format("  {}  {}\n", paint("holds", true), spec.text);
+      continue;
+    }
+    std::string vals;
+    for (const auto& [net, v] : p.values) vals += fmt::format("{}{}={}", vals.empty() ? "" : " ", n.net_name[net], to_char(v));
+    out += fmt::format("  {}  {}: first at {} in step {} ({})\n", paint("FAIL", false), spec.text,
+                       format_time(p.first_violation), p.step, vals);
+  }
+  if (!r.gauges.empty()) out += "\ngauges\n";
+  for (const auto& g : r.gauges) {
+    const auto& spec = d.stim.gauges[g.gauge];
+    if (!g.count) {
+      out += fmt::format("  {}  {} {}: no sample\n", spec.name, gauge_kind_name(spec.what), gauge_nets(n, spec));
+      continue;
+    }
+    out += fmt::format("  {}  {} {}: {} sample{}, min {}, mean {}, max {}\n", spec.name, gauge_kind_name(spec.what),
+                       gauge_nets(n, spec), g.count, g.count == 1 ? "" : "s", format_time(g.min),
+                       format_time(static_cast<time_fs>(g.mean + 0.5)), format_time(g.max));
+  }
   const bool pass = r.pass();
   out += fmt::format("\nresult  {}", paint(pass ? "pass" : "findings", pass));
-  std::size_t bad = 0;
+  std::size_t bad = 0, broken = 0;
   for (const auto& s : r.steps) bad += s.pass() ? 0 : 1;
-  if (!pass) out += fmt::format(" ({} of {} steps)", bad, r.steps.size());
+  for (const auto& p : r.properties) broken += p.holds ? 0 : 1;
+  if (!pass) {
+    out += fmt::format(" ({} of {} steps", bad, r.steps.size());
+    if (broken) out += fmt::format(", {} of {} properties", broken, r.properties.size());
+    out += ")";
+  }
   out += "\n";
   if (verbose)
     out += fmt::format("events  {} in {:.3f} s ({:.3g} events/s)\n", r.events, wall,
@@ -160,6 +259,13 @@ std::string table(const design& d, const run_result& r, const std::string& corne
 exit_status run_run(const run_cli_options& o) {
   if (o.verbose && !o.quiet) spdlog::set_level(spdlog::level::debug);
   if (o.quiet) spdlog::set_level(spdlog::level::err);
+  auto uses = design_inputs(o.design);
+  for (const auto& [opt, path] : {std::pair{"--vcd", &o.vcd},
+                                  {"--json", &o.json},
+                                  {"--junit", &o.junit},
+                                  {"--html", &o.html}})
+    uses.push_back({path_use::kind::output, opt, *path, ""});
+  if (!check_paths(uses)) return exit_status::error;
   std::string err;
   auto c = parse_corner(o.corner, &err);
   if (!c) {
@@ -171,11 +277,18 @@ exit_status run_run(const run_cli_options& o) {
   if (!parse_horizon_option(o.horizon, ro.horizon)) return exit_status::error;
   auto d = load(o.design);
   if (!d) return exit_status::error;
+  if (const auto why = corner_range_error(*c, delay_variables(*d)); !why.empty()) {
+    spdlog::error("--corner {}: {}", o.corner, why);
+    return exit_status::error;
+  }
 
   delay_table delays;
   fill_delays(d->nets, *c, delays);
+  // Every output is opened before the run (a bad path fails at once) and put
+  // in place only when all of them are written.
+  output_set outs;
+  std::FILE* vcd_file = nullptr;
   std::unique_ptr<vcd_writer> vcd;
-  std::unique_ptr<atomic_file> vcd_file;
   if (!o.vcd.empty()) {
     vcd_options vo;
     vo.top = file_stem(d->path);
@@ -186,30 +299,46 @@ exit_status run_run(const run_cli_options& o) {
       if (vo.only.empty()) vo.only.push_back(netlist::const0);  // nothing to show: an empty dump
     }
     vcd = std::make_unique<vcd_writer>(d->nets, std::move(vo));
-    vcd_file = std::make_unique<atomic_file>(o.vcd);
-    if (!vcd_file->open()) return exit_status::error;
+    if (!(vcd_file = outs.open(o.vcd))) return exit_status::error;
   }
+  install_interrupt_handlers();
+  ro.stop = interrupt_flag();
   const auto t0 = std::chrono::steady_clock::now();
   const run_result r = run_stimulus(*d, delays, ro, vcd.get());
   const double wall = seconds_since(t0);
   spdlog::debug("{} events in {:.3f} s", r.events, wall);
+  if (r.error) {
+    // The stimulus itself is wrong: an error, and no output is written.
+    std::fputs(format_diagnostic(*r.error).c_str(), stderr);
+    return exit_status::error;
+  }
+  const bool stopped = interrupted();
 
-  if (vcd && !vcd->write(vcd_file->get(), &err)) {
+  if (vcd && !vcd->write(vcd_file, &err)) {
     spdlog::error("cannot write '{}': {}", o.vcd, err);
     return exit_status::error;
   }
-  if (!o.json.empty() && !write_output(o.json, result_json(*d, r, c->name(), wall))) return exit_status::error;
+  const auto json = [&] { return result_json(*d, r, c->name(), wall, stopped); };
+  if (!o.json.empty() && !outs.put(o.json, json())) return exit_status::error;
   if (!o.junit.empty()) {
     const auto replay = [&](const std::string& corner) {
       return replay_command(o.design, corner, o.horizon, o.max_events);
     };
-    if (!write_output(o.junit, junit_xml({junit_of_run(*d, r, c->name(), replay, wall)}))) return exit_status::error;
+    if (!outs.put(o.junit, junit_xml({junit_of_run(*d, r, c->name(), replay, wall)})))
+      return exit_status::error;
   }
-  if (!o.html.empty() && !write_output(o.html, html_report_run(*d, *c, ro, {"run", result_json(*d, r, c->name(), wall), ""})))
+  if (!o.html.empty() && !outs.put(o.html, html_report_run(*d, *c, ro, {"run", json(), ""})))
     return exit_status::error;
-  if (vcd_file && !vcd_file->commit()) return exit_status::error;
+  if (!outs.commit()) return exit_status::error;
+  if (stopped)  // on stderr even with -q: the report is partial
+    std::fputs(fmt::format(
+                   "settle: run interrupted by {}: {} of {} steps reached; the report is partial\n",
+                   interrupt_signal_name(), r.steps.size(), d->stim.steps.size())
+                   .c_str(),
+               stderr);
   if (!o.quiet && o.json != "-" && o.vcd != "-" && o.junit != "-" && o.html != "-")
     std::fputs(table(*d, r, c->name(), use_colour(1), o.verbose, wall).c_str(), stdout);
+  if (stopped) return exit_status::interrupted;
   return r.pass() ? exit_status::ok : exit_status::findings;
 }
 
@@ -218,14 +347,20 @@ void add_run(CLI::App& app, exit_status& status) {
   auto* cmd = app.add_subcommand("run", "simulate the stimulus under one delay corner");
   add_design_options(*cmd, o->design);
   cmd->add_option("--corner", o->corner, "min, typ, max, random:SEED or any corner name (default typ)");
-  cmd->add_option("--vcd", o->vcd, "write the waveforms as IEEE 1364 VCD to PATH");
-  cmd->add_option("--vcd-nets", o->vcd_nets, "nets in the VCD: all (default) or outputs (outputs and watched nets)")
-      ->check(CLI::IsMember({"outputs", "all"}));
+  check_output_path(
+      cmd->add_option("--vcd", o->vcd, "write the waveforms as IEEE 1364 VCD to PATH"));
+  cmd->add_option("--vcd-nets", o->vcd_nets,
+                  "nets in the VCD: all (default) or outputs (outputs and watched nets)")
+      ->check(one_of({"all", "outputs"}));
   add_json_option(*cmd, o->json);
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
-  cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)");
+  check_whole_number(
+      cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)"), 0,
+      UINT64_MAX, "the event limit");
   add_junit_option(*cmd, o->junit);
-  cmd->add_option("--html", o->html, "write a self-contained HTML report with the waveforms of every step to PATH");
+  check_output_path(cmd->add_option(
+      "--html", o->html,
+      "write a self-contained HTML report with the waveforms of every step to PATH"));
   cmd->add_flag("-v,--verbose", o->verbose, "also print events and events per second");
   add_quiet_flag(*cmd, o->quiet);
   cmd->callback([o, &status] { status = run_run(*o); });

@@ -2,6 +2,7 @@
 #include <unistd.h>
 
 #include <cctype>
+#include <cmath>
 #include <chrono>
 #include <filesystem>
 #include <memory>
@@ -16,7 +17,9 @@
 #include "sim/cli/interrupt.hpp"
 #include "sim/cli/report_common.hpp"
 #include "sim/culprit.hpp"
+#include "sim/interval.hpp"
 #include "sim/sweep.hpp"
+#include "sim/time.hpp"
 #include "sim/time_parse.hpp"
 #include "waves/html.hpp"
 #include "waves/junit.hpp"
@@ -64,6 +67,57 @@ nlohmann::ordered_json values_json(const netlist& n, const std::vector<net_id>& 
   return j;
 }
 
+// The rules a deadlocked outcome still owes, as `run` reports them.
+nlohmann::ordered_json owed_json(const design& d, const std::vector<owed_rule>& owed) {
+  auto j = nlohmann::ordered_json::array();
+  for (const auto& w : owed)
+    j.push_back({{"rule", w.rule < d.stim.rules.size() ? d.stim.rules[w.rule].text : std::string()},
+                 {"fired", w.fired},
+                 {"times", w.times},
+                 {"condition", logic_text(w.condition)}});
+  return j;
+}
+
+// A gauge expectation's range as written: "700ps..900ps".
+std::string gauge_want(const expectation& e) { return format_time(e.lo) + ".." + format_time(e.hi); }
+
+// Top-level `properties` and `gauges` of a sweep (issue 15's contract).
+void closed_loop_json(const design& d, const sweep_result& r, nlohmann::ordered_json& j) {
+  j["properties"] = nlohmann::ordered_json::array();
+  for (const auto& p : r.properties) {
+    nlohmann::ordered_json e;
+    e["text"] = d.stim.properties[p.index].text;
+    e["violating"] = p.violating;
+    e["corners"] = r.corners;
+    if (p.violating) {
+      e["witness"] = p.witness_name;
+      e["first_violation_fs"] = p.first_violation;
+      e["step"] = p.step;
+    }
+    j["properties"].push_back(std::move(e));
+  }
+  j["gauges"] = nlohmann::ordered_json::array();
+  for (const auto& g : r.gauges) {
+    const auto& spec = d.stim.gauges[g.index];
+    nlohmann::ordered_json e;
+    e["name"] = spec.name;
+    e["kind"] = gauge_kind_name(spec.what);
+    e["nets"] = nlohmann::ordered_json::array();
+    for (net_id n : spec.nets) e["nets"].push_back(d.nets.net_name[n]);
+    e["corners"] = g.corners;
+    e["samples"] = g.samples;
+    if (g.corners) {
+      e["min_fs"] = g.min;
+      e["median_fs"] = g.median;
+      e["max_fs"] = g.max;
+      e["witness_min"] = g.witness_min_name;
+      e["witness_max"] = g.witness_max_name;
+      if (spec.what == gauge::kind::period && g.median > 0) e["throughput_per_s"] = 1e15 / g.median;
+    }
+    j["gauges"].push_back(std::move(e));
+  }
+}
+
 std::string result_json(const design& d, const sweep_cli_options& o, const sweep_result& r,
                         const std::vector<culprit_report>& races = {}) {
   const netlist& n = d.nets;
@@ -92,6 +146,7 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
     for (const auto& out : s.outcomes) {
       nlohmann::ordered_json e;
       e["status"] = status_name(out.status);
+      if (out.end_of_time) e["detail"] = end_of_time_words;
       e["values"] = values_json(n, r.reported, out.values);
       e["count"] = out.count;
       e["share"] = out.share;
@@ -99,6 +154,7 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
       e["witness"] = out.witness_name;
       e["settle_fs"] = {{"min", out.settle.min}, {"median", out.settle.median}, {"max", out.settle.max}};
       if (out.status == step_status::oscillating) e["period_fs"] = out.period;
+      if (out.status == step_status::deadlock) e["owed"] = owed_json(d, out.owed);
       st["outcomes"].push_back(std::move(e));
     }
     if (s.unseen_outcome_bound) st["unseen_outcome_bound"] = *s.unseen_outcome_bound;
@@ -111,6 +167,7 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
         e["net"] = spec.ref.empty() ? n.net_name[spec.net] : spec.ref;
       if (spec.what == expectation::kind::value) e["want"] = logic_text(spec.want);
       if (spec.what == expectation::kind::within) e["budget_fs"] = spec.hi;
+      if (spec.what == expectation::kind::gauge) e["gauge"] = spec.ref, e["want"] = gauge_want(spec);
       if (x.by_interval) {  // `interval` alone: no corner ran, the min-max run proves it or not
         e["proven"] = x.proven;
         e["pass"] = x.pass();
@@ -137,8 +194,9 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
       }
     j["steps"].push_back(std::move(st));
   }
+  closed_loop_json(d, r, j);
   j["result"] = r.pass() ? "pass" : "findings";
-  return j.dump(2) + "\n";
+  return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
 }
 
 std::string percent(double share) { return fmt::format("{:.1f}%", 100.0 * share); }
@@ -184,6 +242,49 @@ std::string interval_only_step(const netlist& n, const sweep_result& r, const sw
   return out;
 }
 
+// A rate with an SI prefix: 1.178e9 -> "1.178 G/s".
+std::string per_second(double v) {
+  static constexpr std::pair<double, const char*> prefixes[] = {{1e12, "T"}, {1e9, "G"}, {1e6, "M"}, {1e3, "k"}};
+  for (const auto& [scale, p] : prefixes)
+    if (v >= scale) return fmt::format("{:.4g} {}/s", v / scale, p);
+  return fmt::format("{:.4g} /s", v);
+}
+
+// The properties over the corners and the gauges' distributions, after the steps.
+template <class Paint>
+std::string closed_loop_text(const design& d, const sweep_cli_options& o, const sweep_result& r,
+                             const Paint& paint) {
+  std::string out;
+  if (!r.properties.empty()) out += "\nproperties\n";
+  for (const auto& p : r.properties) {
+    const std::string& text = d.stim.properties[p.index].text;
+    if (p.holds()) {
+      out += fmt::format("  {}  {} in every corner\n", paint("holds", true), text);
+      continue;
+    }
+    out += fmt::format("  {}  {}: violated in {} of {} corners; first at {} (at {}, step {})\n",
+                       paint("VIOLATED", false), text, p.violating, r.corners, p.witness_name,
+                       format_time(p.first_violation), p.step);
+    out += fmt::format("       replay  {}\n", replay(o, p.witness_name));
+  }
+  if (!r.gauges.empty()) out += "\ngauges (min / median / max over corners)\n";
+  for (const auto& g : r.gauges) {
+    const auto& spec = d.stim.gauges[g.index];
+    if (g.corners == 0) {
+      out += fmt::format("  {}  no sample in any corner\n", spec.name);
+      continue;
+    }
+    std::string line = fmt::format("  {}  {} / {} / {}", spec.name, format_time(g.min),
+                                   format_time(static_cast<time_fs>(std::llround(g.median))), format_time(g.max));
+    if (spec.what == gauge::kind::period && g.median > 0)
+      line += "  throughput " + per_second(1e15 / g.median);
+    line += fmt::format("  ({} samples in {} corners; min at {}, max at {})\n", g.samples, g.corners,
+                        g.witness_min_name, g.witness_max_name);
+    out += line;
+  }
+  return out;
+}
+
 std::string summary(const design& d, const sweep_cli_options& o, const sweep_result& r, bool colour,
                     const std::vector<culprit_report>& races = {}) {
   const netlist& n = d.nets;
@@ -219,6 +320,7 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
     if (s.inherits) note += fmt::format("; inherits the divergence of step {}", s.inherits);
     if (s.run_step && s.verdict == sweep_verdict::nondeterministic)
       note += "; a `run` window, not a settled state";
+    if (s.verdict == sweep_verdict::deadlock) note += "; every corner goes quiet with a reaction rule owed";
     out += fmt::format("  {}  {}\n", paint(verdict, s.pass), note);
     if (s.unseen_outcome_bound)
       out += fmt::format("  chance of an outcome not seen < {:.3g}% (rule of three over the random corners)\n",
@@ -238,6 +340,10 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
       for (std::size_t k = 0; k < r.reported.size() && k < oc.values.size(); ++k)
         vals += fmt::format("{}{}={}", k ? " " : "", n.net_name[r.reported[k]], to_char(oc.values[k]));
       if (!vals.empty()) out += fmt::format("       values  {}\n", vals);
+      if (oc.end_of_time) out += fmt::format("       reason  {}\n", end_of_time_words);
+      for (const auto& w : oc.owed)
+        out += fmt::format("       owed    {} (fired {} of {}; condition {})\n", d.stim.rules[w.rule].text, w.fired,
+                           w.times, to_char(w.condition));
       out += fmt::format("       replay  {}\n", replay(o, oc.witness_name));
     }
     for (const auto& x : s.expects) {
@@ -261,6 +367,7 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
       }
     }
   }
+  if (!interval_only) out += closed_loop_text(d, o, r, paint);
   std::size_t bad = 0, proven = 0;
   for (const auto& s : r.steps) bad += s.pass ? 0 : 1;
   for (const auto& s : r.steps) proven += s.interval && s.interval->proven;
@@ -268,8 +375,14 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
   if (interval_only)
     out += fmt::format(" ({} of {} steps proven deterministic, {} inconclusive{})", proven, r.steps.size(),
                        r.steps.size() - proven, bad > r.steps.size() - proven ? ", expectations not proven" : "");
-  else if (bad)
-    out += fmt::format(" ({} of {} steps)", bad, r.steps.size());
+  else {
+    std::size_t violated = 0;
+    for (const auto& p : r.properties) violated += p.holds() ? 0 : 1;
+    std::string why;
+    if (bad) why = fmt::format("{} of {} steps", bad, r.steps.size());
+    if (violated) why += fmt::format("{}{} of {} properties violated", bad ? "; " : "", violated, r.properties.size());
+    if (!why.empty()) out += " (" + why + ")";
+  }
   out += "\n";
   return out;
 }
@@ -284,7 +397,7 @@ std::string corner_file_part(std::string name) {
 // One VCD per outcome of every step that is not deterministic, replaying its
 // witness: DIR/step<k>_outcome<r>_<witness>.vcd, r the outcome's rank (1 = most corners).
 bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep_plan& plan,
-                        const sweep_result& r, const run_options& ro) {
+                        const sweep_result& r, const run_options& ro, output_set& outs) {
   std::error_code ec;
   std::filesystem::create_directories(o.vcd_dir, ec);
   if (ec) {
@@ -305,16 +418,17 @@ bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep
       vo.top = file_stem(d.path);
       vo.version = std::string("settle ") + SETTLE_VERSION;
       vcd_writer vcd(d.nets, std::move(vo));
+      if (interrupted()) return false;  // the caller reports it
       fill_delays(d.nets, plan.corner_at(oc.witness), delays);
       run_stimulus(d, delays, ro, &vcd);
-      atomic_file f(path);
+      std::FILE* f = outs.open(path);
       std::string err;
-      if (!f.open()) return false;
-      if (!vcd.write(f.get(), &err)) {
+      if (!f) return false;
+      if (!vcd.write(f, &err)) {
         spdlog::error("cannot write '{}': {}", path, err);
         return false;
       }
-      if (!f.commit()) return false;
+      if (!outs.finish_last()) return false;
     }
   }
   return true;
@@ -331,19 +445,29 @@ void show_progress(std::uint64_t done, std::uint64_t total, std::chrono::steady_
 
 exit_status run_sweep_cmd(const sweep_cli_options& o) {
   if (o.quiet) spdlog::set_level(spdlog::level::err);
+  auto uses = design_inputs(o.design);
+  for (const auto& [opt, path] :
+       {std::pair{"--json", &o.json}, {"--junit", &o.junit}, {"--html", &o.html}})
+    uses.push_back({path_use::kind::output, opt, *path, ""});
+  uses.push_back({path_use::kind::output_folder, "--vcd-dir", o.vcd_dir, "step*_outcome*_*.vcd"});
+  if (!check_paths(uses)) return exit_status::error;
   std::string err;
   run_options ro;
   ro.max_events = o.max_events;
   if (!parse_horizon_option(o.horizon, ro.horizon)) return exit_status::error;
   auto d = load(o.design);
   if (!d) return exit_status::error;
-  auto plan = plan_sweep(o.corners, o.seed, d->nets.gate_count(), &err);
+  auto plan = plan_sweep(o.corners, o.seed, delay_variables(*d), &err);
   if (!plan) {
     spdlog::error("{}", err);
     return exit_status::error;
   }
+  if (plan->interval && !interval_refusal(*d).empty()) {
+    spdlog::error("--corners '{}': {}", o.corners, interval_refusal(*d));
+    return exit_status::error;
+  }
   const std::size_t steps = d->stim.steps.empty() ? 1 : d->stim.steps.size();
-  if (!fits_memory(*plan, steps, 1, o.max_memory_mib)) return exit_status::error;
+  if (!fits_memory(*plan, steps, 1, o.max_memory_mib, d->stim.gauges.size())) return exit_status::error;
   sweep_options so;
   so.threads = o.threads;
   so.run = ro;
@@ -355,6 +479,12 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   if (progress) so.progress = [t0](std::uint64_t done, std::uint64_t total) { show_progress(done, total, t0); };
   const sweep_result r = run_sweep(*d, *plan, so);
   if (progress) std::fputs("\r\033[K", stderr);
+  if (r.error) {
+    std::fputs(format_diagnostic(*r.error).c_str(), stderr);
+    spdlog::error("the stimulus cannot go on at corner {} (replay: {})", plan->corner_at(r.error_corner).name(),
+                  replay_command(o.design, plan->corner_at(r.error_corner).name(), o.horizon, o.max_events));
+    return exit_status::error;
+  }
 
   // The gates that decide each first divergence between two settled outcomes (ddmin).
   std::vector<culprit_report> races;
@@ -370,17 +500,29 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
     if (!race.gates.empty()) races.push_back(std::move(race));
   }
 
-  if (!o.json.empty() && !write_output(o.json, result_json(*d, o, r, races))) return exit_status::error;
+  output_set outs;  // all or nothing
+  if (!o.json.empty() && !outs.put(o.json, result_json(*d, o, r, races))) return exit_status::error;
   if (!o.junit.empty() &&
-      !write_output(o.junit, junit_xml({junit_of_sweep(*d, r, [&](const std::string& c) { return replay(o, c); })})))
+      !outs.put(o.junit, junit_xml({junit_of_sweep(
+                             *d, r, [&](const std::string& c) { return replay(o, c); })})))
     return exit_status::error;
-  if (r.stopped != sweep_stop::none)  // on stderr even with -q: the report is partial
-    std::fputs(fmt::format("settle: {}: {} of {} corners finished\n", stop_words(r), r.corners, r.planned).c_str(),
-               stderr);
-  if (!o.vcd_dir.empty() && r.stopped == sweep_stop::none && !write_witness_vcds(*d, o, *plan, r, ro)) return exit_status::error;
   if (!o.html.empty() &&
-      !write_output(o.html, html_report_sweep(*d, r, ro, {"sweep", result_json(*d, o, r, races), ""})))
+      !outs.put(o.html, html_report_sweep(*d, r, ro, {"sweep", result_json(*d, o, r, races), ""})))
     return exit_status::error;
+  if (!o.vcd_dir.empty() && r.stopped == sweep_stop::none &&
+      !write_witness_vcds(*d, o, *plan, r, ro, outs)) {
+    if (!interrupted()) return exit_status::error;
+    outs.discard();
+    spdlog::error("interrupted by {} while writing the witness VCDs; nothing was written",
+                  interrupt_signal_name());
+    return exit_status::interrupted;
+  }
+  if (!outs.commit()) return exit_status::error;
+  if (r.stopped != sweep_stop::none)  // on stderr even with -q: the report is partial
+    std::fputs(
+        fmt::format("settle: {}: {} of {} corners finished\n", stop_words(r), r.corners, r.planned)
+            .c_str(),
+        stderr);
   if (!o.quiet && o.json != "-" && o.junit != "-" && o.html != "-") std::fputs(summary(*d, o, r, use_colour(1), races).c_str(), stdout);
   if (r.stopped == sweep_stop::interrupted) return exit_status::interrupted;
   return r.pass() ? exit_status::ok : exit_status::findings;
@@ -393,21 +535,31 @@ void add_sweep(CLI::App& app, exit_status& status) {
   cmd->add_option("--corners", o->corners,
                   "corner spec: extremes, exhaustive, random:N, gauss:N, interval joined by '+' "
                   "(default extremes+random:1000)");
-  cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)");
-  cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)")->check(CLI::Range(1u, 4096u));
+  check_whole_number(
+      cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)"), 0,
+      UINT64_MAX, "the seed");
+  check_whole_number(
+      cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)"), 1, 4096,
+      "the thread count", "; leave --threads out to use every hardware thread");
   add_json_option(*cmd, o->json);
-  cmd->add_option("--vcd-dir", o->vcd_dir,
-                  "write one VCD per outcome of every step that is not deterministic, replaying its witness, "
-                  "as DIR/step<k>_outcome<r>_<corner>.vcd");
+  check_output_path(cmd->add_option(
+      "--vcd-dir", o->vcd_dir,
+      "write one VCD per outcome of every step that is not deterministic, replaying its witness, "
+      "as DIR/step<k>_outcome<r>_<corner>.vcd"));
   cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
-  cmd->add_option("--max-events", o->max_events, "stop each corner after N events (0: no limit)");
-  cmd->add_option("--timeout", o->timeout_s,
-                  "wall-clock budget in seconds: past it the sweep stops, reports the corners finished and "
-                  "exits 1 (0: none)")
-      ->check(CLI::NonNegativeNumber);
+  check_whole_number(cmd->add_option("--max-events", o->max_events,
+                                     "stop each corner after N events (0: no limit)"),
+                     0, UINT64_MAX, "the event limit");
+  check_number_at_least(
+      cmd->add_option("--timeout", o->timeout_s,
+                      "wall-clock budget in seconds: past it the sweep stops, reports the corners "
+                      "finished and exits 1 (0: none)"),
+      0, "the timeout in seconds");
   add_max_memory_option(*cmd, o->max_memory_mib);
   add_junit_option(*cmd, o->junit);
-  cmd->add_option("--html", o->html, "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH");
+  check_output_path(cmd->add_option(
+      "--html", o->html,
+      "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH"));
   cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout and no progress; errors still go to stderr");
   cmd->callback([o, &status] { status = run_sweep_cmd(*o); });
 }

@@ -30,6 +30,8 @@ INTENDED = {
     "arbiter.settle": 0,
     "strobe_pulse.settle": 0,
     "sensor_watchdog.settle": 0,  # its margin is tracked by tests/cli/margin_ci_example.py
+    "fifo_loop.settle": 0,        # a closed loop: producer and consumer rules finish their `times`
+    "fifo_loop_stuck.settle": 1,  # the same loop with a wiring bug: deadlock, a finding
 }
 # Stimulus files run with --stim against a design: (design, stim, intended exit status).
 STIMS = [
@@ -237,6 +239,8 @@ def example_facts(docs, tmp):
     if (v.get("gnt_sensor"), v.get("gnt_host")) != ("1", "0"):
         fail(f"arbiter at typ: {v}, want the sensor granted (its NAND is 2ps faster)")
 
+    closed_loop_facts(docs)
+
     # The sweep's verdicts, once `settle sweep` exists: only the arbiter's race step diverges.
     if subprocess.run([settle, "sweep", "--help"], capture_output=True).returncode != 0:
         print("note: settle sweep is not available; sweep verdicts not checked")
@@ -259,6 +263,42 @@ def example_facts(docs, tmp):
     host = [o.get("share") for o in outs if o.get("values", {}).get("gnt_host") == "1"]
     if len(host) != 1 or abs(host[0] - 0.405) > 0.05:
         fail(f"sweep arbiter random:1000: host share {host}, want one outcome near 0.405")
+
+
+def closed_loop_facts(docs):
+    """The closed-loop FIFO place and its deadlocking variant (examples/fifo_loop*.settle)."""
+    doc = docs.get("fifo_loop.settle")
+    text = docs.get("fifo_loop.settle vcd")
+    if doc is not None:
+        gauge = next((g for g in doc.get("gauges", []) if g.get("name") == "cycle"), {})
+        # 20 samples make 20 acknowledge rises, so 19 periods between them (the gauge's words).
+        if gauge.get("count") != 19:
+            fail(f"fifo_loop: cycle gauge {gauge}, want 19 periods")
+        prop = next((p for p in doc.get("properties", []) if p.get("text", "").startswith("never sensor_ack")), {})
+        if prop.get("holds") is not True:
+            fail(f"fifo_loop: property {prop}, want it to hold")
+    if text is not None:
+        ch = sigrok_changes(text)
+        # A FIFO delivers every sample it takes, once (common practice): the reader acknowledges as
+        # many samples as the sensor offered, 20 each (the rules' `times 20`), read via sigrok-cli.
+        for net in ("sensor_req", "reader_ack"):
+            rises = [t for i, (t, v) in enumerate(ch.get(net, [])) if v == "1" and (i == 0 or ch[net][i - 1][1] != "1")]
+            if len(rises) != 20:
+                fail(f"fifo_loop VCD via sigrok-cli: {net} rises {len(rises)} times, want 20")
+    doc = docs.get("fifo_loop_stuck.settle")
+    if doc is not None:
+        last = (doc.get("steps") or [{}])[-1]
+        owed = [o.get("rule", "") for o in last.get("owed", [])]
+        if last.get("status") != "deadlock" or not any(r.startswith("when sensor_ack after") for r in owed):
+            fail(f"fifo_loop_stuck: last step {last.get('status')} owing {owed}, want deadlock owing the "
+                 "sensor's return-to-zero rule")
+    for name, want_exit, verdict in (("fifo_loop.settle", 0, "deterministic"), ("fifo_loop_stuck.settle", 1, "deadlock")):
+        p, doc = run(["sweep", os.path.join(examples, name), "--corners", "extremes+random:30", "--json", "-"])
+        if p.returncode != want_exit:
+            fail(f"sweep {name}: exit {p.returncode}, intended {want_exit}; {p.stderr.strip()[:300]}")
+        last = ((doc or {}).get("steps") or [{}])[-1]
+        if last.get("verdict") != verdict:
+            fail(f"sweep {name}: last step {last.get('verdict')}, want {verdict}")
 
 
 if __name__ == "__main__":

@@ -167,3 +167,39 @@ TEST_CASE("long runs spill to disk and keep every instant", "[waves][vcd]") {
   CHECK(times == instants + 1);  // every instant and the end
   CHECK(last == instants + 1);
 }
+
+TEST_CASE("names that meet after sanitising stay distinct", "[waves][vcd]") {
+  // ISCAS nets a.b, a_b and a_b_2 (the ISCAS format allows dots in names): a reference name in
+  // a $var is one identifier without '.', and two variables of one scope need two names
+  // (IEEE 1364-2005, 18.2.3.8 and 18.2.1).
+  netlist n;
+  n.begin();
+  const net_id dotted = n.add_net("a.b", 0);
+  const net_id plain = n.add_net("a_b", 0);
+  const net_id suffixed = n.add_net("a_b_2", 0);
+  const net_id q = n.add_net("q", 0);
+  gate_delay d;
+  d.rise = d.fall = {5000, 5000, 5000};
+  n.add_gate(gate_kind::and_, q, {dotted, plain, suffixed}, {}, d);
+  n.finish();
+  vcd_options o;
+  o.date = "fixed";
+  vcd_writer w(n, o);
+  std::vector<logic> init(n.net_count(), logic::x);
+  w.on_start(init);
+  w.on_finish(10000);
+  std::multiset<std::string> names;
+  for (const auto& l : lines(w.str()))
+    if (l.rfind("$var ", 0) == 0) {
+      std::istringstream in(l);
+      std::string var, type, size, code, name;
+      in >> var >> type >> size >> code >> name;
+      CHECK(name.find('.') == std::string::npos);
+      names.insert(name);
+    }
+  CHECK(names.size() == 4);
+  for (const auto& name : names) CHECK(names.count(name) == 1);
+  CHECK(names.count("a_b") == 1);
+  CHECK(names.count("a_b_2") == 1);
+  CHECK(names.count("a_b_3") == 1);  // a.b: a_b and a_b_2 are taken as written
+}
