@@ -12,6 +12,7 @@
 #include <unistd.h>
 
 #include "parser/ir.hpp"
+#include "parser/verilog.hpp"
 
 namespace settle {
 namespace {
@@ -149,14 +150,15 @@ std::optional<design> load_settle(std::string_view text, const std::string& name
 std::optional<design> load_design_text(std::string_view text, const std::string& name, const load_options& opt,
                                        diagnostics& diags) {
   if (opt.format == "bench") return load_bench_text(text, name, opt, diags);
+  if (opt.format == "verilog") return load_verilog_text(text, name, opt, diags);
   return load_settle(text, name, diags, nullptr);
 }
 
 std::optional<design> load_design(const std::string& path, const load_options& opt, diagnostics& diags) {
-  if (opt.format != "auto" && opt.format != "settle" && opt.format != "bench") {
+  if (opt.format != "auto" && opt.format != "settle" && opt.format != "bench" && opt.format != "verilog") {
     diagnostic d;
     d.file = path;
-    d.message = fmt::format("unknown format '{}' (use auto, settle or bench)", opt.format);
+    d.message = fmt::format("unknown format '{}' (use auto, settle, bench or verilog)", opt.format);
     diags.add(std::move(d));
     return std::nullopt;
   }
@@ -164,8 +166,10 @@ std::optional<design> load_design(const std::string& path, const load_options& o
   if (!src.open(path, diags)) return std::nullopt;
   const std::string_view text = src.view();
   load_options o = opt;
-  if (o.format == "auto") o.format = ends_with(path, ".bench") ? "bench" : "settle";
-  auto d = o.format == "bench" ? load_bench_text(text, path, o, diags) : load_settle(text, path, diags, &src);
+  if (o.format == "auto") o.format = ends_with(path, ".bench") ? "bench" : ends_with(path, ".v") ? "verilog" : "settle";
+  auto d = o.format == "bench"     ? load_bench_text(text, path, o, diags)
+           : o.format == "verilog" ? load_verilog_text(text, path, o, diags)
+                                   : load_settle(text, path, diags, &src);
   if (!d) return d;
   d->path = path;
   if (!opt.stim_path.empty() && !apply_stim_file(*d, opt.stim_path, diags)) return std::nullopt;

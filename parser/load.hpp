@@ -12,10 +12,12 @@ namespace settle {
 
 struct load_options {
   std::string stim_path;          ///< --stim FILE: replaces the embedded stimulus
-  std::string format = "auto";    ///< auto (by extension), settle, bench
+  std::string format = "auto";    ///< auto (by extension), settle, bench, verilog
+  std::string top;                ///< verilog: the top module (empty: the one no other module instantiates)
   // .bench import
   std::string dff = "gates";      ///< gates: six-NAND flip-flops; primitive: an edge-triggered gate
-  delay_range bench_delay{40000, 50000, 60000};  ///< --delay MIN..MAX for imported gates (fs)
+  delay_range bench_delay{40000, 50000, 60000};  ///< --delay MIN..MAX for imported gates (.bench, and
+                                                 ///< Verilog gates written without a delay) (fs)
 };
 
 /// Reads, parses and elaborates `path`. Errors and warnings go to `diags`;

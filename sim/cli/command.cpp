@@ -85,13 +85,14 @@ CLI::Validator file_name(const char* what) {
 }
 
 void add_design_options(CLI::App& cmd, design_options& o) {
-  cmd.add_option("DESIGN", o.path, "design file (.settle, or .bench for ISCAS netlists)")
+  cmd.add_option("DESIGN", o.path, "design file (.settle, .bench for ISCAS netlists, .v for structural Verilog)")
       ->required()
       ->check(file_name("design file"));
   cmd.add_option("--stim", o.stim, "file with one stimulus { } block replacing the design's own")
       ->check(file_name("--stim file"));
-  cmd.add_option("--format", o.format, "input format: auto (by extension), settle or bench")
-      ->check(one_of({"auto", "settle", "bench"}));
+  cmd.add_option("--format", o.format, "input format: auto (by extension), settle, bench or verilog")
+      ->check(one_of({"auto", "settle", "bench", "verilog"}));
+  cmd.add_option("--top", o.top, "Verilog: the top module (default: the one no other module instantiates)");
   cmd.add_option("--dff", o.dff, "imported flip-flops: gates (six NAND gates) or primitive")
       ->check(one_of({"gates", "primitive"}));
   cmd.add_option("--delay", o.delay, "delay of imported gates: MIN..MAX (e.g. 40ps..60ps)");
@@ -108,6 +109,7 @@ std::optional<design> load(const design_options& o, bool empty_ok) {
   lo.stim_path = o.stim;
   lo.format = o.format;
   lo.dff = o.dff;
+  lo.top = o.top;
   if (!o.delay.empty()) {
     std::string err;
     auto r = parse_delay_range(o.delay, &err);
@@ -150,6 +152,7 @@ std::string replay_command(const design_options& o, const std::string& corner, c
   if (!o.stim.empty()) cmd += " --stim " + word(o.stim);
   if (o.format != "auto") cmd += " --format " + o.format;
   if (o.dff != "gates") cmd += " --dff " + o.dff;
+  if (!o.top.empty()) cmd += " --top " + word(o.top);
   if (!o.delay.empty()) cmd += " --delay " + word(o.delay);
   cmd += " --corner " + word(corner);
   if (!horizon.empty()) cmd += " --horizon " + word(horizon);

@@ -44,6 +44,7 @@ struct design_options {
   std::string format = "auto";
   std::string dff = "gates";
   std::string delay;  ///< MIN..MAX for imported gates; empty: the default
+  std::string top;    ///< Verilog: the top module; empty: the one no other module instantiates
 };
 void add_design_options(CLI::App& cmd, design_options& o);
 

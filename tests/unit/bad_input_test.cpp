@@ -18,12 +18,13 @@ struct expected_error {
   std::string text;
 };
 
-/// Reads the "# expect: LINE:COL: message substring" header of a corpus file.
+/// Reads the "# expect: LINE:COL: message substring" header of a corpus file
+/// ("// expect: ..." in a Verilog file).
 expected_error header_of(const fs::path& p) {
   std::ifstream in(p);
   std::string first;
   std::getline(in, first);
-  static const std::regex rx(R"(^# expect: (\d+):(\d+): (.+)$)");
+  static const std::regex rx(R"(^(?:#|//) expect: (\d+):(\d+): (.+)$)");
   std::smatch m;
   INFO(p.string());
   REQUIRE(std::regex_match(first, m, rx));
@@ -51,6 +52,9 @@ void check_one(const fs::path& p) {
            x.col == want.col && x.message.find(want.text) != std::string::npos;
   });
   CHECK(found);
+  // Every error at a position carries its source line (for the caret).
+  for (auto& x : diags.items)
+    if (x.severity == diagnostic::level::error && x.line > 0) CHECK_FALSE(x.source_line.empty());
 }
 
 }  // namespace
@@ -60,6 +64,14 @@ TEST_CASE("every malformed design in tests/bad is rejected at the expected line 
   auto designs = files(dir, ".settle");
   CHECK(designs.size() >= 60);
   for (auto& p : designs) check_one(p);
+}
+
+TEST_CASE("every malformed Verilog netlist in tests/bad/verilog is rejected at the expected line and column",
+          "[parser][corpus]") {
+  const fs::path dir = fs::path(SETTLE_SOURCE_DIR) / "tests" / "bad" / "verilog";
+  auto netlists = files(dir, ".v");
+  CHECK(netlists.size() >= 15);
+  for (auto& p : netlists) check_one(p);
 }
 
 TEST_CASE("every malformed stimulus file in tests/bad/stim is rejected against a good design", "[parser][corpus]") {

@@ -1,0 +1,195 @@
+// The structural Verilog statement grammar (Boost.Spirit X3) and its DEFINE.
+#pragma once
+
+#include <boost/fusion/include/adapt_struct.hpp>
+#include <boost/spirit/home/x3.hpp>
+
+#include "parser/verilog_ast.hpp"
+#include "parser/verilog_grammar.hpp"
+
+BOOST_FUSION_ADAPT_STRUCT(settle::vast::port_item, dir, range, name)
+BOOST_FUSION_ADAPT_STRUCT(settle::vast::module_hdr, name, ports)
+BOOST_FUSION_ADAPT_STRUCT(settle::vast::decl_stmt, kind, range, names)
+BOOST_FUSION_ADAPT_STRUCT(settle::vast::assign_item, lhs, rhs)
+BOOST_FUSION_ADAPT_STRUCT(settle::vast::assign_stmt, delay, items)
+BOOST_FUSION_ADAPT_STRUCT(settle::vast::gate_inst, name, terms)
+BOOST_FUSION_ADAPT_STRUCT(settle::vast::gate_stmt, kind, delay, insts)
+BOOST_FUSION_ADAPT_STRUCT(settle::vast::port_conn, port, value)
+BOOST_FUSION_ADAPT_STRUCT(settle::vast::mod_inst, name, conns)
+BOOST_FUSION_ADAPT_STRUCT(settle::vast::inst_stmt, module, insts)
+
+namespace settle::vgrammar {
+namespace x3 = boost::spirit::x3;
+
+/// A keyword: the whole word, not the prefix of an identifier.
+struct vkw_parser : x3::parser<vkw_parser> {
+  using attribute_type = x3::unused_type;
+  static bool const has_attribute = false;
+  const char* word;
+  constexpr explicit vkw_parser(const char* w) : word(w) {}
+
+  template <typename It, typename Ctx, typename RCtx, typename Attr>
+  bool parse(It& first, It const& last, Ctx const& ctx, RCtx&, Attr&) const {
+    x3::skip_over(first, last, ctx);
+    It i = first;
+    for (const char* p = word; *p; ++p, ++i)
+      if (i == last || *i != *p) return false;
+    if (i != last && (std::isalnum(static_cast<unsigned char>(*i)) || *i == '_' || *i == '$'))
+      return false;
+    first = i;
+    return true;
+  }
+};
+inline constexpr vkw_parser kw(const char* w) { return vkw_parser(w); }
+
+/// The keywords of IEEE 1364-2005 that cannot name a net, module or instance
+/// here (the ones the structural subset uses, and the common others).
+inline bool is_keyword(std::string_view w) {
+  for (const char* k :
+       {"module",    "endmodule",  "input",    "output",      "inout",     "wire",
+        "reg",       "assign",     "and",      "nand",        "or",        "nor",
+        "xor",       "xnor",       "buf",      "not",         "always",    "initial",
+        "begin",     "end",        "if",       "else",        "case",      "endcase",
+        "parameter", "localparam", "generate", "endgenerate", "primitive", "endprimitive",
+        "table",     "endtable",   "specify",  "endspecify",  "supply0",   "supply1",
+        "tri",       "integer",    "function", "task",        "bufif0",    "bufif1",
+        "notif0",    "notif1",     "posedge",  "negedge",     "defparam",  "genvar",
+        "for",       "while"})
+    if (w == k) return true;
+  return false;
+}
+
+namespace detail {
+using x3::_attr;
+using x3::_pass;
+using x3::_val;
+
+inline auto const set_raw = [](auto& ctx) {
+  auto& r = _attr(ctx);
+  _val(ctx).text.assign(r.begin(), r.end());
+  _val(ctx).pos = &*r.begin();
+};
+inline auto const set_ident = [](auto& ctx) {
+  auto& r = _attr(ctx);
+  _val(ctx).text.assign(r.begin(), r.end());
+  _val(ctx).pos = &*r.begin();
+  _pass(ctx) = !is_keyword(_val(ctx).text);
+};
+}  // namespace detail
+
+struct primitive_kinds : x3::symbols<> {
+  primitive_kinds() { add("and")("nand")("or")("nor")("xor")("xnor")("buf")("not"); }
+};
+inline primitive_kinds const primitive_table;
+
+auto const id_chars = (x3::alpha | '_') >> *(x3::alnum | '_' | '$');
+auto const word_end = !(x3::alnum | '_' | '$');
+
+using raw_range = boost::iterator_range<const char*>;
+
+///////////////////////////////////////////////////////////////////////////////
+// Rules (the names are turned into words by describe() in verilog_grammar.cpp)
+///////////////////////////////////////////////////////////////////////////////
+x3::rule<class ident_raw, raw_range> const ident_raw = "identifier";
+x3::rule<class ident, vast::raw> const ident = "identifier";
+x3::rule<class kind_raw, raw_range> const kind_raw = "gate kind";
+x3::rule<class gate_kind, vast::raw> const gate_kind = "gate kind";
+x3::rule<class number> const number = "number";
+x3::rule<class based> const based = "based constant";
+x3::rule<class select> const select = "select";
+x3::rule<class range_syn> const range_syn = "range";
+x3::rule<class range_raw, raw_range> const range_raw = "range";
+x3::rule<class range_, vast::raw> const range_ = "range";
+x3::rule<class term_raw, raw_range> const term_raw = "term";
+x3::rule<class term, vast::raw> const term = "term";
+x3::rule<class conn, vast::conn> const conn = "connection";
+x3::rule<class mtm> const mtm = "delay value";
+x3::rule<class delay_raw, raw_range> const delay_raw = "delay";
+x3::rule<class delay, vast::raw> const delay = "delay";
+x3::rule<class primary> const primary = "operand";
+x3::rule<class unary> const unary = "operand";
+x3::rule<class and_e> const and_e = "expression";
+x3::rule<class xor_e> const xor_e = "expression";
+x3::rule<class or_e> const or_e = "expression";
+x3::rule<class cond_e> const cond_e = "expression";
+x3::rule<class expr_raw, raw_range> const expr_raw = "expression";
+x3::rule<class expr, vast::raw> const expr = "expression";
+x3::rule<class dir_word, std::string> const dir_word = "direction";
+x3::rule<class port_item, vast::port_item> const port_item = "port";
+x3::rule<class module_hdr, vast::module_hdr> const module_hdr = "module header";
+x3::rule<class decl_kind, std::string> const decl_kind = "declaration";
+x3::rule<class decl_stmt, vast::decl_stmt> const decl_stmt = "declaration";
+x3::rule<class assign_item, vast::assign_item> const assign_item = "assignment";
+x3::rule<class assign_stmt, vast::assign_stmt> const assign_stmt = "assign";
+x3::rule<class gate_inst, vast::gate_inst> const gate_inst = "gate terminals";
+x3::rule<class gate_stmt, vast::gate_stmt> const gate_stmt = "gate";
+x3::rule<class udp_stmt, vast::gate_stmt> const udp_stmt = "gate";
+x3::rule<class port_conn, vast::port_conn> const port_conn = "port connection";
+x3::rule<class mod_inst, vast::mod_inst> const mod_inst = "instance";
+x3::rule<class inst_stmt, vast::inst_stmt> const inst_stmt = "instance";
+statement_type const statement_rule = "statement";
+
+auto const ident_raw_def = x3::raw[x3::lexeme[id_chars]];
+auto const ident_def = ident_raw[detail::set_ident];
+auto const kind_raw_def = x3::raw[x3::lexeme[primitive_table >> word_end]];
+auto const gate_kind_def = kind_raw[detail::set_raw];
+auto const number_def = x3::lexeme[+x3::digit >> -('.' >> +x3::digit)];
+auto const based_def = x3::lexeme[*x3::digit >> '\'' >> x3::char_("bB") > +x3::char_("01xXzZ_")];
+auto const select_def = '[' > x3::int_ > -(':' > x3::int_) > ']';
+auto const range_syn_def = '[' > x3::int_ > ':' > x3::int_ > ']';
+auto const range_raw_def = x3::raw[range_syn];
+auto const range__def = range_raw[detail::set_raw];
+auto const term_raw_def = x3::raw[based | (ident_raw >> -select)];
+auto const term_def = term_raw[detail::set_raw];
+auto const conn_def = ('{' > (term % ',') > '}') | x3::repeat(1)[term];
+auto const mtm_def = number >> -(':' > number > ':' > number);
+auto const delay_raw_def = x3::raw['#' > (number | ('(' > (mtm % ',') > ')'))];
+auto const delay_def = delay_raw[detail::set_raw];
+auto const primary_def = term | ('(' > cond_e > ')');
+auto const unary_def = *x3::lit('~') >> primary;
+auto const and_e_def = unary >> *((x3::lit('&') >> !x3::lit('&')) > unary);
+auto const xor_e_def = and_e >> *((x3::lit("~^") | x3::lit("^~") | x3::lit('^')) > and_e);
+auto const or_e_def = xor_e >> *((x3::lit('|') >> !x3::lit('|')) > xor_e);
+auto const cond_e_def = or_e >> -('?' > cond_e > ':' > cond_e);
+auto const expr_raw_def = x3::raw[cond_e];
+auto const expr_def = expr_raw[detail::set_raw];
+
+auto const dir_word_def = x3::lexeme[(x3::string("input") | x3::string("output")) >> word_end];
+auto const port_item_def = -dir_word >> x3::omit[-kw("wire")] >> -range_ >> ident;
+auto const module_hdr_def = kw("module") > ident > -('(' > -(port_item % ',') > ')');
+auto const decl_kind_def =
+    x3::lexeme[(x3::string("input") | x3::string("output") | x3::string("wire")) >> word_end];
+auto const decl_stmt_def = decl_kind >> x3::omit[-kw("wire")] >> -range_ > (ident % ',');
+auto const assign_item_def = conn > '=' > expr;
+auto const assign_stmt_def = kw("assign") > -delay > (assign_item % ',');
+auto const gate_inst_def = -ident >> '(' > (conn % ',') > ')';
+auto const gate_stmt_def = gate_kind > -delay > (gate_inst % ',');
+// An instance of a user-defined primitive with a delay (without one it reads as a module instance).
+auto const udp_stmt_def = ident >> &x3::lit('#') >> -delay > (gate_inst % ',');
+auto const port_conn_def =
+    ('.' > ident > '(' > -conn > ')') | (x3::attr(boost::optional<vast::raw>()) >> conn);
+auto const mod_inst_def = ident > '(' > -(port_conn % ',') > ')';
+auto const inst_stmt_def = ident >> &(x3::alpha | '_') > (mod_inst % ',');
+auto const statement_rule_def = module_hdr | decl_stmt | assign_stmt | gate_stmt | udp_stmt | inst_stmt;
+
+BOOST_SPIRIT_DEFINE(ident_raw, ident, kind_raw, gate_kind, number, based, select, range_syn,
+                    range_raw, range_, term_raw, term, conn, mtm, delay_raw, delay, primary, unary,
+                    and_e, xor_e, or_e, cond_e, expr_raw, expr, dir_word, port_item, module_hdr,
+                    decl_kind, decl_stmt, assign_item, assign_stmt, gate_inst, gate_stmt, udp_stmt, port_conn,
+                    mod_inst, inst_stmt, statement_rule)
+
+}  // namespace settle::vgrammar
+
+namespace boost::spirit::x3 {
+template <>
+struct get_info<settle::vgrammar::vkw_parser> {
+  using result_type = std::string;
+  std::string operator()(settle::vgrammar::vkw_parser const& p) const {
+    return "'" + std::string(p.word) + "'";
+  }
+};
+}  // namespace boost::spirit::x3
+
+namespace settle::vgrammar {
+inline statement_type const& statement() { return statement_rule; }
+}  // namespace settle::vgrammar
