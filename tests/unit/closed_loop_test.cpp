@@ -259,11 +259,12 @@ TEST_CASE("rule delays are corner variables", "[closed]") {
     CHECK(g.min == (600 + e) * 1000);
     CHECK(g.max == (600 + e) * 1000);
   }
-  // extremes: the rule is the variable after the one gate.
-  CHECK(delay_variables(d) == 3);
+  // extremes: the gate's delay is fixed, so it is no variable; the ranged
+  // rule is variable 0 and the other rule (fixed at 0) none.
+  CHECK(delay_variables(d) == 1);
   corner c;
   c.what = corner::kind::extremes;
-  c.index = 3 + 2 * 1;  // the rule at max, the gate at min
+  c.index = 3 + 2 * 0;  // the rule at max
   CHECK(gauge_named(d, run_at(d, c), "cycle").min == (600 + 400) * 1000);
   // random: a fresh draw every firing, and the corner replays exactly.
   c.what = corner::kind::random;
