@@ -385,6 +385,7 @@ class driver {
       r.transitions.push_back(sim_.toggle_count(result_.reported[i]) - tog_start[i]);
     }
     check_expectations(spec, r, glitch_tog, glitch_start);
+    if (!opt_.allow_x && r.status != step_status::oscillating) r.unknown = unknown_at_end(&spec, result_.reported, r.values);
     ref_ = r.end;
     result_.steps.push_back(std::move(r));
   }

@@ -73,6 +73,10 @@ struct step_result {
   std::vector<std::uint32_t> transitions;///< per reported net, within the step
   std::vector<expect_result> expects;
   std::vector<owed_rule> owed;           ///< deadlock only
+  /// Reported nets at x at the end of the step that the step does not expect
+  /// at x (`expect NET = x`); empty for an oscillating step and under
+  /// run_options::allow_x. A finding.
+  std::vector<net_id> unknown;
   bool pass() const;  ///< no finding in this step
   std::uint64_t events = 0;  ///< value changes applied within the step
   /// A settle step whose net values at an instant equalled those at an
@@ -102,6 +106,7 @@ struct gauge_result {
 struct run_options {
   time_fs horizon = 0;          ///< 0: 10,000 x the largest gate max delay
   std::uint64_t max_events = 0; ///< 0: unlimited
+  bool allow_x = false;         ///< --allow-x: a net at x at the end of a step is no finding
   /// When set and true, the run stops at the next instant as if the event
   /// limit were reached (interruption, wall-clock timeout); may be null.
   const std::atomic<bool>* stop = nullptr;
@@ -120,6 +125,11 @@ struct run_result {
   std::optional<diagnostic> error;
   bool pass() const;  ///< every step passes and every property holds
 };
+
+/// The nets of `reported` whose `values` are x, less those `spec` expects
+/// at x (`expect NET = x`; spec may be null): what step_result::unknown lists.
+std::vector<net_id> unknown_at_end(const step_spec* spec, std::span<const net_id> reported,
+                                   std::span<const logic> values);
 
 class simulator;
 

@@ -164,4 +164,10 @@ void netlist::finish() {
   fanout_begin[nets] = static_cast<std::uint32_t>(fanout.size());
 }
 
+std::string netlist::names_of(const std::vector<net_id>& nets) const {
+  std::string out;
+  for (net_id id : nets) out += (out.empty() ? "" : ", ") + net_name[id];
+  return out;
+}
+
 }  // namespace settle

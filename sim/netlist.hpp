@@ -196,6 +196,8 @@ struct netlist {
   time_fs largest_max_delay() const;
   /// Smallest nonzero min delay over all gates and edges (0 when there is none).
   time_fs smallest_min_delay() const;
+  /// The names of `nets` joined by ", " ("ack, req").
+  std::string names_of(const std::vector<net_id>& nets) const;
 
   /// Creates the two constant nets (ids 0 and 1) and the top scope; call first.
   void begin();

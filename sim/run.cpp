@@ -17,7 +17,21 @@ const char* status_name(step_status s) {
   return "?";
 }
 
+std::vector<net_id> unknown_at_end(const step_spec* spec, std::span<const net_id> reported,
+                                   std::span<const logic> values) {
+  std::vector<net_id> out;
+  for (std::size_t i = 0; i < reported.size() && i < values.size(); ++i) {
+    if (values[i] != logic::x) continue;
+    const bool expected = spec && std::any_of(spec->expects.begin(), spec->expects.end(), [&](const expectation& e) {
+      return e.what == expectation::kind::value && e.net == reported[i] && e.want == logic::x;
+    });
+    if (!expected) out.push_back(reported[i]);
+  }
+  return out;
+}
+
 bool step_result::pass() const {
+  if (!unknown.empty()) return false;
   bool expected_oscillation = false;
   for (const auto& e : expects) {
     if (!e.pass) return false;

@@ -250,6 +250,8 @@ std::vector<sweep_outcome> group_step(const sweep_plan& plan, std::size_t steps,
 bool step_passes(const sweep_step& st) {
   for (const auto& e : st.expects)
     if (!e.pass()) return false;
+  for (const auto& o : st.outcomes)
+    if (!o.unknown.empty()) return false;
   switch (st.verdict) {
     case sweep_verdict::deterministic: return true;
     case sweep_verdict::nondeterministic: return st.run_step;  // a `run` window samples a moving circuit
@@ -487,6 +489,9 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
     st.outcomes = group_step(plan, steps, k, outcome_of, settle_of, registry, finished_corner, res.corners,
                              sampled_outcomes);
     st.verdict = verdict_of(st.outcomes);
+    if (!opt.run.allow_x)
+      for (auto& o : st.outcomes)
+        if (o.status != step_status::oscillating) o.unknown = unknown_at_end(spec, res.reported, o.values);
     if (divergence) st.inherits = divergence;
     // A step every corner deadlocks in has not diverged: it is stuck alike everywhere.
     else if (st.verdict != sweep_verdict::deterministic && st.verdict != sweep_verdict::deadlock)

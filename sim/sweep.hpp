@@ -111,6 +111,9 @@ struct sweep_outcome {
   std::vector<time_fs> settle_times;  ///< its corners' settle times, ascending (for histograms)
   /// deadlock only: the rules owed at the witness corner (replayed once the corners ran).
   std::vector<owed_rule> owed;
+  /// Reported nets at x at the end that the step does not expect at x
+  /// (step_result::unknown; empty when oscillating or under --allow-x). A finding.
+  std::vector<net_id> unknown;
   /// timeout only, at the witness corner (replayed once the corners ran, for
   /// the first 32 distinct timeout witnesses; `reached` stays 0 beyond): the
   /// time from the step's start to where it stopped, the value changes it

@@ -158,6 +158,10 @@ junit_suite junit_of_run(const design& d, const run_result& r, const std::string
     else if (bad_status)
       c.failures.push_back({fmt::format("step {} is {} at corner {}", st.index, status_name(st.status), corner),
                             "status", fmt::format("corner: {}\nreplay: {}\n", corner, replay(corner))});
+    if (!st.unknown.empty())
+      c.failures.push_back({fmt::format("step {} ends with {} at x at corner {}", st.index,
+                                        d.nets.names_of(st.unknown), corner),
+                            "unknown", fmt::format("corner: {}\nreplay: {}\n", corner, replay(corner))});
     s.cases.push_back(std::move(c));
     for (const auto& x : st.expects) {
       auto e = make_case(cls, fmt::format("step {}: {}", st.index, expectation_words(d.nets, *x.spec)));
@@ -233,6 +237,12 @@ junit_suite junit_of_sweep(const design& d, const sweep_result& r, const replay_
                                           r.corners),
                               "verdict", text});
     }
+    for (const auto& o : st.outcomes)
+      if (!o.unknown.empty())
+        c.failures.push_back({fmt::format("step {} ends with {} at x in {} of {} corners; first at {}", st.index,
+                                          d.nets.names_of(o.unknown), o.count, r.corners, o.witness_name),
+                              "unknown", fmt::format("witness: {}\nreplay: {}\n", o.witness_name,
+                                                     replay(o.witness_name))});
     s.cases.push_back(std::move(c));
     for (const auto& x : st.expects) {
       const std::string words = x.spec ? expectation_words(d.nets, *x.spec) : std::string("expectation");

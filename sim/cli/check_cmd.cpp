@@ -5,6 +5,8 @@
 
 #include <CLI/CLI.hpp>
 #include <fmt/format.h>
+#include <fmt/ranges.h>
+#include <spdlog/spdlog.h>
 #include <nlohmann/json.hpp>
 
 #include "sim/cli/command.hpp"
@@ -22,6 +24,7 @@ struct check_options {
 struct loop_info {
   std::size_t size = 0;
   std::vector<std::string> nets;  // every member's output net, sorted by name
+  bool zero_delay = false;        // every member's delays are 0 on both edges
 };
 
 // Loops sorted by size (largest first), then by their first net name.
@@ -30,7 +33,11 @@ std::vector<loop_info> loops_of(const netlist& n) {
   for (const auto& scc : feedback_loops(n)) {
     loop_info l;
     l.size = scc.size();
-    for (gate_id g : scc) l.nets.push_back(n.gate_name(g));
+    l.zero_delay = true;
+    for (gate_id g : scc) {
+      l.nets.push_back(n.gate_name(g));
+      l.zero_delay = l.zero_delay && n.delay[g].rise.max == 0 && n.delay[g].fall.max == 0;
+    }
     std::sort(l.nets.begin(), l.nets.end());
     loops.push_back(std::move(l));
   }
@@ -54,6 +61,14 @@ exit_status run_check(const check_options& o) {
   const auto loops = loops_of(n);
   const std::size_t nets = n.net_count() >= 2 ? n.net_count() - 2 : 0;
   const bool imported = !d->source.format.empty() && d->source.format != "settle";
+  // A loop with no delay anywhere can change without end inside one instant:
+  // no time passes between its changes, so no waveform or period means anything.
+  for (const auto& l : loops)
+    if (l.zero_delay)
+      spdlog::warn("{}: feedback loop of {} gate{} ({}{}) has zero delay on every gate; give one of them a delay",
+                   d->path, l.size, l.size == 1 ? "" : "s",
+                   fmt::join(l.nets.begin(), l.nets.begin() + std::min(l.nets.size(), shown_members), ", "),
+                   l.nets.size() > shown_members ? ", ..." : "");
 
   if (!o.json.empty()) {
     nlohmann::ordered_json j = report_head(d->path);
@@ -71,6 +86,7 @@ exit_status run_check(const check_options& o) {
       nlohmann::ordered_json e;
       e["size"] = l.size;
       e["nets"] = std::vector<std::string>(l.nets.begin(), l.nets.begin() + std::min(l.nets.size(), shown_members));
+      e["zero_delay"] = l.zero_delay;
       j["loops"].push_back(std::move(e));
     }
     if (imported) {

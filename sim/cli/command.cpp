@@ -138,7 +138,7 @@ std::optional<design> load(const design_options& o, bool empty_ok) {
 }
 
 std::string replay_command(const design_options& o, const std::string& corner, const std::string& horizon,
-                           std::uint64_t max_events) {
+                           std::uint64_t max_events, bool allow_x) {
   auto word = [](const std::string& w) {
     const bool plain = !w.empty() && w[0] != '#' &&
                        w.find_first_not_of("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz"
@@ -157,7 +157,13 @@ std::string replay_command(const design_options& o, const std::string& corner, c
   cmd += " --corner " + word(corner);
   if (!horizon.empty()) cmd += " --horizon " + word(horizon);
   if (max_events) cmd += fmt::format(" --max-events {}", max_events);
+  if (allow_x) cmd += " --allow-x";
   return cmd;
+}
+
+void add_allow_x_flag(CLI::App& cmd, bool& allow_x) {
+  cmd.add_flag("--allow-x", allow_x,
+               "do not count an output or watched net left at x at the end of a step as a finding");
 }
 
 bool use_colour(int fd) {

@@ -53,9 +53,12 @@ CLI::Validator one_of(std::vector<std::string> words);
 
 /// The `settle run` command line that replays `corner` of this design (words
 /// the shell would change are single-quoted); empty `horizon` and zero
-/// `max_events` are left out.
+/// `max_events` are left out; `allow_x` adds --allow-x.
 std::string replay_command(const design_options& o, const std::string& corner, const std::string& horizon = "",
-                           std::uint64_t max_events = 0);
+                           std::uint64_t max_events = 0, bool allow_x = false);
+
+/// --allow-x on run, sweep and margin: a net at x at the end of a step is no finding.
+void add_allow_x_flag(CLI::App& cmd, bool& allow_x);
 
 /// Prints diagnostics on stderr: at most `max_errors` errors and
 /// `max_warnings` warnings (with their notes), then one line per kind saying

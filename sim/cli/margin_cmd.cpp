@@ -38,11 +38,12 @@ struct margin_cli_options {
   double timeout_s = 0;  ///< --timeout: wall-clock budget of the whole search (0: none)
   std::uint64_t max_memory_mib = sweep_default_max_memory_mib;  ///< --max-memory
   std::string json, baseline, junit, horizon, html;
+  bool allow_x = false;  ///< --allow-x
   bool update_baseline = false, no_culprits = false, quiet = false;
 };
 
 std::string replay(const margin_cli_options& o, const std::string& corner) {
-  return replay_command(o.design, corner, o.horizon);
+  return replay_command(o.design, corner, o.horizon, 0, o.allow_x);
 }
 
 std::string pct_words(double w, bool at_least) { return (at_least ? ">= " : "") + spread_percent(w); }
@@ -339,6 +340,7 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   mo.ceiling_pct = o.ceiling;
   mo.culprits = !o.no_culprits;
   if (!parse_horizon_option(o.horizon, mo.run.horizon)) return exit_status::error;
+  mo.run.allow_x = o.allow_x;
   // Read the baseline before the search, so a bad file fails fast.
   std::optional<baseline_file> before;
   if (!o.baseline.empty()) {
@@ -513,6 +515,7 @@ void add_margin(CLI::App& app, exit_status& status) {
                       "margins found so far are reported and the command exits 1"),
       0, "the timeout in seconds");
   add_junit_option(*cmd, o->junit);
+  add_allow_x_flag(*cmd, o->allow_x);
   add_max_memory_option(*cmd, o->max_memory_mib);
   check_output_path(cmd->add_option(
       "--html", o->html,

@@ -112,6 +112,12 @@ std::string mark(std::string_view word, bool good, bool colour) {
       "{}", text);
 }
 
+nlohmann::ordered_json net_names_json(const netlist& n, const std::vector<net_id>& nets) {
+  auto j = nlohmann::ordered_json::array();
+  for (net_id id : nets) j.push_back(n.net_name[id]);
+  return j;
+}
+
 std::string values_repeat_words(time_fs at, time_fs period) {
   if (!period) return "";
   return fmt::format(

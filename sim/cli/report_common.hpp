@@ -60,6 +60,11 @@ std::string timeout_words(time_fs reached, std::uint64_t events, time_fs values_
 /// Only the hint part (empty when the values never repeated).
 std::string values_repeat_words(time_fs values_repeat_at, time_fs values_period);
 
+/// What the `unknown` line says after the names: why it is a finding and the two ways to accept it.
+inline constexpr const char* unknown_words = "at x at the end of the step (accept it with 'expect NET = x' or --allow-x)";
+/// The JSON array of the names of `nets`.
+nlohmann::ordered_json net_names_json(const netlist& n, const std::vector<net_id>& nets);
+
 /// Seconds of wall-clock time since `t0`.
 double seconds_since(std::chrono::steady_clock::time_point t0);
 

@@ -27,6 +27,7 @@ struct run_cli_options {
   std::string vcd, vcd_nets = "all", json, horizon;
   std::string junit, html;
   std::uint64_t max_events = 0;
+  bool allow_x = false;  ///< --allow-x
   bool verbose = false, quiet = false;
 };
 
@@ -121,6 +122,7 @@ std::string result_json(const design& d, const run_result& r, const std::string&
                               {"times", o.times},
                               {"condition", logic_text(o.condition)}});
     }
+    st["unknown"] = net_names_json(n, s.unknown);
     st["values"] = nlohmann::ordered_json::object();
     st["transitions"] = nlohmann::ordered_json::object();
     st["glitches"] = nlohmann::ordered_json::object();
@@ -222,6 +224,8 @@ std::string table(const design& d, const run_result& r, const std::string& corne
     for (const auto& o : s.owed)
       out += fmt::format("  owed    {}: fired {} of {}, condition {}\n", d.stim.rules[o.rule].text, o.fired,
                          o.times, to_char(o.condition));
+    if (!s.unknown.empty())
+      out += fmt::format("  {}  {} {}\n", paint("UNKNOWN", false), n.names_of(s.unknown), unknown_words);
     if (!r.reported.empty()) {
       out += fmt::format("  {:<{}}  start  end  transitions  glitches\n", "net", width);
       for (std::size_t i = 0; i < r.reported.size(); ++i)
@@ -292,6 +296,7 @@ exit_status run_run(const run_cli_options& o) {
   }
   run_options ro;
   ro.max_events = o.max_events;
+  ro.allow_x = o.allow_x;
   if (!parse_horizon_option(o.horizon, ro.horizon)) return exit_status::error;
   auto d = load(o.design);
   if (!d) return exit_status::error;
@@ -341,7 +346,7 @@ exit_status run_run(const run_cli_options& o) {
   if (!o.json.empty() && !outs.put(o.json, json())) return exit_status::error;
   if (!o.junit.empty()) {
     const auto replay = [&](const std::string& corner) {
-      return replay_command(o.design, corner, o.horizon, o.max_events);
+      return replay_command(o.design, corner, o.horizon, o.max_events, o.allow_x);
     };
     if (!outs.put(o.junit, junit_xml({junit_of_run(*d, r, c->name(), replay, wall)})))
       return exit_status::error;
@@ -377,6 +382,7 @@ void add_run(CLI::App& app, exit_status& status) {
       cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)"), 0,
       UINT64_MAX, "the event limit");
   add_junit_option(*cmd, o->junit);
+  add_allow_x_flag(*cmd, o->allow_x);
   check_output_path(cmd->add_option(
       "--html", o->html,
       "write a self-contained HTML report with the waveforms of every step to PATH"));

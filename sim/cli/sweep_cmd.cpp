@@ -36,6 +36,7 @@ struct sweep_cli_options {
   std::string json, vcd_dir, horizon;
   std::string junit, html;
   std::uint64_t max_events = 0;
+  bool allow_x = false;  ///< --allow-x
   double timeout_s = 0;  ///< --timeout: wall-clock budget in seconds (0: none)
   std::uint64_t max_memory_mib = sweep_default_max_memory_mib;  ///< --max-memory
   bool quiet = false;
@@ -65,7 +66,7 @@ const char* outcome_times_key(step_status s) {
 
 // The command that replays one corner with `settle run`.
 std::string replay(const sweep_cli_options& o, const std::string& corner) {
-  return replay_command(o.design, corner, o.horizon, o.max_events);
+  return replay_command(o.design, corner, o.horizon, o.max_events, o.allow_x);
 }
 
 nlohmann::ordered_json values_json(const netlist& n, const std::vector<net_id>& reported,
@@ -173,6 +174,7 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
             timeout_words(out.reached, out.events, out.values_repeat_at, out.values_period);
       }
       if (out.status == step_status::deadlock) e["owed"] = owed_json(d, out.owed);
+      e["unknown"] = net_names_json(n, out.unknown);
       st["outcomes"].push_back(std::move(e));
     }
     if (s.unseen_outcome_bound) st["unseen_outcome_bound"] = *s.unseen_outcome_bound;
@@ -361,6 +363,8 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
       for (std::size_t k = 0; k < r.reported.size() && k < oc.values.size(); ++k)
         vals += fmt::format("{}{}={}", k ? " " : "", n.net_name[r.reported[k]], to_char(oc.values[k]));
       if (!vals.empty()) out += fmt::format("       values  {}\n", vals);
+      if (!oc.unknown.empty())
+        out += fmt::format("       {}  {} {}\n", paint("UNKNOWN", false), n.names_of(oc.unknown), unknown_words);
       if (oc.end_of_time) out += fmt::format("       reason  {}\n", end_of_time_words);
       else if (oc.status == step_status::timeout && oc.reached)
         out += fmt::format(
@@ -480,6 +484,7 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   std::string err;
   run_options ro;
   ro.max_events = o.max_events;
+  ro.allow_x = o.allow_x;
   if (!parse_horizon_option(o.horizon, ro.horizon)) return exit_status::error;
   auto d = load(o.design);
   if (!d) return exit_status::error;
@@ -508,7 +513,7 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   if (r.error) {
     std::fputs(format_diagnostic(*r.error).c_str(), stderr);
     spdlog::error("the stimulus cannot go on at corner {} (replay: {})", plan->corner_at(r.error_corner).name(),
-                  replay_command(o.design, plan->corner_at(r.error_corner).name(), o.horizon, o.max_events));
+                  replay_command(o.design, plan->corner_at(r.error_corner).name(), o.horizon, o.max_events, o.allow_x));
     return exit_status::error;
   }
 
@@ -583,6 +588,7 @@ void add_sweep(CLI::App& app, exit_status& status) {
       0, "the timeout in seconds");
   add_max_memory_option(*cmd, o->max_memory_mib);
   add_junit_option(*cmd, o->junit);
+  add_allow_x_flag(*cmd, o->allow_x);
   check_output_path(cmd->add_option(
       "--html", o->html,
       "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH"));

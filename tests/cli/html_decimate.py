@@ -126,6 +126,8 @@ try:
 
         # A sensor FIFO handshake probe (our own scenario): the sensor line is x
         # in step 1; `seen` follows it through a buffer, `idle` is 0 throughout.
+        # Step 1 says `expect seen = x`: an output left at x is a finding unless
+        # the step expects it (issue 16).
         probe = write("probe.settle", """# sensor FIFO handshake probe: the sensor line floats until driven
 input  sensor, ready
 output seen, idle
@@ -135,6 +137,7 @@ init idle = 0
 stimulus {
     at 0ns sensor = x, ready = 1
     settle
+    expect seen = x
     after 1ns sensor = 1
     settle
 }
