@@ -7,8 +7,8 @@
 
 #include <benchmark/benchmark.h>
 
-#include "sim/design.hpp"
-#include "sim/kernel.hpp"
+#include "sim/model/design.hpp"
+#include "sim/kernel/run.hpp"
 
 namespace settle::bench {
 

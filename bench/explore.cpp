@@ -4,7 +4,7 @@
 #include <string>
 
 #include "bench/common.hpp"
-#include "sim/explore.hpp"
+#include "sim/analysis/explore.hpp"
 
 namespace settle::bench {
 namespace {

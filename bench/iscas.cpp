@@ -12,7 +12,7 @@
 
 #include "bench/common.hpp"
 #include "parser/load.hpp"
-#include "sim/corner.hpp"
+#include "sim/model/corner.hpp"
 
 namespace settle::bench {
 namespace {

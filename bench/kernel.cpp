@@ -4,7 +4,7 @@
 #include <string>
 
 #include "bench/common.hpp"
-#include "sim/corner.hpp"
+#include "sim/model/corner.hpp"
 
 namespace settle::bench {
 namespace {

@@ -6,8 +6,8 @@
 #include <string>
 
 #include "bench/common.hpp"
-#include "sim/simulator.hpp"
-#include "sim/sweep.hpp"
+#include "sim/kernel/simulator.hpp"
+#include "sim/analysis/sweep.hpp"
 
 namespace settle::bench {
 namespace {

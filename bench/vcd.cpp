@@ -10,7 +10,7 @@
 #include <string>
 
 #include "bench/common.hpp"
-#include "sim/corner.hpp"
+#include "sim/model/corner.hpp"
 #include "waves/vcd.hpp"
 
 namespace settle::bench {

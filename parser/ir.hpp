@@ -9,9 +9,9 @@
 #include <unordered_set>
 #include <vector>
 
-#include "sim/diagnostic.hpp"
-#include "sim/netlist.hpp"
-#include "sim/stimulus.hpp"
+#include "sim/model/diagnostic.hpp"
+#include "sim/model/netlist.hpp"
+#include "sim/model/stimulus.hpp"
 
 namespace settle::ir {
 

@@ -5,8 +5,8 @@
 #include <string>
 #include <string_view>
 
-#include "sim/design.hpp"
-#include "sim/diagnostic.hpp"
+#include "sim/model/design.hpp"
+#include "sim/model/diagnostic.hpp"
 
 namespace settle {
 

@@ -8,7 +8,7 @@
 
 #include "parser/parse.hpp"
 #include "parser/time_literal.hpp"
-#include "sim/time.hpp"
+#include "sim/model/time.hpp"
 
 namespace settle::ir {
 namespace {

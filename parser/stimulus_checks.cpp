@@ -6,7 +6,7 @@
 #include <tuple>
 
 #include "parser/ir.hpp"
-#include "sim/time.hpp"
+#include "sim/model/time.hpp"
 
 namespace settle::ir {
 namespace {

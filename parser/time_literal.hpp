@@ -4,7 +4,7 @@
 #include <string>
 #include <string_view>
 
-#include "sim/logic.hpp"
+#include "sim/model/logic.hpp"
 
 namespace settle {
 

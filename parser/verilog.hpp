@@ -6,8 +6,8 @@
 #include <string_view>
 
 #include "parser/load.hpp"
-#include "sim/design.hpp"
-#include "sim/diagnostic.hpp"
+#include "sim/model/design.hpp"
+#include "sim/model/diagnostic.hpp"
 
 namespace settle {
 

@@ -3,7 +3,7 @@
 
 #include <string>
 
-#include "sim/explore.hpp"
+#include "sim/analysis/explore.hpp"
 
 namespace settle {
 

@@ -6,12 +6,12 @@
 #include <string_view>
 #include <vector>
 
-#include "sim/corner.hpp"
-#include "sim/design.hpp"
-#include "sim/explore.hpp"
-#include "sim/kernel.hpp"
-#include "sim/margin.hpp"
-#include "sim/sweep.hpp"
+#include "sim/model/corner.hpp"
+#include "sim/model/design.hpp"
+#include "sim/analysis/explore.hpp"
+#include "sim/kernel/run.hpp"
+#include "sim/analysis/margin.hpp"
+#include "sim/analysis/sweep.hpp"
 
 namespace settle {
 

@@ -6,10 +6,10 @@
 #include <string_view>
 #include <vector>
 
-#include "sim/design.hpp"
-#include "sim/kernel.hpp"
-#include "sim/margin.hpp"
-#include "sim/sweep.hpp"
+#include "sim/model/design.hpp"
+#include "sim/kernel/run.hpp"
+#include "sim/analysis/margin.hpp"
+#include "sim/analysis/sweep.hpp"
 
 namespace settle {
 

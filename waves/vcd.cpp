@@ -12,7 +12,7 @@
 #include <string_view>
 #include <unordered_set>
 
-#include "sim/time.hpp"
+#include "sim/model/time.hpp"
 
 namespace settle {
 namespace {

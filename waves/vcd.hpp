@@ -8,8 +8,8 @@
 #include <string>
 #include <vector>
 
-#include "sim/design.hpp"
-#include "sim/kernel.hpp"
+#include "sim/model/design.hpp"
+#include "sim/kernel/run.hpp"
 
 namespace settle {
 

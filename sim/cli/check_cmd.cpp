@@ -11,7 +11,7 @@
 
 #include "sim/cli/command.hpp"
 #include "sim/cli/report_common.hpp"
-#include "sim/graph.hpp"
+#include "sim/analysis/graph.hpp"
 
 namespace settle::cli {
 namespace {

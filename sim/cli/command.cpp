@@ -14,7 +14,7 @@
 #include <fmt/format.h>
 #include <spdlog/spdlog.h>
 
-#include "sim/time_parse.hpp"
+#include "sim/model/time_parse.hpp"
 
 namespace settle::cli {
 namespace {

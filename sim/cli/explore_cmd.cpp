@@ -12,7 +12,7 @@
 
 #include "sim/cli/command.hpp"
 #include "sim/cli/report_common.hpp"
-#include "sim/explore.hpp"
+#include "sim/analysis/explore.hpp"
 #include "waves/html.hpp"
 #include "waves/dot.hpp"
 

@@ -14,13 +14,13 @@
 #include <nlohmann/json.hpp>
 #include <spdlog/spdlog.h>
 
-#include "sim/baseline.hpp"
-#include "sim/baseline_store.hpp"
+#include "sim/analysis/baseline.hpp"
+#include "sim/analysis/baseline_store.hpp"
 #include "sim/cli/command.hpp"
 #include "sim/cli/interrupt.hpp"
 #include "sim/cli/report_common.hpp"
-#include "sim/margin.hpp"
-#include "sim/time_parse.hpp"
+#include "sim/analysis/margin.hpp"
+#include "sim/model/time_parse.hpp"
 #include "waves/html.hpp"
 #include "waves/junit.hpp"
 

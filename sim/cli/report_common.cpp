@@ -12,9 +12,9 @@
 #include <cmath>
 #include <cstdlib>
 
-#include "sim/sweep.hpp"
-#include "sim/time.hpp"
-#include "sim/time_parse.hpp"
+#include "sim/analysis/sweep.hpp"
+#include "sim/model/time.hpp"
+#include "sim/model/time_parse.hpp"
 
 namespace settle::cli {
 

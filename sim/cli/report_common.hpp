@@ -6,9 +6,9 @@
 #include <string>
 #include <string_view>
 
-#include "sim/logic.hpp"
-#include "sim/netlist.hpp"
-#include "sim/stimulus.hpp"
+#include "sim/model/logic.hpp"
+#include "sim/model/netlist.hpp"
+#include "sim/model/stimulus.hpp"
 
 namespace CLI {
 class App;

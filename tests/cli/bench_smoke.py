@@ -120,7 +120,7 @@ def with_settle_binary(tmp):
         positive(s, "events", f"sweep {t}")
         if not isinstance(s.get("wall_s"), (int, float)):
             fail(f"sweep {t}: wall_s = {s.get('wall_s')!r}")
-    # sim/sweep.hpp: the result is the same whatever the thread count, apart from wall_s and threads.
+    # sim/analysis/sweep.hpp: the result is the same whatever the thread count, apart from wall_s and threads.
     if sweeps[1].get("events") != sweeps[2].get("events") or sweeps[1].get("steps") != sweeps[2].get("steps"):
         fail("sweep: 1 and 2 threads disagree on events or steps")
 

@@ -5,8 +5,8 @@
 #include <string_view>
 
 #include "parser/load.hpp"
-#include "sim/corner.hpp"
-#include "sim/kernel.hpp"
+#include "sim/model/corner.hpp"
+#include "sim/kernel/run.hpp"
 
 namespace {
 

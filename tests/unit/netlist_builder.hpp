@@ -6,7 +6,7 @@
 #include <utility>
 #include <vector>
 
-#include "sim/design.hpp"
+#include "sim/model/design.hpp"
 
 namespace settle::testing {
 

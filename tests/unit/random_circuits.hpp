@@ -5,7 +5,7 @@
 #include <string>
 #include <vector>
 
-#include "sim/design.hpp"
+#include "sim/model/design.hpp"
 
 namespace settle::testing {
 

@@ -1,0 +1,233 @@
+// Corner names and the counter-based delay draws behind them.
+#include "sim/model/corner.hpp"
+
+#include <charconv>
+#include <cmath>
+
+#include <fmt/format.h>
+
+namespace settle {
+namespace {
+
+// splitmix64's finaliser: a strong 64-bit mixer (Steele, Lea and Flood 2014).
+constexpr std::uint64_t mix(std::uint64_t z) {
+  z += 0x9e3779b97f4a7c15ull;
+  z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ull;
+  z = (z ^ (z >> 27)) * 0x94d049bb133111ebull;
+  return z ^ (z >> 31);
+}
+
+// A draw that depends on (seed, corner index, gate, edge, stream) alone: the
+// corner's key, mix(mix(seed) ^ index), is worked out once per corner.
+constexpr std::uint64_t corner_key(std::uint64_t seed, std::uint64_t index) { return mix(mix(seed) ^ index); }
+std::uint64_t draw(std::uint64_t key, gate_id g, int edge, int stream) {
+  return mix(key ^ (std::uint64_t{g} << 3 | std::uint64_t(edge) << 1 | stream));
+}
+
+// Uniform on [lo, hi] by a 128-bit multiply (no modulo bias worth naming).
+time_fs uniform(std::uint64_t h, time_fs lo, time_fs hi) {
+  const auto span = static_cast<unsigned __int128>(hi - lo) + 1;
+  return lo + static_cast<time_fs>((static_cast<unsigned __int128>(h) * span) >> 64);
+}
+
+double unit(std::uint64_t h) { return (static_cast<double>(h >> 11) + 0.5) * 0x1.0p-53; }
+
+// Truncated normal: mean typ, sigma (max - min) / 6, clipped to the range.
+time_fs gaussian(std::uint64_t h1, std::uint64_t h2, const delay_range& r) {
+  if (r.max == r.min) return r.min;
+  const double z = std::sqrt(-2.0 * std::log(unit(h1))) * std::cos(2 * M_PI * unit(h2));
+  const double v = static_cast<double>(r.typ) + z * static_cast<double>(r.max - r.min) / 6.0;
+  if (v <= static_cast<double>(r.min)) return r.min;
+  if (v >= static_cast<double>(r.max)) return r.max;
+  return static_cast<time_fs>(std::llround(v));
+}
+
+bool parse_u64(std::string_view s, std::uint64_t& out) {
+  if (s.empty()) return false;
+  auto [p, ec] = std::from_chars(s.data(), s.data() + s.size(), out);
+  return ec == std::errc{} && p == s.data() + s.size();
+}
+
+// Where variable `var` sits in corner `c`: min, max or typ (extremes#2). Only
+// extremes and exhaustive corners move a variable; the caller handles the rest.
+time_fs enumerated(const corner& c, std::uint64_t var, const delay_range& r) {
+  if (c.what == corner::kind::exhaustive) return (var < 64 && (c.index >> var & 1)) ? r.max : r.min;
+  // extremes: 0 all-min, 1 all-max, 2 typ, then per variable: it at max with
+  // the others at min, and it at min with the others at max.
+  if (c.index == 0) return r.min;
+  if (c.index == 1) return r.max;
+  if (c.index == 2) return r.typ;
+  const auto k = c.index - 3;
+  const bool self = k / 2 == var, slow_self = k % 2 == 0;
+  return self == slow_self ? r.max : r.min;
+}
+
+bool fixed(const delay_range& r) { return r.min == r.max; }
+
+}  // namespace
+
+gate_variables variables_of(const gate_delay& d) {
+  gate_variables v;
+  v.rise = !fixed(d.rise);
+  v.fall = !fixed(d.fall);
+  v.shared = v.rise && d.rise == d.fall;
+  return v;
+}
+
+std::size_t delay_variables(const design& d) {
+  std::size_t count = 0;
+  for (gate_id g = 0; g < d.nets.gate_count(); ++g) count += variables_of(d.nets.delay[g]).count();
+  for (const auto& r : d.stim.rules) count += !fixed(r.delay);
+  return count;
+}
+
+delay_range scaled(const delay_range& r, double spread) {
+  if (spread == 1.0) return r;
+  auto at = [&](time_fs end) {
+    const double v = static_cast<double>(r.typ) +
+                     spread * (static_cast<double>(end) - static_cast<double>(r.typ));
+    return v <= 0 ? time_fs{0} : static_cast<time_fs>(std::llround(v));
+  };
+  return {at(r.min), r.typ, at(r.max)};
+}
+
+std::string corner::name() const {
+  std::string base;
+  switch (what) {
+    case kind::min: base = "min"; break;
+    case kind::typ: base = "typ"; break;
+    case kind::max: base = "max"; break;
+    case kind::random: base = fmt::format("random:{}#{}", seed, index); break;
+    case kind::gauss: base = fmt::format("gauss:{}#{}", seed, index); break;
+    case kind::extremes: base = fmt::format("extremes#{}", index); break;
+    case kind::exhaustive: base = fmt::format("exhaustive#{}", index); break;
+  }
+  if (spread != 1.0) base += fmt::format("@{}", spread);
+  return base;
+}
+
+std::optional<corner> parse_corner(std::string_view text, std::string* error) {
+  corner c;
+  auto fail = [&](std::string why) -> std::optional<corner> {
+    if (error) *error = fmt::format("bad corner '{}': {}", text, why);
+    return std::nullopt;
+  };
+  std::string_view s = text;
+  if (auto at = s.find('@'); at != std::string_view::npos) {
+    std::string w(s.substr(at + 1));
+    char* end = nullptr;
+    c.spread = std::strtod(w.c_str(), &end);
+    if (w.empty() || *end || !(c.spread >= 0) || !std::isfinite(c.spread))
+      return fail("the spread after '@' must be a number >= 0");
+    s = s.substr(0, at);
+  }
+  if (s == "min") c.what = corner::kind::min;
+  else if (s == "typ") c.what = corner::kind::typ;
+  else if (s == "max") c.what = corner::kind::max;
+  else if (s.starts_with("random:") || s.starts_with("gauss:")) {
+    c.what = s[0] == 'r' ? corner::kind::random : corner::kind::gauss;
+    s.remove_prefix(s.find(':') + 1);
+    auto hash = s.find('#');
+    if (!parse_u64(s.substr(0, hash), c.seed))
+      return fail("expected a seed, a whole number from 0 to 18446744073709551615 (2^64-1), e.g. random:7 or "
+                  "random:7#3");
+    if (hash != std::string_view::npos && !parse_u64(s.substr(hash + 1), c.index))
+      return fail("expected a corner number after '#'");
+  } else if (s.starts_with("extremes#") || s.starts_with("exhaustive#")) {
+    c.what = s[1] == 'x' && s[2] == 't' ? corner::kind::extremes : corner::kind::exhaustive;
+    if (!parse_u64(s.substr(s.find('#') + 1), c.index)) return fail("expected a corner number after '#'");
+  } else {
+    return fail("expected min, typ, max, random:SEED[#i], gauss:SEED[#i], extremes#k or exhaustive#k");
+  }
+  return c;
+}
+
+std::string corner_range_error(const corner& c, std::size_t variables) {
+  const auto g = static_cast<std::uint64_t>(variables);
+  if (c.what == corner::kind::extremes) {
+    const std::uint64_t count = 3 + 2 * g;  // all-min, all-max, typ, then two per variable
+    if (c.index < count) return "";
+    return fmt::format("this design has {} extremes corners, numbered 0..{}", count, count - 1);
+  }
+  if (c.what == corner::kind::exhaustive) {
+    if (g >= 64) return "";  // every 64-bit number names one
+    const std::uint64_t count = std::uint64_t{1} << g;
+    if (c.index < count) return "";
+    return fmt::format("this design's {} delay variable{} give {} exhaustive corners, numbered 0..{}", g,
+                       g == 1 ? "" : "s", count, count - 1);
+  }
+  return "";
+}
+
+time_fs rule_delay(const delay_table& t, const delay_range& range, std::uint32_t rule, std::uint64_t firing) {
+  const corner& c = t.which;
+  const delay_range r = scaled(range, c.spread);
+  // A stream of its own: the rule's draws never meet a gate's.
+  const std::uint64_t key = mix(corner_key(c.seed, c.index) ^ mix(0x72756c65ull + rule));
+  switch (c.what) {
+    case corner::kind::min: return r.min;
+    case corner::kind::typ: return r.typ;
+    case corner::kind::max: return r.max;
+    case corner::kind::random: return uniform(mix(key ^ (firing << 1)), r.min, r.max);
+    case corner::kind::gauss: return gaussian(mix(key ^ (firing << 1)), mix(key ^ (firing << 1 | 1)), r);
+    case corner::kind::extremes:
+    case corner::kind::exhaustive: {
+      if (fixed(r)) return r.min;
+      // A table filled from the netlist alone numbers rules after the gates in order.
+      const std::uint64_t var = rule < t.rule_var.size() ? t.rule_var[rule] : t.gate_vars + rule;
+      return enumerated(c, var, r);
+    }
+  }
+  return r.typ;
+}
+
+void fill_delays(const netlist& n, const corner& c, delay_table& out) {
+  const auto gates = n.gate_count();
+  out.which = c;
+  out.rule_var.clear();
+  const std::uint64_t key = corner_key(c.seed, c.index);
+  out.rise.resize(gates);
+  out.fall.resize(gates);
+  const bool enumerating = c.what == corner::kind::extremes || c.what == corner::kind::exhaustive;
+  std::uint64_t var = 0;  // the next corner variable's number
+  for (gate_id g = 0; g < gates; ++g) {
+    const gate_delay& d = n.delay[g];
+    const delay_range rise = scaled(d.rise, c.spread);
+    const delay_range fall = scaled(d.fall, c.spread);
+    if (enumerating) {
+      const gate_variables v = variables_of(d);
+      const std::uint64_t rise_var = var;
+      if (v.rise) ++var;
+      const std::uint64_t fall_var = v.shared ? rise_var : var;
+      if (v.fall && !v.shared) ++var;
+      out.rise[g] = v.rise ? enumerated(c, rise_var, rise) : rise.min;
+      out.fall[g] = v.fall ? enumerated(c, fall_var, fall) : fall.min;
+      continue;
+    }
+    // Draws are keyed by (gate, edge), not by variable: a random corner's
+    // name means the same delays whatever the other gates are.
+    auto pick = [&](const delay_range& r, int edge) -> time_fs {
+      switch (c.what) {
+        case corner::kind::min: return r.min;
+        case corner::kind::max: return r.max;
+        case corner::kind::random: return uniform(draw(key, g, edge, 0), r.min, r.max);
+        case corner::kind::gauss: return gaussian(draw(key, g, edge, 0), draw(key, g, edge, 1), r);
+        default: return r.typ;
+      }
+    };
+    out.rise[g] = pick(rise, 0);
+    out.fall[g] = pick(fall, 1);
+  }
+  out.gate_vars = var;
+}
+
+void fill_delays(const design& d, const corner& c, delay_table& out) {
+  fill_delays(d.nets, c, out);
+  if (c.what != corner::kind::extremes && c.what != corner::kind::exhaustive) return;
+  std::uint64_t var = out.gate_vars;
+  out.rule_var.resize(d.stim.rules.size());
+  for (std::size_t i = 0; i < d.stim.rules.size(); ++i)
+    out.rule_var[i] = fixed(d.stim.rules[i].delay) ? delay_table::none_var : var++;
+}
+
+}  // namespace settle

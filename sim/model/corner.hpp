@@ -1,0 +1,82 @@
+// Delay corners: which concrete delay every gate gets in one run.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "sim/model/design.hpp"
+#include "sim/model/netlist.hpp"
+
+namespace settle {
+
+/// The corner variables of one gate: the delays `extremes` and `exhaustive`
+/// move between min and max. A fixed edge (min = max) is no variable. When
+/// rise and fall share one range (a gate written with a single range) one
+/// variable moves both; otherwise each edge whose range is not fixed is a
+/// variable of its own, so rise-max with fall-min is a corner.
+struct gate_variables {
+  bool rise = false, fall = false;  ///< which edges are variables
+  bool shared = false;              ///< rise and fall are one variable (counted once)
+  std::uint32_t count() const { return shared ? 1u : unsigned(rise) + unsigned(fall); }
+};
+gate_variables variables_of(const gate_delay& d);
+
+/// The delay variables a corner sets, numbered in this order: each gate's
+/// (variables_of), then each reaction rule whose delay is a range (a fixed
+/// `after` is no variable). What `extremes` and `exhaustive` enumerate.
+std::size_t delay_variables(const design& d);
+
+/// A named corner. Names print and parse back exactly:
+/// "min", "max", "typ", "random:S" (= "random:S#0"), "random:S#i",
+/// "gauss:S#i", "extremes#k", "exhaustive#k".
+struct corner {
+  enum class kind : std::uint8_t { min, typ, max, random, gauss, extremes, exhaustive } what = kind::typ;
+  std::uint64_t seed = 0;
+  std::uint64_t index = 0;
+  double spread = 1.0;  ///< ranges scaled about typ by this factor (1 = as written)
+
+  std::string name() const;
+};
+
+/// Parses a corner name; on failure returns nullopt and sets *error.
+std::optional<corner> parse_corner(std::string_view text, std::string* error);
+
+/// Empty when corner `c` exists for a design of `variables` delay variables
+/// (its gates and reaction rules, delay_variables); otherwise why not, with
+/// the valid range ("this design has 11 extremes corners, numbered 0..10").
+/// extremes#k exists for k < 3 + 2 x variables, exhaustive#k for
+/// k < 2^variables; min, typ, max and the sampled corners always exist.
+std::string corner_range_error(const corner& c, std::size_t variables);
+
+/// Concrete delays per gate, one table per run. It also records the corner,
+/// which reaction rules' delays are drawn from (rule_delay), and each rule's
+/// number among the corner variables (a fixed rule has none).
+struct delay_table {
+  std::vector<time_fs> rise, fall;
+  corner which;
+  std::uint64_t gate_vars = 0;           ///< corner variables of the gates
+  std::vector<std::uint64_t> rule_var;   ///< per rule; none_var for a fixed delay
+  static constexpr std::uint64_t none_var = ~std::uint64_t{0};
+};
+
+/// The delay of firing `firing` (0-based) of reaction rule `rule` whose range
+/// is `r`, at the corner `t` was filled for. A rule with a range is one more
+/// corner variable after the gates' (t.rule_var); `random:` and `gauss:` draw
+/// afresh for every firing from the corner's counter-based stream, so the
+/// corner replays exactly.
+time_fs rule_delay(const delay_table& t, const delay_range& r, std::uint32_t rule, std::uint64_t firing);
+
+/// Fills `out` with the delays corner `c` gives every gate of `n`. Depends on
+/// (corner, gate index) alone, so any thread computes the same table.
+/// `random:` and `gauss:` draw each gate's rise and fall independently.
+void fill_delays(const netlist& n, const corner& c, delay_table& out);
+/// The same, and numbers the design's reaction rules among the variables.
+void fill_delays(const design& d, const corner& c, delay_table& out);
+
+/// The range of a gate edge after scaling about typ by `spread` (never below 0).
+delay_range scaled(const delay_range& r, double spread);
+
+}  // namespace settle

@@ -1,0 +1,225 @@
+// The elaborated, flat, immutable netlist shared read-only by every run.
+#pragma once
+
+#include <algorithm>
+#include <cstdint>
+#include <string>
+#include <string_view>
+#include <unordered_map>
+#include <utility>
+#include <vector>
+
+#include "sim/model/logic.hpp"
+
+namespace settle {
+
+using net_id = std::uint32_t;
+using gate_id = std::uint32_t;
+inline constexpr std::uint32_t no_id = UINT32_MAX;
+
+/// Gate kinds. `expr` is a complex gate (one delay, any ~ & | ^ expression);
+/// `celem` is the Muller C-element; `gc` the generalised C-element whose set
+/// and reset functions are programs; `dff` an edge-triggered flip-flop
+/// primitive (fan-in D, CK: Q takes D at each rising edge of CK), made only by
+/// the .bench importer with `--dff primitive`.
+enum class gate_kind : std::uint8_t {
+  buf, inv, and_, nand, or_, nor, xor_, xnor, mux, maj, celem, gc, expr, dff,
+};
+inline constexpr int gate_kind_count = 14;
+
+/// The name users write for a kind: "buf", "not", "and", ... "gc", "expr".
+const char* kind_name(gate_kind k);
+
+/// True for kinds whose next output depends on their present output.
+constexpr bool holds_state(gate_kind k) {
+  return k == gate_kind::celem || k == gate_kind::gc || k == gate_kind::dff;
+}
+
+/// A delay range; typ lies in [min, max].
+struct delay_range {
+  time_fs min = 0, typ = 0, max = 0;
+  friend bool operator==(const delay_range&, const delay_range&) = default;
+};
+
+/// A gate's delays: 0->1 output changes use `rise`, 1->0 use `fall`, any change
+/// to or from x the smaller of the two.
+struct gate_delay {
+  delay_range rise, fall;
+  bool transport = false;  ///< transport gates propagate every change
+  friend bool operator==(const gate_delay&, const gate_delay&) = default;
+};
+
+/// An open-addressing hash set of 32-bit ids whose keys live elsewhere (4
+/// bytes a slot, at most half full). The caller supplies hashes and equality.
+class id_table {
+ public:
+  /// The stored id with hash `h` for which `same(id)` holds, or no_id.
+  template <typename Same>
+  std::uint32_t find(std::size_t h, Same same) const {
+    if (slots_.empty()) return no_id;
+    const std::size_t mask = slots_.size() - 1;
+    for (std::size_t i = h & mask;; i = (i + 1) & mask) {
+      const std::uint32_t v = slots_[i];
+      if (v == no_id || same(v)) return v;
+    }
+  }
+  /// Stores `id` (not yet present) with hash `h`; `hash_of(id)` rehashes stored ids when the table grows.
+  template <typename HashOf>
+  void insert(std::size_t h, std::uint32_t id, HashOf hash_of) {
+    if ((used_ + 1) * 2 > slots_.size()) rebuild(std::max<std::size_t>(16, slots_.size() * 2), hash_of);
+    place(h, id);
+    ++used_;
+  }
+  /// Makes room for `n` ids without growing.
+  template <typename HashOf>
+  void reserve(std::size_t n, HashOf hash_of) {
+    std::size_t cap = 16;
+    while (cap < 2 * n) cap *= 2;
+    if (cap > slots_.size()) rebuild(cap, hash_of);
+  }
+  std::size_t size() const { return used_; }
+
+ private:
+  void place(std::size_t h, std::uint32_t id) {
+    const std::size_t mask = slots_.size() - 1;
+    std::size_t i = h & mask;
+    while (slots_[i] != no_id) i = (i + 1) & mask;
+    slots_[i] = id;
+  }
+  template <typename HashOf>
+  void rebuild(std::size_t cap, HashOf hash_of) {
+    std::vector<std::uint32_t> old(cap, no_id);
+    old.swap(slots_);
+    for (auto v : old)
+      if (v != no_id) place(hash_of(v), v);
+  }
+  std::vector<std::uint32_t> slots_;
+  std::size_t used_ = 0;
+};
+
+/// Gates' delays, each distinct record stored once (designs have few):
+/// `delay[g]` is gate g's record; a gate costs one index.
+class gate_delays {
+ public:
+  const gate_delay& operator[](gate_id g) const { return records_[index_[g]]; }
+  std::size_t size() const { return index_.size(); }
+  bool empty() const { return index_.empty(); }
+  void reserve(std::size_t gates) { index_.reserve(gates); }
+  /// Appends the next gate's delay, sharing an equal record when there is one.
+  void push_back(const gate_delay& d);
+  /// The distinct records; changing one changes every gate that shares it.
+  std::vector<gate_delay>& records() { return records_; }
+  const std::vector<gate_delay>& records() const { return records_; }
+  /// The record gate g uses.
+  std::uint32_t record_of(gate_id g) const { return index_[g]; }
+
+ private:
+  static std::size_t hash(const gate_delay& d);
+  std::vector<gate_delay> records_;
+  std::vector<std::uint32_t> index_;
+  id_table lookup_;
+};
+
+/// Programs of complex gates are postfix code over the gate's fan-in list.
+/// One 32-bit word per instruction: the opcode in the low byte, the operand
+/// (an index into the gate's fan-in) above it.
+enum class op : std::uint8_t { input, const0, const1, inv, and2, or2, xor2 };
+constexpr std::uint32_t encode(op o, std::uint32_t arg = 0) { return static_cast<std::uint32_t>(o) | (arg << 8); }
+constexpr op opcode(std::uint32_t w) { return static_cast<op>(w & 0xff); }
+constexpr std::uint32_t operand(std::uint32_t w) { return w >> 8; }
+
+/// A block instance (or the top level, scope 0) for waveform hierarchy.
+struct scope {
+  std::string name;        ///< instance name; "" for the top
+  std::string block;       ///< block definition name; "" for the top
+  std::uint32_t parent = no_id;
+};
+
+/// A name visible in a scope. Port names of an instance alias the parent's net.
+struct net_alias {
+  std::uint32_t scope = 0;
+  std::string local;       ///< the name inside its scope ("q_n")
+  net_id net = 0;
+};
+
+/// Where something was written, for diagnostics after elaboration.
+struct source_loc {
+  std::uint32_t line = 0, col = 0;
+};
+
+/// The flat netlist. Nets 0 and 1 are the constants 0 and 1 (hidden: not
+/// counted, not dumped). Every other net is driven by exactly one input or gate.
+struct netlist {
+  // ---- nets
+  std::vector<std::string> net_name;   ///< full hierarchical name: "deb.x" or "clean"
+  std::vector<gate_id> driver;         ///< gate driving the net; no_id for inputs and constants
+  std::vector<logic> init;             ///< initial value (x unless `init` says otherwise)
+  std::vector<std::uint32_t> fanout_begin;  ///< CSR over nets: size nets+1
+  std::vector<gate_id> fanout;              ///< gates reading each net (each gate once per net)
+  std::vector<net_id> inputs, outputs;      ///< in declaration order
+  std::vector<net_alias> aliases;           ///< every (scope, name) -> net, ports included
+  std::vector<scope> scopes;                ///< scopes[0] is the top level
+  std::vector<std::uint32_t> net_scope;     ///< scope where each net was declared
+
+  // ---- gates (structure of arrays)
+  std::vector<gate_kind> kind;
+  std::vector<net_id> gate_out;
+  std::vector<std::uint32_t> fanin_begin;  ///< CSR over gates: size gates+1
+  std::vector<net_id> fanin;
+  std::vector<std::uint32_t> code_begin;   ///< CSR over gates: programs of expr/gc gates
+  std::vector<std::uint32_t> code;
+  gate_delays delay;                       ///< delay[g]: gate g's delays
+  std::vector<source_loc> gate_loc;        ///< where each gate was written
+  /// Set by finish(): gates whose exact ternary value needs enumeration of
+  /// their x inputs (complex gates, and primitives that read a net twice or
+  /// read their own output where that matters).
+  std::vector<std::uint8_t> enumerate;
+
+  // ---- what the source held, for `check`
+  std::uint32_t blocks = 0;     ///< block definitions
+  std::uint32_t instances = 0;  ///< block instances placed (all levels)
+
+  static constexpr net_id const0 = 0, const1 = 1;
+
+  std::size_t net_count() const { return net_name.size(); }
+  std::size_t gate_count() const { return kind.size(); }
+  /// A gate's name is its output net's name.
+  const std::string& gate_name(gate_id g) const { return net_name[gate_out[g]]; }
+  /// The net for a full or hierarchical name (a net's own or an added name), or no_id.
+  net_id find(std::string_view name) const;
+  /// Also finds net `id` under `full_name` ("deb.q" for a port of instance
+  /// deb); a name already known keeps its net. False when it was known.
+  bool add_name(std::string full_name, net_id id);
+  /// Sizes the name index (and the net arrays) for `nets` nets.
+  void reserve_nets(std::size_t nets);
+  /// Largest max delay over all gates and edges (0 for an empty netlist).
+  time_fs largest_max_delay() const;
+  /// Smallest nonzero min delay over all gates and edges (0 when there is none).
+  time_fs smallest_min_delay() const;
+  /// The names of `nets` joined by ", " ("ack, req").
+  std::string names_of(const std::vector<net_id>& nets) const;
+
+  /// Creates the two constant nets (ids 0 and 1) and the top scope; call first.
+  void begin();
+  /// Adds a net with its full name in `scope`; registers the name (unless it is
+  /// already known: then find() keeps the earlier net). Returns its id.
+  net_id add_net(std::string full_name, std::uint32_t scope_index);
+  /// Adds a gate (fan-in, program) and records it as the driver of `out`.
+  gate_id add_gate(gate_kind k, net_id out, const std::vector<net_id>& fanin,
+                   const std::vector<std::uint32_t>& program, const gate_delay& d, source_loc loc = {});
+  /// Builds the fan-out lists from the fan-in lists; call once after the last gate.
+  void finish();
+
+ private:
+  void mark_enumerated_gates();
+  /// The name index: net ids (keyed by net_name) and, with the top bit set,
+  /// indexes into extra_names_ (names that are not a net's own).
+  std::string_view key_of(std::uint32_t v) const {
+    return v & extra_bit ? std::string_view(extra_names_[v & ~extra_bit].first) : std::string_view(net_name[v]);
+  }
+  static constexpr std::uint32_t extra_bit = 0x80000000u;
+  id_table names_;
+  std::vector<std::pair<std::string, net_id>> extra_names_;
+};
+
+}  // namespace settle
