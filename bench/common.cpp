@@ -75,7 +75,8 @@ double load_average() {
 void recording_sink::on_changes(std::span<const change> batch) {
   const std::size_t room = limit_ - std::min(limit_, changes_.size());
   if (batch.size() > room) truncated_ = true;
-  changes_.insert(changes_.end(), batch.begin(), batch.begin() + static_cast<std::ptrdiff_t>(std::min(room, batch.size())));
+  changes_.insert(changes_.end(), batch.begin(),
+                  batch.begin() + static_cast<std::ptrdiff_t>(std::min(room, batch.size())));
 }
 
 }  // namespace settle::bench

@@ -1,22 +1,23 @@
-// Shared pieces of the benchmarks: configuration, a design cache, memory probes and a recording sink.
+// Shared pieces of the benchmarks: configuration, a design cache, memory probes and a recording
+// sink.
 #pragma once
+
+#include <benchmark/benchmark.h>
 
 #include <cstdint>
 #include <string>
 #include <vector>
 
-#include <benchmark/benchmark.h>
-
-#include "sim/model/design.hpp"
 #include "sim/kernel/run.hpp"
+#include "sim/model/design.hpp"
 
 namespace settle::bench {
 
 /// What the benchmark executable was told on its command line.
 struct config {
-  std::string data;   ///< folder with the generated designs (scripts/bench writes them)
-  std::string iscas;  ///< folder with the ISCAS .bench files
-  bool quick = false; ///< fewer iterations (smoke runs, quick looks)
+  std::string data;             ///< folder with the generated designs (scripts/bench writes them)
+  std::string iscas;            ///< folder with the ISCAS .bench files
+  bool quick = false;           ///< fewer iterations (smoke runs, quick looks)
   std::uint64_t cycles = 1000;  ///< clock cycles of the ISCAS run
 
   /// `full` iterations normally, `quick` in quick mode (never below 1).
@@ -46,7 +47,9 @@ double load_average();
 class recording_sink final : public change_sink {
  public:
   explicit recording_sink(std::size_t limit) : limit_(limit) {}
-  void on_start(std::span<const logic> initial) override { initial_.assign(initial.begin(), initial.end()); }
+  void on_start(std::span<const logic> initial) override {
+    initial_.assign(initial.begin(), initial.end());
+  }
   void on_changes(std::span<const change> batch) override;
   void on_finish(time_fs end) override { end_ = end; }
 

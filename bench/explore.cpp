@@ -1,10 +1,11 @@
 // Explore throughput: states of the state graph built per second on a small design with feedback.
+#include "sim/analysis/explore.hpp"
+
 #include <benchmark/benchmark.h>
 
 #include <string>
 
 #include "bench/common.hpp"
-#include "sim/analysis/explore.hpp"
 
 namespace settle::bench {
 namespace {
@@ -28,8 +29,10 @@ void explore_states(benchmark::State& st, std::string path) {
     }
   }
   st.SetItemsProcessed(static_cast<std::int64_t>(states));
-  st.counters["states_per_s"] = benchmark::Counter(static_cast<double>(states), benchmark::Counter::kIsRate);
-  st.counters["edges_per_s"] = benchmark::Counter(static_cast<double>(edges), benchmark::Counter::kIsRate);
+  st.counters["states_per_s"] =
+      benchmark::Counter(static_cast<double>(states), benchmark::Counter::kIsRate);
+  st.counters["edges_per_s"] =
+      benchmark::Counter(static_cast<double>(edges), benchmark::Counter::kIsRate);
   const double it = static_cast<double>(st.iterations() ? st.iterations() : 1);
   st.counters["states_per_run"] = static_cast<double>(states) / it;
   st.counters["complete"] = complete ? 1 : 0;

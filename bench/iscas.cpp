@@ -1,6 +1,5 @@
 // s38417 (ISCAS-89, six-NAND flip-flops) clocked for 1,000 cycles with random inputs on one core.
 #include <benchmark/benchmark.h>
-
 #include <sys/stat.h>
 #include <unistd.h>
 
@@ -66,12 +65,14 @@ void iscas_cycles(benchmark::State& st, std::string path, std::uint64_t cycles) 
   diagnostics diags2;
   const auto t0 = std::chrono::steady_clock::now();
   std::optional<design> d = wrote ? load_design(path, opt, diags2) : std::nullopt;
-  const double load_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+  const double load_s =
+      std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
   ::unlink(stim_path);
   if (!d) {
-    st.SkipWithError(("the generated stimulus does not load: " +
-                      (diags2.items.empty() ? std::string("write failed") : diags2.items.front().message))
-                         .c_str());
+    st.SkipWithError(
+        ("the generated stimulus does not load: " +
+         (diags2.items.empty() ? std::string("write failed") : diags2.items.front().message))
+            .c_str());
     return;
   }
   std::string error;
@@ -86,11 +87,14 @@ void iscas_cycles(benchmark::State& st, std::string path, std::uint64_t cycles) 
     steps += r.steps.size();
   }
   st.SetItemsProcessed(static_cast<std::int64_t>(events));
-  st.counters["events_per_s"] = benchmark::Counter(static_cast<double>(events), benchmark::Counter::kIsRate);
+  st.counters["events_per_s"] =
+      benchmark::Counter(static_cast<double>(events), benchmark::Counter::kIsRate);
   st.counters["cycles"] = static_cast<double>(cycles);
-  st.counters["steps_settled_share"] = steps ? static_cast<double>(settled) / static_cast<double>(steps) : 0;
+  st.counters["steps_settled_share"] =
+      steps ? static_cast<double>(settled) / static_cast<double>(steps) : 0;
   st.counters["gates"] = static_cast<double>(d->nets.gate_count());
-  st.counters["load_s"] = load_s;  // parse + elaborate of the netlist and the 3,000-step stimulus (not timed)
+  st.counters["load_s"] =
+      load_s;  // parse + elaborate of the netlist and the 3,000-step stimulus (not timed)
   st.counters["load_avg"] = load_average();
 }
 
@@ -98,8 +102,8 @@ void iscas_cycles(benchmark::State& st, std::string path, std::uint64_t cycles) 
 
 void register_iscas(const config& c) {
   const std::uint64_t cycles = c.cycles;
-  benchmark::RegisterBenchmark(("iscas/s38417/cycles:" + std::to_string(cycles)).c_str(), iscas_cycles,
-                               c.iscas + "/s38417.bench", cycles)
+  benchmark::RegisterBenchmark(("iscas/s38417/cycles:" + std::to_string(cycles)).c_str(),
+                               iscas_cycles, c.iscas + "/s38417.bench", cycles)
       ->Unit(benchmark::kMillisecond)
       ->Iterations(c.iterations(5, 1));
 }

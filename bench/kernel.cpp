@@ -26,8 +26,10 @@ void kernel_run(benchmark::State& st, std::string path) {
     benchmark::DoNotOptimize(r.events);
   }
   st.SetItemsProcessed(static_cast<std::int64_t>(events));
-  st.counters["events_per_s"] = benchmark::Counter(static_cast<double>(events), benchmark::Counter::kIsRate);
-  st.counters["events_per_run"] = static_cast<double>(events) / static_cast<double>(runs ? runs : 1);
+  st.counters["events_per_s"] =
+      benchmark::Counter(static_cast<double>(events), benchmark::Counter::kIsRate);
+  st.counters["events_per_run"] =
+      static_cast<double>(events) / static_cast<double>(runs ? runs : 1);
   st.counters["gates"] = static_cast<double>(d->nets.gate_count());
   st.counters["load_avg"] = load_average();
 }

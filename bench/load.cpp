@@ -1,13 +1,14 @@
-// Parse plus elaborate: time and resident memory per gate of load_design on a generated .settle file.
-#include <benchmark/benchmark.h>
+// Parse plus elaborate: time and resident memory per gate of load_design on a generated .settle
+// file.
+#include "parser/load.hpp"
 
+#include <benchmark/benchmark.h>
 #include <sys/stat.h>
 
 #include <optional>
 #include <string>
 
 #include "bench/common.hpp"
-#include "parser/load.hpp"
 
 namespace settle::bench {
 namespace {

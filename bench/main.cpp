@@ -1,11 +1,11 @@
-// The benchmark executable: reads its own options, registers every family and runs Google Benchmark.
+// The benchmark executable: reads its own options, registers every family and runs Google
+// Benchmark.
 #include <benchmark/benchmark.h>
+#include <fmt/format.h>
 
 #include <cstring>
 #include <string>
 #include <vector>
-
-#include <fmt/format.h>
 
 #include "bench/common.hpp"
 
@@ -23,7 +23,8 @@ bool take_option(std::vector<char*>& args, const char* name, std::string& value)
     }
     if (args[i][len] == '\0' && i + 1 < args.size()) {
       value = args[i + 1];
-      args.erase(args.begin() + static_cast<std::ptrdiff_t>(i), args.begin() + static_cast<std::ptrdiff_t>(i) + 2);
+      args.erase(args.begin() + static_cast<std::ptrdiff_t>(i),
+                 args.begin() + static_cast<std::ptrdiff_t>(i) + 2);
       return true;
     }
   }
@@ -51,12 +52,14 @@ int main(int argc, char** argv) {
   cfg.quick = take_flag(args, "--quick");
   if (std::string v; take_option(args, "--cycles", v)) cfg.cycles = std::stoull(v);
   if (take_flag(args, "--usage")) {
-    fmt::print("settle_bench [--data DIR] [--iscas DIR] [--quick] [google benchmark options]\n"
-               "  --data DIR   generated designs (scripts/bench writes random100k.settle, random1m.settle,\n"
-               "               pipe500.settle, pipe12.settle)\n"
-               "  --iscas DIR  folder holding s38417.bench (default: tests/data/iscas)\n"
-               "  --quick      one or a few iterations per benchmark\n"
-               "  --cycles N   clock cycles of the s38417 run (default 1000)\n");
+    fmt::print(
+        "settle_bench [--data DIR] [--iscas DIR] [--quick] [google benchmark options]\n"
+        "  --data DIR   generated designs (scripts/bench writes random100k.settle, "
+        "random1m.settle,\n"
+        "               pipe500.settle, pipe12.settle)\n"
+        "  --iscas DIR  folder holding s38417.bench (default: tests/data/iscas)\n"
+        "  --quick      one or a few iterations per benchmark\n"
+        "  --cycles N   clock cycles of the s38417 run (default 1000)\n");
     return 0;
   }
   int n = static_cast<int>(args.size());
@@ -64,7 +67,8 @@ int main(int argc, char** argv) {
   benchmark::Initialize(&n, args.data());
   if (benchmark::ReportUnrecognizedArguments(n, args.data())) return 2;
   benchmark::AddCustomContext("settle_data", cfg.data);
-  benchmark::AddCustomContext("load_average_1min_at_start", fmt::format("{:.2f}", settle::bench::load_average()));
+  benchmark::AddCustomContext("load_average_1min_at_start",
+                              fmt::format("{:.2f}", settle::bench::load_average()));
   settle::bench::register_kernel(cfg);
   settle::bench::register_iscas(cfg);
   settle::bench::register_load(cfg);

@@ -1,4 +1,6 @@
 // Sweep throughput (corners per second at 1 and 2 threads) and the per-corner set-up share.
+#include "sim/analysis/sweep.hpp"
+
 #include <benchmark/benchmark.h>
 
 #include <chrono>
@@ -7,7 +9,6 @@
 
 #include "bench/common.hpp"
 #include "sim/kernel/simulator.hpp"
-#include "sim/analysis/sweep.hpp"
 
 namespace settle::bench {
 namespace {
@@ -36,8 +37,10 @@ void sweep_threads(benchmark::State& st, std::string path, unsigned threads) {
     benchmark::DoNotOptimize(r.events);
   }
   st.SetItemsProcessed(static_cast<std::int64_t>(done));
-  st.counters["corners_per_s"] = benchmark::Counter(static_cast<double>(done), benchmark::Counter::kIsRate);
-  st.counters["events_per_s"] = benchmark::Counter(static_cast<double>(events), benchmark::Counter::kIsRate);
+  st.counters["corners_per_s"] =
+      benchmark::Counter(static_cast<double>(done), benchmark::Counter::kIsRate);
+  st.counters["events_per_s"] =
+      benchmark::Counter(static_cast<double>(events), benchmark::Counter::kIsRate);
   st.counters["gates"] = static_cast<double>(d->nets.gate_count());
   st.counters["threads"] = threads;
   st.counters["load_avg"] = load_average();
@@ -85,7 +88,8 @@ void sweep_setup(benchmark::State& st, std::string path) {
 void register_sweep(const config& c) {
   const std::string p = c.path("pipe500.settle");
   for (unsigned t : {1u, 2u})
-    benchmark::RegisterBenchmark(("sweep/pipeline_500/threads:" + std::to_string(t)).c_str(), sweep_threads, p, t)
+    benchmark::RegisterBenchmark(("sweep/pipeline_500/threads:" + std::to_string(t)).c_str(),
+                                 sweep_threads, p, t)
         ->Unit(benchmark::kMillisecond)
         ->UseRealTime()
         ->Iterations(c.iterations(5, 1));

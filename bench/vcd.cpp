@@ -1,6 +1,7 @@
 // VCD writing speed: the waves/vcd.hpp writer over the recorded change stream of a big run.
-#include <benchmark/benchmark.h>
+#include "waves/vcd.hpp"
 
+#include <benchmark/benchmark.h>
 #include <unistd.h>
 
 #include <algorithm>
@@ -11,7 +12,6 @@
 
 #include "bench/common.hpp"
 #include "sim/model/corner.hpp"
-#include "waves/vcd.hpp"
 
 namespace settle::bench {
 namespace {
@@ -67,7 +67,8 @@ void vcd_write(benchmark::State& st, std::string path) {
   st.counters["changes_in"] = static_cast<double>(ch.size());
   st.counters["changes_written"] = static_cast<double>(changes_written) / it;
   st.counters["stream_truncated"] = rec.truncated() ? 1 : 0;
-  st.counters["feed_share"] = total_s > 0 ? feed_s / total_s : 0;  // on_changes + on_finish vs write
+  st.counters["feed_share"] =
+      total_s > 0 ? feed_s / total_s : 0;  // on_changes + on_finish vs write
   st.counters["load_avg"] = load_average();
 }
 

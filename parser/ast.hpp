@@ -1,8 +1,8 @@
 // The abstract syntax of one .settle statement, as the X3 grammar produces it.
 #pragma once
 
-#include <boost/spirit/home/x3/support/ast/variant.hpp>
 #include <boost/optional.hpp>
+#include <boost/spirit/home/x3/support/ast/variant.hpp>
 #include <string>
 #include <vector>
 
@@ -178,7 +178,8 @@ struct gauge_body : x3::variant<gauge_period, gauge_pulse, gauge_latency> {
   using base_type::base_type;
   using base_type::operator=;
 };
-/// `gauge NAME = period of NET | pulse of NET high|low | latency from NET rises|falls to NET rises|falls`
+/// `gauge NAME = period of NET | pulse of NET high|low | latency from NET rises|falls to NET
+/// rises|falls`
 struct gauge_stmt {
   name id;
   gauge_body body;
@@ -210,7 +211,8 @@ struct expect_gauge {
   name gauge;
   range within;
 };
-struct expect_body : x3::variant<std::vector<assign>, expect_within, expect_glitch, expect_gauge, expect_word> {
+struct expect_body
+    : x3::variant<std::vector<assign>, expect_within, expect_glitch, expect_gauge, expect_word> {
   using base_type::base_type;
   using base_type::operator=;
 };
@@ -219,9 +221,9 @@ struct expect_stmt {
   expect_body body;
 };
 
-struct statement : x3::variant<gate_stmt, decl, default_stmt, block_head, inst_stmt, init_stmt, timed_stmt,
-                               clock_stmt, settle_stmt, run_stmt, expect_stmt, when_stmt, property_stmt,
-                               gauge_stmt> {
+struct statement : x3::variant<gate_stmt, decl, default_stmt, block_head, inst_stmt, init_stmt,
+                               timed_stmt, clock_stmt, settle_stmt, run_stmt, expect_stmt,
+                               when_stmt, property_stmt, gauge_stmt> {
   using base_type::base_type;
   using base_type::operator=;
 };

@@ -1,4 +1,6 @@
 // The ISCAS-85/89 `.bench` importer: a hand-written line parser building a flat netlist.
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <cctype>
 #include <optional>
@@ -7,8 +9,6 @@
 #include <unordered_map>
 #include <unordered_set>
 #include <vector>
-
-#include <fmt/format.h>
 
 #include "parser/load.hpp"
 
@@ -22,9 +22,9 @@ std::optional<bench_kind> kind_from(std::string_view word) {
   std::string up(word);
   for (auto& c : up) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
   static const std::unordered_map<std::string, bench_kind> table = {
-      {"AND", bench_kind::and_}, {"OR", bench_kind::or_},     {"NAND", bench_kind::nand},
-      {"NOR", bench_kind::nor},  {"NOT", bench_kind::not_},   {"BUFF", bench_kind::buff},
-      {"BUF", bench_kind::buff}, {"XOR", bench_kind::xor_},   {"XNOR", bench_kind::xnor},
+      {"AND", bench_kind::and_}, {"OR", bench_kind::or_},   {"NAND", bench_kind::nand},
+      {"NOR", bench_kind::nor},  {"NOT", bench_kind::not_}, {"BUFF", bench_kind::buff},
+      {"BUF", bench_kind::buff}, {"XOR", bench_kind::xor_}, {"XNOR", bench_kind::xnor},
       {"DFF", bench_kind::dff}};
   auto it = table.find(up);
   if (it == table.end()) return std::nullopt;
@@ -33,15 +33,24 @@ std::optional<bench_kind> kind_from(std::string_view word) {
 
 gate_kind to_gate_kind(bench_kind k) {
   switch (k) {
-    case bench_kind::and_: return gate_kind::and_;
-    case bench_kind::or_: return gate_kind::or_;
-    case bench_kind::nand: return gate_kind::nand;
-    case bench_kind::nor: return gate_kind::nor;
-    case bench_kind::not_: return gate_kind::inv;
-    case bench_kind::buff: return gate_kind::buf;
-    case bench_kind::xor_: return gate_kind::xor_;
-    case bench_kind::xnor: return gate_kind::xnor;
-    case bench_kind::dff: break;
+    case bench_kind::and_:
+      return gate_kind::and_;
+    case bench_kind::or_:
+      return gate_kind::or_;
+    case bench_kind::nand:
+      return gate_kind::nand;
+    case bench_kind::nor:
+      return gate_kind::nor;
+    case bench_kind::not_:
+      return gate_kind::inv;
+    case bench_kind::buff:
+      return gate_kind::buf;
+    case bench_kind::xor_:
+      return gate_kind::xor_;
+    case bench_kind::xnor:
+      return gate_kind::xnor;
+    case bench_kind::dff:
+      break;
   }
   return gate_kind::nand;
 }
@@ -89,7 +98,8 @@ class reader {
       pos = end + 1;
     }
     bool ok = true;
-    for (std::size_t i = 0; i < out.lines.size(); ++i) ok &= parse_line(out, static_cast<std::uint32_t>(i));
+    for (std::size_t i = 0; i < out.lines.size(); ++i)
+      ok &= parse_line(out, static_cast<std::uint32_t>(i));
     return ok;
   }
 
@@ -119,7 +129,8 @@ class reader {
       std::string up(first->text);
       for (auto& c : up) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
       if (up != "INPUT" && up != "OUTPUT") {
-        error(f, first->loc, fmt::format("expected INPUT or OUTPUT before '(', found '{}'", first->text));
+        error(f, first->loc,
+              fmt::format("expected INPUT or OUTPUT before '(', found '{}'", first->text));
         return false;
       }
       ++at_;
@@ -136,7 +147,8 @@ class reader {
     auto kind = kind_from(kind_word->text);
     if (!kind) {
       error(f, kind_word->loc,
-            fmt::format("unknown gate kind '{}' (AND OR NAND NOR NOT BUFF BUF XOR XNOR DFF)", kind_word->text));
+            fmt::format("unknown gate kind '{}' (AND OR NAND NOR NOT BUFF BUF XOR XNOR DFF)",
+                        kind_word->text));
       return false;
     }
     skip_space();
@@ -156,7 +168,8 @@ class reader {
       break;
     }
     if (!end_of_line(f)) return false;
-    const bool unary = *kind == bench_kind::not_ || *kind == bench_kind::buff || *kind == bench_kind::dff;
+    const bool unary =
+        *kind == bench_kind::not_ || *kind == bench_kind::buff || *kind == bench_kind::dff;
     if (unary && g.args.size() != 1) {
       error(f, g.args[1].loc,
             fmt::format("{} takes exactly one input, found {}", kind_word->text, g.args.size()));
@@ -258,7 +271,8 @@ class builder {
   bool define(const word& w) {
     auto [it, fresh] = first_driver_.emplace(w.text, w.loc);
     if (!fresh) {
-      r_.error(f_, w.loc, fmt::format("net '{}' already has a driver (line {})", w.text, it->second.line));
+      r_.error(f_, w.loc,
+               fmt::format("net '{}' already has a driver (line {})", w.text, it->second.line));
       return false;
     }
     auto id = n_.add_net(std::string(w.text), 0);
@@ -269,7 +283,8 @@ class builder {
   // A net listed as an output must have a driver.
   bool used(const word& w) {
     if (first_driver_.count(w.text)) return true;
-    r_.error(f_, w.loc, fmt::format("net '{}' is never driven (no INPUT or gate line defines it)", w.text));
+    r_.error(f_, w.loc,
+             fmt::format("net '{}' is never driven (no INPUT or gate line defines it)", w.text));
     return false;
   }
 
@@ -278,9 +293,10 @@ class builder {
   // warning at its first use, so published circuits with a dangling wire load.
   void read(const word& w) {
     if (first_driver_.count(w.text) || !floating_names_.insert(w.text).second) return;
-    warn(w.loc, fmt::format("net '{}' is never driven (no INPUT or gate line defines it); it becomes an "
-                            "extra input that stays x unless the stimulus drives it",
-                            w.text));
+    warn(w.loc,
+         fmt::format("net '{}' is never driven (no INPUT or gate line defines it); it becomes an "
+                     "extra input that stays x unless the stimulus drives it",
+                     w.text));
     auto id = n_.add_net(std::string(w.text), 0);
     n_.aliases.push_back(net_alias{0, std::string(w.text), id});
     floating_.push_back(id);
@@ -305,8 +321,9 @@ class builder {
     std::string name = "CK";
     while (n_.find(name) != no_id) name += '_';
     if (name != "CK")
-      warn({}, fmt::format("the file already has a net 'CK'; the flip-flops' generated clock input is '{}'",
-                           name));
+      warn({}, fmt::format(
+                   "the file already has a net 'CK'; the flip-flops' generated clock input is '{}'",
+                   name));
     clock_ = n_.add_net(name, 0);
     n_.aliases.push_back(net_alias{0, name, clock_});
     n_.inputs.push_back(clock_);
@@ -347,7 +364,9 @@ class builder {
     for (int i = 0; i < 5; ++i) {
       auto full = q_name + "." + locals[i];
       if (n_.find(full) != no_id) {
-        r_.error(f_, g.out.loc, fmt::format("the flip-flop's internal net '{}' clashes with a net of the file", full));
+        r_.error(
+            f_, g.out.loc,
+            fmt::format("the flip-flop's internal net '{}' clashes with a net of the file", full));
         return false;
       }
       inner[i] = n_.add_net(full, scope_index);
@@ -395,10 +414,18 @@ source_counts count_lines(const bench_file& f) {
   c.outputs = static_cast<std::uint32_t>(f.outputs.size());
   for (const auto& g : f.gates) {
     switch (g.kind) {
-      case bench_kind::dff: ++c.dffs; break;
-      case bench_kind::not_: ++c.inverters; break;
-      case bench_kind::buff: ++c.buffers; break;
-      default: ++c.gates; break;
+      case bench_kind::dff:
+        ++c.dffs;
+        break;
+      case bench_kind::not_:
+        ++c.inverters;
+        break;
+      case bench_kind::buff:
+        ++c.buffers;
+        break;
+      default:
+        ++c.gates;
+        break;
     }
   }
   return c;

@@ -1,4 +1,5 @@
-// The statement driver: splits lines into statements, tracks block/stimulus nesting, recovers per statement.
+// The statement driver: splits lines into statements, tracks block/stimulus nesting, recovers per
+// statement.
 #include <fmt/format.h>
 
 #include <algorithm>
@@ -29,7 +30,8 @@ void reporter::report(diagnostic::level lv, source_loc at, const std::string& ms
   add(make(lv, at, msg));
 }
 
-void reporter::error_with_note(source_loc at, const std::string& msg, source_loc note_at, const std::string& note) {
+void reporter::error_with_note(source_loc at, const std::string& msg, source_loc note_at,
+                               const std::string& note) {
   if (!seen_.insert(fmt::format("{}:{}:{}", at.line, at.col, msg)).second) return;
   diagnostic d = make(diagnostic::level::error, at, msg);
   d.notes.push_back(make(diagnostic::level::note, note_at, note));
@@ -143,11 +145,11 @@ struct visitor {
   reporter& rep;
   file_mode mode;
   where& at;
-  scope_def*& scope;      // the open block, or &f.top
-  stim_block*& stim;      // the open stimulus block
+  scope_def*& scope;            // the open block, or &f.top
+  stim_block*& stim;            // the open stimulus block
   std::deque<scope_def>& dead;  // statements of rejected blocks land here
-  const char* start;      // the statement's first character
-  std::string_view text;  // the statement as written
+  const char* start;            // the statement's first character
+  std::string_view text;        // the statement as written
 
   source_loc loc() const { return rep.loc_of(start); }
   stim_stmt make(stim_stmt::kind k) const {
@@ -202,11 +204,15 @@ struct visitor {
     }
     if (!design_only(fmt::format("'{}' is", d.keyword).c_str())) return;
     if (at == where::block && d.keyword != "wire") {
-      rep.error(loc(), fmt::format("'{}' is not allowed inside a block; blocks declare ports in their header",
-                                   d.keyword));
+      rep.error(
+          loc(),
+          fmt::format("'{}' is not allowed inside a block; blocks declare ports in their header",
+                      d.keyword));
       return;
     }
-    auto& list = d.keyword == "input" ? f.top.ins : d.keyword == "output" ? f.top.outs : scope->wires;
+    auto& list = d.keyword == "input"    ? f.top.ins
+                 : d.keyword == "output" ? f.top.outs
+                                         : scope->wires;
     for (auto& n : d.names)
       if (plain(n)) list.push_back(lower_ref(n, rep));
   }
@@ -232,7 +238,8 @@ struct visitor {
     }
     target->id = lower_ref(b.id, rep);
     for (auto& g : b.groups)
-      for (auto& n : g.names) (g.dir == "in" ? target->ins : target->outs).push_back(lower_ref(n, rep));
+      for (auto& n : g.names)
+        (g.dir == "in" ? target->ins : target->outs).push_back(lower_ref(n, rep));
     at = where::block;
     scope = target;
   }
@@ -240,7 +247,8 @@ struct visitor {
     if (!design_only("'inst' is")) return;
     inst out{lower_ref(i.id, rep), lower_ref(i.block, rep), {}};
     for (auto& b : i.binds)
-      if (unquoted(b.target)) out.binds.push_back({lower_ref(b.port, rep), lower_ref(b.target, rep)});
+      if (unquoted(b.target))
+        out.binds.push_back({lower_ref(b.port, rep), lower_ref(b.target, rep)});
     scope->insts.push_back(std::move(out));
   }
   void operator()(const ast::init_stmt& i) {
@@ -256,7 +264,8 @@ struct visitor {
     if (!lower_time(t.time, s.time, rep)) return;
     s.has_time = true;
     s.time_loc = rep.loc_of(t.time.pos);
-    for (auto& a : t.assigns) s.nets.push_back(lower_ref(a.net, rep)), s.values.push_back(lower_value(a.value));
+    for (auto& a : t.assigns)
+      s.nets.push_back(lower_ref(a.net, rep)), s.values.push_back(lower_value(a.value));
     stim->stmts.push_back(std::move(s));
   }
   void operator()(const ast::clock_stmt& c) {
@@ -264,13 +273,15 @@ struct visitor {
     stim_stmt s = make(stim_stmt::kind::clock);
     s.nets.push_back(lower_ref(c.net, rep));
     if (!lower_time(c.period, s.time, rep)) return;
-    if (s.time == 0) return rep.error(rep.loc_of(c.period.pos), "a clock period must be greater than zero");
+    if (s.time == 0)
+      return rep.error(rep.loc_of(c.period.pos), "a clock period must be greater than zero");
     s.time_loc = s.time2_loc = rep.loc_of(c.period.pos);
     if (c.high) {
       if (!lower_time(*c.high, s.time2, rep)) return;
       if (s.time2 == 0 || s.time2 >= s.time)
-        return rep.error(rep.loc_of(c.high->pos), "a clock's high time must be greater than zero and shorter "
-                                                  "than its period");
+        return rep.error(rep.loc_of(c.high->pos),
+                         "a clock's high time must be greater than zero and shorter "
+                         "than its period");
       s.has_time2 = true;
       s.time2_loc = rep.loc_of(c.high->pos);
     }
@@ -287,9 +298,11 @@ struct visitor {
     const char* end = text.data() + text.size();
     for (const char* p = from; p + w.size() <= end; ++p) {
       if (std::string_view(p, w.size()) != w) continue;
-      const bool left = p == text.data() || !(std::isalnum(static_cast<unsigned char>(p[-1])) || p[-1] == '_');
-      const bool right = p + w.size() == end ||
-                         !(std::isalnum(static_cast<unsigned char>(p[w.size()])) || p[w.size()] == '_');
+      const bool left =
+          p == text.data() || !(std::isalnum(static_cast<unsigned char>(p[-1])) || p[-1] == '_');
+      const bool right =
+          p + w.size() == end ||
+          !(std::isalnum(static_cast<unsigned char>(p[w.size()])) || p[w.size()] == '_');
       if (left && right) return p;
     }
     return nullptr;
@@ -310,7 +323,8 @@ struct visitor {
       s.range = gd.rise;
       s.has_time = true;
     }
-    for (auto& a : w.assigns) s.nets.push_back(lower_ref(a.net, rep)), s.values.push_back(lower_value(a.value));
+    for (auto& a : w.assigns)
+      s.nets.push_back(lower_ref(a.net, rep)), s.values.push_back(lower_value(a.value));
     if (w.times) {
       const auto at = rep.loc_of(w.times->pos);
       std::uint64_t n = 0;
@@ -320,7 +334,9 @@ struct visitor {
         n = n * 10 + static_cast<std::uint64_t>(c - '0');
       }
       if (big) return rep.error(at, "'times' takes a count below 2^64");
-      if (n == 0) return rep.error(at, "'times 0' would never fire; give a count of at least 1 or leave 'times' out");
+      if (n == 0)
+        return rep.error(
+            at, "'times 0' would never fire; give a count of at least 1 or leave 'times' out");
       s.count = n;
       // The rule's text is written without its `times N`.
       s.text = span_text(text, text.data(), find_word(colon, "times"));
@@ -333,8 +349,9 @@ struct visitor {
     s.word = p.keyword;
     if (p.edge) {
       if (p.keyword == "always")
-        return rep.error(rep.loc_of(p.edge->net.pos), "'always' takes an expression; write 'never NET rises while "
-                                                      "EXPR' for an edge");
+        return rep.error(rep.loc_of(p.edge->net.pos),
+                         "'always' takes an expression; write 'never NET rises while "
+                         "EXPR' for an edge");
       s.word = p.edge->edge;
       s.nets.push_back(lower_ref(p.edge->net, rep));
     }
@@ -383,7 +400,8 @@ struct visitor {
     stim_stmt s = make(stim_stmt::kind::expect_value);
     if (auto v = boost::get<std::vector<ast::assign>>(&e.body)) {
       s.what = stim_stmt::kind::expect_value;
-      for (auto& a : *v) s.nets.push_back(lower_ref(a.net, rep)), s.values.push_back(lower_value(a.value));
+      for (auto& a : *v)
+        s.nets.push_back(lower_ref(a.net, rep)), s.values.push_back(lower_value(a.value));
     } else if (auto w = boost::get<ast::expect_within>(&e.body)) {
       s.what = stim_stmt::kind::expect_within;
       if (!lower_time(w->time, s.time, rep)) return;
@@ -397,7 +415,8 @@ struct visitor {
       auto& r = gg->within;
       if (r.c || !r.b) return rep.error(rep.loc_of(r.a.pos), "a gauge's range is written A..B");
       if (!lower_time(r.a, s.range.min, rep) || !lower_time(*r.b, s.range.max, rep)) return;
-      if (s.range.max < s.range.min) return rep.error(rep.loc_of(r.a.pos), "a gauge's range needs A <= B");
+      if (s.range.max < s.range.min)
+        return rep.error(rep.loc_of(r.a.pos), "a gauge's range needs A <= B");
     } else {
       auto& word = boost::get<ast::expect_word>(e.body);
       s.what = word.word == "stable"          ? stim_stmt::kind::expect_stable
@@ -406,13 +425,15 @@ struct visitor {
       if (word.period) {
         auto& r = *word.period;
         if (s.what != stim_stmt::kind::expect_oscillating)
-          return rep.error(rep.loc_of(r.a.pos), fmt::format("'period' only follows 'oscillating', not '{}'",
-                                                            word.word));
-        if (r.c) return rep.error(rep.loc_of(r.a.pos), "an oscillation period range is written A..B");
+          return rep.error(rep.loc_of(r.a.pos),
+                           fmt::format("'period' only follows 'oscillating', not '{}'", word.word));
+        if (r.c)
+          return rep.error(rep.loc_of(r.a.pos), "an oscillation period range is written A..B");
         if (!lower_time(r.a, s.time, rep)) return;
         s.time2 = s.time;
         if (r.b && !lower_time(*r.b, s.time2, rep)) return;
-        if (s.time2 < s.time) return rep.error(rep.loc_of(r.a.pos), "an oscillation period range needs A <= B");
+        if (s.time2 < s.time)
+          return rep.error(rep.loc_of(r.a.pos), "an oscillation period range needs A <= B");
         s.has_time = s.has_time2 = true;
       }
     }
@@ -454,7 +475,8 @@ bool depth_ok(std::string_view s, reporter& rep) {
   int depth = 0;
   for (const char& c : s) {
     if (c == '(' && ++depth > max_expr_depth) {
-      rep.error(rep.loc_of(&c), fmt::format("expression nested deeper than {} levels", max_expr_depth));
+      rep.error(rep.loc_of(&c),
+                fmt::format("expression nested deeper than {} levels", max_expr_depth));
       return false;
     }
     if (c == ')') --depth;
@@ -472,7 +494,7 @@ void parse_file(std::string_view text, file_mode mode, file& f, reporter& rep) {
   f.text = text;
   where at = where::top;
   scope_def* scope = &f.top;
-  stim_block spare;             // a second stimulus block is parsed here and dropped
+  stim_block spare;  // a second stimulus block is parsed here and dropped
   stim_block* stim = &f.stim;
   std::deque<scope_def> dead;  // blocks in the wrong place are parsed here and dropped
   source_loc open_loc;
@@ -508,11 +530,13 @@ void parse_file(std::string_view text, file_mode mode, file& f, reporter& rep) {
             scope = &f.top;
             stim = &f.stim;
           }
-        } else if (piece.substr(0, 8) == "stimulus" && (piece.size() == 8 || blank(piece[8]) || piece[8] == '{')) {
+        } else if (piece.substr(0, 8) == "stimulus" &&
+                   (piece.size() == 8 || blank(piece[8]) || piece[8] == '{')) {
           auto rest = piece.substr(8);
           while (!rest.empty() && blank(rest.front())) rest.remove_prefix(1);
           if (rest != "{") {
-            rep.error(rest.empty() ? rep.loc_of(s + 8) : rep.loc_of(rest.data()), "expected '{' after 'stimulus'");
+            rep.error(rest.empty() ? rep.loc_of(s + 8) : rep.loc_of(rest.data()),
+                      "expected '{' after 'stimulus'");
           } else if (at != where::top) {
             rep.error(here, "a stimulus block belongs at top level");
           } else {
@@ -528,7 +552,8 @@ void parse_file(std::string_view text, file_mode mode, file& f, reporter& rep) {
         } else if (mode == file_mode::stimulus_only && at == where::top) {
           rep.error(here, "a stimulus file holds one stimulus { } block and nothing else");
         } else if (at == where::top && looks_like_gate(piece)) {
-          f.top_gates.push_back({static_cast<std::uint32_t>(s - text.data()), static_cast<std::uint32_t>(e - s)});
+          f.top_gates.push_back(
+              {static_cast<std::uint32_t>(s - text.data()), static_cast<std::uint32_t>(e - s)});
           f.top_reads += reads_bound(piece);
         } else if (depth_ok(piece, rep)) {
           grammar::syntax_error err;
@@ -536,7 +561,8 @@ void parse_file(std::string_view text, file_mode mode, file& f, reporter& rep) {
           if (grammar::parse_statement(piece, st, err)) {
             visitor v{f, rep, mode, at, scope, stim, dead, s, piece};
             boost::apply_visitor(v, st);
-            if (boost::get<ast::block_head>(&st)) open_loc = here, open_name = std::string(scope->id.name);
+            if (boost::get<ast::block_head>(&st))
+              open_loc = here, open_name = std::string(scope->id.name);
           } else {
             rep.error(rep.loc_of(err.pos), err.message);
             // A broken block header still opens a block, so its '}' is not reported again.
@@ -555,8 +581,9 @@ void parse_file(std::string_view text, file_mode mode, file& f, reporter& rep) {
     p = eol + 1;
   }
   if (at == where::block)
-    rep.error(open_loc, open_name.empty() ? std::string("block is not closed with '}'")
-                                          : fmt::format("block '{}' is not closed with '}}'", open_name));
+    rep.error(open_loc, open_name.empty()
+                            ? std::string("block is not closed with '}'")
+                            : fmt::format("block '{}' is not closed with '}}'", open_name));
   if (at == where::stim) rep.error(open_loc, "stimulus block is not closed with '}'");
 }
 

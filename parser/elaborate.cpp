@@ -1,4 +1,5 @@
-// Elaboration: IR scopes -> flat netlist, with an explicit work stack (no recursion over the hierarchy).
+// Elaboration: IR scopes -> flat netlist, with an explicit work stack (no recursion over the
+// hierarchy).
 #include <fmt/format.h>
 
 #include <unordered_map>
@@ -22,9 +23,9 @@ std::string cat(std::string_view a, std::string_view b, std::string_view c = {})
 struct frame {
   const scope_def* def = nullptr;
   std::uint32_t scope = 0;
-  std::string prefix;                                     // "deb." for an instance
+  std::string prefix;                                      // "deb." for an instance
   std::vector<std::pair<std::string_view, net_id>> bound;  // port -> parent net
-  bool dry = false;                                       // check an unused block only
+  bool dry = false;                                        // check an unused block only
 };
 
 class elaborator {
@@ -46,7 +47,8 @@ class elaborator {
     // Blocks never placed are still checked, in a scratch netlist.
     for (std::size_t b = 0; b < f_.blocks.size(); ++b) {
       if (used_[b] || duplicate_[b]) continue;
-      rep_.warning(f_.blocks[b].id.loc, fmt::format("block '{}' is never instantiated", f_.blocks[b].id.name));
+      rep_.warning(f_.blocks[b].id.loc,
+                   fmt::format("block '{}' is never instantiated", f_.blocks[b].id.name));
       netlist scratch;
       scratch.begin();
       std::vector<bool> saved_input;
@@ -106,7 +108,8 @@ class elaborator {
             on = on || p.block == it->second;
             if (on) cycle += cat(f_.blocks[p.block].id.name, " -> ");
           }
-          rep_.error(in.block.loc, fmt::format("recursive instantiation: {}{}", cycle, in.block.name));
+          rep_.error(in.block.loc,
+                     fmt::format("recursive instantiation: {}{}", cycle, in.block.name));
           recursive_.insert(&in);
         } else if (colour[it->second] == white) {
           colour[it->second] = grey;
@@ -120,7 +123,8 @@ class elaborator {
   bool claim_net_top(const netlist& nl, const ref& r) {
     const net_id n = nl.find(r.name);
     if (n == no_id) return true;
-    rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name, at_text(decl_loc_[n])));
+    rep_.error(r.loc,
+               fmt::format("name '{}' is already declared at {}", r.name, at_text(decl_loc_[n])));
     return false;
   }
 
@@ -171,12 +175,15 @@ class elaborator {
       if (top) {
         const net_id n = nl.find(r.name);
         if (n != no_id) {
-          rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name, at_text(decl_loc_[n])));
+          rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name,
+                                        at_text(decl_loc_[n])));
           return false;
         }
       }
       auto [it, fresh] = taken.emplace(r.name, r.loc);
-      if (!fresh) rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name, at_text(it->second)));
+      if (!fresh)
+        rep_.error(r.loc,
+                   fmt::format("name '{}' is already declared at {}", r.name, at_text(it->second)));
       return fresh;
     };
     enum role { as_input, as_output, as_wire };
@@ -247,15 +254,17 @@ class elaborator {
         ok = false;
       }
       if (ok && in_ports.count(g.out.name)) {
-        rep_.error(g.out.loc, fmt::format("port '{}' is an input of block '{}'; a gate cannot drive it", g.out.name,
-                                          d.id.name));
+        rep_.error(g.out.loc,
+                   fmt::format("port '{}' is an input of block '{}'; a gate cannot drive it",
+                               g.out.name, d.id.name));
         ok = false;
       } else if (ok && is_input_[out]) {
-        rep_.error(g.out.loc, fmt::format("net '{}' is an input; a gate cannot drive it", nl.net_name[out]));
+        rep_.error(g.out.loc,
+                   fmt::format("net '{}' is an input; a gate cannot drive it", nl.net_name[out]));
         ok = false;
       } else if (ok && nl.driver[out] != no_id) {
-        rep_.error(g.out.loc, fmt::format("net '{}' has two drivers (the other at {})", nl.net_name[out],
-                                          at_text(nl.gate_loc[nl.driver[out]])));
+        rep_.error(g.out.loc, fmt::format("net '{}' has two drivers (the other at {})",
+                                          nl.net_name[out], at_text(nl.gate_loc[nl.driver[out]])));
         ok = false;
       }
       // A gate with an unknown input is still placed (reading constant 0) so
@@ -270,7 +279,9 @@ class elaborator {
       if (!g.has_delay) {
         const auto& dflt = d.default_delay ? d.default_delay : f_.top.default_delay;
         if (!dflt) {
-          rep_.error(g.out.loc, fmt::format("gate '{}' has no delay and no default delay is in scope", g.out.name));
+          rep_.error(
+              g.out.loc,
+              fmt::format("gate '{}' has no delay and no default delay is in scope", g.out.name));
         } else {
           delay = *dflt;
           delay.transport = g.delay.transport || dflt->transport;
@@ -282,7 +293,8 @@ class elaborator {
     for (auto& g : d.gates) place_gate(g, d);
     if (top && !stream_top_gates(place_gate)) return;
     for (auto& in : d.inits) {
-      if (top) continue;  // top-level inits may name nets inside instances: applied after elaboration
+      if (top)
+        continue;  // top-level inits may name nets inside instances: applied after elaboration
       net_id n = lookup(in.net);
       if (n != no_id) nl.init[n] = in.value;
     }
@@ -290,7 +302,8 @@ class elaborator {
   }
 
   template <typename Lookup>
-  void place_instance(netlist& nl, const frame& fr, const inst& in, Lookup& lookup, std::vector<frame>& work) {
+  void place_instance(netlist& nl, const frame& fr, const inst& in, Lookup& lookup,
+                      std::vector<frame>& work) {
     if (recursive_.count(&in)) return;
     auto it = block_.find(in.block.name);
     if (it == block_.end()) {
@@ -306,7 +319,8 @@ class elaborator {
       for (auto& r : b.ins) is_in = is_in || r.name == bind.port.name;
       for (auto& r : b.outs) is_out = is_out || r.name == bind.port.name;
       if (!is_in && !is_out) {
-        rep_.error(bind.port.loc, fmt::format("block '{}' has no port '{}'", b.id.name, bind.port.name));
+        rep_.error(bind.port.loc,
+                   fmt::format("block '{}' has no port '{}'", b.id.name, bind.port.name));
         ok = false;
         continue;
       }
@@ -318,7 +332,8 @@ class elaborator {
         continue;
       }
       if (is_out && (bind.target.name == "0" || bind.target.name == "1")) {
-        rep_.error(bind.target.loc, fmt::format("output port '{}' cannot be bound to a constant", bind.port.name));
+        rep_.error(bind.target.loc,
+                   fmt::format("output port '{}' cannot be bound to a constant", bind.port.name));
         ok = false;
         continue;
       }
@@ -333,7 +348,8 @@ class elaborator {
       bool found = false;
       for (auto& bind : in.binds) found = found || bind.port.name == r.name;
       if (!found) {
-        rep_.error(in.id.loc, fmt::format("input port '{}' of block '{}' is not bound", r.name, b.id.name));
+        rep_.error(in.id.loc,
+                   fmt::format("input port '{}' of block '{}' is not bound", r.name, b.id.name));
         ok = false;
       }
     }
@@ -356,7 +372,8 @@ class elaborator {
     constexpr std::size_t release_step = std::size_t(8) << 20;
     std::size_t released = 0;
     for (auto p : f_.top_gates) {
-      if (f_.release_text && p.begin >= released + release_step) f_.release_text(released = p.begin);
+      if (f_.release_text && p.begin >= released + release_step)
+        f_.release_text(released = p.begin);
       pools.read_pool.clear();
       pools.code_pool.clear();
       g = gate{};
@@ -400,8 +417,9 @@ class elaborator {
       else if (!driven)
         rep_.warning(decl_loc_[n], fmt::format("net '{}' is declared but never used", name));
       else if (!read && !is_output[n])
-        rep_.warning(decl_loc_[n], is_input_[n] ? fmt::format("input '{}' is never read", name)
-                                                 : fmt::format("net '{}' is driven but never read", name));
+        rep_.warning(decl_loc_[n], is_input_[n]
+                                       ? fmt::format("input '{}' is never read", name)
+                                       : fmt::format("net '{}' is driven but never read", name));
     }
   }
 

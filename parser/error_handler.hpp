@@ -32,8 +32,9 @@ inline std::string describe(const std::string& which) {
       {"assigns", "NET = VALUE"},
       {"binding", "a port binding PORT: NET"},
       {"port_group", "'in' or 'out' followed by port names"},
-      {"expect_body", "an expectation (NET = VALUE, stable, oscillating, settle within T, no glitch on NET, "
-                      "deterministic, GAUGE within A..B)"},
+      {"expect_body",
+       "an expectation (NET = VALUE, stable, oscillating, settle within T, no glitch on NET, "
+       "deterministic, GAUGE within A..B)"},
       {"cycles_count", "a cycle count"},
       {"cond_or", "a condition over nets"},
       {"cond_xor", "a condition over nets"},
@@ -41,7 +42,8 @@ inline std::string describe(const std::string& which) {
       {"cond_unary", "a net, 0, 1 or '('"},
       {"cond_primary", "a net, 0, 1 or '('"},
       {"count_", "a count"},
-      {"gauge_body", "period of NET, pulse of NET high|low, or latency from NET rises|falls to NET rises|falls"},
+      {"gauge_body",
+       "period of NET, pulse of NET high|low, or latency from NET rises|falls to NET rises|falls"},
   };
   auto it = id_map.find(which);
   return it == id_map.end() ? which : it->second;

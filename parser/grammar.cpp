@@ -1,8 +1,7 @@
 // The single instantiation of the statement grammar, and the parse_statement facade.
-#include "parser/grammar_def.hpp"
-
 #include "parser/config.hpp"
 #include "parser/error_handler.hpp"
+#include "parser/grammar_def.hpp"
 #include "parser/parse.hpp"
 
 namespace settle::grammar {

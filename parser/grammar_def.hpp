@@ -36,9 +36,10 @@ inline constexpr kw_parser kw(const char* w) { return kw_parser(w); }
 
 /// Words that cannot name a net, block or instance (they begin statements or delays).
 inline bool is_reserved(std::string_view w) {
-  for (const char* k : {"input", "output", "wire", "default", "delay", "rise", "fall", "transport", "block",
-                        "inst", "init", "stimulus", "at", "after", "clock", "settle", "run", "expect", "watch",
-                        "when", "always", "never", "gauge"})
+  for (const char* k :
+       {"input", "output", "wire",  "default",  "delay",  "rise",  "fall",  "transport",
+        "block", "inst",   "init",  "stimulus", "at",     "after", "clock", "settle",
+        "run",   "expect", "watch", "when",     "always", "never", "gauge"})
     if (w == k) return true;
   return false;
 }
@@ -84,7 +85,9 @@ struct time_units : x3::symbols<int> {
 inline time_units const time_unit_table;
 
 template <typename P>
-auto list(P const& p) { return p >> *(',' > p); }
+auto list(P const& p) {
+  return p >> *(',' > p);
+}
 
 auto const ident_chars = (x3::alpha | '_') >> *(x3::alnum | '_');
 auto const word_end = !(x3::alnum | '_');
@@ -197,7 +200,8 @@ auto const primary_def = name_ | x3::lexeme[x3::char_("01") >> word_end] | ('(' 
 auto const arg_def = -(&(x3::lexeme[ident_chars] >> ':') >> name_ >> ':') >> or_expr;
 auto const call_def = name_ >> '(' > -(!x3::lit(')') >> args) > ')';
 auto const rhs_def = call | or_expr;
-auto const gate_def = name_ >> '=' > rhs >> -((kw("delay") > delay_body) | rise_fall) >> x3::matches[kw("transport")];
+auto const gate_def = name_ >> '=' > rhs >>
+                      -((kw("delay") > delay_body) | rise_fall) >> x3::matches[kw("transport")];
 
 // ---- declarations and structure
 auto const decl_def = x3::raw[kw("input") | kw("output") | kw("wire") | kw("watch")] > ref_list;
@@ -220,8 +224,8 @@ auto const settle__def = x3::raw[kw("settle")] >> -(kw("within") > time_);
 auto const run_def = x3::raw[kw("run")] > time_;
 auto const expect_within_def = x3::raw[kw("settle")] > kw("within") > time_;
 auto const expect_glitch_def = x3::raw[kw("no")] > kw("glitch") > kw("on") > ref_list;
-auto const expect_word_def =
-    x3::raw[kw("stable") | kw("oscillating") | kw("deterministic")] >> -(kw("period") > range_);
+auto const expect_word_def = x3::raw[kw("stable") | kw("oscillating") | kw("deterministic")] >>
+                             -(kw("period") > range_);
 auto const expect_gauge_def = name_ >> kw("within") > range_;
 auto const expect_body_def = assigns | expect_within | expect_glitch | expect_gauge | expect_word;
 
@@ -231,31 +235,37 @@ auto const cond_xor_def = cond_and >> *('^' > cond_and);
 auto const cond_and_def = cond_unary >> *('&' > cond_unary);
 auto const cond_unary_def = *x3::char_('~') > cond_primary;
 auto const cond_atom_def = ref_ >> -('=' > x3::lexeme[x3::char_("01") >> word_end]);
-auto const cond_primary_def = cond_atom | x3::lexeme[x3::char_("01") >> word_end] | ('(' > cond_or > ')');
+auto const cond_primary_def =
+    cond_atom | x3::lexeme[x3::char_("01") >> word_end] | ('(' > cond_or > ')');
 auto const count_raw_def = x3::raw[x3::lexeme[+x3::digit >> word_end]];
 auto const count__def = count_raw[detail::set_const_name];
-auto const when__def = kw("when") > cond_or > -(kw("after") > range_) > ':' > assigns > -(kw("times") > count_);
+auto const when__def = kw("when") > cond_or > -(kw("after") > range_) > ':' > assigns >
+                       -(kw("times") > count_);
 auto const edge_part_def = ref_ >> x3::raw[kw("rises") | kw("falls")] >> kw("while");
 auto const property_def = x3::raw[kw("always") | kw("never")] > -edge_part > cond_or;
 auto const gauge_period_def = x3::raw[kw("period")] > kw("of") > ref_;
 auto const gauge_pulse_def = kw("pulse") > kw("of") > ref_ > x3::raw[kw("high") | kw("low")];
-auto const gauge_latency_def = kw("latency") > kw("from") > ref_ > x3::raw[kw("rises") | kw("falls")] > kw("to") >
-                               ref_ > x3::raw[kw("rises") | kw("falls")];
+auto const gauge_latency_def = kw("latency") > kw("from") > ref_
+                               > x3::raw[kw("rises") | kw("falls")] > kw("to") > ref_
+                               > x3::raw[kw("rises") | kw("falls")];
 auto const gauge_body_def = gauge_period | gauge_pulse | gauge_latency;
 auto const gauge_def = kw("gauge") > name_ > '=' > gauge_body;
 auto const expect_def = x3::raw[kw("expect")] > expect_body;
 
-auto const statement_rule_def = decl | default_ | block_head | inst | init | timed | clock | settle_ | run |
-                                expect | when_ | property | gauge | gate;
+auto const statement_rule_def = decl | default_ | block_head | inst | init | timed | clock |
+                                settle_ | run | expect | when_ | property | gauge | gate;
 
-BOOST_SPIRIT_DEFINE(ident_raw, ref_raw, quoted_raw, const_raw, number_raw, const_name, name_, ref_, target_, time_unit, time_, range_, rise_fall, delay_body, or_expr, xor_expr,
-                    and_expr, unary, primary, arg, call, rhs, gate, decl, default_, port_group, block_head,
-                    binding, inst, value_, assign, assigns, init, timed, clock, cycles_count, settle_, run,
-                    expect_within, expect_glitch, expect_word, expect_body, expect, ref_list, name_list,
-                    port_groups, bindings, args, statement_rule)
+BOOST_SPIRIT_DEFINE(ident_raw, ref_raw, quoted_raw, const_raw, number_raw, const_name, name_, ref_,
+                    target_, time_unit, time_, range_, rise_fall, delay_body, or_expr, xor_expr,
+                    and_expr, unary, primary, arg, call, rhs, gate, decl, default_, port_group,
+                    block_head, binding, inst, value_, assign, assigns, init, timed, clock,
+                    cycles_count, settle_, run, expect_within, expect_glitch, expect_word,
+                    expect_body, expect, ref_list, name_list, port_groups, bindings, args,
+                    statement_rule)
 // The closed-loop statements (a second DEFINE: one takes a bounded number of rules).
-BOOST_SPIRIT_DEFINE(cond_or, cond_xor, cond_and, cond_unary, cond_primary, cond_atom, count_raw, count_, when_,
-                    edge_part, property, gauge_period, gauge_pulse, gauge_latency, gauge_body, gauge, expect_gauge)
+BOOST_SPIRIT_DEFINE(cond_or, cond_xor, cond_and, cond_unary, cond_primary, cond_atom, count_raw,
+                    count_, when_, edge_part, property, gauge_period, gauge_pulse, gauge_latency,
+                    gauge_body, gauge, expect_gauge)
 
 }  // namespace settle::grammar
 
@@ -263,7 +273,9 @@ namespace boost::spirit::x3 {
 template <>
 struct get_info<settle::grammar::kw_parser> {
   using result_type = std::string;
-  std::string operator()(settle::grammar::kw_parser const& p) const { return "'" + std::string(p.word) + "'"; }
+  std::string operator()(settle::grammar::kw_parser const& p) const {
+    return "'" + std::string(p.word) + "'";
+  }
 };
 }  // namespace boost::spirit::x3
 

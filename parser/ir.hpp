@@ -1,4 +1,5 @@
-// The lowered form of a .settle file: per-scope declarations, gates and stimulus statements (no X3).
+// The lowered form of a .settle file: per-scope declarations, gates and stimulus statements (no
+// X3).
 #pragma once
 
 #include <cstdint>
@@ -50,8 +51,8 @@ struct scope_def {
   ref id;
   std::vector<ref> ins, outs, wires;
   std::vector<gate> gates;
-  std::vector<ref> read_pool;             ///< every gate's reads, back to back
-  std::vector<std::uint32_t> code_pool;   ///< every gate's program, back to back
+  std::vector<ref> read_pool;            ///< every gate's reads, back to back
+  std::vector<std::uint32_t> code_pool;  ///< every gate's program, back to back
   std::vector<inst> insts;
   std::vector<init> inits;
   std::optional<gate_delay> default_delay;
@@ -60,29 +61,43 @@ struct scope_def {
 /// One statement of a stimulus block, times already in fs.
 struct stim_stmt {
   enum class kind : std::uint8_t {
-    at, after, clock, settle, run, watch,
-    expect_value, expect_stable, expect_oscillating, expect_within, expect_no_glitch, expect_deterministic,
-    when, property, gauge, expect_gauge,
+    at,
+    after,
+    clock,
+    settle,
+    run,
+    watch,
+    expect_value,
+    expect_stable,
+    expect_oscillating,
+    expect_within,
+    expect_no_glitch,
+    expect_deterministic,
+    when,
+    property,
+    gauge,
+    expect_gauge,
   } what = kind::settle;
-  time_fs time = 0, time2 = 0;   ///< at/after/run/within time; clock period+high; oscillating lo+hi
+  time_fs time = 0, time2 = 0;  ///< at/after/run/within time; clock period+high; oscillating lo+hi
   bool has_time = false, has_time2 = false;
   std::uint64_t cycles = 0;
   std::vector<ref> nets;
   std::vector<logic> values;
   source_loc time_loc, time2_loc;  ///< where the time literals are written (at/after/run/clock)
-  std::string text;              ///< the statement as written, trimmed
+  std::string text;                ///< the statement as written, trimmed
   source_loc loc;
-  source_loc at_loc;             ///< clock: its `at` literal (has_at)
-  bool has_at = false;           ///< clock ... at T
-  time_fs at = 0;                ///< clock ... at T
+  source_loc at_loc;    ///< clock: its `at` literal (has_at)
+  bool has_at = false;  ///< clock ... at T
+  time_fs at = 0;       ///< clock ... at T
   // Closed-loop statements.
-  std::vector<std::uint32_t> code;  ///< when/property: the expression in postfix (operands index reads)
-  std::vector<ref> reads;           ///< the distinct nets the expression reads
-  std::string expr_text;            ///< the expression as written
-  delay_range range;                ///< when: the delay; expect_gauge: the range
-  std::uint64_t count = 0;          ///< when: times N (0: none)
-  std::string word;                 ///< property: always/never/rises/falls; gauge: its kind name
-  ref name;                         ///< gauge / expect_gauge: the gauge's name
+  std::vector<std::uint32_t>
+      code;                 ///< when/property: the expression in postfix (operands index reads)
+  std::vector<ref> reads;   ///< the distinct nets the expression reads
+  std::string expr_text;    ///< the expression as written
+  delay_range range;        ///< when: the delay; expect_gauge: the range
+  std::uint64_t count = 0;  ///< when: times N (0: none)
+  std::string word;         ///< property: always/never/rises/falls; gauge: its kind name
+  ref name;                 ///< gauge / expect_gauge: the gauge's name
   bool from_rises = true, to_rises = true;  ///< gauge latency edges
 };
 
@@ -99,10 +114,10 @@ struct piece {
 };
 
 struct file {
-  std::string_view text;        ///< the source text the pieces and refs point into
-  scope_def top;                ///< top-level gates are in top_gates, not top.gates
+  std::string_view text;  ///< the source text the pieces and refs point into
+  scope_def top;          ///< top-level gates are in top_gates, not top.gates
   std::vector<piece> top_gates;
-  std::size_t top_reads = 0;    ///< an upper bound of the top-level gates' reads
+  std::size_t top_reads = 0;  ///< an upper bound of the top-level gates' reads
   std::vector<scope_def> blocks;
   stim_block stim;
   /// When set, may drop the resident pages of the text before an offset (a
@@ -121,9 +136,12 @@ class reporter {
   void error(source_loc at, const std::string& msg) { report(diagnostic::level::error, at, msg); }
   /// The text of a 1-based line, without its newline ("" when out of range).
   std::string line_text(std::uint32_t line) const;
-  void warning(source_loc at, const std::string& msg) { report(diagnostic::level::warning, at, msg); }
+  void warning(source_loc at, const std::string& msg) {
+    report(diagnostic::level::warning, at, msg);
+  }
   /// An error with a note at a second place (the other half of a conflict).
-  void error_with_note(source_loc at, const std::string& msg, source_loc note_at, const std::string& note);
+  void error_with_note(source_loc at, const std::string& msg, source_loc note_at,
+                       const std::string& note);
   std::size_t errors() const { return errors_; }
   const std::string& file() const { return file_; }
   /// While holding, diagnostics wait aside (and do not count) until release() or drop().

@@ -1,15 +1,15 @@
 // The loading facade: file I/O, format dispatch, parse + elaborate, and --stim replacement.
 #include "parser/load.hpp"
 
+#include <fcntl.h>
 #include <fmt/format.h>
+#include <sys/mman.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include <algorithm>
 #include <cerrno>
 #include <cstring>
-#include <fcntl.h>
-#include <sys/mman.h>
-#include <sys/stat.h>
-#include <unistd.h>
 
 #include "parser/ir.hpp"
 #include "parser/verilog.hpp"
@@ -37,7 +37,8 @@ class source_text {
       return fail(path, diags, "cannot read file: it is a directory");
     }
     if (::fstat(fd, &st) == 0 && S_ISREG(st.st_mode) && st.st_size > 0) {
-      void* p = ::mmap(nullptr, static_cast<std::size_t>(st.st_size), PROT_READ, MAP_PRIVATE, fd, 0);
+      void* p =
+          ::mmap(nullptr, static_cast<std::size_t>(st.st_size), PROT_READ, MAP_PRIVATE, fd, 0);
       if (p != MAP_FAILED) {
         ::close(fd);
         map_ = p;
@@ -88,10 +89,12 @@ class source_text {
 };
 
 bool ends_with(const std::string& s, std::string_view suffix) {
-  return s.size() >= suffix.size() && s.compare(s.size() - suffix.size(), suffix.size(), suffix) == 0;
+  return s.size() >= suffix.size() &&
+         s.compare(s.size() - suffix.size(), suffix.size(), suffix) == 0;
 }
 
-/// Orders this load's diagnostics by position (file-less ones first), keeping emission order otherwise.
+/// Orders this load's diagnostics by position (file-less ones first), keeping emission order
+/// otherwise.
 void sort_from(diagnostics& diags, std::size_t first) {
   std::stable_sort(diags.items.begin() + static_cast<std::ptrdiff_t>(first), diags.items.end(),
                    [](const diagnostic& a, const diagnostic& b) {
@@ -109,7 +112,8 @@ bool apply_stim_file(design& d, const std::string& path, diagnostics& diags) {
   ir::reporter rep(text, path, diags);
   ir::file f;
   ir::parse_file(text, ir::file_mode::stimulus_only, f, rep);
-  if (!rep.errors() && !f.stim.present) rep.error({}, "the stimulus file holds no stimulus { } block");
+  if (!rep.errors() && !f.stim.present)
+    rep.error({}, "the stimulus file holds no stimulus { } block");
   if (!rep.errors()) ir::build_stimulus(f.stim, d.nets, d.stim, rep);
   sort_from(diags, first);
   return rep.errors() == 0;
@@ -117,8 +121,8 @@ bool apply_stim_file(design& d, const std::string& path, diagnostics& diags) {
 
 /// Parses and elaborates a .settle text; `src`, when given, is the mapped file
 /// the text views, whose pages are dropped once read.
-std::optional<design> load_settle(std::string_view text, const std::string& name, diagnostics& diags,
-                                  source_text* src) {
+std::optional<design> load_settle(std::string_view text, const std::string& name,
+                                  diagnostics& diags, source_text* src) {
   const auto first = diags.items.size();
   ir::reporter rep(text, name, diags);
   ir::file f;
@@ -147,15 +151,17 @@ std::optional<design> load_settle(std::string_view text, const std::string& name
 
 }  // namespace
 
-std::optional<design> load_design_text(std::string_view text, const std::string& name, const load_options& opt,
-                                       diagnostics& diags) {
+std::optional<design> load_design_text(std::string_view text, const std::string& name,
+                                       const load_options& opt, diagnostics& diags) {
   if (opt.format == "bench") return load_bench_text(text, name, opt, diags);
   if (opt.format == "verilog") return load_verilog_text(text, name, opt, diags);
   return load_settle(text, name, diags, nullptr);
 }
 
-std::optional<design> load_design(const std::string& path, const load_options& opt, diagnostics& diags) {
-  if (opt.format != "auto" && opt.format != "settle" && opt.format != "bench" && opt.format != "verilog") {
+std::optional<design> load_design(const std::string& path, const load_options& opt,
+                                  diagnostics& diags) {
+  if (opt.format != "auto" && opt.format != "settle" && opt.format != "bench" &&
+      opt.format != "verilog") {
     diagnostic d;
     d.file = path;
     d.message = fmt::format("unknown format '{}' (use auto, settle, bench or verilog)", opt.format);
@@ -166,7 +172,8 @@ std::optional<design> load_design(const std::string& path, const load_options& o
   if (!src.open(path, diags)) return std::nullopt;
   const std::string_view text = src.view();
   load_options o = opt;
-  if (o.format == "auto") o.format = ends_with(path, ".bench") ? "bench" : ends_with(path, ".v") ? "verilog" : "settle";
+  if (o.format == "auto")
+    o.format = ends_with(path, ".bench") ? "bench" : ends_with(path, ".v") ? "verilog" : "settle";
   auto d = o.format == "bench"     ? load_bench_text(text, path, o, diags)
            : o.format == "verilog" ? load_verilog_text(text, path, o, diags)
                                    : load_settle(text, path, diags, &src);

@@ -18,9 +18,10 @@ struct kind_entry {
   gate_kind kind;
 };
 constexpr kind_entry kinds[] = {
-    {"not", gate_kind::inv},   {"buf", gate_kind::buf},   {"and", gate_kind::and_}, {"or", gate_kind::or_},
-    {"nand", gate_kind::nand}, {"nor", gate_kind::nor},   {"xor", gate_kind::xor_}, {"xnor", gate_kind::xnor},
-    {"mux", gate_kind::mux},   {"maj", gate_kind::maj},   {"c", gate_kind::celem},  {"gc", gate_kind::gc},
+    {"not", gate_kind::inv},  {"buf", gate_kind::buf},   {"and", gate_kind::and_},
+    {"or", gate_kind::or_},   {"nand", gate_kind::nand}, {"nor", gate_kind::nor},
+    {"xor", gate_kind::xor_}, {"xnor", gate_kind::xnor}, {"mux", gate_kind::mux},
+    {"maj", gate_kind::maj},  {"c", gate_kind::celem},   {"gc", gate_kind::gc},
 };
 
 /// What a primitive of kind `k` with `n` inputs lacks ("exactly 1 input"), or null when n is right.
@@ -46,7 +47,8 @@ bool is_ident_char(char c) { return is_ident_start(c) || (c >= '0' && c <= '9');
 const char* first_pos(const ast::or_expr& e);
 const char* first_pos(const ast::primary& p) {
   if (auto n = boost::get<ast::name>(&p)) return n->pos;
-  if (auto f = boost::get<boost::spirit::x3::forward_ast<ast::or_expr>>(&p)) return first_pos(f->get());
+  if (auto f = boost::get<boost::spirit::x3::forward_ast<ast::or_expr>>(&p))
+    return first_pos(f->get());
   return nullptr;
 }
 const char* first_pos(const ast::or_expr& e) {
@@ -108,7 +110,8 @@ class compiler {
 
 /// The single net or constant an argument must be for a primitive gate.
 bool simple_arg(const ast::arg& a, ref& out, const reporter& rep) {
-  if (a.label || a.value.size() != 1 || a.value[0].size() != 1 || a.value[0][0].size() != 1) return false;
+  if (a.label || a.value.size() != 1 || a.value[0].size() != 1 || a.value[0][0].size() != 1)
+    return false;
   const auto& u = a.value[0][0][0];
   if (!u.nots.empty()) return false;
   if (auto n = boost::get<ast::name>(&u.operand)) {
@@ -124,7 +127,8 @@ bool simple_arg(const ast::arg& a, ref& out, const reporter& rep) {
 
 bool lower_call(const ast::call& c, gate& out, scope_def& pools, reporter& rep) {
   const auto at = rep.loc_of(c.kind.pos);
-  auto k = std::find_if(std::begin(kinds), std::end(kinds), [&](auto& e) { return c.kind.text == e.word; });
+  auto k = std::find_if(std::begin(kinds), std::end(kinds),
+                        [&](auto& e) { return c.kind.text == e.word; });
   if (k == std::end(kinds)) {
     rep.error(at, fmt::format("unknown gate kind '{}'", c.kind.text));
     return false;
@@ -136,9 +140,12 @@ bool lower_call(const ast::call& c, gate& out, scope_def& pools, reporter& rep) 
     const ast::arg* reset = nullptr;
     bool bad = false;
     for (auto& a : c.args) {
-      if (a.label && a.label->text == "set" && !set) set = &a;
-      else if (a.label && a.label->text == "reset" && !reset) reset = &a;
-      else bad = true;
+      if (a.label && a.label->text == "set" && !set)
+        set = &a;
+      else if (a.label && a.label->text == "reset" && !reset)
+        reset = &a;
+      else
+        bad = true;
     }
     if (bad || !set || !reset) {
       rep.error(at, "'gc' takes exactly two arguments, set: EXPR and reset: EXPR");
@@ -153,8 +160,9 @@ bool lower_call(const ast::call& c, gate& out, scope_def& pools, reporter& rep) 
     ref r;
     if (!simple_arg(a, r, rep)) {
       const char* p = a.label ? a.label->pos : first_pos(a.value);
-      rep.error(p ? rep.loc_of(p) : at,
-                fmt::format("arguments of '{}' must be nets or the constants 0 and 1", c.kind.text));
+      rep.error(
+          p ? rep.loc_of(p) : at,
+          fmt::format("arguments of '{}' must be nets or the constants 0 and 1", c.kind.text));
       return false;
     }
     pools.read_pool.push_back(std::move(r));
@@ -174,8 +182,9 @@ bool lower_range(const ast::range& r, delay_range& out, reporter& rep) {
   auto delay_time = [&](const ast::time_lit& t, time_fs& v) {
     if (!lower_time(t, v, rep)) return false;
     if (v <= time_last) return true;
-    rep.error(rep.loc_of(t.pos), fmt::format("a delay of {}fs passes the end of representable time ({}fs)", v,
-                                             time_last));
+    rep.error(
+        rep.loc_of(t.pos),
+        fmt::format("a delay of {}fs passes the end of representable time ({}fs)", v, time_last));
     return false;
   };
   if (!delay_time(r.a, a)) return false;
@@ -216,7 +225,8 @@ bool lower_time(const ast::time_lit& t, time_fs& out, reporter& rep) {
   return false;
 }
 
-bool lower_delay(const std::vector<ast::range>& ranges, bool transport, gate_delay& out, reporter& rep) {
+bool lower_delay(const std::vector<ast::range>& ranges, bool transport, gate_delay& out,
+                 reporter& rep) {
   out.transport = transport;
   if (!lower_range(ranges[0], out.rise, rep)) return false;
   if (ranges.size() == 1) {
@@ -275,7 +285,9 @@ bool lower_simple_gate(std::string_view text, source_loc at, gate& out, scope_de
     while (p < e && is_ident_char(*p)) ++p;
     return std::string_view(s, static_cast<std::size_t>(p - s));
   };
-  auto loc = [&](const char* q) { return source_loc{at.line, at.col + static_cast<std::uint32_t>(q - b)}; };
+  auto loc = [&](const char* q) {
+    return source_loc{at.line, at.col + static_cast<std::uint32_t>(q - b)};
+  };
   const auto reads = pools.read_pool.size();
   auto fail = [&] {
     pools.read_pool.resize(reads);
@@ -290,7 +302,8 @@ bool lower_simple_gate(std::string_view text, source_loc at, gate& out, scope_de
   skip();
   const auto kind = word();
   if (kind.empty() || kind == "gc" || grammar::is_reserved_word(kind)) return false;
-  auto k = std::find_if(std::begin(kinds), std::end(kinds), [&](auto& x) { return kind == x.word; });
+  auto k =
+      std::find_if(std::begin(kinds), std::end(kinds), [&](auto& x) { return kind == x.word; });
   if (k == std::end(kinds)) return false;
   skip();
   if (p == e || *p != '(') return false;

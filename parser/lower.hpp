@@ -20,7 +20,8 @@ bool lower_gate(const ast::gate_stmt& g, gate& out, scope_def& pools, reporter& 
 /// with nothing reported and the pools as they were, for any other form.
 bool lower_simple_gate(std::string_view text, source_loc at, gate& out, scope_def& pools);
 /// Converts a delay written as one range (both edges) or two (rise, fall).
-bool lower_delay(const std::vector<ast::range>& ranges, bool transport, gate_delay& out, reporter& rep);
+bool lower_delay(const std::vector<ast::range>& ranges, bool transport, gate_delay& out,
+                 reporter& rep);
 /// Converts a time literal; false (after reporting) when not exact or too large.
 bool lower_time(const ast::time_lit& t, time_fs& out, reporter& rep);
 /// A name with its position.

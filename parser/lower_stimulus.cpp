@@ -1,7 +1,8 @@
-// Stimulus statements -> steps: actions up to each settle/run, expectations attached to the step before them.
-#include <algorithm>
-
+// Stimulus statements -> steps: actions up to each settle/run, expectations attached to the step
+// before them.
 #include <fmt/format.h>
+
+#include <algorithm>
 
 #include "parser/ir.hpp"
 
@@ -35,7 +36,8 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
     net_id n = net_of(r);
     if (n == no_id) return n;
     if (nl.driver[n] != no_id) {
-      rep.error(r.loc, fmt::format("'{}' is not an input; the stimulus drives inputs only", r.name));
+      rep.error(r.loc,
+                fmt::format("'{}' is not an input; the stimulus drives inputs only", r.name));
       return no_id;
     }
     return n;
@@ -61,7 +63,8 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
   step_spec cur;
   std::vector<std::string> labels;
   bool closed_any = false;
-  std::size_t cur_inputs = 0;  // at/after/clock actions in cur (rules, properties and gauges are not inputs)
+  std::size_t cur_inputs =
+      0;  // at/after/clock actions in cur (rules, properties and gauges are not inputs)
   source_loc first_input;
   // A lower bound of the time the stimulus has reached (settle steps take at
   // least no time, `run T` exactly T): an `at` before it is an error.
@@ -109,8 +112,10 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
         a.time_loc = s.time_loc;
         if (s.what == k::at) {
           if (s.time < reached)
-            rep.error(s.time_loc, fmt::format("'at {}' is earlier than {}, a time the stimulus has already reached",
-                                              format_time(s.time), format_time(reached)));
+            rep.error(
+                s.time_loc,
+                fmt::format("'at {}' is earlier than {}, a time the stimulus has already reached",
+                            format_time(s.time), format_time(reached)));
           reached = std::max(reached, s.time);
           a.source_line = rep.line_text(s.time_loc.line);
         } else {
@@ -142,8 +147,10 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
           a.time_loc = s.at_loc;
           a.source_line = rep.line_text(s.at_loc.line);
           if (s.at < reached)
-            rep.error(s.at_loc, fmt::format("'at {}' is earlier than {}, a time the stimulus has already reached",
-                                            format_time(s.at), format_time(reached)));
+            rep.error(
+                s.at_loc,
+                fmt::format("'at {}' is earlier than {}, a time the stimulus has already reached",
+                            format_time(s.at), format_time(reached)));
         }
         if (!step_has_first) step_first = reached, step_has_first = true;
         if (!s.has_time2 && a.clock.high == 0)
@@ -232,9 +239,11 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
           ok = ok && n != no_id;
           g.nets.push_back(n);
         }
-        auto dup = std::find_if(out.gauges.begin(), out.gauges.end(), [&](const gauge& o) { return o.name == g.name; });
+        auto dup = std::find_if(out.gauges.begin(), out.gauges.end(),
+                                [&](const gauge& o) { return o.name == g.name; });
         if (dup != out.gauges.end()) {
-          rep.error(s.name.loc, fmt::format("gauge '{}' is already defined on line {}", g.name, dup->loc.line));
+          rep.error(s.name.loc,
+                    fmt::format("gauge '{}' is already defined on line {}", g.name, dup->loc.line));
           ok = false;
         }
         if (!ok) break;
@@ -248,15 +257,19 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
       }
       case k::expect_gauge: {
         auto* st = expect_target(s);
-        auto g = std::find_if(out.gauges.begin(), out.gauges.end(), [&](const gauge& o) { return o.name == s.name.name; });
+        auto g = std::find_if(out.gauges.begin(), out.gauges.end(),
+                              [&](const gauge& o) { return o.name == s.name.name; });
         if (g == out.gauges.end()) {
-          rep.error(s.name.loc, fmt::format("unknown gauge '{}'; a gauge is defined with 'gauge {} = ...' before the "
-                                            "expect",
-                                            s.name.name, s.name.name));
+          rep.error(
+              s.name.loc,
+              fmt::format("unknown gauge '{}'; a gauge is defined with 'gauge {} = ...' before the "
+                          "expect",
+                          s.name.name, s.name.name));
           break;
         }
         if (!st) break;
-        expectation e = make_expect(expectation::kind::gauge, 0, std::string(s.name.name), s.name.loc);
+        expectation e =
+            make_expect(expectation::kind::gauge, 0, std::string(s.name.name), s.name.loc);
         e.gauge = static_cast<std::uint32_t>(g - out.gauges.begin());
         e.lo = s.range.min;
         e.hi = s.range.max;
@@ -271,9 +284,9 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
         auto* st = expect_target(s);
         for (std::size_t i = 0; i < s.nets.size(); ++i) {
           net_id n = net_of(s.nets[i]);
-          if (st && n != no_id)
-{
-            st->expects.push_back(make_expect(expectation::kind::value, n, std::string(s.nets[i].name), s.nets[i].loc));
+          if (st && n != no_id) {
+            st->expects.push_back(make_expect(expectation::kind::value, n,
+                                              std::string(s.nets[i].name), s.nets[i].loc));
             st->expects.back().want = s.values[i];
           }
         }
@@ -284,7 +297,8 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
         for (auto& r : s.nets) {
           net_id n = net_of(r);
           if (st && n != no_id)
-            st->expects.push_back(make_expect(expectation::kind::no_glitch, n, std::string(r.name), r.loc));
+            st->expects.push_back(
+                make_expect(expectation::kind::no_glitch, n, std::string(r.name), r.loc));
         }
         break;
       }
@@ -300,21 +314,24 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
                  : s.what == k::expect_within        ? expectation::kind::within
                                                      : expectation::kind::oscillating;
         if (s.what == k::expect_within) e.hi = s.time;
-        if (s.what == k::expect_oscillating && s.has_time) e.lo = s.time, e.hi = s.time2, e.has_range = true;
+        if (s.what == k::expect_oscillating && s.has_time)
+          e.lo = s.time, e.hi = s.time2, e.has_range = true;
         st->expects.push_back(e);
         break;
       }
     }
   }
   if (cur_inputs) {
-    rep.warning(first_input, "input changes after the last settle or run: an implicit settle ends them");
+    rep.warning(first_input,
+                "input changes after the last settle or run: an implicit settle ends them");
     close(step_spec::end_kind::settle, sb.close_loc);
   } else if (!cur.actions.empty()) {
     // Rules, properties or gauges with no step after them: an implicit settle
     // gives them one (said aloud when earlier steps exist).
     if (closed_any)
       rep.warning(cur.actions.front().loc,
-                  "reaction rules, properties or gauges after the last settle or run: an implicit settle ends them");
+                  "reaction rules, properties or gauges after the last settle or run: an implicit "
+                  "settle ends them");
     close(step_spec::end_kind::settle, sb.close_loc);
   }
 }

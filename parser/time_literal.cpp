@@ -7,11 +7,16 @@ namespace settle {
 
 const char* time_unit_name(int exponent) {
   switch (exponent) {
-    case 0: return "fs";
-    case 3: return "ps";
-    case 6: return "ns";
-    case 9: return "us";
-    default: return "ms";
+    case 0:
+      return "fs";
+    case 3:
+      return "ps";
+    case 6:
+      return "ns";
+    case 9:
+      return "us";
+    default:
+      return "ms";
   }
 }
 
@@ -19,7 +24,8 @@ bool time_to_fs(std::string_view number, int exponent, time_fs& out, std::string
   const std::string written = std::string(number) + time_unit_name(exponent);
   auto dot = number.find('.');
   std::string_view whole = number.substr(0, dot);
-  std::string_view frac = dot == std::string_view::npos ? std::string_view{} : number.substr(dot + 1);
+  std::string_view frac =
+      dot == std::string_view::npos ? std::string_view{} : number.substr(dot + 1);
   while (!frac.empty() && frac.back() == '0') frac.remove_suffix(1);
   if (frac.size() > static_cast<std::size_t>(exponent)) {
     why = "time " + written + " is not a whole number of femtoseconds";

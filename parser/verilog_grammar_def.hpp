@@ -170,13 +170,14 @@ auto const port_conn_def =
     ('.' > ident > '(' > -conn > ')') | (x3::attr(boost::optional<vast::raw>()) >> conn);
 auto const mod_inst_def = ident > '(' > -(port_conn % ',') > ')';
 auto const inst_stmt_def = ident >> &(x3::alpha | '_') > (mod_inst % ',');
-auto const statement_rule_def = module_hdr | decl_stmt | assign_stmt | gate_stmt | udp_stmt | inst_stmt;
+auto const statement_rule_def =
+    module_hdr | decl_stmt | assign_stmt | gate_stmt | udp_stmt | inst_stmt;
 
 BOOST_SPIRIT_DEFINE(ident_raw, ident, kind_raw, gate_kind, number, based, select, range_syn,
                     range_raw, range_, term_raw, term, conn, mtm, delay_raw, delay, primary, unary,
                     and_e, xor_e, or_e, cond_e, expr_raw, expr, dir_word, port_item, module_hdr,
-                    decl_kind, decl_stmt, assign_item, assign_stmt, gate_inst, gate_stmt, udp_stmt, port_conn,
-                    mod_inst, inst_stmt, statement_rule)
+                    decl_kind, decl_stmt, assign_item, assign_stmt, gate_inst, gate_stmt, udp_stmt,
+                    port_conn, mod_inst, inst_stmt, statement_rule)
 
 }  // namespace settle::vgrammar
 

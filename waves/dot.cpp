@@ -36,13 +36,13 @@ std::string state_graph_dot(const netlist& n, const explore_result& r, const std
   for (const auto& s : r.steps) {
     if (!s.graph) continue;
     const state_graph& g = *s.graph;
-    fmt::format_to(out, "  subgraph cluster_step{} {{\n    label=\"step {}: {}{}\";\n", s.index, s.index,
-                   quoted(s.label), s.complete ? "" : " (incomplete)");
+    fmt::format_to(out, "  subgraph cluster_step{} {{\n    label=\"step {}: {}{}\";\n", s.index,
+                   s.index, quoted(s.label), s.complete ? "" : " (incomplete)");
     for (std::uint32_t v = 0; v < g.size(); ++v) {
       const std::string bits = g.bits_text(v);
       const bool stable = v < g.explored && g.is_stable(v);
-      fmt::format_to(out, "    s{}_{} [label=\"{}\"{}{}];\n", s.index, v, bits, stable ? ", peripheries=2" : "",
-                     v < g.starts ? ", style=bold" : "");
+      fmt::format_to(out, "    s{}_{} [label=\"{}\"{}{}];\n", s.index, v, bits,
+                     stable ? ", peripheries=2" : "", v < g.starts ? ", style=bold" : "");
     }
     for (std::uint32_t v = 0; v < g.explored; ++v)
       for (auto e = g.edge_begin[v]; e < g.edge_begin[v + 1]; ++e) {
@@ -50,7 +50,8 @@ std::string state_graph_dot(const netlist& n, const explore_result& r, const std
         std::string fired;
         for (gate_id k = 0; k < n.gate_count(); ++k)
           if (g.bit(v, k) != g.bit(w, k)) fired += (fired.empty() ? "" : ",") + n.gate_name(k);
-        fmt::format_to(out, "    s{}_{} -> s{}_{} [label=\"{}\"];\n", s.index, v, s.index, w, quoted(fired));
+        fmt::format_to(out, "    s{}_{} -> s{}_{} [label=\"{}\"];\n", s.index, v, s.index, w,
+                       quoted(fired));
       }
     fmt::format_to(out, "  }}\n");
   }

@@ -1,11 +1,12 @@
-// The HTML reports: report data as JSON (command result, witness traces, histograms, graphs) inside one page.
+// The HTML reports: report data as JSON (command result, witness traces, histograms, graphs) inside
+// one page.
 #include "waves/html.hpp"
+
+#include <fmt/format.h>
 
 #include <algorithm>
 #include <limits>
 #include <map>
-
-#include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
 namespace settle {
@@ -47,9 +48,10 @@ page_data start(const design& d, const std::vector<net_id>& reported, const html
   }
   j["outputs"] = outputs;
   if (reported.size() > drawn_net_limit)
-    p.notes.push_back(fmt::format("{} nets are reported; the waveforms show the first {}.", reported.size(),
-                                  drawn_net_limit));
-  j["result"] = src.result_json.empty() ? json::object() : json::parse(src.result_json, nullptr, false);
+    p.notes.push_back(fmt::format("{} nets are reported; the waveforms show the first {}.",
+                                  reported.size(), drawn_net_limit));
+  j["result"] =
+      src.result_json.empty() ? json::object() : json::parse(src.result_json, nullptr, false);
   if (j["result"].is_discarded()) j["result"] = json::object();
   j["gates"] = d.nets.gate_count();
   j["net_count"] = d.nets.net_count();
@@ -57,7 +59,8 @@ page_data start(const design& d, const std::vector<net_id>& reported, const html
 }
 
 std::vector<net_id> drawn(const std::vector<net_id>& reported) {
-  return {reported.begin(), reported.begin() + static_cast<std::ptrdiff_t>(std::min(reported.size(), drawn_net_limit))};
+  return {reported.begin(), reported.begin() + static_cast<std::ptrdiff_t>(
+                                                   std::min(reported.size(), drawn_net_limit))};
 }
 
 json trace_json(const std::vector<html_net_trace>& nets) {
@@ -89,28 +92,35 @@ struct replay {
 /// each step gets its share of the limit and of the busy bands, so the page
 /// stays bounded however many steps the run has. The page says so once per
 /// witness.
-std::vector<html_net_trace> witness_window(replay& r, const step_result& st, const std::string& witness,
-                                           page_data& p, bool* summarised, std::uint64_t* changes) {
+std::vector<html_net_trace> witness_window(replay& r, const step_result& st,
+                                           const std::string& witness, page_data& p,
+                                           bool* summarised, std::uint64_t* changes) {
   std::uint64_t limit = html_change_limit;
   std::size_t buckets = summary_buckets;
   if (r.changes > html_change_limit) {
-    const double share = static_cast<double>(r.rec->changes_between(st.start, st.end)) / static_cast<double>(r.changes);
-    limit = std::max<std::uint64_t>(1, static_cast<std::uint64_t>(static_cast<double>(html_change_limit) * share));
-    buckets = std::max<std::size_t>(64, static_cast<std::size_t>(static_cast<double>(summary_buckets) * share));
+    const double share = static_cast<double>(r.rec->changes_between(st.start, st.end)) /
+                         static_cast<double>(r.changes);
+    limit = std::max<std::uint64_t>(
+        1, static_cast<std::uint64_t>(static_cast<double>(html_change_limit) * share));
+    buckets = std::max<std::size_t>(
+        64, static_cast<std::size_t>(static_cast<double>(summary_buckets) * share));
   }
   auto tr = r.rec->window(st.start, st.end, limit, buckets, summarised, changes);
   // Summarised means something was dropped: a busy band stands for it.
-  *summarised = std::any_of(tr.begin(), tr.end(), [](const html_net_trace& t) { return !t.busy.empty(); });
+  *summarised =
+      std::any_of(tr.begin(), tr.end(), [](const html_net_trace& t) { return !t.busy.empty(); });
   if (*summarised && !r.noted) {
     r.noted = true;
-    p.notes.push_back(fmt::format("Witness {}: {} value changes over the run, more than {}; its waveforms are "
-                                  "decimated: dense stretches are drawn as busy bands.",
-                                  witness, r.changes, html_change_limit));
+    p.notes.push_back(
+        fmt::format("Witness {}: {} value changes over the run, more than {}; its waveforms are "
+                    "decimated: dense stretches are drawn as busy bands.",
+                    witness, r.changes, html_change_limit));
   }
   return tr;
 }
 
-replay replay_corner(const design& d, const corner& c, const run_options& ro, const std::vector<net_id>& nets) {
+replay replay_corner(const design& d, const corner& c, const run_options& ro,
+                     const std::vector<net_id>& nets) {
   replay r;
   r.rec = std::make_unique<html_recorder>(d.nets.net_count(), nets);
   delay_table delays;
@@ -120,13 +130,15 @@ replay replay_corner(const design& d, const corner& c, const run_options& ro, co
   return r;
 }
 
-/// Waveform panels of a sweep: every step that is not deterministic, one lane per outcome's witness.
+/// Waveform panels of a sweep: every step that is not deterministic, one lane per outcome's
+/// witness.
 void sweep_waves(const design& d, const sweep_result& r, const run_options& ro, page_data& p) {
   const auto nets = drawn(r.reported);
   std::map<std::string, replay> replays;
   auto& waves = p.root["waves"] = json::array();
   for (const auto& s : r.steps) {
-    if (s.verdict == sweep_verdict::deterministic || s.outcomes.empty()) continue;  // empty: `interval` alone
+    if (s.verdict == sweep_verdict::deterministic || s.outcomes.empty())
+      continue;  // empty: `interval` alone
     json w;
     w["step"] = s.index;
     w["traces"] = json::array();
@@ -134,8 +146,9 @@ void sweep_waves(const design& d, const sweep_result& r, const run_options& ro, 
     time_fs span = 1;
     const std::size_t shown = std::min(s.outcomes.size(), drawn_outcome_limit);
     if (s.outcomes.size() > shown)
-      p.notes.push_back(fmt::format("Step {} has {} outcomes; the waveforms show the {} most common.", s.index,
-                                    s.outcomes.size(), shown));
+      p.notes.push_back(
+          fmt::format("Step {} has {} outcomes; the waveforms show the {} most common.", s.index,
+                      s.outcomes.size(), shown));
     for (std::size_t o = 0; o < shown; ++o) {
       const auto& oc = s.outcomes[o];
       auto it = replays.find(oc.witness_name);
@@ -166,8 +179,10 @@ void sweep_waves(const design& d, const sweep_result& r, const run_options& ro, 
     }
     const time_fs diff = first_difference(all);
     w["span_fs"] = span;
-    if (diff != std::numeric_limits<time_fs>::max()) w["diverge_fs"] = diff;
-    else w["diverge_fs"] = nullptr;
+    if (diff != std::numeric_limits<time_fs>::max())
+      w["diverge_fs"] = diff;
+    else
+      w["diverge_fs"] = nullptr;
     waves.push_back(std::move(w));
   }
 }
@@ -220,10 +235,11 @@ json sweep_json(const design& d, const sweep_result& r) {
       if (oc.status == step_status::deadlock) {
         e["owed"] = json::array();
         for (const auto& w : oc.owed)
-          e["owed"].push_back({{"rule", w.rule < d.stim.rules.size() ? d.stim.rules[w.rule].text : std::string()},
-                               {"fired", w.fired},
-                               {"times", w.times},
-                               {"condition", one(w.condition)}});
+          e["owed"].push_back(
+              {{"rule", w.rule < d.stim.rules.size() ? d.stim.rules[w.rule].text : std::string()},
+               {"fired", w.fired},
+               {"times", w.times},
+               {"condition", one(w.condition)}});
       }
       st["outcomes"].push_back(std::move(e));
     }
@@ -232,7 +248,9 @@ json sweep_json(const design& d, const sweep_result& r) {
   // Whole-run properties and gauges over the corners, in the sweep command's shape.
   j["properties"] = json::array();
   for (const auto& p : r.properties) {
-    json e = {{"text", d.stim.properties[p.index].text}, {"violating", p.violating}, {"corners", r.corners}};
+    json e = {{"text", d.stim.properties[p.index].text},
+              {"violating", p.violating},
+              {"corners", r.corners}};
     if (p.violating) e["witness"] = p.witness_name;
     j["properties"].push_back(std::move(e));
   }
@@ -250,16 +268,21 @@ json sweep_json(const design& d, const sweep_result& r) {
   return j;
 }
 
-/// JSON safe inside <script>: '<', '>' and '&' occur only inside strings, where \u escapes mean the same.
+/// JSON safe inside <script>: '<', '>' and '&' occur only inside strings, where \u escapes mean the
+/// same.
 std::string script_safe(const json& j) {
   const std::string raw = j.dump();
   std::string out;
   out.reserve(raw.size() + raw.size() / 16);
   for (char c : raw) {
-    if (c == '<') out += "\\u003c";
-    else if (c == '>') out += "\\u003e";
-    else if (c == '&') out += "\\u0026";
-    else out += c;
+    if (c == '<')
+      out += "\\u003c";
+    else if (c == '>')
+      out += "\\u003e";
+    else if (c == '&')
+      out += "\\u0026";
+    else
+      out += c;
   }
   return out;
 }
@@ -267,11 +290,16 @@ std::string script_safe(const json& j) {
 std::string html_text(const std::string& s) {
   std::string out;
   for (char c : s) {
-    if (c == '<') out += "&lt;";
-    else if (c == '>') out += "&gt;";
-    else if (c == '&') out += "&amp;";
-    else if (c == '"') out += "&quot;";
-    else out += c;
+    if (c == '<')
+      out += "&lt;";
+    else if (c == '>')
+      out += "&gt;";
+    else if (c == '&')
+      out += "&amp;";
+    else if (c == '"')
+      out += "&quot;";
+    else
+      out += c;
   }
   return out;
 }
@@ -283,15 +311,20 @@ std::string page(page_data& p) {
   std::string out;
   out += "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n";
   out += "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n";
-  out += "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; style-src 'unsafe-inline'; "
-         "script-src 'unsafe-inline'; img-src data:\">\n";
+  out +=
+      "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; style-src "
+      "'unsafe-inline'; "
+      "script-src 'unsafe-inline'; img-src data:\">\n";
   out += "<title>" + html_text(title) + "</title>\n<style>\n";
   out += html_style;
   out += "</style>\n</head>\n<body data-errors=\"0\" data-rendered=\"0\">\n";
-  out += "<noscript><p class=\"noscript\">This report draws itself with its inline script; enable scripts to see "
-         "it. The data are in the JSON block of this file.</p></noscript>\n";
+  out +=
+      "<noscript><p class=\"noscript\">This report draws itself with its inline script; enable "
+      "scripts to see "
+      "it. The data are in the JSON block of this file.</p></noscript>\n";
   out += "<main id=\"report\"></main>\n";
-  out += "<script type=\"application/json\" id=\"settle-data\">" + script_safe(p.root) + "</script>\n";
+  out +=
+      "<script type=\"application/json\" id=\"settle-data\">" + script_safe(p.root) + "</script>\n";
   out += "<script>\n";
   out += html_script;
   out += "</script>\n</body>\n</html>\n";
@@ -300,7 +333,8 @@ std::string page(page_data& p) {
 
 }  // namespace
 
-std::string html_report_run(const design& d, const corner& c, const run_options& ro, const html_source& src) {
+std::string html_report_run(const design& d, const corner& c, const run_options& ro,
+                            const html_source& src) {
   std::vector<net_id> reported = d.nets.outputs;
   reported.insert(reported.end(), d.stim.watch.begin(), d.stim.watch.end());
   auto p = start(d, reported, src);
@@ -351,14 +385,16 @@ std::string html_report_margin(const design& d, const margin_result& r, const ru
 
 std::string html_report_explore(const design& d, const explore_result& r, const html_source& src) {
   auto p = start(d, r.reported, src);
-  p.root["state_order"] = state_order_text(d.nets);  // the gates behind each character of a node's label
+  p.root["state_order"] =
+      state_order_text(d.nets);  // the gates behind each character of a node's label
   auto& graphs = p.root["graphs"] = json::array();
   for (const auto& s : r.steps) {
     if (!s.graph) continue;
     const state_graph& g = *s.graph;
     if (g.size() > html_graph_limit) {
-      p.notes.push_back(fmt::format("Step {}: {} states, more than {}; the state graph is not drawn.", s.index,
-                                    g.size(), html_graph_limit));
+      p.notes.push_back(
+          fmt::format("Step {}: {} states, more than {}; the state graph is not drawn.", s.index,
+                      g.size(), html_graph_limit));
       continue;
     }
     const auto at = layer_layout(g);
@@ -370,12 +406,17 @@ std::string html_report_explore(const design& d, const explore_result& r, const 
       std::string label;
       for (net_id net : drawn(r.reported)) {
         const gate_id drv = d.nets.driver[net];
-        const char v = drv == no_id ? (net < s.inputs.size() ? to_char(s.inputs[net]) : 'x') : (g.bit(i, drv) ? '1' : '0');
+        const char v = drv == no_id ? (net < s.inputs.size() ? to_char(s.inputs[net]) : 'x')
+                                    : (g.bit(i, drv) ? '1' : '0');
         label += v;
       }
       const bool explored = i < g.explored;
-      e["nodes"].push_back({{"layer", at[i].first}, {"pos", at[i].second}, {"stable", explored && g.is_stable(i)},
-                            {"start", i < g.starts}, {"values", label}, {"state", bits}});
+      e["nodes"].push_back({{"layer", at[i].first},
+                            {"pos", at[i].second},
+                            {"stable", explored && g.is_stable(i)},
+                            {"start", i < g.starts},
+                            {"values", label},
+                            {"state", bits}});
     }
     e["edges"] = json::array();
     for (std::uint32_t i = 0; i < g.explored && i + 1 < g.edge_begin.size(); ++i)
@@ -383,7 +424,8 @@ std::string html_report_explore(const design& d, const explore_result& r, const 
         const std::uint32_t to = g.edge_to[k];
         std::string fired;
         for (gate_id q = 0; q < d.nets.gate_count(); ++q)
-          if (g.bit(i, q) != g.bit(to, q)) fired += (fired.empty() ? "" : " ") + d.nets.gate_name(q);
+          if (g.bit(i, q) != g.bit(to, q))
+            fired += (fired.empty() ? "" : " ") + d.nets.gate_name(q);
         e["edges"].push_back({i, to, fired});
       }
     graphs.push_back(std::move(e));

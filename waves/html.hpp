@@ -1,4 +1,5 @@
-// One self-contained HTML report (inline CSS, script and SVG) of a run, sweep, margin search or exploration.
+// One self-contained HTML report (inline CSS, script and SVG) of a run, sweep, margin search or
+// exploration.
 #pragma once
 
 #include <cstdint>
@@ -6,12 +7,12 @@
 #include <string_view>
 #include <vector>
 
-#include "sim/model/corner.hpp"
-#include "sim/model/design.hpp"
 #include "sim/analysis/explore.hpp"
-#include "sim/kernel/run.hpp"
 #include "sim/analysis/margin.hpp"
 #include "sim/analysis/sweep.hpp"
+#include "sim/kernel/run.hpp"
+#include "sim/model/corner.hpp"
+#include "sim/model/design.hpp"
 
 namespace settle {
 
@@ -29,7 +30,8 @@ struct html_source {
 };
 
 /// `settle run`: the single run's waveforms per step (replayed under `c`).
-std::string html_report_run(const design& d, const corner& c, const run_options& ro, const html_source& src);
+std::string html_report_run(const design& d, const corner& c, const run_options& ro,
+                            const html_source& src);
 
 /// `settle sweep`: verdict banners, outcome blocks, settle-time histograms,
 /// and for every step that is not deterministic the witnesses' waveforms on a
@@ -71,16 +73,17 @@ class html_recorder final : public change_sink {
   /// The traces of the watched nets in [from, to], times relative to `from`;
   /// summarised into at most `buckets` busy bands per net when the window
   /// holds more than `limit` changes (*summarised set to true).
-  std::vector<html_net_trace> window(time_fs from, time_fs to, std::uint64_t limit, std::size_t buckets,
-                                     bool* summarised, std::uint64_t* changes) const;
+  std::vector<html_net_trace> window(time_fs from, time_fs to, std::uint64_t limit,
+                                     std::size_t buckets, bool* summarised,
+                                     std::uint64_t* changes) const;
   /// The changes of the watched nets in [from, to].
   std::uint64_t changes_between(time_fs from, time_fs to) const;
 
  private:
-  std::vector<std::int32_t> slot_;          // per net: index into watched, or -1
+  std::vector<std::int32_t> slot_;  // per net: index into watched, or -1
   std::vector<net_id> watched_;
-  std::vector<logic> initial_;              // per watched net
-  std::vector<std::vector<change>> events_; // per watched net, last value per instant
+  std::vector<logic> initial_;               // per watched net
+  std::vector<std::vector<change>> events_;  // per watched net, last value per instant
 };
 
 /// The earliest relative time at which two of `traces` (each a list of nets

@@ -1,4 +1,5 @@
-// Report data pieces: recorded witness traces, their first difference, settle-time histograms, graph layers.
+// Report data pieces: recorded witness traces, their first difference, settle-time histograms,
+// graph layers.
 #include <algorithm>
 #include <cstdio>
 #include <fstream>
@@ -10,9 +11,13 @@
 namespace settle {
 
 html_recorder::html_recorder(std::size_t nets, const std::vector<net_id>& watched)
-    : slot_(nets, -1), watched_(watched), initial_(watched.size(), logic::x), events_(watched.size()) {
+    : slot_(nets, -1),
+      watched_(watched),
+      initial_(watched.size(), logic::x),
+      events_(watched.size()) {
   for (std::size_t i = 0; i < watched_.size(); ++i)
-    if (watched_[i] < nets && slot_[watched_[i]] < 0) slot_[watched_[i]] = static_cast<std::int32_t>(i);
+    if (watched_[i] < nets && slot_[watched_[i]] < 0)
+      slot_[watched_[i]] = static_cast<std::int32_t>(i);
 }
 
 void html_recorder::on_start(std::span<const logic> initial) {
@@ -26,7 +31,8 @@ void html_recorder::on_changes(std::span<const change> batch) {
     if (c.net >= slot_.size() || slot_[c.net] < 0) continue;
     auto& ev = events_[static_cast<std::size_t>(slot_[c.net])];
     const std::size_t i = static_cast<std::size_t>(slot_[c.net]);
-    if (!ev.empty() && ev.back().time == c.time) ev.pop_back();  // the last value of an instant counts
+    if (!ev.empty() && ev.back().time == c.time)
+      ev.pop_back();  // the last value of an instant counts
     const logic before = ev.empty() ? initial_[i] : ev.back().value;
     if (before != c.value) ev.push_back(c);
   }
@@ -40,10 +46,13 @@ std::vector<html_net_trace> html_recorder::window(time_fs from, time_fs to, std:
   std::vector<std::pair<std::size_t, std::size_t>> range(watched_.size());
   for (std::size_t i = 0; i < watched_.size(); ++i) {
     const auto& ev = events_[i];
-    auto lo = std::lower_bound(ev.begin(), ev.end(), from, [](const change& c, time_fs t) { return c.time < t; });
-    auto hi = std::upper_bound(lo, ev.end(), to, [](time_fs t, const change& c) { return t < c.time; });
+    auto lo = std::lower_bound(ev.begin(), ev.end(), from,
+                               [](const change& c, time_fs t) { return c.time < t; });
+    auto hi =
+        std::upper_bound(lo, ev.end(), to, [](time_fs t, const change& c) { return t < c.time; });
     out[i].initial = lo == ev.begin() ? initial_[i] : std::prev(lo)->value;
-    range[i] = {static_cast<std::size_t>(lo - ev.begin()), static_cast<std::size_t>(hi - ev.begin())};
+    range[i] = {static_cast<std::size_t>(lo - ev.begin()),
+                static_cast<std::size_t>(hi - ev.begin())};
     total += range[i].second - range[i].first;
   }
   if (changes) *changes = total;
@@ -67,17 +76,22 @@ std::vector<html_net_trace> html_recorder::window(time_fs from, time_fs to, std:
     logic present = tr.initial;
     while (k < b) {
       const time_fs rel = ev[k].time - from;
-      const auto bucket = static_cast<std::uint64_t>(static_cast<unsigned __int128>(rel) * buckets / span);
-      const auto edge = static_cast<time_fs>(static_cast<unsigned __int128>(bucket + 1) * span / buckets);
+      const auto bucket =
+          static_cast<std::uint64_t>(static_cast<unsigned __int128>(rel) * buckets / span);
+      const auto edge =
+          static_cast<time_fs>(static_cast<unsigned __int128>(bucket + 1) * span / buckets);
       std::size_t e = k;
       while (e < b && ev[e].time - from < edge) ++e;
       if (e - k == 1) {
         tr.times.push_back(rel);
         tr.values.push_back(to_char(ev[k].value));
       } else {
-        const time_fs start = static_cast<time_fs>(static_cast<unsigned __int128>(bucket) * span / buckets);
-        if (!tr.busy.empty() && tr.busy.back().second == start) tr.busy.back().second = edge;
-        else tr.busy.emplace_back(start, edge);
+        const time_fs start =
+            static_cast<time_fs>(static_cast<unsigned __int128>(bucket) * span / buckets);
+        if (!tr.busy.empty() && tr.busy.back().second == start)
+          tr.busy.back().second = edge;
+        else
+          tr.busy.emplace_back(start, edge);
         if (ev[e - 1].value != present) {
           tr.times.push_back(std::min(edge, span));
           tr.values.push_back(to_char(ev[e - 1].value));
@@ -93,8 +107,10 @@ std::vector<html_net_trace> html_recorder::window(time_fs from, time_fs to, std:
 std::uint64_t html_recorder::changes_between(time_fs from, time_fs to) const {
   std::uint64_t total = 0;
   for (const auto& ev : events_) {
-    auto lo = std::lower_bound(ev.begin(), ev.end(), from, [](const change& c, time_fs t) { return c.time < t; });
-    auto hi = std::upper_bound(lo, ev.end(), to, [](time_fs t, const change& c) { return t < c.time; });
+    auto lo = std::lower_bound(ev.begin(), ev.end(), from,
+                               [](const change& c, time_fs t) { return c.time < t; });
+    auto hi =
+        std::upper_bound(lo, ev.end(), to, [](time_fs t, const change& c) { return t < c.time; });
     total += static_cast<std::uint64_t>(hi - lo);
   }
   return total;
@@ -120,8 +136,10 @@ time_fs first_difference(const std::vector<std::vector<html_net_trace>>& traces)
         auto& k = next[w][n];
         while (k < net.times.size() && net.times[k] <= t) ++k;
         const char v = k ? net.values[k - 1] : to_char(net.initial);
-        if (!first) first = v;
-        else if (v != first) return t;
+        if (!first)
+          first = v;
+        else if (v != first)
+          return t;
       }
     }
   }
@@ -143,7 +161,8 @@ html_histogram settle_histogram(const std::vector<sweep_outcome>& outcomes, std:
   for (const auto& o : outcomes) {
     std::vector<std::uint64_t> c(bins, 0);
     for (time_fs t : o.settle_times) {
-      const auto b = static_cast<std::size_t>(static_cast<unsigned __int128>(t - h.lo) * bins / span);
+      const auto b =
+          static_cast<std::size_t>(static_cast<unsigned __int128>(t - h.lo) * bins / span);
       ++c[std::min(b, bins - 1)];
     }
     h.counts.push_back(std::move(c));
@@ -177,8 +196,9 @@ std::vector<std::pair<std::uint32_t, std::uint32_t>> layer_layout(const state_gr
 
 namespace {
 std::string shell_quoted(const std::string& w) {
-  const bool plain = !w.empty() && w.find_first_not_of("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz"
-                                                       "0123456789_./:#@=+,-") == std::string::npos;
+  const bool plain = !w.empty() && w.find_first_not_of(
+                                       "ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz"
+                                       "0123456789_./:#@=+,-") == std::string::npos;
   if (plain) return w;
   std::string q = "'";
   for (char c : w) q += c == '\'' ? std::string("'\\''") : std::string(1, c);

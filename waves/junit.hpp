@@ -6,10 +6,10 @@
 #include <string_view>
 #include <vector>
 
-#include "sim/model/design.hpp"
-#include "sim/kernel/run.hpp"
 #include "sim/analysis/margin.hpp"
 #include "sim/analysis/sweep.hpp"
+#include "sim/kernel/run.hpp"
+#include "sim/model/design.hpp"
 
 namespace settle {
 
@@ -44,15 +44,16 @@ std::string junit_xml(const std::vector<junit_suite>& suites);
 using replay_fn = std::function<std::string(const std::string& corner)>;
 
 /// One suite for a `settle run`: a testcase per step (status) and per expectation.
-junit_suite junit_of_run(const design& d, const run_result& r, const std::string& corner, const replay_fn& replay,
-                         double wall_s);
+junit_suite junit_of_run(const design& d, const run_result& r, const std::string& corner,
+                         const replay_fn& replay, double wall_s);
 /// One suite for a `settle sweep`: a testcase per step (verdict) and per
 /// expectation (failing in any corner).
 junit_suite junit_of_sweep(const design& d, const sweep_result& r, const replay_fn& replay);
 /// One suite for a `settle margin`: a testcase per step (passes at the written
 /// spread) and per expectation (holds at the written spread), plus the
 /// settle-time budgets and, when given, the baseline comparison.
-junit_suite junit_of_margin(const design& d, const margin_result& r, const replay_fn& replay,
-                            const std::vector<std::pair<std::string, std::string>>& baseline_failures = {});
+junit_suite junit_of_margin(
+    const design& d, const margin_result& r, const replay_fn& replay,
+    const std::vector<std::pair<std::string, std::string>>& baseline_failures = {});
 
 }  // namespace settle

@@ -28,9 +28,10 @@ constexpr time_fs pow10(int k) {
   for (int i = 0; i < k; ++i) p *= 10;
   return p;
 }
-constexpr time_fs pow10_table[max_k + 1] = {
-    pow10(0),  pow10(1),  pow10(2),  pow10(3),  pow10(4),  pow10(5),  pow10(6),  pow10(7),  pow10(8),
-    pow10(9),  pow10(10), pow10(11), pow10(12), pow10(13), pow10(14), pow10(15), pow10(16), pow10(17)};
+constexpr time_fs pow10_table[max_k + 1] = {pow10(0),  pow10(1),  pow10(2),  pow10(3),  pow10(4),
+                                            pow10(5),  pow10(6),  pow10(7),  pow10(8),  pow10(9),
+                                            pow10(10), pow10(11), pow10(12), pow10(13), pow10(14),
+                                            pow10(15), pow10(16), pow10(17)};
 
 std::string now_text() {
   std::time_t t = std::time(nullptr);
@@ -43,7 +44,10 @@ std::string now_text() {
     if (end != e && *end == '\0') t = static_cast<std::time_t>(v), utc = true;
   }
   std::tm tm{};
-  if (utc) gmtime_r(&t, &tm); else localtime_r(&t, &tm);
+  if (utc)
+    gmtime_r(&t, &tm);
+  else
+    localtime_r(&t, &tm);
   char text[64];
   std::strftime(text, sizeof text, "%Y-%m-%d %H:%M:%S", &tm);
   return text;
@@ -161,7 +165,8 @@ vcd_writer::~vcd_writer() {
 }
 
 void vcd_writer::on_start(std::span<const logic> initial) {
-  for (std::size_t i = 0; i < initial.size() && i < written_.size(); ++i) written_[i] = initial_[i] = initial[i];
+  for (std::size_t i = 0; i < initial.size() && i < written_.size(); ++i)
+    written_[i] = initial_[i] = initial[i];
   started_ = true;
   now_ = 0;
 }
@@ -290,7 +295,8 @@ std::string vcd_writer::header() const {
   h.reserve(4096);
   auto put = [&h](std::string_view a) { h.append(a.data(), a.size()); };
   put("$date\n\t"), put(opt_.date.empty() ? now_text() : opt_.date), put("\n$end\n");
-  put("$version\n\t"), put(opt_.version.empty() ? std::string_view("settle") : std::string_view(opt_.version)),
+  put("$version\n\t"),
+      put(opt_.version.empty() ? std::string_view("settle") : std::string_view(opt_.version)),
       put("\n$end\n");
 
   // Full dotted path of every scope, and the variables each one declares.
@@ -298,7 +304,8 @@ std::string vcd_writer::header() const {
   std::vector<std::string> path(scopes);
   for (std::size_t s = 1; s < scopes; ++s) {
     std::vector<std::size_t> chain;
-    for (std::size_t q = s; q != 0 && q < scopes && chain.size() <= scopes; q = n_.scopes[q].parent) chain.push_back(q);
+    for (std::size_t q = s; q != 0 && q < scopes && chain.size() <= scopes; q = n_.scopes[q].parent)
+      chain.push_back(q);
     for (auto it = chain.rbegin(); it != chain.rend(); ++it) {
       if (!path[s].empty()) path[s] += '.';
       path[s] += n_.scopes[*it].name;
@@ -315,7 +322,8 @@ std::string vcd_writer::header() const {
   cand.reserve(n_.net_count() + n_.aliases.size());
   auto local_name = [&](std::size_t s, std::string_view full) {
     const std::string_view p = path[s];
-    if (!p.empty() && full.size() > p.size() && full.compare(0, p.size(), p) == 0 && full[p.size()] == '.')
+    if (!p.empty() && full.size() > p.size() && full.compare(0, p.size(), p) == 0 &&
+        full[p.size()] == '.')
       return full.substr(p.size() + 1);
     return full;
   };
@@ -337,7 +345,8 @@ std::string vcd_writer::header() const {
   std::vector<std::uint32_t> per_scope(scopes + 1, 0);
   for (std::size_t c = 0; c < cand.size(); ++c) {
     const auto& v = cand[c];
-    std::size_t at = (std::hash<std::string_view>{}(v.name) ^ (v.scope * 0x9E3779B97F4A7C15ull)) & (slots - 1);
+    std::size_t at =
+        (std::hash<std::string_view>{}(v.name) ^ (v.scope * 0x9E3779B97F4A7C15ull)) & (slots - 1);
     bool dup = false;
     for (; table[at] != 0; at = (at + 1) & (slots - 1)) {
       const auto& o = cand[table[at] - 1];
@@ -378,7 +387,8 @@ std::string vcd_writer::header() const {
     if (!needs_cleaning(name)) return name;
     std::string fresh = vcd_sanitise(name);
     if (taken)
-      for (std::size_t k = 2; taken->count(fresh); ++k) fresh = vcd_sanitise(name) + "_" + std::to_string(k);
+      for (std::size_t k = 2; taken->count(fresh); ++k)
+        fresh = vcd_sanitise(name) + "_" + std::to_string(k);
     const std::string_view s = cleaned.emplace_back(std::move(fresh));
     if (taken) taken->insert(s);
     renamed += '\t';
@@ -389,16 +399,21 @@ std::string vcd_writer::header() const {
     return s;
   };
   std::vector<std::string_view> scope_name(scopes);
-  scope_name[0] = clean(opt_.top.empty() ? std::string_view("top") : std::string_view(opt_.top), "");
-  for (std::size_t s = 1; s < scopes; ++s) scope_name[s] = clean(n_.scopes[s].name, path[n_.scopes[s].parent < scopes ? n_.scopes[s].parent : 0]);
+  scope_name[0] =
+      clean(opt_.top.empty() ? std::string_view("top") : std::string_view(opt_.top), "");
+  for (std::size_t s = 1; s < scopes; ++s)
+    scope_name[s] =
+        clean(n_.scopes[s].name, path[n_.scopes[s].parent < scopes ? n_.scopes[s].parent : 0]);
   for (std::size_t s = 0; s < scopes; ++s) {
     bool any = false;  // most scopes need no renaming, and then no set
-    for (auto j = per_scope[s]; j < per_scope[s + 1] && !any; ++j) any = needs_cleaning(vars[j].name);
+    for (auto j = per_scope[s]; j < per_scope[s + 1] && !any; ++j)
+      any = needs_cleaning(vars[j].name);
     if (!any) continue;
     std::unordered_set<std::string_view> taken;
     for (auto j = per_scope[s]; j < per_scope[s + 1]; ++j)
       if (!needs_cleaning(vars[j].name)) taken.insert(vars[j].name);
-    for (auto j = per_scope[s]; j < per_scope[s + 1]; ++j) vars[j].name = clean(vars[j].name, path[s], &taken);
+    for (auto j = per_scope[s]; j < per_scope[s + 1]; ++j)
+      vars[j].name = clean(vars[j].name, path[s], &taken);
   }
 
   // Scopes with something to show, their children, then the declarations.
@@ -423,7 +438,9 @@ std::string vcd_writer::header() const {
   room += 3 * n_.net_count();
   h.reserve(room);
 
-  if (!renamed.empty()) put("$comment\n\tnames changed for VCD (as shown = as written):\n"), put(renamed), put("$end\n");
+  if (!renamed.empty())
+    put("$comment\n\tnames changed for VCD (as shown = as written):\n"), put(renamed),
+        put("$end\n");
   put("$timescale "), put(vcd_timescale(k_)), put(" $end\n");
   // Depth-first with an explicit stack: (scope, next child index).
   std::vector<std::pair<std::size_t, std::size_t>> stack{{0, 0}};
@@ -458,7 +475,8 @@ std::string vcd_writer::header() const {
   return h;
 }
 
-bool vcd_writer::emit(std::FILE* f, const char* p, std::size_t len, std::string& out, std::string* err) {
+bool vcd_writer::emit(std::FILE* f, const char* p, std::size_t len, std::string& out,
+                      std::string* err) {
   auto put = [&](const char* d, std::size_t n) {
     if (std::fwrite(d, 1, n, f) == n) return true;
     if (err) *err = std::strerror(errno);
@@ -472,7 +490,8 @@ bool vcd_writer::emit(std::FILE* f, const char* p, std::size_t len, std::string&
   const char* q = p;     // always at the start of a line
   while (q < end) {
     if (*q == '#') {
-      const char* nl = static_cast<const char*>(std::memchr(q, '\n', static_cast<std::size_t>(end - q)));
+      const char* nl =
+          static_cast<const char*>(std::memchr(q, '\n', static_cast<std::size_t>(end - q)));
       out.append(from, static_cast<std::size_t>(nl - k_ - from));
       from = nl;
       q = nl + 1;
@@ -500,7 +519,9 @@ bool vcd_writer::emit(std::FILE* f, const char* p, std::size_t len, std::string&
 
 bool vcd_writer::write(std::FILE* f, std::string* err) {
   if (!finished_ || order_error_) {
-    if (err) *err = !finished_ ? "the run did not finish" : "value changes out of time order or a failed temporary file";
+    if (err)
+      *err = !finished_ ? "the run did not finish"
+                        : "value changes out of time order or a failed temporary file";
     return false;
   }
   const auto h = header();

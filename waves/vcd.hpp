@@ -8,16 +8,16 @@
 #include <string>
 #include <vector>
 
-#include "sim/model/design.hpp"
 #include "sim/kernel/run.hpp"
+#include "sim/model/design.hpp"
 
 namespace settle {
 
 struct vcd_options {
-  std::string top = "top";     ///< name of the top scope (sanitised by the writer)
-  std::string version;         ///< text of $version, e.g. "settle 0.1.0"
-  std::string date;            ///< text of $date; empty: now (SOURCE_DATE_EPOCH when set)
-  std::vector<net_id> only;    ///< nets to dump; empty: every net but the two constants
+  std::string top = "top";   ///< name of the top scope (sanitised by the writer)
+  std::string version;       ///< text of $version, e.g. "settle 0.1.0"
+  std::string date;          ///< text of $date; empty: now (SOURCE_DATE_EPOCH when set)
+  std::vector<net_id> only;  ///< nets to dump; empty: every net but the two constants
   /// log10 of the timescale in femtoseconds (design_timescale); -1: the
   /// coarsest that represents every time the run wrote (chosen at the end).
   int timescale = -1;
@@ -92,24 +92,24 @@ class vcd_writer final : public change_sink {
 
   const netlist& n_;
   vcd_options opt_;
-  std::vector<std::uint8_t> selected_;   // per net
-  std::vector<std::uint32_t> code_at_;   // per net: offset into codes_
-  std::vector<std::uint8_t> code_len_;   // per net
-  std::string codes_;                    // every code back to back, then 8 bytes of padding
-  std::size_t max_code_ = 1;             // longest code
-  std::vector<logic> written_;           // per net: last value written
-  std::vector<std::uint8_t> pending_;    // per net: value due at this instant, or 255
+  std::vector<std::uint8_t> selected_;  // per net
+  std::vector<std::uint32_t> code_at_;  // per net: offset into codes_
+  std::vector<std::uint8_t> code_len_;  // per net
+  std::string codes_;                   // every code back to back, then 8 bytes of padding
+  std::size_t max_code_ = 1;            // longest code
+  std::vector<logic> written_;          // per net: last value written
+  std::vector<std::uint8_t> pending_;   // per net: value due at this instant, or 255
   std::vector<net_id> touched_;
-  std::vector<logic> initial_;           // $dumpvars values (after time-0 changes)
+  std::vector<logic> initial_;  // $dumpvars values (after time-0 changes)
   time_fs now_ = 0;
   bool started_ = false, finished_ = false, order_error_ = false;
-  int k_ = 17;                           // trailing decimal zeros shared by every time
+  int k_ = 17;  // trailing decimal zeros shared by every time
   std::uint64_t changes_ = 0;
 
   std::unique_ptr<char[]> buf_;
   std::size_t pos_ = 0, cap_ = 0;
   std::FILE* spill_ = nullptr;
-  std::vector<std::size_t> spilled_;     // sizes of the chunks in spill_
+  std::vector<std::size_t> spilled_;  // sizes of the chunks in spill_
 };
 
 }  // namespace settle

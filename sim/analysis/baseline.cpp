@@ -1,11 +1,12 @@
-// Baseline files: JSON read/write with a format version, merging entries, and comparison with a tolerance.
+// Baseline files: JSON read/write with a format version, merging entries, and comparison with a
+// tolerance.
 #include "sim/analysis/baseline.hpp"
+
+#include <fmt/format.h>
 
 #include <algorithm>
 #include <cmath>
 #include <cstdint>
-
-#include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
 namespace settle {
@@ -144,7 +145,8 @@ std::string step_words(std::size_t index, const std::string& label) {
 }  // namespace
 
 bool baseline_comparison::regressed() const {
-  return std::any_of(changes.begin(), changes.end(), [](const baseline_change& c) { return c.regression; });
+  return std::any_of(changes.begin(), changes.end(),
+                     [](const baseline_change& c) { return c.regression; });
 }
 
 std::optional<baseline_file> parse_baseline(std::string_view text, std::string* error) {
@@ -197,18 +199,25 @@ std::string baseline_text(const baseline_file& f) {
     d["at_least"] = e.at_least;
     d["steps"] = json::array();
     for (const auto& s : e.steps)
-      d["steps"].push_back({{"index", s.index}, {"label", s.label}, {"margin_pct", s.margin_pct}, {"at_least", s.at_least}});
+      d["steps"].push_back({{"index", s.index},
+                            {"label", s.label},
+                            {"margin_pct", s.margin_pct},
+                            {"at_least", s.at_least}});
     d["settle_within"] = json::array();
     for (const auto& w : e.within)
-      d["settle_within"].push_back({{"step", w.step}, {"ordinal", w.ordinal}, {"budget_fs", w.budget},
-                                    {"margin_fs", w.margin_fs}, {"unsettled", w.unsettled}});
+      d["settle_within"].push_back({{"step", w.step},
+                                    {"ordinal", w.ordinal},
+                                    {"budget_fs", w.budget},
+                                    {"margin_fs", w.margin_fs},
+                                    {"unsettled", w.unsettled}});
     j["designs"].push_back(std::move(d));
   }
   return j.dump(2) + "\n";
 }
 
-baseline_entry baseline_of(const design& d, const std::string& design_path, const std::string& stim_path,
-                           const margin_options& o, const margin_result& r) {
+baseline_entry baseline_of(const design& d, const std::string& design_path,
+                           const std::string& stim_path, const margin_options& o,
+                           const margin_result& r) {
   (void)d;
   baseline_entry e;
   e.design = design_path;
@@ -245,13 +254,15 @@ void merge_entry(baseline_file& f, baseline_entry e) {
   f.designs[static_cast<std::size_t>(at)] = std::move(e);
 }
 
-const baseline_entry* find_entry(const baseline_file& f, const std::string& design_path, const std::string& stim_path) {
+const baseline_entry* find_entry(const baseline_file& f, const std::string& design_path,
+                                 const std::string& stim_path) {
   for (const auto& e : f.designs)
     if (e.design == design_path && e.stim == stim_path) return &e;
   return nullptr;
 }
 
-baseline_comparison compare_baseline(const baseline_entry& before, const baseline_entry& now, double tolerance_pct) {
+baseline_comparison compare_baseline(const baseline_entry& before, const baseline_entry& now,
+                                     double tolerance_pct) {
   baseline_comparison c;
   // b and a are the margins before and now; a flag marks a lower bound (the
   // search passed at its ceiling, so the margin is at least that figure).
@@ -274,8 +285,9 @@ baseline_comparison compare_baseline(const baseline_entry& before, const baselin
         {std::move(what), b, a, compared - a > tolerance_pct + 1e-9, b_least, a_least});
   };
   if (before.spec != now.spec || before.seed != now.seed)
-    c.notes.push_back(fmt::format("the baseline was found with --corners {} --seed {}, this run with --corners {} --seed {}",
-                                  before.spec, before.seed, now.spec, now.seed));
+    c.notes.push_back(fmt::format(
+        "the baseline was found with --corners {} --seed {}, this run with --corners {} --seed {}",
+        before.spec, before.seed, now.spec, now.seed));
   if (before.resolution_pct != now.resolution_pct)
     c.notes.push_back(fmt::format("resolution {:g}% in the baseline, {:g}% now",
                                   before.resolution_pct, now.resolution_pct));
@@ -286,25 +298,30 @@ baseline_comparison compare_baseline(const baseline_entry& before, const baselin
         before.ceiling_pct, now.ceiling_pct));
   note_change("design", before.margin_pct, before.at_least, now.margin_pct, now.at_least);
   for (const auto& b : before.steps) {
-    auto it = std::find_if(now.steps.begin(), now.steps.end(), [&](const baseline_step& s) { return s.index == b.index; });
+    auto it = std::find_if(now.steps.begin(), now.steps.end(),
+                           [&](const baseline_step& s) { return s.index == b.index; });
     if (it == now.steps.end()) {
-      c.notes.push_back(fmt::format("{} is in the baseline but not in the stimulus now", step_words(b.index, b.label)));
+      c.notes.push_back(fmt::format("{} is in the baseline but not in the stimulus now",
+                                    step_words(b.index, b.label)));
       continue;
     }
     if (it->label != b.label)
-      c.notes.push_back(fmt::format("step {} changed from '{}' to '{}'", b.index, b.label, it->label));
+      c.notes.push_back(
+          fmt::format("step {} changed from '{}' to '{}'", b.index, b.label, it->label));
     note_change(step_words(it->index, it->label), b.margin_pct, b.at_least, it->margin_pct,
                 it->at_least);
   }
   for (const auto& s : now.steps)
-    if (std::none_of(before.steps.begin(), before.steps.end(), [&](const baseline_step& b) { return b.index == s.index; }))
+    if (std::none_of(before.steps.begin(), before.steps.end(),
+                     [&](const baseline_step& b) { return b.index == s.index; }))
       c.notes.push_back(fmt::format("{} is new: no baseline", step_words(s.index, s.label)));
   for (const auto& b : before.within) {
     auto it = std::find_if(now.within.begin(), now.within.end(), [&](const baseline_within& w) {
       return w.step == b.step && w.ordinal == b.ordinal;
     });
     if (it == now.within.end()) continue;
-    const std::string what = fmt::format("settle within {} of step {}", format_time(it->budget), it->step);
+    const std::string what =
+        fmt::format("settle within {} of step {}", format_time(it->budget), it->step);
     if (it->unsettled > 0 && b.unsettled == 0) {
       c.changes.push_back({what + fmt::format(" (no longer settles in {} corners)", it->unsettled),
                            b.margin_pct(), it->margin_pct(), true, false, false});
@@ -313,7 +330,9 @@ baseline_comparison compare_baseline(const baseline_entry& before, const baselin
     note_change(what, b.margin_pct(), false, it->margin_pct(), false);
   }
   std::stable_sort(c.changes.begin(), c.changes.end(),
-                   [](const baseline_change& x, const baseline_change& y) { return x.regression && !y.regression; });
+                   [](const baseline_change& x, const baseline_change& y) {
+                     return x.regression && !y.regression;
+                   });
   return c;
 }
 

@@ -1,4 +1,5 @@
-// Margin baselines: a versioned JSON file of margins per design and step, and the comparison a CI job runs.
+// Margin baselines: a versioned JSON file of margins per design and step, and the comparison a CI
+// job runs.
 #pragma once
 
 #include <cstdint>
@@ -18,7 +19,7 @@ struct baseline_step {
   std::size_t index = 0;
   std::string label;
   double margin_pct = 0;
-  bool at_least = false;    ///< passed at the search ceiling: the margin is at least margin_pct
+  bool at_least = false;  ///< passed at the search ceiling: the margin is at least margin_pct
 };
 
 struct baseline_within {
@@ -27,7 +28,9 @@ struct baseline_within {
   time_fs budget = 0;
   std::int64_t margin_fs = 0;
   std::uint64_t unsettled = 0;
-  double margin_pct() const { return budget ? 100.0 * static_cast<double>(margin_fs) / static_cast<double>(budget) : 0; }
+  double margin_pct() const {
+    return budget ? 100.0 * static_cast<double>(margin_fs) / static_cast<double>(budget) : 0;
+  }
 };
 
 /// The margins of one design (and stimulus file) under one search setting.
@@ -44,7 +47,7 @@ struct baseline_entry {
 
 struct baseline_file {
   int format_version = baseline_format_version;
-  std::string written_by;    ///< "settle 0.1.0"
+  std::string written_by;  ///< "settle 0.1.0"
   std::vector<baseline_entry> designs;
 };
 
@@ -55,19 +58,21 @@ std::optional<baseline_file> parse_baseline(std::string_view text, std::string* 
 std::string baseline_text(const baseline_file& f);
 
 /// The entry for a margin search of `d`.
-baseline_entry baseline_of(const design& d, const std::string& design_path, const std::string& stim_path,
-                           const margin_options& o, const margin_result& r);
+baseline_entry baseline_of(const design& d, const std::string& design_path,
+                           const std::string& stim_path, const margin_options& o,
+                           const margin_result& r);
 /// Replaces the entry with the same design and stimulus (removing any further
 /// duplicates of it), or appends it.
 void merge_entry(baseline_file& f, baseline_entry e);
 /// The entry for (design, stim), or null.
-const baseline_entry* find_entry(const baseline_file& f, const std::string& design_path, const std::string& stim_path);
+const baseline_entry* find_entry(const baseline_file& f, const std::string& design_path,
+                                 const std::string& stim_path);
 
 /// One margin that moved between a baseline and now.
 struct baseline_change {
-  std::string what;          ///< "design", "step 2 (after 2ns a = 1)", "settle within 2ns of step 3"
+  std::string what;  ///< "design", "step 2 (after 2ns a = 1)", "settle within 2ns of step 3"
   double before_pct = 0, after_pct = 0;
-  bool regression = false;   ///< fell by more than the tolerance
+  bool regression = false;  ///< fell by more than the tolerance
   bool before_at_least = false,
        after_at_least = false;  ///< the figure is a lower bound (passed at a ceiling)
 };
@@ -88,6 +93,7 @@ struct baseline_comparison {
 /// one only when it is below the old figure, taken at most at this run's
 /// ceiling, minus the tolerance, so a margin at this run's ceiling never
 /// regresses; it gets a note when the old figure lies above that ceiling.
-baseline_comparison compare_baseline(const baseline_entry& before, const baseline_entry& now, double tolerance_pct);
+baseline_comparison compare_baseline(const baseline_entry& before, const baseline_entry& now,
+                                     double tolerance_pct);
 
 }  // namespace settle

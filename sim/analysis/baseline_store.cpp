@@ -1,18 +1,17 @@
 // Baseline updates under flock(2): re-read under the lock, merge, write a temporary, rename it in.
 #include "sim/analysis/baseline_store.hpp"
 
-#include <chrono>
-#include <thread>
 #include <fcntl.h>
+#include <fmt/format.h>
 #include <sys/file.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
 #include <cerrno>
+#include <chrono>
 #include <cstdlib>
 #include <cstring>
-
-#include <fmt/format.h>
+#include <thread>
 
 namespace settle {
 namespace {

@@ -1,10 +1,11 @@
-// Race culprits: ddmin over the gates whose delays differ between two witnesses, and the competing paths.
+// Race culprits: ddmin over the gates whose delays differ between two witnesses, and the competing
+// paths.
 #include "sim/analysis/culprit.hpp"
+
+#include <fmt/format.h>
 
 #include <algorithm>
 #include <map>
-
-#include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
 #include "sim/model/time_parse.hpp"
@@ -20,7 +21,8 @@ std::vector<subset> split(const subset& c, std::size_t n) {
   std::size_t at = 0;
   for (std::size_t i = 0; i < n; ++i) {
     const std::size_t len = (c.size() - at) / (n - i);
-    parts[i].assign(c.begin() + static_cast<std::ptrdiff_t>(at), c.begin() + static_cast<std::ptrdiff_t>(at + len));
+    parts[i].assign(c.begin() + static_cast<std::ptrdiff_t>(at),
+                    c.begin() + static_cast<std::ptrdiff_t>(at + len));
     at += len;
   }
   return parts;
@@ -41,10 +43,12 @@ class change_log final : public change_sink {
     for (const auto& c : batch) by_net_[c.net].push_back({c.time, c.value});
   }
   void on_finish(time_fs) override {}
-  // The last change of `net` at or before `t` (strictly before when `strict`) and not before `from`.
+  // The last change of `net` at or before `t` (strictly before when `strict`) and not before
+  // `from`.
   const std::pair<time_fs, logic>* last(net_id net, time_fs from, time_fs t, bool strict) const {
     const auto& v = by_net_[net];
-    auto it = std::upper_bound(v.begin(), v.end(), t, [](time_fs x, const auto& e) { return x < e.first; });
+    auto it = std::upper_bound(v.begin(), v.end(), t,
+                               [](time_fs x, const auto& e) { return x < e.first; });
     while (it != v.begin()) {
       --it;
       if (strict && it->first >= t) continue;
@@ -59,7 +63,8 @@ class change_log final : public change_sink {
 
 // From `net`'s last change in the step back through the last-changing fan-in
 // of its driver, while the changes stay inside the step.
-std::vector<path_hop> trace_back(const netlist& n, const change_log& log, net_id net, time_fs from, time_fs to) {
+std::vector<path_hop> trace_back(const netlist& n, const change_log& log, net_id net, time_fs from,
+                                 time_fs to) {
   std::vector<path_hop> path;
   const auto* c = log.last(net, from, to, false);
   while (c && path.size() < 512) {
@@ -92,9 +97,10 @@ std::string outcome_key(const run_result& r, std::size_t step) {
 
 }  // namespace
 
-std::vector<std::uint32_t> ddmin(const std::vector<std::uint32_t>& items,
-                                 const std::function<bool(const std::vector<std::uint32_t>&)>& fails,
-                                 std::size_t max_tests, std::size_t* tests) {
+std::vector<std::uint32_t> ddmin(
+    const std::vector<std::uint32_t>& items,
+    const std::function<bool(const std::vector<std::uint32_t>&)>& fails, std::size_t max_tests,
+    std::size_t* tests) {
   subset c = items;
   std::sort(c.begin(), c.end());
   std::map<subset, bool> seen;
@@ -139,8 +145,9 @@ std::vector<std::uint32_t> ddmin(const std::vector<std::uint32_t>& items,
   return out;
 }
 
-culprit_report find_culprits(const design& d, const run_options& opt, std::size_t step, const delay_table& a,
-                             const delay_table& b, const std::string names[2], std::size_t max_tests) {
+culprit_report find_culprits(const design& d, const run_options& opt, std::size_t step,
+                             const delay_table& a, const delay_table& b, const std::string names[2],
+                             std::size_t max_tests) {
   culprit_report rep;
   rep.step = step;
   rep.corner[0] = names[0];
@@ -161,7 +168,8 @@ culprit_report find_culprits(const design& d, const run_options& opt, std::size_
   for (int side = 0; side < 2; ++side) {
     const step_result& s = *steps[side];
     net_id pick = no_id;
-    for (std::size_t i = 0; i < ra.reported.size() && i < sa.values.size() && i < sb.values.size(); ++i) {
+    for (std::size_t i = 0; i < ra.reported.size() && i < sa.values.size() && i < sb.values.size();
+         ++i) {
       if (sa.values[i] == sb.values[i]) continue;
       if (pick == no_id) pick = ra.reported[i];
       if (logs[side]->last(ra.reported[i], s.start, s.end, false)) {
@@ -195,8 +203,8 @@ culprit_report find_culprits(const design& d, const run_options& opt, std::size_
   return rep;
 }
 
-culprit_report find_culprits(const design& d, const run_options& opt, std::size_t step, const corner& a,
-                             const corner& b, std::size_t max_tests) {
+culprit_report find_culprits(const design& d, const run_options& opt, std::size_t step,
+                             const corner& a, const corner& b, std::size_t max_tests) {
   delay_table ta, tb;
   fill_delays(d, a, ta);
   fill_delays(d, b, tb);
@@ -238,22 +246,25 @@ nlohmann::ordered_json culprit_json(const netlist& n, const culprit_report& r) {
 std::string culprit_text(const netlist& n, const culprit_report& r, const std::string& indent) {
   std::string out;
   if (r.gates.empty()) return out;
-  out += fmt::format("{}race culprits (ddmin over {} gates, {} runs{}): moving these from {} to {} flips the outcome\n",
-                     indent, r.differing, r.tests, r.minimal ? "" : ", budget spent, may not be minimal",
-                     r.corner[0], r.corner[1]);
+  out += fmt::format(
+      "{}race culprits (ddmin over {} gates, {} runs{}): moving these from {} to {} flips the "
+      "outcome\n",
+      indent, r.differing, r.tests, r.minimal ? "" : ", budget spent, may not be minimal",
+      r.corner[0], r.corner[1]);
   for (const auto& c : r.gates) {
     std::string d = fmt::format("{} -> {}", format_time(c.rise[0]), format_time(c.rise[1]));
     if (c.rise[0] != c.fall[0] || c.rise[1] != c.fall[1])
-      d = fmt::format("rise {} -> {}, fall {} -> {}", format_time(c.rise[0]), format_time(c.rise[1]),
-                      format_time(c.fall[0]), format_time(c.fall[1]));
-    out += fmt::format("{}  {:<20} {:<5} {}\n", indent, n.gate_name(c.gate), kind_name(n.kind[c.gate]), d);
+      d = fmt::format("rise {} -> {}, fall {} -> {}", format_time(c.rise[0]),
+                      format_time(c.rise[1]), format_time(c.fall[0]), format_time(c.fall[1]));
+    out += fmt::format("{}  {:<20} {:<5} {}\n", indent, n.gate_name(c.gate),
+                       kind_name(n.kind[c.gate]), d);
   }
   for (int side = 0; side < 2; ++side) {
     if (r.path[side].empty()) continue;
     std::string chain;
     for (const auto& h : r.path[side])
-      chain += fmt::format("{}{} {}@{}", chain.empty() ? "" : " -> ", n.net_name[h.net], to_char(h.value),
-                           format_time(h.time));
+      chain += fmt::format("{}{} {}@{}", chain.empty() ? "" : " -> ", n.net_name[h.net],
+                           to_char(h.value), format_time(h.time));
     out += fmt::format("{}path at {}: {}\n", indent, r.corner[side], chain);
   }
   return out;

@@ -3,14 +3,13 @@
 
 #include <cstdint>
 #include <functional>
+#include <nlohmann/json_fwd.hpp>
 #include <string>
 #include <vector>
 
-#include <nlohmann/json_fwd.hpp>
-
+#include "sim/kernel/run.hpp"
 #include "sim/model/corner.hpp"
 #include "sim/model/design.hpp"
-#include "sim/kernel/run.hpp"
 
 namespace settle {
 
@@ -21,9 +20,10 @@ namespace settle {
 /// single element makes it pass), in the order of `items`. Stops splitting
 /// after `max_tests` calls of `fails` and returns the smallest failing subset
 /// found so far; *tests receives the number of calls (may be null).
-std::vector<std::uint32_t> ddmin(const std::vector<std::uint32_t>& items,
-                                 const std::function<bool(const std::vector<std::uint32_t>&)>& fails,
-                                 std::size_t max_tests = 4096, std::size_t* tests = nullptr);
+std::vector<std::uint32_t> ddmin(
+    const std::vector<std::uint32_t>& items,
+    const std::function<bool(const std::vector<std::uint32_t>&)>& fails,
+    std::size_t max_tests = 4096, std::size_t* tests = nullptr);
 
 /// One gate of a race with its delays in the two witness corners.
 struct culprit_gate {
@@ -40,8 +40,8 @@ struct path_hop {
 };
 
 struct culprit_report {
-  std::size_t step = 0;          ///< 1-based
-  std::string corner[2];         ///< witness names of outcome A and B
+  std::size_t step = 0;   ///< 1-based
+  std::string corner[2];  ///< witness names of outcome A and B
   /// Per outcome: the reported net the path ends at (the first whose final
   /// value differs between the outcomes and that changed in that run).
   net_id decided[2] = {no_id, no_id};
@@ -50,20 +50,21 @@ struct culprit_report {
   /// decided[i] arrived (each hop the last-changing fan-in of the next gate),
   /// from where it entered the step to decided[i].
   std::vector<path_hop> path[2];
-  std::size_t differing = 0;     ///< gates whose delays differ between A and B
-  std::size_t tests = 0;         ///< runs spent by ddmin
-  bool minimal = true;           ///< false when the test budget ran out
+  std::size_t differing = 0;  ///< gates whose delays differ between A and B
+  std::size_t tests = 0;      ///< runs spent by ddmin
+  bool minimal = true;        ///< false when the test budget ran out
 };
 
 /// Finds the gates of `d` whose delays, moved from table A's values to table
 /// B's, turn step `step`'s outcome (status and reported values) from A's into
 /// B's. Each test is one run_stimulus with a mixed delay table. When A and B
 /// give the same outcome at that step the report has no gates.
-culprit_report find_culprits(const design& d, const run_options& opt, std::size_t step, const corner& a,
-                             const corner& b, std::size_t max_tests = 4096);
+culprit_report find_culprits(const design& d, const run_options& opt, std::size_t step,
+                             const corner& a, const corner& b, std::size_t max_tests = 4096);
 /// The same with explicit delay tables; `names` label the two corners.
-culprit_report find_culprits(const design& d, const run_options& opt, std::size_t step, const delay_table& a,
-                             const delay_table& b, const std::string names[2], std::size_t max_tests = 4096);
+culprit_report find_culprits(const design& d, const run_options& opt, std::size_t step,
+                             const delay_table& a, const delay_table& b, const std::string names[2],
+                             std::size_t max_tests = 4096);
 
 /// `{"culprits":[{"gate":..,"delay_fs":[a,b]}],"paths":[[..],[..]], ...}`;
 /// delay_fs are the rise delays, with "fall_fs" added when a gate's rise and

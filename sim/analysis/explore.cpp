@@ -1,14 +1,14 @@
 // The explore driver: fundamental-mode steps, start states, ternary first, then the state graph.
 #include "sim/analysis/explore.hpp"
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <fstream>
 #include <sstream>
 
-#include <fmt/format.h>
-
-#include "sim/kernel/eval.hpp"
 #include "sim/analysis/ternary.hpp"
+#include "sim/kernel/eval.hpp"
 
 namespace settle {
 namespace {
@@ -19,16 +19,20 @@ std::vector<assignment> step_changes(const step_spec& s) {
   std::vector<assignment> out;
   for (const auto& a : s.actions)
     for (const auto& as : a.assigns) {
-      auto it = std::find_if(out.begin(), out.end(), [&](const assignment& o) { return o.net == as.net; });
-      if (it == out.end()) out.push_back(as);
-      else it->value = as.value;  // the later assignment of the step wins
+      auto it = std::find_if(out.begin(), out.end(),
+                             [&](const assignment& o) { return o.net == as.net; });
+      if (it == out.end())
+        out.push_back(as);
+      else
+        it->value = as.value;  // the later assignment of the step wins
     }
   return out;
 }
 
 std::string join_names(const netlist& n, const std::vector<gate_id>& gates, std::size_t most = 8) {
   std::string s;
-  for (std::size_t i = 0; i < gates.size() && i < most; ++i) s += (i ? ", " : "") + n.gate_name(gates[i]);
+  for (std::size_t i = 0; i < gates.size() && i < most; ++i)
+    s += (i ? ", " : "") + n.gate_name(gates[i]);
   if (gates.size() > most) s += fmt::format(" and {} more", gates.size() - most);
   return s;
 }
@@ -38,8 +42,8 @@ std::string join_names(const netlist& n, const std::vector<gate_id>& gates, std:
 // over the x gates alone, with the step's inputs applied, binary gates kept as
 // initialised); gates still x after that are enumerated over 0 and 1, up to
 // `max_unknown` of them. Returns false (and says why) when there are more.
-bool first_starts(const netlist& n, std::span<const logic> inputs, int max_unknown, std::vector<packed>& starts,
-                  std::vector<std::string>& notes, std::string& stop) {
+bool first_starts(const netlist& n, std::span<const logic> inputs, int max_unknown,
+                  std::vector<packed>& starts, std::vector<std::string>& notes, std::string& stop) {
   std::vector<logic> y(inputs.begin(), inputs.end());
   for (gate_id g = 0; g < n.gate_count(); ++g) y[n.gate_out[g]] = n.init[n.gate_out[g]];
   std::vector<gate_id> forced, unknown;
@@ -59,16 +63,20 @@ bool first_starts(const netlist& n, std::span<const logic> inputs, int max_unkno
   for (gate_id g = 0; g < n.gate_count(); ++g)
     if (y[n.gate_out[g]] == logic::x) unknown.push_back(g);
   if (!forced.empty())
-    notes.push_back(fmt::format("{} gate output(s) without an init value start at what their inputs force: {}",
-                                forced.size(), join_names(n, forced)));
+    notes.push_back(
+        fmt::format("{} gate output(s) without an init value start at what their inputs force: {}",
+                    forced.size(), join_names(n, forced)));
   if (static_cast<int>(unknown.size()) > max_unknown) {
-    stop = fmt::format("{} gate outputs are x at the start ({}); explore enumerates at most {}: give them init values",
-                       unknown.size(), join_names(n, unknown), max_unknown);
+    stop = fmt::format(
+        "{} gate outputs are x at the start ({}); explore enumerates at most {}: give them init "
+        "values",
+        unknown.size(), join_names(n, unknown), max_unknown);
     return false;
   }
   if (!unknown.empty())
-    notes.push_back(fmt::format("{} gate output(s) without an init value are enumerated over 0 and 1: {}",
-                                unknown.size(), join_names(n, unknown)));
+    notes.push_back(
+        fmt::format("{} gate output(s) without an init value are enumerated over 0 and 1: {}",
+                    unknown.size(), join_names(n, unknown)));
   const std::size_t words = std::max<std::size_t>(1, (n.gate_count() + 63) / 64);
   packed base(words, 0);
   for (gate_id g = 0; g < n.gate_count(); ++g)
@@ -104,12 +112,15 @@ void check_expects(const netlist& n, const step_spec& spec, explore_step& st) {
           }
           r.got = seen;
           r.pass = all;
-          if (st.stable.empty()) r.detail = "no stable state is reachable";
-          else if (!all) r.detail = seen == logic::x ? "differs between reachable stable states" : "";
+          if (st.stable.empty())
+            r.detail = "no stable state is reachable";
+          else if (!all)
+            r.detail = seen == logic::x ? "differs between reachable stable states" : "";
         } else {
           r.got = st.ternary[e.net];
           r.pass = r.got == e.want;  // ternary is sound: a binary value holds in every stable state
-          if (!r.pass) r.detail = "not proved: exploration incomplete and ternary simulation gives x";
+          if (!r.pass)
+            r.detail = "not proved: exploration incomplete and ternary simulation gives x";
         }
         break;
       }
@@ -119,10 +130,12 @@ void check_expects(const netlist& n, const step_spec& spec, explore_step& st) {
         break;
       case expectation::kind::oscillating:
         r.pass = exact && st.stable.empty();
-        r.detail = r.pass ? "period not checked: explore has no time" : "a stable state is reachable";
+        r.detail =
+            r.pass ? "period not checked: explore has no time" : "a stable state is reachable";
         break;
       case expectation::kind::no_glitch:
-        r.pass = exact && std::find(st.hazards.begin(), st.hazards.end(), e.net) == st.hazards.end();
+        r.pass =
+            exact && std::find(st.hazards.begin(), st.hazards.end(), e.net) == st.hazards.end();
         if (!r.pass) r.detail = exact ? "a glitch is possible" : "not proved";
         break;
       case expectation::kind::deterministic:
@@ -142,8 +155,8 @@ void check_expects(const netlist& n, const step_spec& spec, explore_step& st) {
 
 // Fills the step's answers from its complete state graph; returns the states
 // the circuit can rest in (stable states and terminal oscillations).
-std::vector<packed> analyse(const netlist& n, const state_graph& g, const std::vector<net_id>& reported,
-                            explore_step& st) {
+std::vector<packed> analyse(const netlist& n, const state_graph& g,
+                            const std::vector<net_id>& reported, explore_step& st) {
   const scc_info s = strongly_connected(g);
   st.sccs = s.count;
   bool may = false, must = false;
@@ -228,7 +241,8 @@ const char* model_name(explore_model m) {
 }
 
 bool explore_step::pass() const {
-  if (!std::all_of(expects.begin(), expects.end(), [](const explore_expect& e) { return e.pass; })) return false;
+  if (!std::all_of(expects.begin(), expects.end(), [](const explore_expect& e) { return e.pass; }))
+    return false;
   // A step that expects to oscillate, and does, is not a finding.
   for (const auto& e : expects)
     if (e.spec->what == expectation::kind::oscillating) return true;
@@ -246,37 +260,43 @@ std::uint64_t default_memory_guard() {
     std::istringstream ls(line);
     std::string key;
     std::uint64_t kib = 0;
-    if (ls >> key >> kib && key == "MemAvailable:") return std::min(kib * 1024 / 2, default_max_memory_mib << 20);
+    if (ls >> key >> kib && key == "MemAvailable:")
+      return std::min(kib * 1024 / 2, default_max_memory_mib << 20);
   }
   return default_max_memory_mib << 20;
 }
 
-std::optional<explore_result> explore_design(const design& d, const explore_options& o, std::string* error) {
+std::optional<explore_result> explore_design(const design& d, const explore_options& o,
+                                             std::string* error) {
   const netlist& n = d.nets;
   if (std::find(n.kind.begin(), n.kind.end(), gate_kind::dff) != n.kind.end()) {
     // An edge-triggered primitive has no state-graph meaning without its
     // clock's history; the six-NAND flip-flop does.
-    if (error) *error = "explore does not take edge-triggered flip-flop primitives; import with --dff gates";
+    if (error)
+      *error = "explore does not take edge-triggered flip-flop primitives; import with --dff gates";
     return std::nullopt;
   }
   explore_result res;
   res.model = o.model;
   res.reported = n.outputs;
   for (net_id w : d.stim.watch)
-    if (std::find(res.reported.begin(), res.reported.end(), w) == res.reported.end()) res.reported.push_back(w);
+    if (std::find(res.reported.begin(), res.reported.end(), w) == res.reported.end())
+      res.reported.push_back(w);
   for (const auto& s : d.stim.steps)
     for (const auto& a : s.actions)
       if (a.what == stim_action::kind::clock) {
-        *error = fmt::format("{}:{}:{}: explore does not support clocks (input '{}'): it analyses one input change "
-                             "at a time in fundamental mode; drive the clock with explicit steps",
-                             d.path, a.loc.line, a.loc.col, n.net_name[a.clock.net]);
+        *error = fmt::format(
+            "{}:{}:{}: explore does not support clocks (input '{}'): it analyses one input change "
+            "at a time in fundamental mode; drive the clock with explicit steps",
+            d.path, a.loc.line, a.loc.col, n.net_name[a.clock.net]);
         return std::nullopt;
       }
   if (std::any_of(d.stim.steps.begin(), d.stim.steps.end(),
                   [](const step_spec& s) { return s.end == step_spec::end_kind::run; }))
     res.notes.push_back("run steps are explored like settle steps: explore has no time");
 
-  graph_limits lim{o.max_states, o.max_bytes ? o.max_bytes : default_memory_guard(), 0, o.max_excited};
+  graph_limits lim{o.max_states, o.max_bytes ? o.max_bytes : default_memory_guard(), 0,
+                   o.max_excited};
   const race_model rm = o.model == explore_model::single ? race_model::single : race_model::gmw;
   std::vector<logic> inputs(n.net_count(), logic::x), tern(n.init.begin(), n.init.end());
   inputs[netlist::const0] = logic::zero;
@@ -294,9 +314,10 @@ std::optional<explore_result> explore_design(const design& d, const explore_opti
     for (const auto& a : changes) inputs[a.net] = a.value;
     for (net_id i : n.inputs)
       if (inputs[i] == logic::x) {
-        *error = fmt::format("{}:{}:{}: input '{}' is still x in step {}: explore needs every input assigned "
-                             "0 or 1 from the first step on",
-                             d.path, spec.loc.line, spec.loc.col, n.net_name[i], k + 1);
+        *error = fmt::format(
+            "{}:{}:{}: input '{}' is still x in step {}: explore needs every input assigned "
+            "0 or 1 from the first step on",
+            d.path, spec.loc.line, spec.loc.col, n.net_name[i], k + 1);
         return std::nullopt;
       }
     st.inputs = inputs;

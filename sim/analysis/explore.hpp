@@ -7,8 +7,8 @@
 #include <string>
 #include <vector>
 
-#include "sim/model/design.hpp"
 #include "sim/analysis/state_graph.hpp"
+#include "sim/model/design.hpp"
 
 namespace settle {
 
@@ -21,16 +21,16 @@ struct explore_options {
   std::uint64_t max_states = 2'000'000;  ///< per step
   /// The memory guard over the stored state graphs (--max-memory); 0: default_memory_guard().
   std::uint64_t max_bytes = 0;
-  int max_excited = 20;                  ///< gmw: excited gates allowed in one state
-  int max_unknown = 12;                  ///< x gate outputs enumerated over 0/1 at the start
-  bool keep_graphs = false;              ///< keep every step's graph (for --dot)
+  int max_excited = 20;      ///< gmw: excited gates allowed in one state
+  int max_unknown = 12;      ///< x gate outputs enumerated over 0/1 at the start
+  bool keep_graphs = false;  ///< keep every step's graph (for --dot)
 };
 
 /// One reachable stable state: every gate output, and a shortest firing
 /// sequence from a start state of the step that reaches it.
 struct stable_state {
-  std::vector<std::uint8_t> gates;               ///< per gate, 0 or 1
-  std::vector<std::vector<gate_id>> path;        ///< gates fired together, step by step
+  std::vector<std::uint8_t> gates;         ///< per gate, 0 or 1
+  std::vector<std::vector<gate_id>> path;  ///< gates fired together, step by step
 };
 
 /// A tri-state answer: unknown when the exploration did not finish.
@@ -38,7 +38,7 @@ enum class answer : std::uint8_t { no, yes, unknown };
 
 struct explore_expect {
   const expectation* spec = nullptr;
-  bool checked = true;   ///< false: explore cannot judge this kind (timing)
+  bool checked = true;  ///< false: explore cannot judge this kind (timing)
   bool pass = false;
   logic got = logic::x;  ///< value: the net's value when all stable states agree
   std::string detail;
@@ -55,10 +55,12 @@ struct explore_step {
   std::vector<stable_state> stable;
   answer critical_race = answer::unknown, noncritical_race = answer::unknown;
   answer may_oscillate = answer::unknown, must_oscillate = answer::unknown;
-  std::vector<net_id> hazards;  ///< from the graph when complete, else possible static hazards from ternary
-  std::uint32_t sccs = 0, nontrivial_sccs = 0, terminal_sccs = 0, oscillating_sccs = 0, largest_scc = 0;
-  std::vector<logic> ternary_a, ternary;   ///< per net
-  std::vector<logic> inputs;               ///< per net: input values during the step
+  std::vector<net_id>
+      hazards;  ///< from the graph when complete, else possible static hazards from ternary
+  std::uint32_t sccs = 0, nontrivial_sccs = 0, terminal_sccs = 0, oscillating_sccs = 0,
+                largest_scc = 0;
+  std::vector<logic> ternary_a, ternary;  ///< per net
+  std::vector<logic> inputs;              ///< per net: input values during the step
   std::vector<explore_expect> expects;
   std::shared_ptr<const state_graph> graph;  ///< kept when explore_options::keep_graphs
   bool pass() const;
@@ -78,7 +80,8 @@ struct explore_result {
 /// init values; see the definition for how x gate outputs are resolved.
 /// Returns nullopt and sets *error for what explore cannot analyse (clocks,
 /// inputs left x).
-std::optional<explore_result> explore_design(const design& d, const explore_options& o, std::string* error);
+std::optional<explore_result> explore_design(const design& d, const explore_options& o,
+                                             std::string* error);
 
 /// The default --max-memory in MiB.
 inline constexpr std::uint64_t default_max_memory_mib = 2048;

@@ -38,7 +38,8 @@ std::vector<std::vector<std::uint32_t>> strongly_connected(std::uint32_t nodes,
       call.pop_back();
       if (!call.empty()) low[call.back()] = std::min(low[call.back()], low[v]);
       if (low[v] == index[v] && !trivial && stack.back() == v &&
-          std::find(next.begin() + begin[v], next.begin() + begin[v + 1], v) == next.begin() + begin[v + 1]) {
+          std::find(next.begin() + begin[v], next.begin() + begin[v + 1], v) ==
+              next.begin() + begin[v + 1]) {
         stack.pop_back();
         on_stack[v] = 0;
       } else if (low[v] == index[v]) {

@@ -1,12 +1,12 @@
 // Delay margins by bisection over the spread w, shared between steps; settle-time margins at w = 1.
 #include "sim/analysis/margin.hpp"
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <chrono>
 #include <cmath>
 #include <map>
-
-#include <fmt/format.h>
 
 #include "sim/model/time.hpp"
 
@@ -17,9 +17,10 @@ constexpr time_fs one_ns = 1'000'000;
 
 // What one probe (a sweep at spread w) says about every step.
 struct probe_outcome {
-  std::vector<bool> pass;                 // per step
-  std::vector<margin_failure> failure;    // per step (meaningful where !pass)
-  std::vector<std::optional<std::pair<corner, corner>>> race;  // per step: witnesses of two settled outcomes
+  std::vector<bool> pass;               // per step
+  std::vector<margin_failure> failure;  // per step (meaningful where !pass)
+  std::vector<std::optional<std::pair<corner, corner>>>
+      race;  // per step: witnesses of two settled outcomes
   std::vector<bool> first_divergence;
   sweep_result sweep;
 };
@@ -52,7 +53,8 @@ margin_failure describe(const sweep_plan& plan, const sweep_step& s, double w) {
       f.detail = fmt::format("{} settled outcomes across corners", s.outcomes.size());
     }
     // The witness of an outcome other than the one the named witness shows.
-    const std::uint64_t first = f.expect_index ? s.expects[*f.expect_index].witness : s.outcomes[0].witness;
+    const std::uint64_t first =
+        f.expect_index ? s.expects[*f.expect_index].witness : s.outcomes[0].witness;
     const auto& other = s.outcomes[0].witness == first ? s.outcomes[1] : s.outcomes[0];
     f.other_witness = at_spread(plan, other.witness, w).name();
   } else if (!f.expect_index) {
@@ -66,7 +68,8 @@ margin_failure describe(const sweep_plan& plan, const sweep_step& s, double w) {
                          ? fmt::format("oscillating with period {}", format_time(o.period))
                          : std::string(o.end_of_time ? end_of_time_words : status_name(o.status));
       }
-    if (f.witness.empty() && !s.outcomes.empty()) f.witness = at_spread(plan, s.outcomes[0].witness, w).name();
+    if (f.witness.empty() && !s.outcomes.empty())
+      f.witness = at_spread(plan, s.outcomes[0].witness, w).name();
   }
   return f;
 }
@@ -101,12 +104,15 @@ std::string spread_percent(double w) {
 
 std::string margin_result::confidence_note() const {
   if (exact)
-    return "exact over the corners searched: exhaustive covers every min/max assignment of the delay variables "
+    return "exact over the corners searched: exhaustive covers every min/max assignment of the "
+           "delay variables "
            "(each gate's rise and fall ranges, each rule's range)";
   if (sampled)
-    return "a lower-confidence estimate: random corners can miss a failing corner, so the true margin may be "
+    return "a lower-confidence estimate: random corners can miss a failing corner, so the true "
+           "margin may be "
            "smaller; only an exhaustive spec gives an exact figure";
-  return "an estimate over the extremes corners only; only an exhaustive spec gives an exact figure";
+  return "an estimate over the extremes corners only; only an exhaustive spec gives an exact "
+         "figure";
 }
 
 bool margin_result::passes_as_written() const {
@@ -116,7 +122,8 @@ bool margin_result::passes_as_written() const {
                      [](const property_margin& p) { return p.at_ceiling || p.margin >= 1.0; });
 }
 
-std::optional<margin_result> find_margin(const design& d, const margin_options& o, std::string* error) {
+std::optional<margin_result> find_margin(const design& d, const margin_options& o,
+                                         std::string* error) {
   const auto started = std::chrono::steady_clock::now();
   auto fail = [&](std::string why) -> std::optional<margin_result> {
     if (error) *error = std::move(why);
@@ -140,9 +147,10 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
   res.ceiling = o.ceiling_pct / 100.0;
   res.corners_per_probe = plan->corners;
   res.sampled = plan->sampled > 0;
-  res.exact = !res.sampled && std::any_of(plan->items.begin(), plan->items.end(), [](const sweep_plan::item& i) {
-    return i.what == corner::kind::exhaustive;
-  });
+  res.exact = !res.sampled &&
+              std::any_of(plan->items.begin(), plan->items.end(), [](const sweep_plan::item& i) {
+                return i.what == corner::kind::exhaustive;
+              });
 
   // One scaled copy of the design: w applied to the ranges is what corner@w
   // does, and the horizon stays the one of the design as written.
@@ -173,7 +181,9 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
       scaled_d.stim.rules[r].delay = scaled(d.stim.rules[r].delay, w);
     probe_outcome p;
     if (o.timeout_s > 0) {
-      const double left = o.timeout_s - std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+      const double left =
+          o.timeout_s -
+          std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
       if (left <= 0) {
         res.stopped = sweep_stop::timeout;
         throw halted{};
@@ -195,8 +205,11 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
       std::vector<std::uint64_t> settled;
       for (const auto& oc : s.outcomes)
         if (oc.status == step_status::settled && settled.size() < 2) settled.push_back(oc.witness);
-      if (settled.size() == 2) p.race.push_back(std::make_pair(at_spread(*plan, settled[0], w), at_spread(*plan, settled[1], w)));
-      else p.race.emplace_back();
+      if (settled.size() == 2)
+        p.race.push_back(
+            std::make_pair(at_spread(*plan, settled[0], w), at_spread(*plan, settled[1], w)));
+      else
+        p.race.emplace_back();
       all = all && s.pass;
     }
     for (const auto& pr : p.sweep.properties) {
@@ -224,7 +237,9 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
   // between a passing lo and a failing hi; one probe updates every bracket it
   // falls in.
   const auto K = static_cast<std::int64_t>(std::llround(o.ceiling_pct / o.resolution_pct));
-  auto w_of = [&](std::int64_t k) { return k == K ? res.ceiling : static_cast<double>(k) * o.resolution_pct / 100.0; };
+  auto w_of = [&](std::int64_t k) {
+    return k == K ? res.ceiling : static_cast<double>(k) * o.resolution_pct / 100.0;
+  };
   std::vector<std::int64_t> lo(entries, -1), hi(entries, -1);
   try {
     {
@@ -289,7 +304,8 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
   const std::optional<margin_failure>* worst_failure = nullptr;
   double worst_margin = 0;
   bool worst_at_zero = false;
-  auto consider = [&](double m, bool at_ceiling, bool at_zero, const std::optional<margin_failure>& f) {
+  auto consider = [&](double m, bool at_ceiling, bool at_zero,
+                      const std::optional<margin_failure>& f) {
     if (at_ceiling || (worst_failure && m >= worst_margin)) return;
     worst_failure = &f, worst_margin = m, worst_at_zero = at_zero;
   };
@@ -323,7 +339,8 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
           continue;
         }
         // The longest settle time; on a tie the lowest-numbered corner.
-        if (slowest == UINT64_MAX || oc.settle.max > wm.worst || (oc.settle.max == wm.worst && oc.slowest < slowest))
+        if (slowest == UINT64_MAX || oc.settle.max > wm.worst ||
+            (oc.settle.max == wm.worst && oc.slowest < slowest))
           wm.worst = oc.settle.max, slowest = oc.slowest;
       }
       if (slowest != UINT64_MAX) wm.worst_corner = plan->corner_at(slowest).name();

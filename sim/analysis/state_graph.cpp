@@ -2,11 +2,11 @@
 // Brzozowski and Seger, Asynchronous Circuits, 1995), components and hazards on the graph.
 #include "sim/analysis/state_graph.hpp"
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <bit>
 #include <cstring>
-
-#include <fmt/format.h>
 
 #include "sim/kernel/eval.hpp"
 
@@ -25,7 +25,8 @@ std::uint64_t hash_words(const std::uint64_t* s, std::size_t n) {
 
 }  // namespace
 
-state_graph::state_graph(std::size_t gates) : gates_(gates), words_(std::max<std::size_t>(1, (gates + 63) / 64)) {
+state_graph::state_graph(std::size_t gates)
+    : gates_(gates), words_(std::max<std::size_t>(1, (gates + 63) / 64)) {
   table_.assign(1024, no_id);
   mask_ = table_.size() - 1;
 }
@@ -91,21 +92,24 @@ bool state_graph::explore(const netlist& n, std::span<const logic> inputs, race_
   for (explored = 0; explored < size(); ++explored) {
     const std::uint32_t i = explored;
     if (size() > lim.max_states) {
-      stop = fmt::format("state budget reached: {} states found, {} of them explored (--max-states {})",
-                         size(), i, lim.max_states);
+      stop = fmt::format(
+          "state budget reached: {} states found, {} of them explored (--max-states {})", size(), i,
+          lim.max_states);
       break;
     }
     // bytes() is a few capacity reads, so the guard is checked at every state:
     // one gmw state can add up to 2^20 edges.
     if (lim.max_bytes && lim.held_bytes + bytes() > lim.max_bytes) {
-      stop = fmt::format("memory limit reached: the state graphs hold {:.1f} MiB after {} states, {} of them "
-                         "explored (--max-memory {} MiB)",
-                         static_cast<double>(lim.held_bytes + bytes()) / (1 << 20), size(), i,
-                         lim.max_bytes >> 20);
+      stop = fmt::format(
+          "memory limit reached: the state graphs hold {:.1f} MiB after {} states, {} of them "
+          "explored (--max-memory {} MiB)",
+          static_cast<double>(lim.held_bytes + bytes()) / (1 << 20), size(), i,
+          lim.max_bytes >> 20);
       break;
     }
     if (edge_to.size() > UINT32_MAX - (std::size_t{1} << 21)) {
-      stop = fmt::format("edge limit reached: {} edges after {} states ({} explored)", edge_to.size(), size(), i);
+      stop = fmt::format("edge limit reached: {} edges after {} states ({} explored)",
+                         edge_to.size(), size(), i);
       break;
     }
     std::memcpy(cur.data(), state(i), words_ * 8);
@@ -129,10 +133,11 @@ bool state_graph::explore(const netlist& n, std::span<const logic> inputs, race_
     }
     if (excited.size() > static_cast<std::size_t>(lim.max_excited)) {
       edge_begin.pop_back();
-      stop = fmt::format("state {} has {} excited gates; gmw would need {} successors from it (the limit is {} "
-                         "excited gates): use --model single or ternary",
-                         i, excited.size(), (std::uint64_t{1} << std::min<std::size_t>(excited.size(), 63)) - 1,
-                         lim.max_excited);
+      stop = fmt::format(
+          "state {} has {} excited gates; gmw would need {} successors from it (the limit is {} "
+          "excited gates): use --model single or ternary",
+          i, excited.size(), (std::uint64_t{1} << std::min<std::size_t>(excited.size(), 63)) - 1,
+          lim.max_excited);
       break;
     }
     // Every non-empty subset of the excited gates, in Gray-code order: one bit
@@ -232,13 +237,16 @@ scc_info strongly_connected(const state_graph& g) {
     if (r.slot[c] == no_id) continue;
     bool ok = true;
     for (std::size_t k = 0; k < words; ++k)
-      if (always[std::size_t{r.slot[c]} * words + k] & ~r.fired_inside[std::size_t{r.slot[c]} * words + k]) ok = false;
+      if (always[std::size_t{r.slot[c]} * words + k] &
+          ~r.fired_inside[std::size_t{r.slot[c]} * words + k])
+        ok = false;
     r.nontransient[c] = ok;
   }
   return r;
 }
 
-std::vector<bool> hazard_gates(const state_graph& g, const scc_info& s, std::span<const gate_id> gates) {
+std::vector<bool> hazard_gates(const state_graph& g, const scc_info& s,
+                               std::span<const gate_id> gates) {
   const std::uint32_t n = g.size();
   const std::size_t k = gates.size(), words = g.words();
   std::vector<bool> out(k, false);
@@ -251,7 +259,8 @@ std::vector<bool> hazard_gates(const state_graph& g, const scc_info& s, std::spa
     std::vector<std::uint32_t> at(first.begin(), first.end() - 1);
     for (std::uint32_t v = 0; v < n; ++v) order[at[s.comp[v]]++] = v;
   }
-  // toggles[c * k + j]: most changes of gate j on a path from a start into c, capped at 2; 255 = unreached
+  // toggles[c * k + j]: most changes of gate j on a path from a start into c, capped at 2; 255 =
+  // unreached
   std::vector<std::uint8_t> toggles(std::size_t{s.count} * k, 255);
   for (std::uint32_t v = 0; v < g.starts && v < n; ++v)
     for (std::size_t j = 0; j < k; ++j) toggles[std::size_t{s.comp[v]} * k + j] = 0;
@@ -263,7 +272,8 @@ std::vector<bool> hazard_gates(const state_graph& g, const scc_info& s, std::spa
     if (s.slot[c] != no_id)
       for (std::size_t j = 0; j < k; ++j) {
         const gate_id gate = gates[j];
-        if (t[j] != 255 && ((s.fired_inside[std::size_t{s.slot[c]} * words + (gate >> 6)] >> (gate & 63)) & 1))
+        if (t[j] != 255 &&
+            ((s.fired_inside[std::size_t{s.slot[c]} * words + (gate >> 6)] >> (gate & 63)) & 1))
           t[j] = 2;  // a cycle that fires the gate: it can change any number of times
       }
     for (std::uint32_t i = first[c]; i < first[c + 1]; ++i) {
@@ -274,7 +284,8 @@ std::vector<bool> hazard_gates(const state_graph& g, const scc_info& s, std::spa
         if (d == c) continue;
         for (std::size_t j = 0; j < k; ++j) {
           if (t[j] == 255) continue;
-          const std::uint8_t nt = static_cast<std::uint8_t>(std::min(2, t[j] + static_cast<int>(fires(v, w, gates[j]))));
+          const std::uint8_t nt = static_cast<std::uint8_t>(
+              std::min(2, t[j] + static_cast<int>(fires(v, w, gates[j]))));
           std::uint8_t& dt = toggles[std::size_t{d} * k + j];
           if (dt == 255 || nt > dt) dt = nt;
         }
@@ -283,7 +294,8 @@ std::vector<bool> hazard_gates(const state_graph& g, const scc_info& s, std::spa
   }
   for (std::uint32_t c = 0; c < s.count; ++c)
     for (std::size_t j = 0; j < k; ++j)
-      if (toggles[std::size_t{c} * k + j] == 2 && toggles[std::size_t{c} * k + j] != 255) out[j] = true;
+      if (toggles[std::size_t{c} * k + j] == 2 && toggles[std::size_t{c} * k + j] != 255)
+        out[j] = true;
   return out;
 }
 

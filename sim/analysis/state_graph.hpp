@@ -23,7 +23,7 @@ struct graph_limits {
   /// Bytes already held by the graphs of earlier steps kept for reports;
   /// they count against max_bytes with this graph's own storage.
   std::uint64_t held_bytes = 0;
-  int max_excited = 20;         ///< gmw: more excited gates in one state stops the search
+  int max_excited = 20;  ///< gmw: more excited gates in one state stops the search
 };
 
 /// A state is one bit per gate output, in gate order, packed into 64-bit words.
@@ -35,7 +35,9 @@ class state_graph {
 
   std::size_t words() const { return words_; }
   std::uint32_t size() const { return static_cast<std::uint32_t>(arena_.size() / words_); }
-  const std::uint64_t* state(std::uint32_t i) const { return arena_.data() + std::size_t{i} * words_; }
+  const std::uint64_t* state(std::uint32_t i) const {
+    return arena_.data() + std::size_t{i} * words_;
+  }
   bool bit(std::uint32_t i, gate_id g) const { return (state(i)[g >> 6] >> (g & 63)) & 1; }
   /// State i as text: one '0' or '1' per gate, in gate order (the reports' `state_order`).
   std::string bits_text(std::uint32_t i) const;
@@ -48,16 +50,16 @@ class state_graph {
   /// Explores breadth-first from the states already interned, with inputs
   /// fixed at `inputs` (per net values, gate outputs ignored). Returns false
   /// and sets `stop` when a limit was hit.
-  bool explore(const netlist& n, std::span<const logic> inputs, race_model m, const graph_limits& lim,
-               std::string& stop);
+  bool explore(const netlist& n, std::span<const logic> inputs, race_model m,
+               const graph_limits& lim, std::string& stop);
 
   // ---- results, valid after explore()
   std::vector<std::uint32_t> edge_begin;  ///< CSR over states: size states+1 (explored states)
   std::vector<std::uint32_t> edge_to;
-  std::vector<std::uint32_t> parent;      ///< BFS tree; no_id for start states
-  std::uint32_t starts = 0;               ///< states [0, starts) are the start states
-  std::uint32_t explored = 0;             ///< states whose successors are listed
-  bool any_race = false;                  ///< some state had two or more excited gates
+  std::vector<std::uint32_t> parent;  ///< BFS tree; no_id for start states
+  std::uint32_t starts = 0;           ///< states [0, starts) are the start states
+  std::uint32_t explored = 0;         ///< states whose successors are listed
+  bool any_race = false;              ///< some state had two or more excited gates
 
   bool is_stable(std::uint32_t i) const { return edge_begin[i] == edge_begin[i + 1]; }
 
@@ -79,13 +81,14 @@ std::string state_order_text(const netlist& n);
 
 /// Strongly connected components (Tarjan 1972, iterative) with what the analyses need.
 struct scc_info {
-  std::vector<std::uint32_t> comp;        ///< per state: its component
-  std::uint32_t count = 0;                ///< components, numbered in reverse topological order
-  std::vector<std::uint32_t> size;        ///< per component
-  std::vector<std::uint8_t> terminal;     ///< per component: no edge leaves it
-  std::vector<std::uint8_t> nontransient; ///< per component: holds a cycle that is not transient
-  std::vector<std::uint32_t> slot;        ///< per component: row in `fired_inside`, or no_id if trivial
-  std::vector<std::uint64_t> fired_inside;///< per non-trivial component: gates fired on its own edges
+  std::vector<std::uint32_t> comp;         ///< per state: its component
+  std::uint32_t count = 0;                 ///< components, numbered in reverse topological order
+  std::vector<std::uint32_t> size;         ///< per component
+  std::vector<std::uint8_t> terminal;      ///< per component: no edge leaves it
+  std::vector<std::uint8_t> nontransient;  ///< per component: holds a cycle that is not transient
+  std::vector<std::uint32_t> slot;  ///< per component: row in `fired_inside`, or no_id if trivial
+  std::vector<std::uint64_t>
+      fired_inside;  ///< per non-trivial component: gates fired on its own edges
 };
 
 /// Computes the components of the explored part of `g` (all of it when complete).
@@ -94,6 +97,7 @@ scc_info strongly_connected(const state_graph& g);
 /// Per reported gate: true when some path from a start state fires it twice or
 /// more (a glitch: more changes than its net change needs), or a cycle of the
 /// graph fires it.
-std::vector<bool> hazard_gates(const state_graph& g, const scc_info& s, std::span<const gate_id> gates);
+std::vector<bool> hazard_gates(const state_graph& g, const scc_info& s,
+                               std::span<const gate_id> gates);
 
 }  // namespace settle

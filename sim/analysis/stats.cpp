@@ -14,8 +14,10 @@ double normal_quantile_two_sided(double confidence) {
   double lo = 0.0, hi = 40.0;
   for (int i = 0; i < 200; ++i) {
     const double mid = 0.5 * (lo + hi);
-    if (std::erfc(mid / std::sqrt(2.0)) > tail) lo = mid;
-    else hi = mid;
+    if (std::erfc(mid / std::sqrt(2.0)) > tail)
+      lo = mid;
+    else
+      hi = mid;
   }
   return 0.5 * (lo + hi);
 }
@@ -36,7 +38,9 @@ proportion_interval wilson_interval(std::uint64_t k, std::uint64_t n, double con
   return {lo, hi};
 }
 
-double rule_of_three(std::uint64_t n) { return n == 0 ? 1.0 : std::min(1.0, 3.0 / static_cast<double>(n)); }
+double rule_of_three(std::uint64_t n) {
+  return n == 0 ? 1.0 : std::min(1.0, 3.0 / static_cast<double>(n));
+}
 
 double zero_count_upper_bound(std::uint64_t n, double confidence) {
   if (n == 0) return 1.0;

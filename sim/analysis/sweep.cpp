@@ -1,19 +1,19 @@
 // The sweep engine: a worker pool over corners, outcome grouping, verdicts and statistics per step.
 #include "sim/analysis/sweep.hpp"
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <atomic>
 #include <chrono>
 #include <cmath>
 #include <cstring>
+#include <exception>
 #include <limits>
 #include <map>
-#include <exception>
 #include <mutex>
 #include <thread>
 #include <unordered_map>
-
-#include <fmt/format.h>
 
 namespace settle {
 namespace {
@@ -21,12 +21,14 @@ namespace {
 // An outcome as bytes: status (0x40 set for a timeout at the end of
 // representable time), period (oscillating only), then the values.
 constexpr char end_of_time_bit = 0x40;
-std::string key_of(step_status status, time_fs period, const std::vector<logic>& values, bool end_of_time = false) {
+std::string key_of(step_status status, time_fs period, const std::vector<logic>& values,
+                   bool end_of_time = false) {
   std::string k(1 + sizeof(time_fs) + values.size(), '\0');
   k[0] = static_cast<char>(static_cast<char>(status) | (end_of_time ? end_of_time_bit : 0));
   if (status != step_status::oscillating) period = 0;
   std::memcpy(k.data() + 1, &period, sizeof period);
-  for (std::size_t i = 0; i < values.size(); ++i) k[1 + sizeof(time_fs) + i] = static_cast<char>(values[i]);
+  for (std::size_t i = 0; i < values.size(); ++i)
+    k[1 + sizeof(time_fs) + i] = static_cast<char>(values[i]);
   return k;
 }
 
@@ -34,7 +36,8 @@ void decode_key(const std::string& k, sweep_outcome& o) {
   o.status = static_cast<step_status>(k[0] & ~end_of_time_bit);
   o.end_of_time = (k[0] & end_of_time_bit) != 0;
   std::memcpy(&o.period, k.data() + 1, sizeof o.period);
-  for (std::size_t i = 1 + sizeof(time_fs); i < k.size(); ++i) o.values.push_back(static_cast<logic>(k[i]));
+  for (std::size_t i = 1 + sizeof(time_fs); i < k.size(); ++i)
+    o.values.push_back(static_cast<logic>(k[i]));
 }
 
 bool settles(step_status s) { return s == step_status::settled || s == step_status::running; }
@@ -92,7 +95,7 @@ struct worker_state {
   std::vector<gauge_acc> gauges;         // [gauge]
   std::vector<net_id> reported;
   bool have_reported = false;
-  std::vector<std::vector<expect_acc>> expects;  // [step][expectation]
+  std::vector<std::vector<expect_acc>> expects;                       // [step][expectation]
   std::vector<std::unordered_map<std::string, std::uint32_t>> cache;  // [step] key -> id
   std::exception_ptr error;
   // The lowest-numbered corner whose stimulus could not go on (run_result::error).
@@ -146,11 +149,14 @@ void work(shared_run& s, worker_state& w) {
       for (std::size_t k = 0; k < s.steps; ++k) {
         const bool ran = k < r.steps.size();
         // A run stopped by --max-events has no later steps: they count as stopped.
-        const std::string key = ran ? key_of(r.steps[k].status, r.steps[k].period, r.steps[k].values, r.steps[k].end_of_time)
+        const std::string key = ran ? key_of(r.steps[k].status, r.steps[k].period,
+                                             r.steps[k].values, r.steps[k].end_of_time)
                                     : key_of(step_status::event_limit, 0, unknown);
         auto& cache = w.cache[k];
         auto it = cache.find(key);
-        const std::uint32_t id = it != cache.end() ? it->second : cache.emplace(key, s.registry.id(k, key)).first->second;
+        const std::uint32_t id = it != cache.end()
+                                     ? it->second
+                                     : cache.emplace(key, s.registry.id(k, key)).first->second;
         s.outcome_of[i * s.steps + k] = id;
         // An oscillating step's time is when its repeat was detected, not a settle time.
         s.settle_of[i * s.steps + k] = !ran ? 0
@@ -164,7 +170,8 @@ void work(shared_run& s, worker_state& w) {
           ++accs[e].failing;
           if (i < accs[e].first) {
             accs[e].first = i;
-            accs[e].detail = ran ? r.steps[k].expects[e].detail : "the run stopped before this step (event limit)";
+            accs[e].detail = ran ? r.steps[k].expects[e].detail
+                                 : "the run stopped before this step (event limit)";
           }
         }
       }
@@ -195,14 +202,19 @@ sweep_verdict verdict_of(const std::vector<sweep_outcome>& outs) {
   if (outs.empty()) return sweep_verdict::timeout;  // a stopped sweep that finished no corner
   bool settled = false, osc = false, other = false, dead = false;
   for (const auto& o : outs) {
-    if (settles(o.status)) settled = true;
-    else if (o.status == step_status::oscillating) osc = true;
-    else if (o.status == step_status::deadlock) dead = true;
-    else other = true;
+    if (settles(o.status))
+      settled = true;
+    else if (o.status == step_status::oscillating)
+      osc = true;
+    else if (o.status == step_status::deadlock)
+      dead = true;
+    else
+      other = true;
   }
   // A deadlock in some corners is never hidden behind the others' verdict.
   if (dead) return settled || osc || other ? sweep_verdict::mixed : sweep_verdict::deadlock;
-  if (!osc && !other) return outs.size() == 1 ? sweep_verdict::deterministic : sweep_verdict::nondeterministic;
+  if (!osc && !other)
+    return outs.size() == 1 ? sweep_verdict::deterministic : sweep_verdict::nondeterministic;
   if (!settled && !other) return sweep_verdict::oscillating;
   if (!settled && !osc) return sweep_verdict::timeout;
   return sweep_verdict::mixed;
@@ -211,9 +223,10 @@ sweep_verdict verdict_of(const std::vector<sweep_outcome>& outs) {
 // Groups step k's corners into outcomes, ordered by count, then witness.
 std::vector<sweep_outcome> group_step(const sweep_plan& plan, std::size_t steps, std::size_t k,
                                       const std::vector<std::uint32_t>& outcome_of,
-                                      const std::vector<time_fs>& settle_of, const outcome_registry& reg,
-                                      const std::vector<std::uint8_t>& finished, std::uint64_t corners,
-                                      std::size_t& sampled_outcomes) {
+                                      const std::vector<time_fs>& settle_of,
+                                      const outcome_registry& reg,
+                                      const std::vector<std::uint8_t>& finished,
+                                      std::uint64_t corners, std::size_t& sampled_outcomes) {
   const auto& keys = reg.keys(k);
   std::vector<sweep_outcome> outs(keys.size());
   std::vector<std::vector<time_fs>> times(keys.size());
@@ -253,12 +266,16 @@ bool step_passes(const sweep_step& st) {
   for (const auto& o : st.outcomes)
     if (!o.unknown.empty()) return false;
   switch (st.verdict) {
-    case sweep_verdict::deterministic: return true;
-    case sweep_verdict::nondeterministic: return st.run_step;  // a `run` window samples a moving circuit
+    case sweep_verdict::deterministic:
+      return true;
+    case sweep_verdict::nondeterministic:
+      return st.run_step;  // a `run` window samples a moving circuit
     case sweep_verdict::oscillating:
-      return std::any_of(st.expects.begin(), st.expects.end(),
-                         [](const sweep_expect& e) { return e.spec->what == expectation::kind::oscillating; });
-    default: return false;
+      return std::any_of(st.expects.begin(), st.expects.end(), [](const sweep_expect& e) {
+        return e.spec->what == expectation::kind::oscillating;
+      });
+    default:
+      return false;
   }
 }
 
@@ -267,8 +284,8 @@ bool step_passes(const sweep_step& st) {
 // covers every delay assignment in range, Breuer and Friedman 1976); otherwise
 // nothing is known either way, so the step is inconclusive. An expectation
 // holds when the run passes it: its binary values are those of every corner.
-void judge_by_interval(const step_spec* spec, const std::optional<interval_result>& iv, std::size_t k,
-                       std::size_t reported, sweep_step& st) {
+void judge_by_interval(const step_spec* spec, const std::optional<interval_result>& iv,
+                       std::size_t k, std::size_t reported, sweep_step& st) {
   if (iv && k < iv->steps.size()) {
     st.interval = iv->steps[k];
   } else {  // the run stopped before this step (--max-events)
@@ -302,9 +319,10 @@ void judge_by_interval(const step_spec* spec, const std::optional<interval_resul
 // The result does not depend on which worker ran which corner: counts add up,
 // extremes keep the lower corner on a tie, and the median is taken over the
 // per-corner means in corner order.
-void gather_closed_loop(const design& d, const sweep_plan& plan, const std::vector<worker_state>& workers,
-                        const std::vector<double>& gauge_mean_of, const std::vector<std::uint8_t>& finished,
-                        sweep_result& res) {
+void gather_closed_loop(const design& d, const sweep_plan& plan,
+                        const std::vector<worker_state>& workers,
+                        const std::vector<double>& gauge_mean_of,
+                        const std::vector<std::uint8_t>& finished, sweep_result& res) {
   for (std::uint32_t p = 0; p < d.stim.properties.size(); ++p) {
     sweep_property sp;
     sp.index = p;
@@ -356,7 +374,8 @@ void gather_closed_loop(const design& d, const sweep_plan& plan, const std::vect
 // The rules owed at each deadlocked outcome's witness, and how far each timed-out
 // outcome's witness got: one replay per witness
 // corner (outcomes only keep their end state while the corners run).
-void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt, sweep_result& res) {
+void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt,
+                 sweep_result& res) {
   std::map<std::uint64_t, run_result> replays;
   delay_table table;
   // A timeout runs to its time limit: its explanation is worth a bounded
@@ -387,13 +406,20 @@ void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt
 
 const char* verdict_name(sweep_verdict v) {
   switch (v) {
-    case sweep_verdict::deterministic: return "deterministic";
-    case sweep_verdict::nondeterministic: return "nondeterministic";
-    case sweep_verdict::oscillating: return "oscillating";
-    case sweep_verdict::mixed: return "mixed";
-    case sweep_verdict::timeout: return "timeout";
-    case sweep_verdict::inconclusive: return "inconclusive";
-    case sweep_verdict::deadlock: return "deadlock";
+    case sweep_verdict::deterministic:
+      return "deterministic";
+    case sweep_verdict::nondeterministic:
+      return "nondeterministic";
+    case sweep_verdict::oscillating:
+      return "oscillating";
+    case sweep_verdict::mixed:
+      return "mixed";
+    case sweep_verdict::timeout:
+      return "timeout";
+    case sweep_verdict::inconclusive:
+      return "inconclusive";
+    case sweep_verdict::deadlock:
+      return "deadlock";
   }
   return "?";
 }
@@ -401,7 +427,8 @@ const char* verdict_name(sweep_verdict v) {
 bool sweep_result::pass() const {
   return stopped == sweep_stop::none &&
          std::all_of(steps.begin(), steps.end(), [](const sweep_step& s) { return s.pass; }) &&
-         std::all_of(properties.begin(), properties.end(), [](const sweep_property& p) { return p.holds(); });
+         std::all_of(properties.begin(), properties.end(),
+                     [](const sweep_property& p) { return p.holds(); });
 }
 
 sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_options& opt) {
@@ -410,7 +437,8 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
   res.planned = plan.corners;
   const std::size_t steps = d.stim.steps.empty() ? 1 : d.stim.steps.size();
   unsigned threads = opt.threads ? opt.threads : std::max(1u, std::thread::hardware_concurrency());
-  if (plan.corners < threads) threads = static_cast<unsigned>(std::max<std::uint64_t>(plan.corners, 1));
+  if (plan.corners < threads)
+    threads = static_cast<unsigned>(std::max<std::uint64_t>(plan.corners, 1));
   res.threads = threads;
 
   std::vector<std::uint32_t> outcome_of(plan.corners * steps);
@@ -426,8 +454,9 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
   std::atomic<bool> halt{false};
   run_options ro = opt.run;
   ro.stop = &halt;
-  shared_run shared{d,      plan,    ro, steps, outcome_of, settle_of, finished_corner, gauge_mean_of,
-                    halt, registry, next, done};
+  shared_run shared{
+      d,    plan,     ro,   steps, outcome_of, settle_of, finished_corner, gauge_mean_of,
+      halt, registry, next, done};
   std::vector<worker_state> workers(threads);
   {
     std::vector<std::thread> pool;
@@ -443,10 +472,13 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
       while (finished.load() < threads) {
         std::this_thread::sleep_for(std::chrono::milliseconds(20));
         const auto now = std::chrono::steady_clock::now();
-        if (!halt.load() && opt.stop && opt.stop->load()) res.stopped = sweep_stop::interrupted, halt.store(true);
-        if (!halt.load() && opt.timeout_s > 0 && std::chrono::duration<double>(now - started).count() >= opt.timeout_s)
+        if (!halt.load() && opt.stop && opt.stop->load())
+          res.stopped = sweep_stop::interrupted, halt.store(true);
+        if (!halt.load() && opt.timeout_s > 0 &&
+            std::chrono::duration<double>(now - started).count() >= opt.timeout_s)
           res.stopped = sweep_stop::timeout, halt.store(true);
-        if (opt.progress && std::chrono::duration<double>(now - last).count() >= opt.progress_every_s) {
+        if (opt.progress &&
+            std::chrono::duration<double>(now - last).count() >= opt.progress_every_s) {
           opt.progress(done.load(), plan.corners);
           last = now;
         }
@@ -460,13 +492,15 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
   for (auto& w : workers) {
     res.events += w.events;
     if (w.have_reported && res.reported.empty()) res.reported = w.reported;
-    if (w.stim_error && w.stim_error_corner < res.error_corner) res.error_corner = w.stim_error_corner, res.error = w.stim_error;
+    if (w.stim_error && w.stim_error_corner < res.error_corner)
+      res.error_corner = w.stim_error_corner, res.error = w.stim_error;
   }
   res.corners = done.load();
   std::uint64_t sampled = plan.sampled;
   if (res.stopped != sweep_stop::none) {
     sampled = 0;
-    for (std::uint64_t i = 0; i < plan.corners; ++i) sampled += finished_corner[i] && plan.is_sampled(i);
+    for (std::uint64_t i = 0; i < plan.corners; ++i)
+      sampled += finished_corner[i] && plan.is_sampled(i);
   }
 
   std::optional<interval_result> iv;
@@ -486,12 +520,13 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
       continue;
     }
     std::size_t sampled_outcomes = 0;
-    st.outcomes = group_step(plan, steps, k, outcome_of, settle_of, registry, finished_corner, res.corners,
-                             sampled_outcomes);
+    st.outcomes = group_step(plan, steps, k, outcome_of, settle_of, registry, finished_corner,
+                             res.corners, sampled_outcomes);
     st.verdict = verdict_of(st.outcomes);
     if (!opt.run.allow_x)
       for (auto& o : st.outcomes)
-        if (o.status != step_status::oscillating) o.unknown = unknown_at_end(spec, res.reported, o.values);
+        if (o.status != step_status::oscillating)
+          o.unknown = unknown_at_end(spec, res.reported, o.values);
     if (divergence) st.inherits = divergence;
     // A step every corner deadlocks in has not diverged: it is stuck alike everywhere.
     else if (st.verdict != sweep_verdict::deterministic && st.verdict != sweep_verdict::deadlock)
@@ -508,7 +543,8 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
           const bool several = st.outcomes.size() > 1;
           x.failing = several ? res.corners - st.outcomes[0].count : res.corners;
           x.witness = st.outcomes[several ? 1 : 0].witness;
-          for (std::size_t o = 1; o < st.outcomes.size(); ++o) x.witness = std::min(x.witness, st.outcomes[o].witness);
+          for (std::size_t o = 1; o < st.outcomes.size(); ++o)
+            x.witness = std::min(x.witness, st.outcomes[o].witness);
           x.witness_name = plan.corner_at(x.witness).name();
           x.detail = fmt::format("the step is {} across corners", verdict_name(st.verdict));
         }

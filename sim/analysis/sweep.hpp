@@ -1,4 +1,5 @@
-// Corner sweeps: one design under many delay corners, grouped into outcomes with a verdict per step.
+// Corner sweeps: one design under many delay corners, grouped into outcomes with a verdict per
+// step.
 #pragma once
 
 #include <atomic>
@@ -9,10 +10,10 @@
 #include <string_view>
 #include <vector>
 
-#include "sim/model/corner.hpp"
+#include "sim/analysis/stats.hpp"
 #include "sim/kernel/interval.hpp"
 #include "sim/kernel/run.hpp"
-#include "sim/analysis/stats.hpp"
+#include "sim/model/corner.hpp"
 
 namespace settle {
 
@@ -27,16 +28,17 @@ struct sweep_plan {
   /// One `+`-separated item of the spec (interval is not a corner).
   struct item {
     corner::kind what = corner::kind::random;
-    std::uint64_t first = 0;   ///< global number of its first corner
+    std::uint64_t first = 0;  ///< global number of its first corner
     std::uint64_t count = 0;
-    std::uint64_t offset = 0;  ///< corner index of its first corner (random/gauss continue across items)
+    std::uint64_t offset =
+        0;  ///< corner index of its first corner (random/gauss continue across items)
   };
   std::string spec;
   std::uint64_t seed = 1;
   std::vector<item> items;
-  std::uint64_t corners = 0;   ///< total, interval excluded (0 when the spec is `interval` alone)
-  std::uint64_t sampled = 0;   ///< corners from random:N and gauss:N items
-  bool interval = false;       ///< the spec asks for the min-max ambiguity run
+  std::uint64_t corners = 0;  ///< total, interval excluded (0 when the spec is `interval` alone)
+  std::uint64_t sampled = 0;  ///< corners from random:N and gauss:N items
+  bool interval = false;      ///< the spec asks for the min-max ambiguity run
   /// The spec is `interval` alone: no corner runs, the interval run judges every step.
   bool interval_only() const { return interval && corners == 0; }
 
@@ -54,8 +56,8 @@ struct sweep_plan {
 /// `gauss:S#i`. A second random (or gauss) item continues the numbering of
 /// the first, so no corner repeats. `interval` alone is a plan of 0 corners
 /// whose steps the min-max run judges. On error returns nullopt and sets *error.
-std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, std::size_t variables,
-                                     std::string* error);
+std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed,
+                                     std::size_t variables, std::string* error);
 
 /// The default --max-memory of sweep and margin, in MiB (explore's is the same).
 inline constexpr std::uint64_t sweep_default_max_memory_mib = 2048;
@@ -77,13 +79,14 @@ enum class sweep_verdict : std::uint8_t {
   /// Some corners settle, others oscillate, time out or deadlock (or a mix of those); also
   /// where some corners deadlock and the others do anything else.
   mixed,
-  timeout,           ///< every corner timed out (or hit the event limit)
+  timeout,  ///< every corner timed out (or hit the event limit)
   /// `interval` alone: the min-max run left a reported net at x (or did not
   /// settle), so it proves nothing either way about this step.
   inconclusive,
-  deadlock,          ///< every corner deadlocks: quiet with a reaction rule still owed
+  deadlock,  ///< every corner deadlocks: quiet with a reaction rule still owed
 };
-/// "deterministic", "nondeterministic", "oscillating", "mixed", "timeout", "inconclusive", "deadlock".
+/// "deterministic", "nondeterministic", "oscillating", "mixed", "timeout", "inconclusive",
+/// "deadlock".
 const char* verdict_name(sweep_verdict v);
 
 /// Minimum, lower median (the ((n-1)/2)-th of n sorted values) and maximum.
@@ -94,20 +97,21 @@ struct time_summary {
 /// Corners of one step that ended the same way.
 struct sweep_outcome {
   step_status status = step_status::settled;
-  bool end_of_time = false;    ///< a timeout at the end of representable time (step_result::end_of_time)
-  std::vector<logic> values;   ///< per reported net
-  time_fs period = 0;          ///< oscillating only
+  bool end_of_time =
+      false;  ///< a timeout at the end of representable time (step_result::end_of_time)
+  std::vector<logic> values;  ///< per reported net
+  time_fs period = 0;         ///< oscillating only
   std::uint64_t count = 0;
-  double share = 0;            ///< count / corners
+  double share = 0;                ///< count / corners
   proportion_interval share_ci95;  ///< Wilson score interval
-  std::uint64_t witness = 0;   ///< the lowest-numbered corner with this outcome
+  std::uint64_t witness = 0;       ///< the lowest-numbered corner with this outcome
   std::string witness_name;
   /// Over its corners: settle times (settled, running: the last change;
   /// deadlock: when it went quiet); oscillating: the time from the step's
   /// start to the instant the repeat was detected; timeout and event_limit:
   /// the last value change, minus the start.
   time_summary settle;
-  std::uint64_t slowest = 0;   ///< the lowest-numbered corner whose settle time is settle.max
+  std::uint64_t slowest = 0;  ///< the lowest-numbered corner whose settle time is settle.max
   std::vector<time_fs> settle_times;  ///< its corners' settle times, ascending (for histograms)
   /// deadlock only: the rules owed at the witness corner (replayed once the corners ran).
   std::vector<owed_rule> owed;
@@ -127,10 +131,10 @@ struct sweep_outcome {
 /// An expectation of a step judged over every corner.
 struct sweep_expect {
   const expectation* spec = nullptr;
-  std::uint64_t failing = 0;   ///< corners in which it fails
-  std::uint64_t witness = 0;   ///< the first failing corner (when failing > 0)
+  std::uint64_t failing = 0;  ///< corners in which it fails
+  std::uint64_t witness = 0;  ///< the first failing corner (when failing > 0)
   std::string witness_name;
-  std::string detail;          ///< why it fails at the witness (or why the interval run does not prove it)
+  std::string detail;  ///< why it fails at the witness (or why the interval run does not prove it)
   /// `interval` alone: judged by the min-max run, not by corners. It holds
   /// then only when the run proves it (`proven`); failing stays 0.
   bool by_interval = false;
@@ -139,12 +143,12 @@ struct sweep_expect {
 };
 
 struct sweep_step {
-  std::size_t index = 0;       ///< 1-based
+  std::size_t index = 0;  ///< 1-based
   std::string label;
-  bool run_step = false;       ///< ended by `run` (a sample in time, not a settled state)
+  bool run_step = false;  ///< ended by `run` (a sample in time, not a settled state)
   sweep_verdict verdict = sweep_verdict::deterministic;
   bool first_divergence = false;
-  std::size_t inherits = 0;    ///< index of the first divergent step before this one; 0 = none
+  std::size_t inherits = 0;  ///< index of the first divergent step before this one; 0 = none
   std::vector<sweep_outcome> outcomes;  ///< by count descending, then witness
   std::vector<sweep_expect> expects;
   /// 3/N when the N random and gauss corners all gave one outcome (rule of three).
@@ -159,12 +163,12 @@ struct sweep_step {
 
 /// A whole-run property judged over every corner.
 struct sweep_property {
-  std::uint32_t index = 0;        ///< into stimulus::properties
-  std::uint64_t violating = 0;    ///< corners in which it is violated
-  std::uint64_t witness = 0;      ///< the lowest-numbered violating corner (when violating > 0)
+  std::uint32_t index = 0;      ///< into stimulus::properties
+  std::uint64_t violating = 0;  ///< corners in which it is violated
+  std::uint64_t witness = 0;    ///< the lowest-numbered violating corner (when violating > 0)
   std::string witness_name;
-  time_fs first_violation = 0;    ///< at the witness
-  std::size_t step = 0;           ///< at the witness, 1-based
+  time_fs first_violation = 0;  ///< at the witness
+  std::size_t step = 0;         ///< at the witness, 1-based
   bool holds() const { return violating == 0; }
 };
 
@@ -173,11 +177,11 @@ struct sweep_property {
 /// corners (mergeable across threads: the smaller value, then the lower
 /// corner) and every corner's mean for an exact median.
 struct sweep_gauge {
-  std::uint32_t index = 0;        ///< into stimulus::gauges
-  std::uint64_t corners = 0;      ///< corners with at least one sample
-  std::uint64_t samples = 0;      ///< over all corners
-  time_fs min = 0, max = 0;       ///< the smallest and largest sample of any corner
-  double median = 0;              ///< the lower median of the corners' mean samples (fs)
+  std::uint32_t index = 0;    ///< into stimulus::gauges
+  std::uint64_t corners = 0;  ///< corners with at least one sample
+  std::uint64_t samples = 0;  ///< over all corners
+  time_fs min = 0, max = 0;   ///< the smallest and largest sample of any corner
+  double median = 0;          ///< the lower median of the corners' mean samples (fs)
   std::uint64_t witness_min = 0, witness_max = 0;  ///< the lowest-numbered corners showing min, max
   std::string witness_min_name, witness_max_name;
 };
@@ -186,11 +190,11 @@ struct sweep_gauge {
 enum class sweep_stop : std::uint8_t { none, interrupted, timeout };
 
 struct sweep_result {
-  std::uint64_t corners = 0;     ///< corners run to the end (all of the plan unless stopped)
-  std::uint64_t planned = 0;     ///< corners in the plan
+  std::uint64_t corners = 0;  ///< corners run to the end (all of the plan unless stopped)
+  std::uint64_t planned = 0;  ///< corners in the plan
   sweep_stop stopped = sweep_stop::none;  ///< the steps then cover the finished corners only
   unsigned threads = 1;
-  std::uint64_t events = 0;      ///< value changes, summed over corners
+  std::uint64_t events = 0;  ///< value changes, summed over corners
   double wall_s = 0;
   std::vector<net_id> reported;  ///< outputs, then watched nets
   std::vector<sweep_step> steps;
@@ -206,7 +210,7 @@ struct sweep_result {
 };
 
 struct sweep_options {
-  unsigned threads = 0;          ///< 0: std::thread::hardware_concurrency()
+  unsigned threads = 0;  ///< 0: std::thread::hardware_concurrency()
   run_options run;
   /// Called on the calling thread about every `progress_every_s` with
   /// (corners done, total) while the workers run; may be empty.

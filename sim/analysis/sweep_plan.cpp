@@ -1,9 +1,10 @@
-// Corner spec parsing and enumeration for sweeps: extremes, exhaustive, random:N, gauss:N, interval.
+// Corner spec parsing and enumeration for sweeps: extremes, exhaustive, random:N, gauss:N,
+// interval.
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <charconv>
 #include <utility>
-
-#include <fmt/format.h>
 
 #include "sim/analysis/sweep.hpp"
 
@@ -43,7 +44,8 @@ std::uint64_t sweep_result_bytes(const sweep_plan& plan, std::size_t steps, std:
   // past 2^37 steps; saturate anyway.
   constexpr std::uint64_t per_cell = sizeof(std::uint32_t) + 2 * sizeof(time_fs);
   const std::uint64_t s = std::max<std::uint64_t>(steps, 1);
-  if (s > UINT64_MAX / 64 / per_cell || gauges > UINT64_MAX / 64 / sizeof(double)) return UINT64_MAX;
+  if (s > UINT64_MAX / 64 / per_cell || gauges > UINT64_MAX / 64 / sizeof(double))
+    return UINT64_MAX;
   const std::uint64_t per_corner = s * per_cell + gauges * sizeof(double) + 1;
   if (plan.corners && per_corner > UINT64_MAX / plan.corners) return UINT64_MAX;
   return plan.corners * per_corner;
@@ -56,8 +58,8 @@ bool sweep_plan::is_sampled(std::uint64_t i) const {
   return false;
 }
 
-std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, std::size_t variables,
-                                     std::string* error) {
+std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed,
+                                     std::size_t variables, std::string* error) {
   auto fail = [&](std::string why) -> std::optional<sweep_plan> {
     if (error) *error = std::move(why);
     return std::nullopt;
@@ -84,9 +86,10 @@ std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, 
           "given once",
           spec, tok));
     if (tok.empty()) {
-      return fail(fmt::format("--corners '{}': empty item; expected extremes, exhaustive, random:N, gauss:N or "
-                              "interval joined by '+'",
-                              spec));
+      return fail(fmt::format(
+          "--corners '{}': empty item; expected extremes, exhaustive, random:N, gauss:N or "
+          "interval joined by '+'",
+          spec));
     } else if (tok == "interval") {
       plan.interval = true;
     } else if (tok == "extremes") {
@@ -94,9 +97,10 @@ std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, 
       it.count = 3 + 2 * static_cast<std::uint64_t>(variables);
     } else if (tok == "exhaustive") {
       if (variables >= 64 || (std::uint64_t{1} << variables) > exhaustive_limit)
-        return fail(fmt::format("--corners exhaustive: {} delay variables need 2^{} corners, more than the limit "
-                                "of 2^20 ({}); sample instead, e.g. --corners extremes+random:10000",
-                                variables, variables, exhaustive_limit));
+        return fail(fmt::format(
+            "--corners exhaustive: {} delay variables need 2^{} corners, more than the limit "
+            "of 2^20 ({}); sample instead, e.g. --corners extremes+random:10000",
+            variables, variables, exhaustive_limit));
       it.what = corner::kind::exhaustive;
       it.count = std::uint64_t{1} << variables;
     } else if (tok.starts_with("random:") || tok.starts_with("gauss:")) {
@@ -104,22 +108,26 @@ std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, 
       it.what = random ? corner::kind::random : corner::kind::gauss;
       const std::string_view n = tok.substr(tok.find(':') + 1);
       if (!parse_count(n, it.count) || it.count == 0)
-        return fail(fmt::format("--corners '{}': expected a corner count of at least 1 after '{}', e.g. {}1000",
-                                spec, random ? "random:" : "gauss:", random ? "random:" : "gauss:"));
+        return fail(fmt::format(
+            "--corners '{}': expected a corner count of at least 1 after '{}', e.g. {}1000", spec,
+            random ? "random:" : "gauss:", random ? "random:" : "gauss:"));
       std::uint64_t& next = random ? next_random : next_gauss;
       it.offset = next;
       next += it.count;
     } else {
-      return fail(fmt::format("--corners '{}': unknown item '{}'; expected extremes, exhaustive, random:N, gauss:N "
-                              "or interval joined by '+'",
-                              spec, tok));
+      return fail(fmt::format(
+          "--corners '{}': unknown item '{}'; expected extremes, exhaustive, random:N, gauss:N "
+          "or interval joined by '+'",
+          spec, tok));
     }
     if (it.count) {
       if (it.count > sweep_corner_limit || plan.corners + it.count > sweep_corner_limit)
-        return fail(fmt::format("--corners '{}': more than {} corners in one sweep", spec, sweep_corner_limit));
+        return fail(fmt::format("--corners '{}': more than {} corners in one sweep", spec,
+                                sweep_corner_limit));
       it.first = plan.corners;
       plan.corners += it.count;
-      if (it.what == corner::kind::random || it.what == corner::kind::gauss) plan.sampled += it.count;
+      if (it.what == corner::kind::random || it.what == corner::kind::gauss)
+        plan.sampled += it.count;
       plan.items.push_back(it);
     }
     if (plus == std::string_view::npos) break;
@@ -127,9 +135,10 @@ std::optional<sweep_plan> plan_sweep(std::string_view spec, std::uint64_t seed, 
   }
   // `interval` alone is allowed: the min-max run then judges every step.
   if (plan.corners == 0 && !plan.interval)
-    return fail(fmt::format("--corners '{}': no corners to run; add extremes, exhaustive, random:N, gauss:N or "
-                            "interval",
-                            spec));
+    return fail(fmt::format(
+        "--corners '{}': no corners to run; add extremes, exhaustive, random:N, gauss:N or "
+        "interval",
+        spec));
   return plan;
 }
 

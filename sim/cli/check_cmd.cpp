@@ -1,17 +1,17 @@
 // `settle check`: parse, elaborate and lint a design; print its counts and feedback loops.
-#include <algorithm>
-#include <array>
-#include <memory>
-
-#include <CLI/CLI.hpp>
 #include <fmt/format.h>
 #include <fmt/ranges.h>
 #include <spdlog/spdlog.h>
+
+#include <CLI/CLI.hpp>
+#include <algorithm>
+#include <array>
+#include <memory>
 #include <nlohmann/json.hpp>
 
+#include "sim/analysis/graph.hpp"
 #include "sim/cli/command.hpp"
 #include "sim/cli/report_common.hpp"
-#include "sim/analysis/graph.hpp"
 
 namespace settle::cli {
 namespace {
@@ -65,10 +65,12 @@ exit_status run_check(const check_options& o) {
   // no time passes between its changes, so no waveform or period means anything.
   for (const auto& l : loops)
     if (l.zero_delay)
-      spdlog::warn("{}: feedback loop of {} gate{} ({}{}) has zero delay on every gate; give one of them a delay",
-                   d->path, l.size, l.size == 1 ? "" : "s",
-                   fmt::join(l.nets.begin(), l.nets.begin() + std::min(l.nets.size(), shown_members), ", "),
-                   l.nets.size() > shown_members ? ", ..." : "");
+      spdlog::warn(
+          "{}: feedback loop of {} gate{} ({}{}) has zero delay on every gate; give one of them a "
+          "delay",
+          d->path, l.size, l.size == 1 ? "" : "s",
+          fmt::join(l.nets.begin(), l.nets.begin() + std::min(l.nets.size(), shown_members), ", "),
+          l.nets.size() > shown_members ? ", ..." : "");
 
   if (!o.json.empty()) {
     nlohmann::ordered_json j = report_head(d->path);
@@ -85,14 +87,16 @@ exit_status run_check(const check_options& o) {
     for (const auto& l : loops) {
       nlohmann::ordered_json e;
       e["size"] = l.size;
-      e["nets"] = std::vector<std::string>(l.nets.begin(), l.nets.begin() + std::min(l.nets.size(), shown_members));
+      e["nets"] = std::vector<std::string>(l.nets.begin(),
+                                           l.nets.begin() + std::min(l.nets.size(), shown_members));
       e["zero_delay"] = l.zero_delay;
       j["loops"].push_back(std::move(e));
     }
     if (imported) {
       const auto& s = d->source;
-      j["source"] = {{"format", s.format}, {"inputs", s.inputs},         {"outputs", s.outputs}, {"dffs", s.dffs},
-                     {"inverters", s.inverters}, {"buffers", s.buffers}, {"gates", s.gates}};
+      j["source"] = {{"format", s.format}, {"inputs", s.inputs},       {"outputs", s.outputs},
+                     {"dffs", s.dffs},     {"inverters", s.inverters}, {"buffers", s.buffers},
+                     {"gates", s.gates}};
     }
     if (!write_output(
             o.json, j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n"))
@@ -104,9 +108,12 @@ exit_status run_check(const check_options& o) {
   out += fmt::format("blocks     {}\ninstances  {}\n", n.blocks, n.instances);
   std::string kinds;
   for (int k = 0; k < gate_kind_count; ++k)
-    if (by_kind[k]) kinds += fmt::format("{}{} {}", kinds.empty() ? "" : ", ", kind_name(static_cast<gate_kind>(k)), by_kind[k]);
+    if (by_kind[k])
+      kinds += fmt::format("{}{} {}", kinds.empty() ? "" : ", ",
+                           kind_name(static_cast<gate_kind>(k)), by_kind[k]);
   out += fmt::format("gates      {}{}\n", n.gate_count(), kinds.empty() ? "" : "  (" + kinds + ")");
-  out += fmt::format("nets       {}\ninputs     {}\noutputs    {}\n", nets, n.inputs.size(), n.outputs.size());
+  out += fmt::format("nets       {}\ninputs     {}\noutputs    {}\n", nets, n.inputs.size(),
+                     n.outputs.size());
   if (loops.empty()) {
     out += "loops      none\n";
   } else {
@@ -115,14 +122,16 @@ exit_status run_check(const check_options& o) {
       std::string members;
       for (std::size_t i = 0; i < l.nets.size() && i < shown_members; ++i)
         members += (i ? ", " : "") + l.nets[i];
-      if (l.nets.size() > shown_members) members += fmt::format(", ... ({} more)", l.nets.size() - shown_members);
+      if (l.nets.size() > shown_members)
+        members += fmt::format(", ... ({} more)", l.nets.size() - shown_members);
       out += fmt::format("  {:>5} gate{}: {}\n", l.size, l.size == 1 ? " " : "s", members);
     }
   }
   if (imported) {
     const auto& s = d->source;
-    out += fmt::format("source     {}: inputs {}, outputs {}, dffs {}, inverters {}, buffers {}, gates {}\n", s.format,
-                       s.inputs, s.outputs, s.dffs, s.inverters, s.buffers, s.gates);
+    out += fmt::format(
+        "source     {}: inputs {}, outputs {}, dffs {}, inverters {}, buffers {}, gates {}\n",
+        s.format, s.inputs, s.outputs, s.dffs, s.inverters, s.buffers, s.gates);
   }
   std::fputs(out.c_str(), stdout);
   return exit_status::ok;
@@ -130,7 +139,8 @@ exit_status run_check(const check_options& o) {
 
 void add_check(CLI::App& app, exit_status& status) {
   auto o = std::make_shared<check_options>();
-  auto* cmd = app.add_subcommand("check", "parse, elaborate and lint a design; print counts and feedback loops");
+  auto* cmd = app.add_subcommand(
+      "check", "parse, elaborate and lint a design; print counts and feedback loops");
   add_design_options(*cmd, o->design);
   check_output_path(
       cmd->add_option("--json", o->json, "write the counts as JSON to PATH ('-' for stdout)"));

@@ -2,17 +2,16 @@
 #include "sim/cli/command.hpp"
 
 #include <fcntl.h>
+#include <fmt/format.h>
+#include <spdlog/spdlog.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include <CLI/CLI.hpp>
 #include <algorithm>
 #include <cerrno>
 #include <cstdlib>
 #include <cstring>
-
-#include <CLI/CLI.hpp>
-#include <fmt/format.h>
-#include <spdlog/spdlog.h>
 
 #include "sim/model/time_parse.hpp"
 
@@ -48,8 +47,10 @@ void print_diagnostics(const diagnostics& diags, std::size_t max_errors, std::si
     if (shown) out += format_diagnostic(item);
     if (out.size() > 1 << 16) std::fputs(out.c_str(), stderr), out.clear();
   }
-  if (errors > max_errors) out += fmt::format("settle: {} more errors not shown\n", errors - max_errors);
-  if (warnings > max_warnings) out += fmt::format("settle: {} more warnings not shown\n", warnings - max_warnings);
+  if (errors > max_errors)
+    out += fmt::format("settle: {} more errors not shown\n", errors - max_errors);
+  if (warnings > max_warnings)
+    out += fmt::format("settle: {} more warnings not shown\n", warnings - max_warnings);
   std::fputs(out.c_str(), stderr);
 }
 
@@ -85,14 +86,17 @@ CLI::Validator file_name(const char* what) {
 }
 
 void add_design_options(CLI::App& cmd, design_options& o) {
-  cmd.add_option("DESIGN", o.path, "design file (.settle, .bench for ISCAS netlists, .v for structural Verilog)")
+  cmd.add_option("DESIGN", o.path,
+                 "design file (.settle, .bench for ISCAS netlists, .v for structural Verilog)")
       ->required()
       ->check(file_name("design file"));
   cmd.add_option("--stim", o.stim, "file with one stimulus { } block replacing the design's own")
       ->check(file_name("--stim file"));
-  cmd.add_option("--format", o.format, "input format: auto (by extension), settle, bench or verilog")
+  cmd.add_option("--format", o.format,
+                 "input format: auto (by extension), settle, bench or verilog")
       ->check(one_of({"auto", "settle", "bench", "verilog"}));
-  cmd.add_option("--top", o.top, "Verilog: the top module (default: the one no other module instantiates)");
+  cmd.add_option("--top", o.top,
+                 "Verilog: the top module (default: the one no other module instantiates)");
   cmd.add_option("--dff", o.dff, "imported flip-flops: gates (six NAND gates) or primitive")
       ->check(one_of({"gates", "primitive"}));
   cmd.add_option("--delay", o.delay, "delay of imported gates: MIN..MAX (e.g. 40ps..60ps)");
@@ -137,12 +141,13 @@ std::optional<design> load(const design_options& o, bool empty_ok) {
   return d;
 }
 
-std::string replay_command(const design_options& o, const std::string& corner, const std::string& horizon,
-                           std::uint64_t max_events, bool allow_x) {
+std::string replay_command(const design_options& o, const std::string& corner,
+                           const std::string& horizon, std::uint64_t max_events, bool allow_x) {
   auto word = [](const std::string& w) {
     const bool plain = !w.empty() && w[0] != '#' &&
-                       w.find_first_not_of("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz"
-                                           "0123456789_./:#@=+,-") == std::string::npos;
+                       w.find_first_not_of(
+                           "ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz"
+                           "0123456789_./:#@=+,-") == std::string::npos;
     if (plain) return w;
     std::string q = "'";
     for (char c : w) q += c == '\'' ? std::string("'\\''") : std::string(1, c);

@@ -3,9 +3,9 @@
 
 #include <cstdio>
 #include <optional>
-#include <vector>
 #include <string>
 #include <string_view>
+#include <vector>
 
 #include "parser/load.hpp"
 #include "sim/cli/outputs.hpp"
@@ -13,7 +13,7 @@
 namespace CLI {
 class App;
 class Validator;
-}
+}  // namespace CLI
 
 namespace settle::cli {
 
@@ -54,8 +54,9 @@ CLI::Validator one_of(std::vector<std::string> words);
 /// The `settle run` command line that replays `corner` of this design (words
 /// the shell would change are single-quoted); empty `horizon` and zero
 /// `max_events` are left out; `allow_x` adds --allow-x.
-std::string replay_command(const design_options& o, const std::string& corner, const std::string& horizon = "",
-                           std::uint64_t max_events = 0, bool allow_x = false);
+std::string replay_command(const design_options& o, const std::string& corner,
+                           const std::string& horizon = "", std::uint64_t max_events = 0,
+                           bool allow_x = false);
 
 /// --allow-x on run, sweep and margin: a net at x at the end of a step is no finding.
 void add_allow_x_flag(CLI::App& cmd, bool& allow_x);
@@ -63,7 +64,8 @@ void add_allow_x_flag(CLI::App& cmd, bool& allow_x);
 /// Prints diagnostics on stderr: at most `max_errors` errors and
 /// `max_warnings` warnings (with their notes), then one line per kind saying
 /// how many more were not shown ("settle: N more warnings not shown").
-void print_diagnostics(const diagnostics& diags, std::size_t max_errors = 50, std::size_t max_warnings = 20);
+void print_diagnostics(const diagnostics& diags, std::size_t max_errors = 50,
+                       std::size_t max_warnings = 20);
 
 /// The files a design's options read, for check_paths: the design file and
 /// the --stim file when there is one.

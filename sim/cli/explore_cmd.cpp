@@ -1,20 +1,20 @@
 // `settle explore`: every interleaving under unbounded gate delays, and ternary simulation.
+#include <fmt/format.h>
+#include <spdlog/spdlog.h>
+
+#include <CLI/CLI.hpp>
 #include <chrono>
 #include <cstdio>
 #include <fstream>
-#include <optional>
 #include <memory>
-
-#include <CLI/CLI.hpp>
-#include <fmt/format.h>
 #include <nlohmann/json.hpp>
-#include <spdlog/spdlog.h>
+#include <optional>
 
+#include "sim/analysis/explore.hpp"
 #include "sim/cli/command.hpp"
 #include "sim/cli/report_common.hpp"
-#include "sim/analysis/explore.hpp"
-#include "waves/html.hpp"
 #include "waves/dot.hpp"
+#include "waves/html.hpp"
 
 namespace settle::cli {
 namespace {
@@ -43,7 +43,8 @@ std::string result_json(const design& d, const explore_result& r, double wall) {
   const netlist& n = d.nets;
   nlohmann::ordered_json j = report_head(d.path);
   j["model"] = model_name(r.model);
-  auto& order = j["state_order"] = nlohmann::ordered_json::array();  // the gates behind each "state" character
+  auto& order = j["state_order"] =
+      nlohmann::ordered_json::array();  // the gates behind each "state" character
   for (gate_id g = 0; g < n.gate_count(); ++g) order.push_back(n.gate_name(g));
   j["notes"] = r.notes;
   auto& steps = j["steps"] = nlohmann::ordered_json::array();
@@ -57,9 +58,11 @@ std::string result_json(const design& d, const explore_result& r, double wall) {
     auto& stable = js["stable"] = nlohmann::ordered_json::array();
     for (const auto& st : s.stable) {
       nlohmann::ordered_json e;
-      for (net_id net : r.reported) e["values"][n.net_name[net]] = logic_text(stable_value(n, s, st, net));
+      for (net_id net : r.reported)
+        e["values"][n.net_name[net]] = logic_text(stable_value(n, s, st, net));
       e["state"] = state_text(st.gates);
-      auto& path = e["path"] = nlohmann::ordered_json::array();  // gates fired together, from a start state
+      auto& path = e["path"] =
+          nlohmann::ordered_json::array();  // gates fired together, from a start state
       for (const auto& fired : st.path) {
         auto& f = path.emplace_back(nlohmann::ordered_json::array());
         for (gate_id g : fired) f.push_back(n.gate_name(g));
@@ -76,8 +79,11 @@ std::string result_json(const design& d, const explore_result& r, double wall) {
     for (net_id net : r.reported) js["ternary"][n.net_name[net]] = logic_text(s.ternary[net]);
     if (!js.contains("ternary")) js["ternary"] = nlohmann::ordered_json::object();
     if (s.complete)
-      js["sccs"] = {{"count", s.sccs}, {"nontrivial", s.nontrivial_sccs}, {"terminal", s.terminal_sccs},
-                    {"oscillating", s.oscillating_sccs}, {"largest", s.largest_scc}};
+      js["sccs"] = {{"count", s.sccs},
+                    {"nontrivial", s.nontrivial_sccs},
+                    {"terminal", s.terminal_sccs},
+                    {"oscillating", s.oscillating_sccs},
+                    {"largest", s.largest_scc}};
     js["complete"] = s.complete;
     js["exact"] = s.exact;
     if (!s.stop.empty()) js["stopped"] = s.stop;
@@ -104,14 +110,17 @@ std::string result_json(const design& d, const explore_result& r, double wall) {
   return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
 }
 
-std::string yes_no(answer a, const char* yes) { return a == answer::unknown ? "?" : a == answer::yes ? yes : "no"; }
+std::string yes_no(answer a, const char* yes) {
+  return a == answer::unknown ? "?" : a == answer::yes ? yes : "no";
+}
 
 std::string table(const design& d, const explore_result& r, double wall, bool colour) {
   const netlist& n = d.nets;
-  std::string t = fmt::format("settle explore {} (model {}, {} gates)\n", d.path, model_name(r.model), n.gate_count());
+  std::string t = fmt::format("settle explore {} (model {}, {} gates)\n", d.path,
+                              model_name(r.model), n.gate_count());
   for (const auto& note : r.notes) t += fmt::format("  note: {}\n", note);
-  t += fmt::format("{:>4}  {:<28} {:>9} {:>6}  {:<12} {:<12} {:<16} {}\n", "step", "inputs", "states", "stable",
-                   "race", "oscillation", "hazards", "ternary x");
+  t += fmt::format("{:>4}  {:<28} {:>9} {:>6}  {:<12} {:<12} {:<16} {}\n", "step", "inputs",
+                   "states", "stable", "race", "oscillation", "hazards", "ternary x");
   for (const auto& s : r.steps) {
     std::string label = s.label.size() > 28 ? s.label.substr(0, 25) + "..." : s.label;
     // A critical race is a finding: marked in capitals (mark), like every finding.
@@ -132,8 +141,8 @@ std::string table(const design& d, const explore_result& r, double wall, bool co
       if (s.ternary[net] == logic::x) tx += (tx.empty() ? "" : ",") + n.net_name[net];
     std::string states = s.explored ? fmt::format("{}{}", s.states, s.complete ? "" : "+") : "-";
     std::string stable = s.exact ? std::to_string(s.stable.size()) : "?";
-    t += fmt::format("{:>4}  {:<28} {:>9} {:>6}  {:<12} {:<12} {:<16} {}\n", s.index, label, states, stable, race,
-                     osc, hz.empty() ? "-" : hz, tx.empty() ? "-" : tx);
+    t += fmt::format("{:>4}  {:<28} {:>9} {:>6}  {:<12} {:<12} {:<16} {}\n", s.index, label, states,
+                     stable, race, osc, hz.empty() ? "-" : hz, tx.empty() ? "-" : tx);
     const std::size_t shown = std::min<std::size_t>(s.stable.size(), 6);
     for (std::size_t i = 0; i < shown && s.stable.size() > 1; ++i) {
       std::string v;
@@ -141,14 +150,17 @@ std::string table(const design& d, const explore_result& r, double wall, bool co
         v += fmt::format(" {}={}", n.net_name[net], to_char(stable_value(n, s, s.stable[i], net)));
       t += fmt::format("        stable {}:{}\n", i + 1, v);
     }
-    if (s.stable.size() > shown) t += fmt::format("        ... and {} more stable states\n", s.stable.size() - shown);
-    if (!s.stop.empty() && s.stop != "ternary model") t += fmt::format("        stopped: {}\n", s.stop);
+    if (s.stable.size() > shown)
+      t += fmt::format("        ... and {} more stable states\n", s.stable.size() - shown);
+    if (!s.stop.empty() && s.stop != "ternary model")
+      t += fmt::format("        stopped: {}\n", s.stop);
     for (const auto& e : s.expects) {
       if (e.pass && e.checked) continue;
-      const std::string what = e.spec->what == expectation::kind::value
-                                   ? fmt::format("{} = {}", e.spec->ref.empty() ? n.net_name[e.spec->net] : e.spec->ref,
-                                                 to_char(e.spec->want))
-                                   : expect_kind_word(e.spec->what);
+      const std::string what =
+          e.spec->what == expectation::kind::value
+              ? fmt::format("{} = {}", e.spec->ref.empty() ? n.net_name[e.spec->net] : e.spec->ref,
+                            to_char(e.spec->want))
+              : expect_kind_word(e.spec->what);
       t += fmt::format("        expect {}: {}{}\n", what,
                        !e.checked ? "not checked" : mark("fail", false, colour),
                        e.detail.empty() ? "" : " (" + e.detail + ")");
@@ -196,8 +208,9 @@ void report_explore_error(const design_options& o, const std::string& design_pat
 
 exit_status run_explore(const explore_cli_options& o) {
   explore_options eo;
-  eo.model = o.model == "single" ? explore_model::single : o.model == "ternary" ? explore_model::ternary
-                                                                                 : explore_model::gmw;
+  eo.model = o.model == "single"    ? explore_model::single
+             : o.model == "ternary" ? explore_model::ternary
+                                    : explore_model::gmw;
   eo.max_states = o.max_states;
   eo.max_bytes = o.max_memory_mib << 20;
   eo.keep_graphs = !o.dot.empty() || !o.html.empty();
@@ -215,7 +228,9 @@ exit_status run_explore(const explore_cli_options& o) {
   if (!d->stim.rules.empty()) {
     // Exploration applies each step's inputs and explores what follows; an
     // environment that answers the circuit is not part of its model.
-    spdlog::error("explore does not take reaction rules ('when'); use run or sweep for a closed-loop stimulus");
+    spdlog::error(
+        "explore does not take reaction rules ('when'); use run or sweep for a closed-loop "
+        "stimulus");
     return exit_status::error;
   }
   const auto t0 = std::chrono::steady_clock::now();
@@ -227,8 +242,9 @@ exit_status run_explore(const explore_cli_options& o) {
   }
   const double wall = seconds_since(t0);
   if (!o.dot.empty() && kept_states(*r) > dot_state_limit) {
-    spdlog::error("--dot: the explored graphs hold {} states; DOT output is for designs up to {} states",
-                  kept_states(*r), dot_state_limit);
+    spdlog::error(
+        "--dot: the explored graphs hold {} states; DOT output is for designs up to {} states",
+        kept_states(*r), dot_state_limit);
     return exit_status::error;
   }
   output_set outs;  // all or nothing
@@ -246,7 +262,8 @@ exit_status run_explore(const explore_cli_options& o) {
 
 void add_explore(CLI::App& app, exit_status& status) {
   auto o = std::make_shared<explore_cli_options>();
-  auto* cmd = app.add_subcommand("explore", "every interleaving under unbounded gate delays, and ternary simulation");
+  auto* cmd = app.add_subcommand(
+      "explore", "every interleaving under unbounded gate delays, and ternary simulation");
   add_design_options(*cmd, o->design);
   cmd->add_option("--model", o->model,
                   "gmw (any subset of excited gates fires, default), single, or ternary")

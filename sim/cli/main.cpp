@@ -1,12 +1,13 @@
-// The settle executable: installs the log sink, builds the command table, maps outcomes to exit statuses.
-#include <cstdio>
-#include <exception>
-#include <string>
-
-#include <CLI/CLI.hpp>
+// The settle executable: installs the log sink, builds the command table, maps outcomes to exit
+// statuses.
 #include <fmt/format.h>
 #include <spdlog/sinks/stdout_color_sinks.h>
 #include <spdlog/spdlog.h>
+
+#include <CLI/CLI.hpp>
+#include <cstdio>
+#include <exception>
+#include <string>
 
 #include "sim/cli/command.hpp"
 #include "sim/cli/interrupt.hpp"
@@ -20,7 +21,8 @@ namespace {
 // Logs go to stderr as "settle: warning: ...", coloured only on a terminal
 // and never when NO_COLOR is set.
 void install_logger() {
-  const auto mode = settle::cli::use_colour(2) ? spdlog::color_mode::always : spdlog::color_mode::never;
+  const auto mode =
+      settle::cli::use_colour(2) ? spdlog::color_mode::always : spdlog::color_mode::never;
   auto sink = std::make_shared<spdlog::sinks::stderr_color_sink_mt>(mode);
   auto logger = std::make_shared<spdlog::logger>("settle", sink);
   logger->set_pattern("%n: %^%l%$: %v");
@@ -81,8 +83,10 @@ int main(int argc, char** argv) {
   using settle::cli::exit_status;
   install_logger();
   settle::cli::install_exit_on_interrupt();
-  CLI::App app{"settle: event-driven timing simulation of gate-level asynchronous designs", "settle"};
-  app.set_version_flag("--version", std::string("settle ") + SETTLE_VERSION, "print the version and exit");
+  CLI::App app{"settle: event-driven timing simulation of gate-level asynchronous designs",
+               "settle"};
+  app.set_version_flag("--version", std::string("settle ") + SETTLE_VERSION,
+                       "print the version and exit");
   app.require_subcommand(1);
   app.fallthrough(false);
   exit_status status = exit_status::ok;

@@ -1,25 +1,25 @@
-// `settle margin`: the delay-spread margin of every step, settle-time margins, baselines and JUnit XML.
+// `settle margin`: the delay-spread margin of every step, settle-time margins, baselines and JUnit
+// XML.
+#include <fmt/color.h>
+#include <fmt/format.h>
+#include <spdlog/spdlog.h>
 #include <unistd.h>
 
+#include <CLI/CLI.hpp>
 #include <cerrno>
 #include <cstring>
 #include <filesystem>
 #include <fstream>
 #include <memory>
-#include <sstream>
-
-#include <CLI/CLI.hpp>
-#include <fmt/color.h>
-#include <fmt/format.h>
 #include <nlohmann/json.hpp>
-#include <spdlog/spdlog.h>
+#include <sstream>
 
 #include "sim/analysis/baseline.hpp"
 #include "sim/analysis/baseline_store.hpp"
+#include "sim/analysis/margin.hpp"
 #include "sim/cli/command.hpp"
 #include "sim/cli/interrupt.hpp"
 #include "sim/cli/report_common.hpp"
-#include "sim/analysis/margin.hpp"
 #include "sim/model/time_parse.hpp"
 #include "waves/html.hpp"
 #include "waves/junit.hpp"
@@ -46,7 +46,9 @@ std::string replay(const margin_cli_options& o, const std::string& corner) {
   return replay_command(o.design, corner, o.horizon, 0, o.allow_x);
 }
 
-std::string pct_words(double w, bool at_least) { return (at_least ? ">= " : "") + spread_percent(w); }
+std::string pct_words(double w, bool at_least) {
+  return (at_least ? ">= " : "") + spread_percent(w);
+}
 
 // What became of the baseline: compared, written, or why not.
 struct baseline_outcome {
@@ -79,7 +81,9 @@ json failure_json(const design& d, const margin_cli_options& o, const margin_fai
     json c = culprit_json(d.nets, *f.culprits);
     j["culprits"] = c["culprits"];
     j["paths"] = c["paths"];
-    j["race"] = {{"corners", c["corners"]}, {"differing_gates", c["differing_gates"]}, {"tests", c["tests"]},
+    j["race"] = {{"corners", c["corners"]},
+                 {"differing_gates", c["differing_gates"]},
+                 {"tests", c["tests"]},
                  {"minimal", c["minimal"]}};
   }
   return j;
@@ -110,8 +114,8 @@ json baseline_json(const std::string& file, const baseline_outcome& out,
   return j;
 }
 
-std::string result_json(const design& d, const margin_cli_options& o, const margin_result& r, const json& base,
-                        bool pass) {
+std::string result_json(const design& d, const margin_cli_options& o, const margin_result& r,
+                        const json& base, bool pass) {
   json j = report_head(d.path);
   j["spec"] = o.corners;
   j["seed"] = o.seed;
@@ -127,9 +131,11 @@ std::string result_json(const design& d, const margin_cli_options& o, const marg
   j["culprit_runs"] = r.culprit_runs;
   j["wall_s"] = r.wall_s;
   j["interrupted"] = r.stopped != sweep_stop::none;
-  if (r.stopped != sweep_stop::none) j["stop_reason"] = r.stopped == sweep_stop::timeout ? "timeout" : "signal";
+  if (r.stopped != sweep_stop::none)
+    j["stop_reason"] = r.stopped == sweep_stop::timeout ? "timeout" : "signal";
   j["probes"] = json::array();
-  for (const auto& p : r.probes) j["probes"].push_back({{"spread_pct", 100.0 * p.spread}, {"pass", p.pass}});
+  for (const auto& p : r.probes)
+    j["probes"].push_back({{"spread_pct", 100.0 * p.spread}, {"pass", p.pass}});
   if (r.failure) j["failure"] = failure_json(d, o, *r.failure);
   j["steps"] = json::array();
   for (const auto& s : r.steps) {
@@ -154,7 +160,8 @@ std::string result_json(const design& d, const margin_cli_options& o, const marg
   }
   j["settle_within"] = json::array();
   for (const auto& w : r.within) {
-    json e = {{"step", w.step}, {"budget_fs", w.budget}, {"worst_fs", w.worst}, {"worst_corner", w.worst_corner},
+    json e = {{"step", w.step},           {"budget_fs", w.budget},
+              {"worst_fs", w.worst},      {"worst_corner", w.worst_corner},
               {"margin_fs", w.margin_fs}, {"unsettled", w.unsettled}};
     if (!w.worst_corner.empty()) e["replay"] = replay(o, w.worst_corner);
     j["settle_within"].push_back(std::move(e));
@@ -164,20 +171,25 @@ std::string result_json(const design& d, const margin_cli_options& o, const marg
   return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
 }
 
-std::string failure_text(const design& d, const margin_cli_options& o, const margin_failure& f, const std::string& in) {
+std::string failure_text(const design& d, const margin_cli_options& o, const margin_failure& f,
+                         const std::string& in) {
   std::string what;
   if (f.property && *f.property < d.stim.properties.size())
-    what = fmt::format("{}: violated in {} of {} corners", d.stim.properties[*f.property].text, f.failing, f.corners);
+    what = fmt::format("{}: violated in {} of {} corners", d.stim.properties[*f.property].text,
+                       f.failing, f.corners);
   else if (f.expect_index && f.step <= d.stim.steps.size())
-    what = fmt::format("{}: fails in {} of {} corners", expectation_words(d.nets, d.stim.steps[f.step - 1].expects[*f.expect_index]),
+    what = fmt::format("{}: fails in {} of {} corners",
+                       expectation_words(d.nets, d.stim.steps[f.step - 1].expects[*f.expect_index]),
                        f.failing, f.corners);
   else
     what = fmt::format("{} ({} of {} corners off the main outcome)",
                        mark(verdict_name(f.verdict), false, false), f.failing, f.corners);
-  std::string out = fmt::format("{}step {}, {}{}\n", in, f.step, what, f.detail.empty() ? "" : "; " + f.detail);
+  std::string out =
+      fmt::format("{}step {}, {}{}\n", in, f.step, what, f.detail.empty() ? "" : "; " + f.detail);
   out += fmt::format("{}  witness  {}\n{}  replay   {}\n", in, f.witness, in, replay(o, f.witness));
   if (!f.other_witness.empty())
-    out += fmt::format("{}  other    {}\n{}  replay   {}\n", in, f.other_witness, in, replay(o, f.other_witness));
+    out += fmt::format("{}  other    {}\n{}  replay   {}\n", in, f.other_witness, in,
+                       replay(o, f.other_witness));
   if (f.culprits) out += culprit_text(d.nets, *f.culprits, in + "  ");
   return out;
 }
@@ -188,21 +200,23 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
   // Verdict words are marked (mark); a margin figure is coloured only.
   auto paint = [colour](std::string text, bool good) {
     if (!colour) return text;
-    return fmt::format(fmt::fg(good ? fmt::terminal_color::green : fmt::terminal_color::red) | fmt::emphasis::bold,
-                       "{}", text);
+    return fmt::format(
+        fmt::fg(good ? fmt::terminal_color::green : fmt::terminal_color::red) | fmt::emphasis::bold,
+        "{}", text);
   };
   std::string out = fmt::format("design   {}\n", d.path);
-  out += fmt::format("corners  {} per probe ({}, seed {}), {} probes, {} corner runs", r.corners_per_probe, o.corners,
-                     o.seed, r.probes.size(), r.corner_runs);
+  out += fmt::format("corners  {} per probe ({}, seed {}), {} probes, {} corner runs",
+                     r.corners_per_probe, o.corners, o.seed, r.probes.size(), r.corner_runs);
   if (r.culprit_runs) out += fmt::format(" + {} culprit runs", r.culprit_runs);
   out += fmt::format(", {:.2f} s\n", r.wall_s);
   out += fmt::format("margin   {} of the written delay spread (searched 0%..{}, resolution {})\n",
-                     paint(pct_words(r.margin, r.at_ceiling), r.margin >= 1.0 || r.at_ceiling), spread_percent(r.ceiling),
-                     spread_percent(r.resolution));
+                     paint(pct_words(r.margin, r.at_ceiling), r.margin >= 1.0 || r.at_ceiling),
+                     spread_percent(r.ceiling), spread_percent(r.resolution));
   out += fmt::format("         {}\n", r.confidence_note());
   if (r.fails_at_zero) out += "         fails with every gate at its typical delay\n";
   if (r.failure) {
-    out += fmt::format("\nfirst failure just above the margin, at {}:\n", spread_percent(r.failure->spread));
+    out += fmt::format("\nfirst failure just above the margin, at {}:\n",
+                       spread_percent(r.failure->spread));
     out += failure_text(d, o, *r.failure, "  ");
   }
   out += fmt::format("\n  {:>3}  {:<10}  {}\n", "#", "margin", "step");
@@ -210,7 +224,8 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
     out += fmt::format("  {:>3}  {:<10}  {}\n", s.index, pct_words(s.margin, s.at_ceiling),
                        s.label.empty() ? "(no input change)" : s.label);
   for (const auto& p : r.properties)
-    out += fmt::format("  {:>3}  {:<10}  {}\n", "", pct_words(p.margin, p.at_ceiling), d.stim.properties[p.index].text);
+    out += fmt::format("  {:>3}  {:<10}  {}\n", "", pct_words(p.margin, p.at_ceiling),
+                       d.stim.properties[p.index].text);
   for (const auto& s : r.steps)
     if (s.failure && r.failure && (r.failure->property || s.index != r.failure->step)) {
       out += fmt::format("\nstep {} fails at {}:\n", s.index, spread_percent(s.failure->spread));
@@ -227,10 +242,11 @@ std::string summary(const design& d, const margin_cli_options& o, const margin_r
     for (const auto& w : r.within) {
       std::string m = w.margin_fs >= 0 ? format_time(static_cast<time_fs>(w.margin_fs))
                                        : "-" + format_time(static_cast<time_fs>(-w.margin_fs));
-      out += fmt::format("  step {}  budget {}  worst {} at {}  margin {}{}\n", w.step, format_time(w.budget),
-                         format_time(w.worst), w.worst_corner.empty() ? "-" : w.worst_corner,
-                         paint(m, w.margin_fs >= 0 && !w.unsettled),
-                         w.unsettled ? fmt::format("  ({} corners do not settle)", w.unsettled) : "");
+      out += fmt::format(
+          "  step {}  budget {}  worst {} at {}  margin {}{}\n", w.step, format_time(w.budget),
+          format_time(w.worst), w.worst_corner.empty() ? "-" : w.worst_corner,
+          paint(m, w.margin_fs >= 0 && !w.unsettled),
+          w.unsettled ? fmt::format("  ({} corners do not settle)", w.unsettled) : "");
     }
   }
   if (cmp || bo.updated || !bo.not_updated.empty()) {
@@ -311,7 +327,8 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
     return exit_status::error;
   }
   if (o.baseline == "-") {
-    spdlog::error("--baseline -: a baseline is a file that is read and rewritten in place; give its path");
+    spdlog::error(
+        "--baseline -: a baseline is a file that is read and rewritten in place; give its path");
     return exit_status::error;
   }
   if (!search_options_valid(o)) return exit_status::error;
@@ -364,11 +381,14 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
     // A probe in flight and the sweep kept at the written spread hold per-corner results.
     auto plan = plan_sweep(o.corners, o.seed, delay_variables(*d), &err);
     const std::size_t steps = d->stim.steps.empty() ? 1 : d->stim.steps.size();
-    if (plan && !fits_memory(*plan, steps, 2, o.max_memory_mib, d->stim.gauges.size())) return exit_status::error;
+    if (plan && !fits_memory(*plan, steps, 2, o.max_memory_mib, d->stim.gauges.size()))
+      return exit_status::error;
   }
   if (!o.quiet && ::isatty(2) == 1)
     mo.progress = [](double w, std::uint64_t corners, bool pass) {
-      std::fputs(fmt::format("\r\033[K  spread {}: {} corners, {}", spread_percent(w), corners, pass ? "pass" : "fails").c_str(),
+      std::fputs(fmt::format("\r\033[K  spread {}: {} corners, {}", spread_percent(w), corners,
+                             pass ? "pass" : "fails")
+                     .c_str(),
                  stderr);
       std::fflush(stderr);
     };
@@ -388,9 +408,11 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   }
   const bool stopped = r->stopped != sweep_stop::none;
   if (stopped)
-    spdlog::error("margin search {}: the margins reported are those the finished probes bracketed (lower bounds); "
-                  "no baseline is compared or written",
-                  r->stopped == sweep_stop::timeout ? "stopped by --timeout" : "interrupted");
+    spdlog::error(
+        "margin search {}: the margins reported are those the finished probes bracketed (lower "
+        "bounds); "
+        "no baseline is compared or written",
+        r->stopped == sweep_stop::timeout ? "stopped by --timeout" : "interrupted");
 
   const baseline_entry now = baseline_of(*d, o.design.path, o.design.stim, mo, *r);
   std::optional<baseline_comparison> cmp;
@@ -401,7 +423,8 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
     } else if (old) {
       cmp = compare_baseline(*old, now, o.tolerance);
     } else if (!o.update_baseline) {
-      spdlog::error("baseline '{}' has no entry for {}{}; add one with --update-baseline", o.baseline, o.design.path,
+      spdlog::error("baseline '{}' has no entry for {}{}; add one with --update-baseline",
+                    o.baseline, o.design.path,
                     o.design.stim.empty() ? "" : " with --stim " + o.design.stim);
       return exit_status::error;
     }
@@ -446,16 +469,20 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   // The reports are written to temporary files and put in place together, all or nothing. The
   // baseline, updated under its own lock just above, is already in place by then.
   output_set outs;
-  if (!o.json.empty() && !outs.put(o.json, result_json(*d, o, *r, base, pass))) return exit_status::error;
+  if (!o.json.empty() && !outs.put(o.json, result_json(*d, o, *r, base, pass)))
+    return exit_status::error;
   if (!o.junit.empty()) {
     std::vector<std::pair<std::string, std::string>> shrank;
     if (regressed)
       for (const auto& c : cmp->changes)
         if (c.regression)
-          shrank.emplace_back(c.what, fmt::format("{} margin fell from {:g}% to {:g}% ({:.2f} points, tolerance {:g})",
-                                                  c.what, c.before_pct, c.after_pct, c.before_pct - c.after_pct,
-                                                  o.tolerance));
-    const auto suite = junit_of_margin(*d, *r, [&](const std::string& c) { return replay(o, c); }, shrank);
+          shrank.emplace_back(
+              c.what,
+              fmt::format("{} margin fell from {:g}% to {:g}% ({:.2f} points, tolerance {:g})",
+                          c.what, c.before_pct, c.after_pct, c.before_pct - c.after_pct,
+                          o.tolerance));
+    const auto suite = junit_of_margin(
+        *d, *r, [&](const std::string& c) { return replay(o, c); }, shrank);
     if (!outs.put(o.junit, junit_xml({suite}))) return exit_status::error;
   }
   if (!o.html.empty() &&
@@ -474,11 +501,13 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
 
 void add_margin(CLI::App& app, exit_status& status) {
   auto o = std::make_shared<margin_cli_options>();
-  auto* cmd = app.add_subcommand("margin", "find how far every gate's delay range can widen before a step fails");
+  auto* cmd = app.add_subcommand(
+      "margin", "find how far every gate's delay range can widen before a step fails");
   add_design_options(*cmd, o->design);
-  cmd->add_option("--corners", o->corners,
-                  "corners run at every probed spread: extremes, exhaustive, random:N, gauss:N joined by '+' "
-                  "(default extremes+random:200)");
+  cmd->add_option(
+      "--corners", o->corners,
+      "corners run at every probed spread: extremes, exhaustive, random:N, gauss:N joined by '+' "
+      "(default extremes+random:200)");
   check_whole_number(
       cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)"), 0,
       UINT64_MAX, "the seed");
@@ -499,12 +528,16 @@ void add_margin(CLI::App& app, exit_status& status) {
             return {};
           },
           "1..4096"));
-  cmd->add_option("--resolution", o->resolution, "stop bisecting when the bracket is PCT percentage points wide (default 1)");
+  cmd->add_option("--resolution", o->resolution,
+                  "stop bisecting when the bracket is PCT percentage points wide (default 1)");
   cmd->add_option("--up-to", o->ceiling,
-                  "largest spread searched, in percent of the written one (default 100; a pass there reports >= PCT)");
+                  "largest spread searched, in percent of the written one (default 100; a pass "
+                  "there reports >= PCT)");
   add_json_option(*cmd, o->json);
-  cmd->add_option("--baseline", o->baseline, "compare the margins with this baseline file (exit 1 when one shrank)");
-  cmd->add_flag("--update-baseline", o->update_baseline, "write this run's margins into the --baseline file instead");
+  cmd->add_option("--baseline", o->baseline,
+                  "compare the margins with this baseline file (exit 1 when one shrank)");
+  cmd->add_flag("--update-baseline", o->update_baseline,
+                "write this run's margins into the --baseline file instead");
   check_number_at_least(
       cmd->add_option("--tolerance", o->tolerance,
                       "percentage points a margin may fall before it counts (default 2)"),
@@ -520,8 +553,10 @@ void add_margin(CLI::App& app, exit_status& status) {
   check_output_path(cmd->add_option(
       "--html", o->html,
       "write a self-contained HTML report (margins, culprits, witness waveforms) to PATH"));
-  cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest written gate delay)");
-  cmd->add_flag("--no-culprits", o->no_culprits, "skip the search for the gates that decide a race");
+  cmd->add_option("--horizon", o->horizon,
+                  "time limit per step (default 10,000 x the largest written gate delay)");
+  cmd->add_flag("--no-culprits", o->no_culprits,
+                "skip the search for the gates that decide a race");
   add_quiet_flag(*cmd, o->quiet);
   cmd->callback([o, &status] { status = run_margin_cmd(*o); });
 }

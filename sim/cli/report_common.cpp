@@ -22,13 +22,20 @@ std::string logic_text(logic v) { return std::string(1, to_char(v)); }
 
 const char* expect_kind_word(expectation::kind k) {
   switch (k) {
-    case expectation::kind::value: return "value";
-    case expectation::kind::stable: return "stable";
-    case expectation::kind::oscillating: return "oscillating";
-    case expectation::kind::within: return "within";
-    case expectation::kind::no_glitch: return "no_glitch";
-    case expectation::kind::deterministic: return "deterministic";
-    case expectation::kind::gauge: return "gauge";
+    case expectation::kind::value:
+      return "value";
+    case expectation::kind::stable:
+      return "stable";
+    case expectation::kind::oscillating:
+      return "oscillating";
+    case expectation::kind::within:
+      return "within";
+    case expectation::kind::no_glitch:
+      return "no_glitch";
+    case expectation::kind::deterministic:
+      return "deterministic";
+    case expectation::kind::gauge:
+      return "gauge";
   }
   return "?";
 }
@@ -174,10 +181,12 @@ bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std
   const std::uint64_t one = sweep_result_bytes(plan, steps, gauges);
   const std::uint64_t need = one > UINT64_MAX / copies ? UINT64_MAX : one * copies;
   if (need <= (mib << 20)) return true;
-  spdlog::error("--corners '{}': {} corners x {} steps need about {:.0f} MiB for their results, more than "
-                "--max-memory {} MiB; sample fewer corners (e.g. --corners extremes+random:1000) or raise "
-                "--max-memory",
-                plan.spec, plan.corners, std::max<std::size_t>(steps, 1), static_cast<double>(need) / (1 << 20), mib);
+  spdlog::error(
+      "--corners '{}': {} corners x {} steps need about {:.0f} MiB for their results, more than "
+      "--max-memory {} MiB; sample fewer corners (e.g. --corners extremes+random:1000) or raise "
+      "--max-memory",
+      plan.spec, plan.corners, std::max<std::size_t>(steps, 1),
+      static_cast<double>(need) / (1 << 20), mib);
   return false;
 }
 

@@ -13,7 +13,7 @@
 namespace CLI {
 class App;
 class Option;
-}
+}  // namespace CLI
 namespace settle {
 struct sweep_plan;
 }
@@ -61,7 +61,8 @@ std::string timeout_words(time_fs reached, std::uint64_t events, time_fs values_
 std::string values_repeat_words(time_fs values_repeat_at, time_fs values_period);
 
 /// What the `unknown` line says after the names: why it is a finding and the two ways to accept it.
-inline constexpr const char* unknown_words = "at x at the end of the step (accept it with 'expect NET = x' or --allow-x)";
+inline constexpr const char* unknown_words =
+    "at x at the end of the step (accept it with 'expect NET = x' or --allow-x)";
 /// The JSON array of the names of `nets`.
 nlohmann::ordered_json net_names_json(const netlist& n, const std::vector<net_id>& nets);
 

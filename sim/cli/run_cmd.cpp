@@ -1,12 +1,12 @@
 // `settle run`: one delay corner through the stimulus; a table per step, JSON and VCD.
-#include <chrono>
-#include <memory>
-
-#include <CLI/CLI.hpp>
 #include <fmt/color.h>
 #include <fmt/format.h>
-#include <nlohmann/json.hpp>
 #include <spdlog/spdlog.h>
+
+#include <CLI/CLI.hpp>
+#include <chrono>
+#include <memory>
+#include <nlohmann/json.hpp>
 
 #include "sim/cli/command.hpp"
 #include "sim/cli/interrupt.hpp"
@@ -36,7 +36,8 @@ struct run_cli_options {
 // asked for: they are never glitches unless they pass through x.
 std::uint32_t glitches(const design& d, const run_result& r, const step_result& s, std::size_t i) {
   const net_id net = r.reported[i];
-  if (d.nets.driver[net] == no_id && s.start_values[i] != logic::x && s.values[i] != logic::x) return 0;
+  if (d.nets.driver[net] == no_id && s.start_values[i] != logic::x && s.values[i] != logic::x)
+    return 0;
   const std::uint32_t needed = s.start_values[i] != s.values[i] ? 1 : 0;
   return s.transitions[i] > needed ? s.transitions[i] - needed : 0;
 }
@@ -177,21 +178,23 @@ std::string expect_text(const netlist& n, const step_result& s, const expect_res
   const auto& e = *x.spec;
   const std::string words = expectation_words(n, e);
   if (e.what == expectation::kind::value) return fmt::format("{}: got {}", words, to_char(x.got));
-  if (e.what == expectation::kind::within) return fmt::format("{}: took {}", words, format_time(s.settle));
+  if (e.what == expectation::kind::within)
+    return fmt::format("{}: took {}", words, format_time(s.settle));
   return words;
 }
 
 std::string gauge_nets(const netlist& n, const gauge& g) {
   if (g.what != gauge::kind::latency) return n.net_name[g.nets[0]];
-  return fmt::format("{} {} to {} {}", n.net_name[g.nets[0]], g.from_rises ? "rises" : "falls", n.net_name[g.nets[1]],
-                     g.to_rises ? "rises" : "falls");
+  return fmt::format("{} {} to {} {}", n.net_name[g.nets[0]], g.from_rises ? "rises" : "falls",
+                     n.net_name[g.nets[1]], g.to_rises ? "rises" : "falls");
 }
 
-std::string table(const design& d, const run_result& r, const std::string& corner_name, bool colour, bool verbose,
-                  double wall) {
+std::string table(const design& d, const run_result& r, const std::string& corner_name, bool colour,
+                  bool verbose, double wall) {
   const netlist& n = d.nets;
   auto paint = [colour](std::string_view text, bool good) { return mark(text, good, colour); };
-  std::string out = fmt::format("design {}, corner {}, {} step{}\n", d.path, r.corner.empty() ? corner_name : r.corner, r.steps.size(),
+  std::string out = fmt::format("design {}, corner {}, {} step{}\n", d.path,
+                                r.corner.empty() ? corner_name : r.corner, r.steps.size(),
                                 r.steps.size() == 1 ? "" : "s");
   std::size_t width = 3;
   for (net_id id : r.reported) width = std::max(width, n.net_name[id].size());
@@ -202,11 +205,13 @@ std::string table(const design& d, const run_result& r, const std::string& corne
     const bool expected_osc = s.status == step_status::oscillating && s.pass();
     std::string word = status_name(s.status), status;
     if (s.status == step_status::settled) status += fmt::format(" after {}", format_time(s.settle));
-    if (s.status == step_status::running) status += fmt::format(", last change after {}", format_time(s.settle));
+    if (s.status == step_status::running)
+      status += fmt::format(", last change after {}", format_time(s.settle));
     if (s.status == step_status::oscillating) {
       status += fmt::format(", period {}, repeat detected at {}, toggling", format_time(s.period),
                             format_time(s.end));
-      for (std::size_t i = 0; i < s.toggling.size() && i < 8; ++i) status += " " + n.net_name[s.toggling[i]];
+      for (std::size_t i = 0; i < s.toggling.size() && i < 8; ++i)
+        status += " " + n.net_name[s.toggling[i]];
       if (s.toggling.size() > 8) status += fmt::format(" ... ({} nets)", s.toggling.size());
     }
     if (s.end_of_time)
@@ -222,15 +227,17 @@ std::string table(const design& d, const run_result& r, const std::string& corne
       out += fmt::format("  reason  {}\n", timeout_words(s.end - s.start, s.events,
                                                          s.values_repeat_at, s.values_period));
     for (const auto& o : s.owed)
-      out += fmt::format("  owed    {}: fired {} of {}, condition {}\n", d.stim.rules[o.rule].text, o.fired,
-                         o.times, to_char(o.condition));
+      out += fmt::format("  owed    {}: fired {} of {}, condition {}\n", d.stim.rules[o.rule].text,
+                         o.fired, o.times, to_char(o.condition));
     if (!s.unknown.empty())
-      out += fmt::format("  {}  {} {}\n", paint("UNKNOWN", false), n.names_of(s.unknown), unknown_words);
+      out += fmt::format("  {}  {} {}\n", paint("UNKNOWN", false), n.names_of(s.unknown),
+                         unknown_words);
     if (!r.reported.empty()) {
       out += fmt::format("  {:<{}}  start  end  transitions  glitches\n", "net", width);
       for (std::size_t i = 0; i < r.reported.size(); ++i)
         out += fmt::format("  {:<{}}  {:<5}  {:<3}  {:<11}  {}\n", n.net_name[r.reported[i]], width,
-                           to_char(s.start_values[i]), to_char(s.values[i]), s.transitions[i], glitches(d, r, s, i));
+                           to_char(s.start_values[i]), to_char(s.values[i]), s.transitions[i],
+                           glitches(d, r, s, i));
     }
     for (const auto& x : s.expects) {
       std::string line = expect_text(n, s, x);
@@ -246,7 +253,8 @@ std::string table(const design& d, const run_result& r, const std::string& corne
       continue;
     }
     std::string vals;
-    for (const auto& [net, v] : p.values) vals += fmt::format("{}{}={}", vals.empty() ? "" : " ", n.net_name[net], to_char(v));
+    for (const auto& [net, v] : p.values)
+      vals += fmt::format("{}{}={}", vals.empty() ? "" : " ", n.net_name[net], to_char(v));
     out += fmt::format("  {}  {}: first at {} in step {} ({})\n", paint("FAIL", false), spec.text,
                        format_time(p.first_violation), p.step, vals);
   }
@@ -254,11 +262,13 @@ std::string table(const design& d, const run_result& r, const std::string& corne
   for (const auto& g : r.gauges) {
     const auto& spec = d.stim.gauges[g.gauge];
     if (!g.count) {
-      out += fmt::format("  {}  {} {}: no sample\n", spec.name, gauge_kind_name(spec.what), gauge_nets(n, spec));
+      out += fmt::format("  {}  {} {}: no sample\n", spec.name, gauge_kind_name(spec.what),
+                         gauge_nets(n, spec));
       continue;
     }
-    out += fmt::format("  {}  {} {}: {} sample{}, min {}, mean {}, max {}\n", spec.name, gauge_kind_name(spec.what),
-                       gauge_nets(n, spec), g.count, g.count == 1 ? "" : "s", format_time(g.min),
+    out += fmt::format("  {}  {} {}: {} sample{}, min {}, mean {}, max {}\n", spec.name,
+                       gauge_kind_name(spec.what), gauge_nets(n, spec), g.count,
+                       g.count == 1 ? "" : "s", format_time(g.min),
                        format_time(static_cast<time_fs>(g.mean + 0.5)), format_time(g.max));
   }
   const bool pass = r.pass();
@@ -370,14 +380,16 @@ void add_run(CLI::App& app, exit_status& status) {
   auto o = std::make_shared<run_cli_options>();
   auto* cmd = app.add_subcommand("run", "simulate the stimulus under one delay corner");
   add_design_options(*cmd, o->design);
-  cmd->add_option("--corner", o->corner, "min, typ, max, random:SEED or any corner name (default typ)");
+  cmd->add_option("--corner", o->corner,
+                  "min, typ, max, random:SEED or any corner name (default typ)");
   check_output_path(
       cmd->add_option("--vcd", o->vcd, "write the waveforms as IEEE 1364 VCD to PATH"));
   cmd->add_option("--vcd-nets", o->vcd_nets,
                   "nets in the VCD: all (default) or outputs (outputs and watched nets)")
       ->check(one_of({"all", "outputs"}));
   add_json_option(*cmd, o->json);
-  cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
+  cmd->add_option("--horizon", o->horizon,
+                  "time limit per step (default 10,000 x the largest gate delay)");
   check_whole_number(
       cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)"), 0,
       UINT64_MAX, "the event limit");

@@ -1,24 +1,24 @@
-// `settle sweep`: one design under many delay corners; a verdict table per step, JSON and witness VCDs.
-#include <unistd.h>
-
-#include <cctype>
-#include <cmath>
-#include <chrono>
-#include <filesystem>
-#include <memory>
-
-#include <CLI/CLI.hpp>
+// `settle sweep`: one design under many delay corners; a verdict table per step, JSON and witness
+// VCDs.
 #include <fmt/color.h>
 #include <fmt/format.h>
-#include <nlohmann/json.hpp>
 #include <spdlog/spdlog.h>
+#include <unistd.h>
 
+#include <CLI/CLI.hpp>
+#include <cctype>
+#include <chrono>
+#include <cmath>
+#include <filesystem>
+#include <memory>
+#include <nlohmann/json.hpp>
+
+#include "sim/analysis/culprit.hpp"
+#include "sim/analysis/sweep.hpp"
 #include "sim/cli/command.hpp"
 #include "sim/cli/interrupt.hpp"
 #include "sim/cli/report_common.hpp"
-#include "sim/analysis/culprit.hpp"
 #include "sim/kernel/interval.hpp"
-#include "sim/analysis/sweep.hpp"
 #include "sim/model/time.hpp"
 #include "sim/model/time_parse.hpp"
 #include "waves/html.hpp"
@@ -45,9 +45,12 @@ struct sweep_cli_options {
 /// Why the sweep stopped early, in words ("" when it ran every corner).
 std::string stop_words(const sweep_result& r) {
   switch (r.stopped) {
-    case sweep_stop::interrupted: return fmt::format("interrupted by {}", interrupt_signal_name());
-    case sweep_stop::timeout: return "stopped by --timeout";
-    case sweep_stop::none: break;
+    case sweep_stop::interrupted:
+      return fmt::format("interrupted by {}", interrupt_signal_name());
+    case sweep_stop::timeout:
+      return "stopped by --timeout";
+    case sweep_stop::none:
+      break;
   }
   return "";
 }
@@ -89,7 +92,9 @@ nlohmann::ordered_json owed_json(const design& d, const std::vector<owed_rule>& 
 }
 
 // A gauge expectation's range as written: "700ps..900ps".
-std::string gauge_want(const expectation& e) { return format_time(e.lo) + ".." + format_time(e.hi); }
+std::string gauge_want(const expectation& e) {
+  return format_time(e.lo) + ".." + format_time(e.hi);
+}
 
 // Top-level `properties` and `gauges` of a sweep (issue 15's contract).
 void closed_loop_json(const design& d, const sweep_result& r, nlohmann::ordered_json& j) {
@@ -187,7 +192,8 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
         e["net"] = spec.ref.empty() ? n.net_name[spec.net] : spec.ref;
       if (spec.what == expectation::kind::value) e["want"] = logic_text(spec.want);
       if (spec.what == expectation::kind::within) e["budget_fs"] = spec.hi;
-      if (spec.what == expectation::kind::gauge) e["gauge"] = spec.ref, e["want"] = gauge_want(spec);
+      if (spec.what == expectation::kind::gauge)
+        e["gauge"] = spec.ref, e["want"] = gauge_want(spec);
       if (x.by_interval) {  // `interval` alone: no corner ran, the min-max run proves it or not
         e["proven"] = x.proven;
         e["pass"] = x.pass();
@@ -203,13 +209,16 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
       st["expect"].push_back(std::move(e));
     }
     if (s.interval)
-      st["interval"] = {{"values", values_json(n, r.reported, s.interval->values)}, {"proven", s.interval->proven}};
+      st["interval"] = {{"values", values_json(n, r.reported, s.interval->values)},
+                        {"proven", s.interval->proven}};
     for (const auto& race : races)
       if (race.step == s.index) {
         auto cj = culprit_json(n, race);
         st["culprits"] = cj["culprits"];
         st["paths"] = cj["paths"];
-        st["race"] = {{"corners", cj["corners"]}, {"differing_gates", cj["differing_gates"]}, {"tests", cj["tests"]},
+        st["race"] = {{"corners", cj["corners"]},
+                      {"differing_gates", cj["differing_gates"]},
+                      {"tests", cj["tests"]},
                       {"minimal", cj["minimal"]}};
       }
     j["steps"].push_back(std::move(st));
@@ -236,35 +245,40 @@ std::string x_nets(const netlist& n, const sweep_result& r, const interval_step&
 
 // One step of a sweep whose spec is `interval` alone: what the min-max run proved.
 template <class Paint>
-std::string interval_only_step(const netlist& n, const sweep_result& r, const sweep_step& s, const std::string& verdict,
-                               const Paint& paint) {
+std::string interval_only_step(const netlist& n, const sweep_result& r, const sweep_step& s,
+                               const std::string& verdict, const Paint& paint) {
   std::string out;
   const interval_step& iv = *s.interval;
   std::string vals;
   for (std::size_t k = 0; k < r.reported.size() && k < iv.values.size(); ++k)
     vals += fmt::format("{}{}={}", k ? " " : "", n.net_name[r.reported[k]], to_char(iv.values[k]));
   if (iv.proven) {
-    out += fmt::format("  {}  proven: every delay assignment in range ends in the same state\n", verdict);
+    out += fmt::format("  {}  proven: every delay assignment in range ends in the same state\n",
+                       verdict);
   } else if (iv.status != step_status::settled) {
     out += fmt::format("  {}  not proven: the interval run is {} at the end of the step\n", verdict,
                        status_name(iv.status));
   } else {
-    out += fmt::format("  {}  not proven: the interval run leaves x on {}; a race or x pessimism, sample corners "
-                       "to tell which (e.g. --corners extremes+random:1000+interval)\n",
-                       verdict, x_nets(n, r, iv));
+    out += fmt::format(
+        "  {}  not proven: the interval run leaves x on {}; a race or x pessimism, sample corners "
+        "to tell which (e.g. --corners extremes+random:1000+interval)\n",
+        verdict, x_nets(n, r, iv));
   }
   if (!vals.empty()) out += fmt::format("       values  {}\n", vals);
   for (const auto& x : s.expects) {
     const std::string what = expectation_words(n, *x.spec);
-    if (x.pass()) out += fmt::format("  {}  {}: proven for all delays in range\n", paint("pass", true), what);
-    else out += fmt::format("  {}  {}: not proven ({})\n", paint("UNPROVEN", false), what, x.detail);
+    if (x.pass())
+      out += fmt::format("  {}  {}: proven for all delays in range\n", paint("pass", true), what);
+    else
+      out += fmt::format("  {}  {}: not proven ({})\n", paint("UNPROVEN", false), what, x.detail);
   }
   return out;
 }
 
 // A rate with an SI prefix: 1.178e9 -> "1.178 G/s".
 std::string per_second(double v) {
-  static constexpr std::pair<double, const char*> prefixes[] = {{1e12, "T"}, {1e9, "G"}, {1e6, "M"}, {1e3, "k"}};
+  static constexpr std::pair<double, const char*> prefixes[] = {
+      {1e12, "T"}, {1e9, "G"}, {1e6, "M"}, {1e3, "k"}};
   for (const auto& [scale, p] : prefixes)
     if (v >= scale) return fmt::format("{:.4g} {}/s", v / scale, p);
   return fmt::format("{:.4g} /s", v);
@@ -294,12 +308,13 @@ std::string closed_loop_text(const design& d, const sweep_cli_options& o, const 
       out += fmt::format("  {}  no sample in any corner\n", spec.name);
       continue;
     }
-    std::string line = fmt::format("  {}  {} / {} / {}", spec.name, format_time(g.min),
-                                   format_time(static_cast<time_fs>(std::llround(g.median))), format_time(g.max));
+    std::string line =
+        fmt::format("  {}  {} / {} / {}", spec.name, format_time(g.min),
+                    format_time(static_cast<time_fs>(std::llround(g.median))), format_time(g.max));
     if (spec.what == gauge::kind::period && g.median > 0)
       line += "  throughput " + per_second(1e15 / g.median);
-    line += fmt::format("  ({} samples in {} corners; min at {}, max at {})\n", g.samples, g.corners,
-                        g.witness_min_name, g.witness_max_name);
+    line += fmt::format("  ({} samples in {} corners; min at {}, max at {})\n", g.samples,
+                        g.corners, g.witness_min_name, g.witness_max_name);
     out += line;
   }
   return out;
@@ -312,11 +327,12 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
   auto paint = [colour](std::string_view text, bool good) { return mark(text, good, colour); };
   std::string out = fmt::format("design   {}\n", d.path);
   if (interval_only)
-    out += fmt::format("corners  none ({}): one min-max ambiguity run covers every delay in range, {:.2f} s\n",
-                       o.corners, r.wall_s);
+    out += fmt::format(
+        "corners  none ({}): one min-max ambiguity run covers every delay in range, {:.2f} s\n",
+        o.corners, r.wall_s);
   else
-    out += fmt::format("corners  {} ({}, seed {}), {} thread{}, {} events, {:.2f} s\n", r.corners, o.corners, o.seed,
-                       r.threads, r.threads == 1 ? "" : "s", r.events, r.wall_s);
+    out += fmt::format("corners  {} ({}, seed {}), {} thread{}, {} events, {:.2f} s\n", r.corners,
+                       o.corners, o.seed, r.threads, r.threads == 1 ? "" : "s", r.events, r.wall_s);
   if (r.stopped != sweep_stop::none)
     out += fmt::format("{}  {}: {} of {} corners finished; the verdicts below cover those only\n",
                        paint("STOPPED", false), stop_words(r), r.corners, r.planned);
@@ -334,11 +350,13 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
     if (s.inherits) note += fmt::format("; inherits the divergence of step {}", s.inherits);
     if (s.run_step && s.verdict == sweep_verdict::nondeterministic)
       note += "; a `run` window, not a settled state";
-    if (s.verdict == sweep_verdict::deadlock) note += "; every corner goes quiet with a reaction rule owed";
+    if (s.verdict == sweep_verdict::deadlock)
+      note += "; every corner goes quiet with a reaction rule owed";
     out += fmt::format("  {}  {}\n", paint(verdict, s.pass), note);
     if (s.unseen_outcome_bound)
-      out += fmt::format("  chance of an outcome not seen < {:.3g}% (rule of three over the random corners)\n",
-                         100.0 * *s.unseen_outcome_bound);
+      out += fmt::format(
+          "  chance of an outcome not seen < {:.3g}% (rule of three over the random corners)\n",
+          100.0 * *s.unseen_outcome_bound);
     // The times column holds settle times for outcomes that settle; an
     // oscillating outcome's are the times from the step's start to the
     // detected repeat, a timeout's its last change: each line says which.
@@ -348,7 +366,8 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
       const auto& oc = s.outcomes[i];
       std::string status = status_name(oc.status);
       if (oc.status == step_status::oscillating) status += " " + format_time(oc.period);
-      const std::string ci = fmt::format("[{}, {}]", percent(oc.share_ci95.lo), percent(oc.share_ci95.hi));
+      const std::string ci =
+          fmt::format("[{}, {}]", percent(oc.share_ci95.lo), percent(oc.share_ci95.hi));
       const char* label =
           oc.status == step_status::oscillating ? "detected "
           : oc.status == step_status::timeout || oc.status == step_status::event_limit
@@ -361,18 +380,21 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
                          oc.count, percent(oc.share), ci, times, oc.witness_name);
       std::string vals;
       for (std::size_t k = 0; k < r.reported.size() && k < oc.values.size(); ++k)
-        vals += fmt::format("{}{}={}", k ? " " : "", n.net_name[r.reported[k]], to_char(oc.values[k]));
+        vals +=
+            fmt::format("{}{}={}", k ? " " : "", n.net_name[r.reported[k]], to_char(oc.values[k]));
       if (!vals.empty()) out += fmt::format("       values  {}\n", vals);
       if (!oc.unknown.empty())
-        out += fmt::format("       {}  {} {}\n", paint("UNKNOWN", false), n.names_of(oc.unknown), unknown_words);
-      if (oc.end_of_time) out += fmt::format("       reason  {}\n", end_of_time_words);
+        out += fmt::format("       {}  {} {}\n", paint("UNKNOWN", false), n.names_of(oc.unknown),
+                           unknown_words);
+      if (oc.end_of_time)
+        out += fmt::format("       reason  {}\n", end_of_time_words);
       else if (oc.status == step_status::timeout && oc.reached)
         out += fmt::format(
             "       reason  at {}: {}\n", oc.witness_name,
             timeout_words(oc.reached, oc.events, oc.values_repeat_at, oc.values_period));
       for (const auto& w : oc.owed)
-        out += fmt::format("       owed    {} (fired {} of {}; condition {})\n", d.stim.rules[w.rule].text, w.fired,
-                           w.times, to_char(w.condition));
+        out += fmt::format("       owed    {} (fired {} of {}; condition {})\n",
+                           d.stim.rules[w.rule].text, w.fired, w.times, to_char(w.condition));
       out += fmt::format("       replay  {}\n", replay(o, oc.witness_name));
     }
     for (const auto& x : s.expects) {
@@ -380,8 +402,9 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
       if (x.pass()) {
         out += fmt::format("  {}  {} in every corner\n", paint("pass", true), what);
       } else {
-        out += fmt::format("  {}  {}: fails in {} of {} corners; first at {}{}\n", paint("FAIL", false), what,
-                           x.failing, r.corners, x.witness_name, x.detail.empty() ? "" : " (" + x.detail + ")");
+        out += fmt::format("  {}  {}: fails in {} of {} corners; first at {}{}\n",
+                           paint("FAIL", false), what, x.failing, r.corners, x.witness_name,
+                           x.detail.empty() ? "" : " (" + x.detail + ")");
         out += fmt::format("       replay  {}\n", replay(o, x.witness_name));
       }
     }
@@ -392,7 +415,8 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
         out += "  interval  proven deterministic for all delays in range\n";
       } else {
         const std::string xs = x_nets(n, r, *s.interval);
-        out += fmt::format("  interval  inconclusive (x on {})\n", xs.empty() ? std::string(status_name(s.interval->status)) : xs);
+        out += fmt::format("  interval  inconclusive (x on {})\n",
+                           xs.empty() ? std::string(status_name(s.interval->status)) : xs);
       }
     }
   }
@@ -402,14 +426,17 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
   for (const auto& s : r.steps) proven += s.interval && s.interval->proven;
   out += fmt::format("\nresult  {}", paint(r.pass() ? "pass" : "findings", r.pass()));
   if (interval_only)
-    out += fmt::format(" ({} of {} steps proven deterministic, {} inconclusive{})", proven, r.steps.size(),
-                       r.steps.size() - proven, bad > r.steps.size() - proven ? ", expectations not proven" : "");
+    out += fmt::format(" ({} of {} steps proven deterministic, {} inconclusive{})", proven,
+                       r.steps.size(), r.steps.size() - proven,
+                       bad > r.steps.size() - proven ? ", expectations not proven" : "");
   else {
     std::size_t violated = 0;
     for (const auto& p : r.properties) violated += p.holds() ? 0 : 1;
     std::string why;
     if (bad) why = fmt::format("{} of {} steps", bad, r.steps.size());
-    if (violated) why += fmt::format("{}{} of {} properties violated", bad ? "; " : "", violated, r.properties.size());
+    if (violated)
+      why += fmt::format("{}{} of {} properties violated", bad ? "; " : "", violated,
+                         r.properties.size());
     if (!why.empty()) out += " (" + why + ")";
   }
   out += "\n";
@@ -437,8 +464,8 @@ bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep
   for (const auto& s : r.steps) {
     if (s.verdict == sweep_verdict::deterministic) continue;
     if (s.outcomes.size() > vcd_per_step_limit)
-      spdlog::warn("step {}: {} outcomes; writing the VCDs of the first {}", s.index, s.outcomes.size(),
-                   vcd_per_step_limit);
+      spdlog::warn("step {}: {} outcomes; writing the VCDs of the first {}", s.index,
+                   s.outcomes.size(), vcd_per_step_limit);
     for (std::size_t i = 0; i < s.outcomes.size() && i < vcd_per_step_limit; ++i) {
       const auto& oc = s.outcomes[i];
       const std::string path = fmt::format("{}/step{}_outcome{}_{}.vcd", o.vcd_dir, s.index, i + 1,
@@ -465,11 +492,14 @@ bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep
 }
 
 // "  1234/5000 corners  2.1k/s  1.8 s left" on one rewritten line.
-void show_progress(std::uint64_t done, std::uint64_t total, std::chrono::steady_clock::time_point t0) {
+void show_progress(std::uint64_t done, std::uint64_t total,
+                   std::chrono::steady_clock::time_point t0) {
   const double el = seconds_since(t0);
   const double rate = el > 0 ? static_cast<double>(done) / el : 0;
-  const std::string left = rate > 0 ? fmt::format("{:.1f} s left", static_cast<double>(total - done) / rate) : "";
-  std::fputs(fmt::format("\r\033[K  {}/{} corners  {:.0f}/s  {}", done, total, rate, left).c_str(), stderr);
+  const std::string left =
+      rate > 0 ? fmt::format("{:.1f} s left", static_cast<double>(total - done) / rate) : "";
+  std::fputs(fmt::format("\r\033[K  {}/{} corners  {:.0f}/s  {}", done, total, rate, left).c_str(),
+             stderr);
   std::fflush(stderr);
 }
 
@@ -498,7 +528,8 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
     return exit_status::error;
   }
   const std::size_t steps = d->stim.steps.empty() ? 1 : d->stim.steps.size();
-  if (!fits_memory(*plan, steps, 1, o.max_memory_mib, d->stim.gauges.size())) return exit_status::error;
+  if (!fits_memory(*plan, steps, 1, o.max_memory_mib, d->stim.gauges.size()))
+    return exit_status::error;
   sweep_options so;
   so.threads = o.threads;
   so.run = ro;
@@ -507,13 +538,16 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   so.timeout_s = o.timeout_s;
   const bool progress = !o.quiet && ::isatty(2) == 1;
   const auto t0 = std::chrono::steady_clock::now();
-  if (progress) so.progress = [t0](std::uint64_t done, std::uint64_t total) { show_progress(done, total, t0); };
+  if (progress)
+    so.progress = [t0](std::uint64_t done, std::uint64_t total) { show_progress(done, total, t0); };
   const sweep_result r = run_sweep(*d, *plan, so);
   if (progress) std::fputs("\r\033[K", stderr);
   if (r.error) {
     std::fputs(format_diagnostic(*r.error).c_str(), stderr);
-    spdlog::error("the stimulus cannot go on at corner {} (replay: {})", plan->corner_at(r.error_corner).name(),
-                  replay_command(o.design, plan->corner_at(r.error_corner).name(), o.horizon, o.max_events, o.allow_x));
+    spdlog::error("the stimulus cannot go on at corner {} (replay: {})",
+                  plan->corner_at(r.error_corner).name(),
+                  replay_command(o.design, plan->corner_at(r.error_corner).name(), o.horizon,
+                                 o.max_events, o.allow_x));
     return exit_status::error;
   }
 
@@ -554,14 +588,16 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
         fmt::format("settle: {}: {} of {} corners finished\n", stop_words(r), r.corners, r.planned)
             .c_str(),
         stderr);
-  if (!o.quiet && o.json != "-" && o.junit != "-" && o.html != "-") std::fputs(summary(*d, o, r, use_colour(1), races).c_str(), stdout);
+  if (!o.quiet && o.json != "-" && o.junit != "-" && o.html != "-")
+    std::fputs(summary(*d, o, r, use_colour(1), races).c_str(), stdout);
   if (r.stopped == sweep_stop::interrupted) return exit_status::interrupted;
   return r.pass() ? exit_status::ok : exit_status::findings;
 }
 
 void add_sweep(CLI::App& app, exit_status& status) {
   auto o = std::make_shared<sweep_cli_options>();
-  auto* cmd = app.add_subcommand("sweep", "run the stimulus under many delay corners and judge every step");
+  auto* cmd =
+      app.add_subcommand("sweep", "run the stimulus under many delay corners and judge every step");
   add_design_options(*cmd, o->design);
   cmd->add_option("--corners", o->corners,
                   "corner spec: extremes, exhaustive, random:N, gauss:N, interval joined by '+' "
@@ -577,7 +613,8 @@ void add_sweep(CLI::App& app, exit_status& status) {
       "--vcd-dir", o->vcd_dir,
       "write one VCD per outcome of every step that is not deterministic, replaying its witness, "
       "as DIR/step<k>_outcome<r>_<corner>.vcd"));
-  cmd->add_option("--horizon", o->horizon, "time limit per step (default 10,000 x the largest gate delay)");
+  cmd->add_option("--horizon", o->horizon,
+                  "time limit per step (default 10,000 x the largest gate delay)");
   check_whole_number(cmd->add_option("--max-events", o->max_events,
                                      "stop each corner after N events (0: no limit)"),
                      0, UINT64_MAX, "the event limit");
@@ -592,7 +629,8 @@ void add_sweep(CLI::App& app, exit_status& status) {
   check_output_path(cmd->add_option(
       "--html", o->html,
       "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH"));
-  cmd->add_flag("-q,--quiet", o->quiet, "print nothing on stdout and no progress; errors still go to stderr");
+  cmd->add_flag("-q,--quiet", o->quiet,
+                "print nothing on stdout and no progress; errors still go to stderr");
   cmd->callback([o, &status] { status = run_sweep_cmd(*o); });
 }
 

@@ -3,10 +3,10 @@
 // kernel so the timed kernel and the interval (min-max) kernel share it.
 #pragma once
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <limits>
-
-#include <fmt/format.h>
 
 #include "sim/kernel/run.hpp"
 #include "sim/kernel/simulator.hpp"
@@ -41,7 +41,8 @@ class driver {
   driver(Sim& sim, const design& d, const run_options& opt, const delay_table* delays = nullptr)
       : d_(d), sim_(sim), opt_(opt), delays_(delays) {
     const time_fs m = d.nets.largest_max_delay();
-    horizon_ = opt.horizon ? opt.horizon : std::max<time_fs>(checked_mul(m, 10000).value_or(time_last), one_ns);
+    horizon_ = opt.horizon ? opt.horizon
+                           : std::max<time_fs>(checked_mul(m, 10000).value_or(time_last), one_ns);
     auto report = [&](net_id n) {
       if (std::find(result_.reported.begin(), result_.reported.end(), n) == result_.reported.end())
         result_.reported.push_back(n);
@@ -54,7 +55,8 @@ class driver {
     // Under random: and gauss: corners every firing draws its own delay, so a
     // repeated state does not repeat the future: the firing counts join the
     // state and such a loop is never called periodic.
-    draws_ = delays && (delays->which.what == corner::kind::random || delays->which.what == corner::kind::gauss);
+    draws_ = delays && (delays->which.what == corner::kind::random ||
+                        delays->which.what == corner::kind::gauss);
   }
 
   run_result run() {
@@ -70,7 +72,8 @@ class driver {
     if (d_.stim.steps.empty()) {
       run_step(initial, 1);
     } else {
-      for (std::size_t i = 0; i < d_.stim.steps.size() && !stopped_; ++i) run_step(d_.stim.steps[i], i + 1);
+      for (std::size_t i = 0; i < d_.stim.steps.size() && !stopped_; ++i)
+        run_step(d_.stim.steps[i], i + 1);
     }
     result_.events = sim_.events();
     result_.end = ref_;
@@ -84,7 +87,9 @@ class driver {
       gauge_result x;
       x.gauge = i;
       x.count = g.count;
-      if (g.count) x.min = g.min, x.max = g.max, x.mean = static_cast<double>(g.sum) / static_cast<double>(g.count);
+      if (g.count)
+        x.min = g.min, x.max = g.max,
+        x.mean = static_cast<double>(g.sum) / static_cast<double>(g.count);
       result_.gauges.push_back(x);
     }
     return std::move(result_);
@@ -103,7 +108,8 @@ class driver {
   void clock_state_words(std::vector<std::uint64_t>& out) const {
     out.clear();
     for (const auto& c : clocks_)
-      out.insert(out.end(), {c.next - sim_.now(), static_cast<std::uint64_t>(c.next_value), c.edges_left});
+      out.insert(out.end(),
+                 {c.next - sim_.now(), static_cast<std::uint64_t>(c.next_value), c.edges_left});
     for (const auto& f : firings_) out.insert(out.end(), {f.time - sim_.now(), f.rule});
     for (std::size_t i = 0; i < rules_.size(); ++i) {
       const auto& st = rules_[i];
@@ -151,7 +157,8 @@ class driver {
   }
 
   bool clock_past_end() const {
-    return std::any_of(clocks_.begin(), clocks_.end(), [](const clock_state& c) { return c.past_end; });
+    return std::any_of(clocks_.begin(), clocks_.end(),
+                       [](const clock_state& c) { return c.past_end; });
   }
 
   // --max-events reached, or the caller asked to stop.
@@ -174,22 +181,26 @@ class driver {
     next_act_ = 0;
     for (const auto& a : spec.actions) {
       time_fs t = cursor;
-      const bool absolute = a.what == stim_action::kind::at || (a.what == stim_action::kind::clock && a.anchored);
+      const bool absolute =
+          a.what == stim_action::kind::at || (a.what == stim_action::kind::clock && a.anchored);
       if (absolute && cursor != never && a.time < std::max(cursor, sim_.now())) {
         // Applied late it would run a different stimulus than written.
         diagnostic dg;
         dg.file = d_.stim.file;
         dg.line = a.time_loc.line;
         dg.col = a.time_loc.col;
-        dg.message = fmt::format("'at {}' is earlier than {}, the time the stimulus has already reached",
-                                 format_time(a.time), format_time(std::max(cursor, sim_.now())));
+        dg.message =
+            fmt::format("'at {}' is earlier than {}, the time the stimulus has already reached",
+                        format_time(a.time), format_time(std::max(cursor, sim_.now())));
         set_source_line(dg, a.source_line);
         result_.error = std::move(dg);
         stopped_ = true;
         return;
       }
-      if (a.what == stim_action::kind::at) t = a.time;
-      else if (a.what == stim_action::kind::after) t = checked_add(cursor, a.time).value_or(never);  // past the end: never
+      if (a.what == stim_action::kind::at)
+        t = a.time;
+      else if (a.what == stim_action::kind::after)
+        t = checked_add(cursor, a.time).value_or(never);  // past the end: never
       if (a.what == stim_action::kind::rule || a.what == stim_action::kind::property ||
           a.what == stim_action::kind::gauge) {
         acts_.push_back({t, &a});
@@ -262,11 +273,14 @@ class driver {
         // repeat detection is due: it starts once the step's inputs are all
         // in and `warmup` instants have passed. Batches stay short enough for
         // the stop flag to be seen promptly.
-        const bool counting =
-            settle_step && next_input == pending_.size() && clock_starts_.empty() && next_act_ == acts_.size();
-        const std::uint64_t budget = !counting ? 4096 : settling + 1 < warmup ? warmup - 1 - settling : 0;
+        const bool counting = settle_step && next_input == pending_.size() &&
+                              clock_starts_.empty() && next_act_ == acts_.size();
+        const std::uint64_t budget = !counting               ? 4096
+                                     : settling + 1 < warmup ? warmup - 1 - settling
+                                                             : 0;
         if (budget) {
-          const std::uint64_t n = sim_.run_quiet(std::min(last_instant, outside - 1), budget, opt_.max_events);
+          const std::uint64_t n =
+              sim_.run_quiet(std::min(last_instant, outside - 1), budget, opt_.max_events);
           if (counting) settling += n;
           if (limited()) {
             r.status = step_status::event_limit;
@@ -280,8 +294,9 @@ class driver {
       t = std::min(t, outside);
       // An input change or clock edge lies past the end of representable
       // time: unreachable before the step's limit only if the limit is.
-      const bool past_end = t == never && (next_input < pending_.size() || !clock_starts_.empty() || clock_past_end() ||
-                                           !firings_.empty() || next_act_ < acts_.size());
+      const bool past_end =
+          t == never && (next_input < pending_.size() || !clock_starts_.empty() ||
+                         clock_past_end() || !firings_.empty() || next_act_ < acts_.size());
       if (past_end && limit_unreachable) {
         end_of_time(r, last_instant);
         break;
@@ -301,8 +316,10 @@ class driver {
       }
       inputs.clear();
       for (auto it = clock_starts_.begin(); it != clock_starts_.end();) {
-        if (it->first == t) start_clock(it->second, t), it = clock_starts_.erase(it);
-        else ++it;
+        if (it->first == t)
+          start_clock(it->second, t), it = clock_starts_.erase(it);
+        else
+          ++it;
       }
       while (next_input < pending_.size() && pending_[next_input].time == t) {
         stop_clock(pending_[next_input].a.net);
@@ -321,7 +338,8 @@ class driver {
       }
       // Activations see the values before the instant, so a gauge or a
       // property declared before an input change at the same time sees it.
-      while (next_act_ < acts_.size() && acts_[next_act_].first == t) activate(*acts_[next_act_++].second);
+      while (next_act_ < acts_.size() && acts_[next_act_].first == t)
+        activate(*acts_[next_act_++].second);
       sim_.process_instant(t, inputs);
       if (observing_) observe(t, index);
       if (limited()) {
@@ -330,7 +348,8 @@ class driver {
         stopped_ = true;
         break;
       }
-      if (!settle_step || next_input < pending_.size() || !clock_starts_.empty() || next_act_ < acts_.size())
+      if (!settle_step || next_input < pending_.size() || !clock_starts_.empty() ||
+          next_act_ < acts_.size())
         continue;
       if (++settling < warmup) continue;
       if (settling == warmup) sim_.track_state(true);
@@ -362,8 +381,8 @@ class driver {
     const time_fs last = sim_.last_change();
     r.settle = last > change_before && last >= start ? last - start : 0;
     if (r.status == step_status::settled) r.end = start + r.settle;
-    if (r.status == step_status::running && sim_.quiet() && pending_.size() == next_input && clocks_.empty() &&
-        firings_.empty() && clock_starts_.empty())
+    if (r.status == step_status::running && sim_.quiet() && pending_.size() == next_input &&
+        clocks_.empty() && firings_.empty() && clock_starts_.empty())
       r.status = step_status::settled;
     // A `run T` window always advances by T.
     if (!settle_step && r.status != step_status::event_limit && !r.end_of_time) r.end = limit;
@@ -373,7 +392,8 @@ class driver {
         const auto& st = rules_[i];
         const auto& rule = d_.stim.rules[i];
         if (st.active && rule.times && st.fired < rule.times)
-          r.owed.push_back({i, st.fired, rule.times, eval_expr(rule.condition, sim_.values().data())});
+          r.owed.push_back(
+              {i, st.fired, rule.times, eval_expr(rule.condition, sim_.values().data())});
       }
       if (!r.owed.empty()) r.status = step_status::deadlock;
     }
@@ -385,7 +405,8 @@ class driver {
       r.transitions.push_back(sim_.toggle_count(result_.reported[i]) - tog_start[i]);
     }
     check_expectations(spec, r, glitch_tog, glitch_start);
-    if (!opt_.allow_x && r.status != step_status::oscillating) r.unknown = unknown_at_end(&spec, result_.reported, r.values);
+    if (!opt_.allow_x && r.status != step_status::oscillating)
+      r.unknown = unknown_at_end(&spec, result_.reported, r.values);
     ref_ = r.end;
     result_.steps.push_back(std::move(r));
   }
@@ -455,7 +476,8 @@ class driver {
         watch_nets(g.nets);
         break;
       }
-      default: break;
+      default:
+        break;
     }
   }
 
@@ -466,16 +488,22 @@ class driver {
 
   void schedule_firing(time_fs t, std::uint32_t i) {
     auto& st = rules_[i];
-    const firing f{checked_add(t, delay_of_rule(i, st.scheduled)).value_or(never), firing_seq_++, i};
+    const firing f{checked_add(t, delay_of_rule(i, st.scheduled)).value_or(never), firing_seq_++,
+                   i};
     ++st.scheduled;
-    auto at = std::upper_bound(firings_.begin(), firings_.end(), f, [](const firing& x, const firing& y) {
-      return x.time != y.time ? x.time < y.time : x.seq < y.seq;
-    });
+    auto at =
+        std::upper_bound(firings_.begin(), firings_.end(), f, [](const firing& x, const firing& y) {
+          return x.time != y.time ? x.time < y.time : x.seq < y.seq;
+        });
     firings_.insert(at, f);
   }
 
-  static bool rises(logic before, logic after) { return before == logic::zero && after == logic::one; }
-  static bool falls(logic before, logic after) { return before == logic::one && after == logic::zero; }
+  static bool rises(logic before, logic after) {
+    return before == logic::zero && after == logic::one;
+  }
+  static bool falls(logic before, logic after) {
+    return before == logic::one && after == logic::zero;
+  }
 
   // After the instant t (of step `step`): rules trigger, properties and
   // gauges look at the values after all of the instant's changes.
@@ -483,7 +511,8 @@ class driver {
     const auto& vals = sim_.values();
     bool changed = force_;
     for (std::size_t i = 0; i < observed_.size(); ++i)
-      if (vals[observed_[i]] != observed_last_[i]) changed = true, observed_last_[i] = vals[observed_[i]];
+      if (vals[observed_[i]] != observed_last_[i])
+        changed = true, observed_last_[i] = vals[observed_[i]];
     if (!changed) return;
     force_ = false;
     for (std::uint32_t i = 0; i < rules_.size(); ++i) {
@@ -501,8 +530,12 @@ class driver {
       const auto& p = d_.stim.properties[i];
       bool bad = false;
       switch (p.what) {
-        case property::kind::always: bad = eval_expr(p.expr, vals.data()) == logic::zero; break;
-        case property::kind::never: bad = eval_expr(p.expr, vals.data()) == logic::one; break;
+        case property::kind::always:
+          bad = eval_expr(p.expr, vals.data()) == logic::zero;
+          break;
+        case property::kind::never:
+          bad = eval_expr(p.expr, vals.data()) == logic::one;
+          break;
         case property::kind::never_rises_while:
           bad = rises(st.last, vals[p.net]) && eval_expr(p.expr, vals.data()) == logic::one;
           break;
@@ -533,9 +566,12 @@ class driver {
         case gauge::kind::pulse_high:
         case gauge::kind::pulse_low: {
           const bool high = g.what == gauge::kind::pulse_high;
-          if (high ? rises(st.a, a) : falls(st.a, a)) st.mark = t;
-          else if ((high ? falls(st.a, a) : rises(st.a, a)) && st.mark != never) st.sample(t - st.mark), st.mark = never;
-          else if (a == logic::x) st.mark = never;  // a pulse through x has no width
+          if (high ? rises(st.a, a) : falls(st.a, a))
+            st.mark = t;
+          else if ((high ? falls(st.a, a) : rises(st.a, a)) && st.mark != never)
+            st.sample(t - st.mark), st.mark = never;
+          else if (a == logic::x)
+            st.mark = never;  // a pulse through x has no width
           break;
         }
         case gauge::kind::latency: {
@@ -566,7 +602,8 @@ class driver {
     stopped_ = true;
   }
 
-  void check_expectations(const step_spec& spec, step_result& r, const std::vector<std::uint32_t>& glitch_tog,
+  void check_expectations(const step_spec& spec, step_result& r,
+                          const std::vector<std::uint32_t>& glitch_tog,
                           const std::vector<logic>& glitch_start) {
     std::size_t glitch_i = 0;
     for (const auto& e : spec.expects) {
@@ -576,27 +613,31 @@ class driver {
         case expectation::kind::value:
           x.got = sim_.values()[e.net];
           x.pass = x.got == e.want;
-          if (!x.pass) x.detail = fmt::format("{} is {}, expected {}", e.ref, to_char(x.got), to_char(e.want));
+          if (!x.pass)
+            x.detail = fmt::format("{} is {}, expected {}", e.ref, to_char(x.got), to_char(e.want));
           break;
         case expectation::kind::stable:
           x.pass = r.status == step_status::settled;
-          if (!x.pass) x.detail = fmt::format("step is {}, expected settled", status_name(r.status));
+          if (!x.pass)
+            x.detail = fmt::format("step is {}, expected settled", status_name(r.status));
           break;
         case expectation::kind::oscillating:
-          x.pass = r.status == step_status::oscillating && (!e.has_range || (r.period >= e.lo && r.period <= e.hi));
+          x.pass = r.status == step_status::oscillating &&
+                   (!e.has_range || (r.period >= e.lo && r.period <= e.hi));
           if (!x.pass)
             x.detail = r.status != step_status::oscillating
                            ? fmt::format("step is {}, expected oscillating", status_name(r.status))
-                           : fmt::format("period {} outside {}..{}", format_time(r.period), format_time(e.lo),
-                                         format_time(e.hi));
+                           : fmt::format("period {} outside {}..{}", format_time(r.period),
+                                         format_time(e.lo), format_time(e.hi));
           break;
         case expectation::kind::within:
           x.pass = r.status == step_status::settled && r.settle <= e.hi;
           if (!x.pass)
             x.detail = r.status != step_status::settled
-                           ? fmt::format("step is {}, expected to settle within {}", status_name(r.status),
-                                         format_time(e.hi))
-                           : fmt::format("settled after {}, budget {}", format_time(r.settle), format_time(e.hi));
+                           ? fmt::format("step is {}, expected to settle within {}",
+                                         status_name(r.status), format_time(e.hi))
+                           : fmt::format("settled after {}, budget {}", format_time(r.settle),
+                                         format_time(e.hi));
           break;
         case expectation::kind::no_glitch: {
           const auto toggles = sim_.toggle_count(e.net) - glitch_tog[glitch_i];
@@ -604,7 +645,9 @@ class driver {
           ++glitch_i;
           x.got = sim_.values()[e.net];
           x.pass = toggles <= needed;
-          if (!x.pass) x.detail = fmt::format("{} changed {} times, its net change needs {}", e.ref, toggles, needed);
+          if (!x.pass)
+            x.detail =
+                fmt::format("{} changed {} times, its net change needs {}", e.ref, toggles, needed);
           break;
         }
         case expectation::kind::deterministic:
@@ -619,9 +662,9 @@ class driver {
           if (!g.step_count)
             x.detail = fmt::format("{} took no sample in this step", e.ref);
           else if (!x.pass)
-            x.detail = fmt::format("{} ranged {}..{} over {} samples, expected within {}..{}", e.ref,
-                                   format_time(g.step_min), format_time(g.step_max), g.step_count,
-                                   format_time(e.lo), format_time(e.hi));
+            x.detail = fmt::format("{} ranged {}..{} over {} samples, expected within {}..{}",
+                                   e.ref, format_time(g.step_min), format_time(g.step_max),
+                                   g.step_count, format_time(e.lo), format_time(e.hi));
           break;
         }
       }

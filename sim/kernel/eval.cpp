@@ -1,4 +1,5 @@
-// Exact ternary evaluation of every gate kind (Eichelberger 1965; Muller and Bartky 1959 for C-elements).
+// Exact ternary evaluation of every gate kind (Eichelberger 1965; Muller and Bartky 1959 for
+// C-elements).
 #include "sim/kernel/eval.hpp"
 
 #include <array>
@@ -32,10 +33,18 @@ void run_program(const netlist& n, gate_id g, Value&& input, logic* stack, int& 
   for (auto pc = n.code_begin[g]; pc < n.code_begin[g + 1]; ++pc) {
     const auto w = n.code[pc];
     switch (opcode(w)) {
-      case op::input: stack[sp++] = input(operand(w)); break;
-      case op::const0: stack[sp++] = logic::zero; break;
-      case op::const1: stack[sp++] = logic::one; break;
-      case op::inv: stack[sp - 1] = inv(stack[sp - 1]); break;
+      case op::input:
+        stack[sp++] = input(operand(w));
+        break;
+      case op::const0:
+        stack[sp++] = logic::zero;
+        break;
+      case op::const1:
+        stack[sp++] = logic::one;
+        break;
+      case op::inv:
+        stack[sp - 1] = inv(stack[sp - 1]);
+        break;
       case op::and2: {
         logic b = stack[--sp], a = stack[sp - 1];
         stack[sp - 1] = (a == logic::zero || b == logic::zero) ? logic::zero
@@ -45,7 +54,7 @@ void run_program(const netlist& n, gate_id g, Value&& input, logic* stack, int& 
       }
       case op::or2: {
         logic b = stack[--sp], a = stack[sp - 1];
-        stack[sp - 1] = (a == logic::one || b == logic::one) ? logic::one
+        stack[sp - 1] = (a == logic::one || b == logic::one)     ? logic::one
                         : (a == logic::zero && b == logic::zero) ? logic::zero
                                                                  : logic::x;
         break;
@@ -76,8 +85,10 @@ logic eval_direct(const netlist& n, gate_id g, Value&& input, logic present) {
     return c;
   };
   switch (n.kind[g]) {
-    case gate_kind::buf: return input(0);
-    case gate_kind::inv: return inv(input(0));
+    case gate_kind::buf:
+      return input(0);
+    case gate_kind::inv:
+      return inv(input(0));
     case gate_kind::and_:
     case gate_kind::nand: {
       auto c = count();
@@ -105,7 +116,8 @@ logic eval_direct(const netlist& n, gate_id g, Value&& input, logic present) {
       auto c = count();
       return 2 * c.one > c.n ? logic::one : 2 * c.zero > c.n ? logic::zero : logic::x;
     }
-    case gate_kind::celem: return c_element(count(), present);
+    case gate_kind::celem:
+      return c_element(count(), present);
     case gate_kind::dff: {
       // Without the clock's history a flip-flop can only be bounded: it holds
       // while CK is 0 and may have taken D otherwise. The timed kernel knows
@@ -166,8 +178,7 @@ logic eval_enumerated(const netlist& n, gate_id g, const logic* v, logic present
     if (v[n.fanin[i]] == logic::x) exact = add_var(n.fanin[i]);
   if (holds && present == logic::x && exact) exact = add_var(self);
   auto direct = [&](auto&& value_of, logic p) { return eval_direct(n, g, value_of, p); };
-  if (!exact || k == 0)
-    return direct([&](std::uint32_t i) { return v[n.fanin[b + i]]; }, present);
+  if (!exact || k == 0) return direct([&](std::uint32_t i) { return v[n.fanin[b + i]]; }, present);
 
   logic result = logic::x;
   for (std::uint32_t m = 0; m < (1u << k); ++m) {
@@ -179,8 +190,10 @@ logic eval_enumerated(const netlist& n, gate_id g, const logic* v, logic present
     logic r = direct([&](std::uint32_t i) { return value(n.fanin[b + i]); },
                      holds ? value(self) : present);
     if (r == logic::x) return logic::x;
-    if (m == 0) result = r;
-    else if (r != result) return logic::x;
+    if (m == 0)
+      result = r;
+    else if (r != result)
+      return logic::x;
   }
   return result;
 }
@@ -189,8 +202,8 @@ logic eval_enumerated(const netlist& n, gate_id g, const logic* v, logic present
 
 logic eval_gate(const netlist& n, gate_id g, const logic* v, logic present) {
   if (n.enumerate[g]) return eval_enumerated(n, g, v, present);
-  return eval_direct(n, g, [&](std::uint32_t i) { return v[n.fanin[n.fanin_begin[g] + i]]; },
-                     present);
+  return eval_direct(
+      n, g, [&](std::uint32_t i) { return v[n.fanin[n.fanin_begin[g] + i]]; }, present);
 }
 
 }  // namespace settle

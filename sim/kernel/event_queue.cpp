@@ -24,8 +24,11 @@ event_queue::event_queue(time_fs largest_delay, time_fs smallest_delay) {
   unsigned slot_bits = min_slot_bits;
   for (;; ++slot_bits) {
     width_bits_ = 0;
-    while ((time_fs{1} << (width_bits_ + slot_bits)) < 2 * largest_delay && width_bits_ < 40) ++width_bits_;
-    if (slot_bits == max_slot_bits || smallest_delay == 0 || (time_fs{2} << width_bits_) <= smallest_delay) break;
+    while ((time_fs{1} << (width_bits_ + slot_bits)) < 2 * largest_delay && width_bits_ < 40)
+      ++width_bits_;
+    if (slot_bits == max_slot_bits || smallest_delay == 0 ||
+        (time_fs{2} << width_bits_) <= smallest_delay)
+      break;
   }
   wheel_.resize(std::size_t{1} << slot_bits);
   mask_ = wheel_.size() - 1;
@@ -33,7 +36,8 @@ event_queue::event_queue(time_fs largest_delay, time_fs smallest_delay) {
 
 void event_queue::clear() {
   for (std::size_t w = 0; w < occupied_.size(); ++w)
-    for (auto bits = occupied_[w]; bits; bits &= bits - 1) wheel_[w * 64 + __builtin_ctzll(bits)].clear();
+    for (auto bits = occupied_[w]; bits; bits &= bits - 1)
+      wheel_[w * 64 + __builtin_ctzll(bits)].clear();
   occupied_.fill(0);
   sorted_bits_.fill(0);
   far_.clear();
@@ -57,8 +61,9 @@ void event_queue::migrate() {
 void event_queue::order_last(std::size_t s) {
   auto& v = wheel_[s];
   const queued_event e = v.end()[-1];
-  auto* const at = std::upper_bound(v.begin() + (s == cur_ ? pos_ : 0), v.end() - 1, e,
-                                    [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
+  auto* const at = std::upper_bound(
+      v.begin() + (s == cur_ ? pos_ : 0), v.end() - 1, e,
+      [](const queued_event& a, const queued_event& b) { return a.time < b.time; });
   std::copy_backward(at, v.end() - 1, v.end());
   *at = e;
 }
@@ -74,7 +79,8 @@ void radix_order(queued_event* a, queued_event* tmp, std::size_t n, unsigned bit
   const unsigned digit = (bits + Passes - 1) / Passes;
   std::uint32_t count[Passes][65] = {};
   time_fs mask[Passes];
-  for (unsigned p = 0; p < Passes; ++p) mask[p] = (time_fs{1} << std::min(digit, bits - p * digit)) - 1;
+  for (unsigned p = 0; p < Passes; ++p)
+    mask[p] = (time_fs{1} << std::min(digit, bits - p * digit)) - 1;
   for (std::size_t i = 0; i < n; ++i) {
     const time_fs t = a[i].time;
     for (unsigned p = 0; p < Passes; ++p) ++count[p][((t >> (p * digit)) & mask[p]) + 1];
@@ -108,14 +114,22 @@ void event_queue::sort_slot(std::size_t s) {
   }
   if (scratch_.size() < n) scratch_.resize(n);
   switch ((width_bits_ + 5) / 6) {  // passes of at most 6 bits (the width is at most 40)
-    case 0: return;
-    case 1: return radix_order<1>(first, scratch_.data(), n, width_bits_);
-    case 2: return radix_order<2>(first, scratch_.data(), n, width_bits_);
-    case 3: return radix_order<3>(first, scratch_.data(), n, width_bits_);
-    case 4: return radix_order<4>(first, scratch_.data(), n, width_bits_);
-    case 5: return radix_order<5>(first, scratch_.data(), n, width_bits_);
-    case 6: return radix_order<6>(first, scratch_.data(), n, width_bits_);
-    default: return radix_order<7>(first, scratch_.data(), n, width_bits_);
+    case 0:
+      return;
+    case 1:
+      return radix_order<1>(first, scratch_.data(), n, width_bits_);
+    case 2:
+      return radix_order<2>(first, scratch_.data(), n, width_bits_);
+    case 3:
+      return radix_order<3>(first, scratch_.data(), n, width_bits_);
+    case 4:
+      return radix_order<4>(first, scratch_.data(), n, width_bits_);
+    case 5:
+      return radix_order<5>(first, scratch_.data(), n, width_bits_);
+    case 6:
+      return radix_order<6>(first, scratch_.data(), n, width_bits_);
+    default:
+      return radix_order<7>(first, scratch_.data(), n, width_bits_);
   }
 }
 
@@ -180,6 +194,8 @@ time_fs event_queue::find_min() {
   }
 }
 
-std::span<const queued_event> event_queue::take_front() { return take_until(std::numeric_limits<time_fs>::max()); }
+std::span<const queued_event> event_queue::take_front() {
+  return take_until(std::numeric_limits<time_fs>::max());
+}
 
 }  // namespace settle

@@ -153,7 +153,9 @@ class event_queue {
   // The far heap's order: a min-heap on time.
   static bool later(const queued_event& a, const queued_event& b) { return a.time > b.time; }
   std::size_t cursor_slot() const { return cur_; }
-  std::size_t slot_of(time_fs t) const { return static_cast<std::size_t>((t >> width_bits_) & mask_); }
+  std::size_t slot_of(time_fs t) const {
+    return static_cast<std::size_t>((t >> width_bits_) & mask_);
+  }
   void move_cursor(time_fs t) { base_ = (t >> width_bits_) << width_bits_, cur_ = slot_of(t); }
   bool in_wheel(time_fs t) const { return (t >> width_bits_) - (floor_ >> width_bits_) <= mask_; }
   void put(const queued_event& e) { put_if(true, e); }
@@ -176,15 +178,15 @@ class event_queue {
   // Slots holding entries, and slots in time order (the first wheel_.size() bits).
   std::array<std::uint64_t, (std::size_t{1} << max_slot_bits) / 64> occupied_{}, sorted_bits_{};
   std::vector<queued_event> scratch_;  // sort_slot's radix passes
-  std::vector<queued_event> far_;  // a min-heap on time
+  std::vector<queued_event> far_;      // a min-heap on time
   unsigned width_bits_ = 0;
-  time_fs base_ = 0;               // start of the slot under the cursor
-  std::size_t cur_ = 0;            // the slot under the cursor: slot_of(base_)
-  time_fs floor_ = 0;              // the last instant taken: no push is earlier
-  std::size_t pos_ = 0;            // next entry of the (sorted) cursor slot
-  std::size_t in_wheel_ = 0;       // entries on the wheel (the rest are in far_)
-  time_fs next_ = 0;               // min_time() while next_valid_
-  std::size_t mask_ = 0;           // the slot count less one
+  time_fs base_ = 0;                      // start of the slot under the cursor
+  std::size_t cur_ = 0;                   // the slot under the cursor: slot_of(base_)
+  time_fs floor_ = 0;                     // the last instant taken: no push is earlier
+  std::size_t pos_ = 0;                   // next entry of the (sorted) cursor slot
+  std::size_t in_wheel_ = 0;              // entries on the wheel (the rest are in far_)
+  time_fs next_ = 0;                      // min_time() while next_valid_
+  std::size_t mask_ = 0;                  // the slot count less one
   std::size_t la_slot_ = 0, la_pos_ = 0;  // the look-ahead's next entry (while lead_ > 0)
   std::size_t lead_ = 0;                  // entries it passed less those taken since
   bool next_valid_ = false;

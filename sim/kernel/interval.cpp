@@ -27,11 +27,11 @@ namespace {
 // One pending output change of the interval kernel.
 struct ambiguous_event {
   time_fs time;
-  std::uint64_t seq;     // insertion order: ties resolve deterministically
+  std::uint64_t seq;  // insertion order: ties resolve deterministically
   gate_id gate;
   logic value;
-  bool set;              // true: O <- value; false: O <- lub(O, value) (a join)
-  std::uint32_t id;      // the stretch (set) or run (join) it belongs to
+  bool set;          // true: O <- value; false: O <- lub(O, value) (a join)
+  std::uint32_t id;  // the stretch (set) or run (join) it belongs to
   bool operator>(const ambiguous_event& o) const {
     return time != o.time ? time > o.time : set != o.set ? !set : seq > o.seq;
   }
@@ -100,7 +100,9 @@ class interval_kernel {
     return n;
   }
 
-  bool quiet() const { return !eval_all_ && std::none_of(heap_.begin(), heap_.end(), [&](auto& e) { return live(e); }); }
+  bool quiet() const {
+    return !eval_all_ && std::none_of(heap_.begin(), heap_.end(), [&](auto& e) { return live(e); });
+  }
   time_fs now() const { return now_; }
   time_fs last_change() const { return last_change_; }
   time_fs largest_delay() const { return largest_; }
@@ -119,7 +121,8 @@ class interval_kernel {
     s.toggles = toggles_;
   }
   bool same_state(const state_snapshot& s, std::span<const std::uint64_t> extra) const {
-    if (s.hash != hash_ || s.values != val_ || !std::equal(extra.begin(), extra.end(), s.extra.begin(), s.extra.end()))
+    if (s.hash != hash_ || s.values != val_ ||
+        !std::equal(extra.begin(), extra.end(), s.extra.begin(), s.extra.end()))
       return false;
     std::vector<std::pair<std::uint64_t, std::uint64_t>> p;
     gather(p);
@@ -128,7 +131,9 @@ class interval_kernel {
   void finish(time_fs) {}
 
  private:
-  static std::uint64_t key(net_id n, logic v) { return mix64(std::uint64_t{n} << 2 | static_cast<std::uint64_t>(v)); }
+  static std::uint64_t key(net_id n, logic v) {
+    return mix64(std::uint64_t{n} << 2 | static_cast<std::uint64_t>(v));
+  }
 
   bool live(const ambiguous_event& e) const {
     if (e.set) return stretch_[e.gate] == e.id;
@@ -207,7 +212,8 @@ class interval_kernel {
 
 std::string interval_refusal(const design& d) {
   if (d.stim.rules.empty()) return {};
-  return "the interval run does not take reaction rules ('when'); run the corners without 'interval'";
+  return "the interval run does not take reaction rules ('when'); run the corners without "
+         "'interval'";
 }
 
 interval_result run_interval(const design& d, const run_options& opt) {
@@ -222,8 +228,9 @@ interval_result run_interval(const design& d, const run_options& opt) {
   for (auto& s : r.steps) {
     interval_step st;
     st.status = s.status;
-    st.proven = s.status == step_status::settled &&
-                std::none_of(s.values.begin(), s.values.end(), [](logic v) { return v == logic::x; });
+    st.proven =
+        s.status == step_status::settled &&
+        std::none_of(s.values.begin(), s.values.end(), [](logic v) { return v == logic::x; });
     st.values = std::move(s.values);
     st.expects = std::move(s.expects);
     out.steps.push_back(std::move(st));

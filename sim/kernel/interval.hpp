@@ -6,8 +6,8 @@
 #include <string>
 #include <vector>
 
-#include "sim/model/design.hpp"
 #include "sim/kernel/run.hpp"
+#include "sim/model/design.hpp"
 
 namespace settle {
 

@@ -7,12 +7,18 @@ namespace settle {
 
 const char* status_name(step_status s) {
   switch (s) {
-    case step_status::settled: return "settled";
-    case step_status::oscillating: return "oscillating";
-    case step_status::timeout: return "timeout";
-    case step_status::running: return "running";
-    case step_status::event_limit: return "event_limit";
-    case step_status::deadlock: return "deadlock";
+    case step_status::settled:
+      return "settled";
+    case step_status::oscillating:
+      return "oscillating";
+    case step_status::timeout:
+      return "timeout";
+    case step_status::running:
+      return "running";
+    case step_status::event_limit:
+      return "event_limit";
+    case step_status::deadlock:
+      return "deadlock";
   }
   return "?";
 }
@@ -22,9 +28,10 @@ std::vector<net_id> unknown_at_end(const step_spec* spec, std::span<const net_id
   std::vector<net_id> out;
   for (std::size_t i = 0; i < reported.size() && i < values.size(); ++i) {
     if (values[i] != logic::x) continue;
-    const bool expected = spec && std::any_of(spec->expects.begin(), spec->expects.end(), [&](const expectation& e) {
-      return e.what == expectation::kind::value && e.net == reported[i] && e.want == logic::x;
-    });
+    const bool expected =
+        spec && std::any_of(spec->expects.begin(), spec->expects.end(), [&](const expectation& e) {
+          return e.what == expectation::kind::value && e.net == reported[i] && e.want == logic::x;
+        });
     if (!expected) out.push_back(reported[i]);
   }
   return out;
@@ -39,29 +46,35 @@ bool step_result::pass() const {
   }
   switch (status) {
     case step_status::settled:
-    case step_status::running: return true;
-    case step_status::oscillating: return expected_oscillation;
-    default: return false;
+    case step_status::running:
+      return true;
+    case step_status::oscillating:
+      return expected_oscillation;
+    default:
+      return false;
   }
 }
 
 bool run_result::pass() const {
-  return !error && std::all_of(steps.begin(), steps.end(), [](const step_result& s) { return s.pass(); }) &&
-         std::all_of(properties.begin(), properties.end(), [](const property_result& p) { return p.holds; });
+  return !error &&
+         std::all_of(steps.begin(), steps.end(), [](const step_result& s) { return s.pass(); }) &&
+         std::all_of(properties.begin(), properties.end(),
+                     [](const property_result& p) { return p.holds; });
 }
 
 run_context::run_context(const netlist& n) : sim_(std::make_unique<simulator>(n)) {}
 run_context::~run_context() = default;
 
-run_result run_stimulus(run_context& ctx, const design& d, const delay_table& delays, const run_options& opt,
-                        change_sink* trace) {
+run_result run_stimulus(run_context& ctx, const design& d, const delay_table& delays,
+                        const run_options& opt, change_sink* trace) {
   simulator& sim = ctx.sim();
   sim.set_trace(trace);
   sim.reset(delays);
   return detail::driver<simulator>(sim, d, opt, &delays).run();
 }
 
-run_result run_stimulus(const design& d, const delay_table& delays, const run_options& opt, change_sink* trace) {
+run_result run_stimulus(const design& d, const delay_table& delays, const run_options& opt,
+                        change_sink* trace) {
   run_context ctx(d.nets);
   return run_stimulus(ctx, d, delays, opt, trace);
 }

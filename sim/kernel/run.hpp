@@ -46,15 +46,15 @@ const char* status_name(step_status s);
 struct expect_result {
   const expectation* spec = nullptr;
   bool pass = false;
-  logic got = logic::x;   ///< value expectations
-  std::string detail;     ///< a short human reason when it fails
+  logic got = logic::x;  ///< value expectations
+  std::string detail;    ///< a short human reason when it fails
 };
 
 /// A `times N` rule that had not fired N times when its step deadlocked.
 struct owed_rule {
-  std::uint32_t rule = 0;        ///< index in stimulus::rules (its text is there)
+  std::uint32_t rule = 0;  ///< index in stimulus::rules (its text is there)
   std::uint64_t fired = 0, times = 0;
-  logic condition = logic::x;    ///< the condition's value at the end of the step
+  logic condition = logic::x;  ///< the condition's value at the end of the step
 };
 
 struct step_result {
@@ -62,22 +62,22 @@ struct step_result {
   std::string label;
   time_fs start = 0, end = 0;
   step_status status = step_status::settled;
-  time_fs settle = 0;     ///< last value change minus start
-  time_fs period = 0;     ///< oscillating only
+  time_fs settle = 0;  ///< last value change minus start
+  time_fs period = 0;  ///< oscillating only
   /// A timeout because the step could not go on without passing the end of
   /// representable time (sim/model/time.hpp); `end` is the last instant it could process.
   bool end_of_time = false;
-  std::vector<net_id> toggling;          ///< oscillating only
-  std::vector<logic> values;             ///< per reported net, at the end
-  std::vector<logic> start_values;       ///< per reported net, at the start
-  std::vector<std::uint32_t> transitions;///< per reported net, within the step
+  std::vector<net_id> toggling;            ///< oscillating only
+  std::vector<logic> values;               ///< per reported net, at the end
+  std::vector<logic> start_values;         ///< per reported net, at the start
+  std::vector<std::uint32_t> transitions;  ///< per reported net, within the step
   std::vector<expect_result> expects;
-  std::vector<owed_rule> owed;           ///< deadlock only
+  std::vector<owed_rule> owed;  ///< deadlock only
   /// Reported nets at x at the end of the step that the step does not expect
   /// at x (`expect NET = x`); empty for an oscillating step and under
   /// run_options::allow_x. A finding.
   std::vector<net_id> unknown;
-  bool pass() const;  ///< no finding in this step
+  bool pass() const;         ///< no finding in this step
   std::uint64_t events = 0;  ///< value changes applied within the step
   /// A settle step whose net values at an instant equalled those at an
   /// earlier instant (repeat detection's snapshot) while the full state,
@@ -91,22 +91,22 @@ struct property_result {
   std::uint32_t property = 0;  ///< index in stimulus::properties
   bool holds = true;
   time_fs first_violation = 0;
-  std::size_t step = 0;        ///< 1-based step of the first violation
+  std::size_t step = 0;                          ///< 1-based step of the first violation
   std::vector<std::pair<net_id, logic>> values;  ///< the nets involved, at the violation
 };
 
 /// A gauge's samples over the run.
 struct gauge_result {
-  std::uint32_t gauge = 0;     ///< index in stimulus::gauges
+  std::uint32_t gauge = 0;  ///< index in stimulus::gauges
   std::uint64_t count = 0;
-  time_fs min = 0, max = 0;    ///< 0 when count is 0
-  double mean = 0;             ///< fs; 0 when count is 0
+  time_fs min = 0, max = 0;  ///< 0 when count is 0
+  double mean = 0;           ///< fs; 0 when count is 0
 };
 
 struct run_options {
-  time_fs horizon = 0;          ///< 0: 10,000 x the largest gate max delay
-  std::uint64_t max_events = 0; ///< 0: unlimited
-  bool allow_x = false;         ///< --allow-x: a net at x at the end of a step is no finding
+  time_fs horizon = 0;           ///< 0: 10,000 x the largest gate max delay
+  std::uint64_t max_events = 0;  ///< 0: unlimited
+  bool allow_x = false;          ///< --allow-x: a net at x at the end of a step is no finding
   /// When set and true, the run stops at the next instant as if the event
   /// limit were reached (interruption, wall-clock timeout); may be null.
   const std::atomic<bool>* stop = nullptr;
@@ -116,7 +116,7 @@ struct run_result {
   std::string corner;
   std::vector<net_id> reported;  ///< outputs, then watched nets
   std::vector<step_result> steps;
-  std::uint64_t events = 0;      ///< value changes applied
+  std::uint64_t events = 0;  ///< value changes applied
   time_fs end = 0;
   std::vector<property_result> properties;  ///< one per stimulus property, in order
   std::vector<gauge_result> gauges;         ///< one per stimulus gauge, in order
@@ -151,7 +151,7 @@ class run_context {
 run_result run_stimulus(const design& d, const delay_table& delays, const run_options& opt,
                         change_sink* trace = nullptr);
 /// The same, reusing `ctx`'s buffers (ctx must have been made for d.nets).
-run_result run_stimulus(run_context& ctx, const design& d, const delay_table& delays, const run_options& opt,
-                        change_sink* trace = nullptr);
+run_result run_stimulus(run_context& ctx, const design& d, const delay_table& delays,
+                        const run_options& opt, change_sink* trace = nullptr);
 
 }  // namespace settle

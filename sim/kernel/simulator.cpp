@@ -1,11 +1,11 @@
 // The event-driven kernel: same-instant semantics, inertial and transport delays.
 #include "sim/kernel/simulator.hpp"
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <limits>
 #include <stdexcept>
-
-#include <fmt/format.h>
 
 #include "sim/kernel/eval.hpp"
 
@@ -20,7 +20,8 @@ constexpr std::size_t trace_batch = 1 << 14;
 
 // Zobrist-style key of (net, value) for the incremental state hash.
 constexpr std::uint64_t value_key(net_id net, logic v) {
-  std::uint64_t z = (std::uint64_t{net} << 2 | static_cast<std::uint64_t>(v)) + 0x9e3779b97f4a7c15ull;
+  std::uint64_t z =
+      (std::uint64_t{net} << 2 | static_cast<std::uint64_t>(v)) + 0x9e3779b97f4a7c15ull;
   z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ull;
   z = (z ^ (z >> 27)) * 0x94d049bb133111ebull;
   return z ^ (z >> 31);
@@ -33,8 +34,8 @@ std::pair<std::uint64_t, std::uint64_t> pending_key(time_fs rel, gate_id g, logi
 
 }  // namespace
 
-
-simulator::simulator(const netlist& n) : n_(n), queue_(n.largest_max_delay(), n.smallest_min_delay()) {
+simulator::simulator(const netlist& n)
+    : n_(n), queue_(n.largest_max_delay(), n.smallest_min_delay()) {
   const auto nets = n.net_count(), gates = n.gate_count();
   build_fast_paths();
   val_.resize(nets);
@@ -59,8 +60,10 @@ void simulator::build_fast_paths() {
   std::vector<net_id> y;
   for (int k = 0; k < gate_kind_count; ++k) y.push_back(probe.add_net(fmt::format("y{}", k), 0));
   const gate_id first_two = gate_kind_count;
-  for (int k = 0; k < gate_kind_count; ++k) probe.add_gate(static_cast<gate_kind>(k), y[k], {a}, {}, {});
-  for (int k = 0; k < gate_kind_count; ++k) probe.add_gate(static_cast<gate_kind>(k), y[k], {a, b}, {}, {});
+  for (int k = 0; k < gate_kind_count; ++k)
+    probe.add_gate(static_cast<gate_kind>(k), y[k], {a}, {}, {});
+  for (int k = 0; k < gate_kind_count; ++k)
+    probe.add_gate(static_cast<gate_kind>(k), y[k], {a, b}, {}, {});
   probe.finish();
   std::vector<logic> v(probe.net_count(), logic::x);
   v[0] = logic::zero, v[1] = logic::one;
@@ -68,13 +71,15 @@ void simulator::build_fast_paths() {
   const int one_row = gate_kind_count, c2_row = 2 * gate_kind_count;
   for (int k = 0; k < gate_kind_count; ++k) {
     const auto kind = static_cast<gate_kind>(k);
-    const bool one_ok = kind == gate_kind::buf || kind == gate_kind::inv || kind == gate_kind::and_ ||
-                        kind == gate_kind::nand || kind == gate_kind::or_ || kind == gate_kind::nor ||
+    const bool one_ok = kind == gate_kind::buf || kind == gate_kind::inv ||
+                        kind == gate_kind::and_ || kind == gate_kind::nand ||
+                        kind == gate_kind::or_ || kind == gate_kind::nor ||
                         kind == gate_kind::xor_ || kind == gate_kind::xnor;
     const bool two_ok = one_ok && kind != gate_kind::buf && kind != gate_kind::inv;
     for (int i = 0; i < 3; ++i) {
       v[a] = levels[i];
-      const logic single = one_ok ? eval_gate(probe, static_cast<gate_id>(k), v.data(), logic::x) : logic::x;
+      const logic single =
+          one_ok ? eval_gate(probe, static_cast<gate_id>(k), v.data(), logic::x) : logic::x;
       for (int j = 0; j < 3; ++j) {
         v[b] = levels[j];
         const logic pair = two_ok ? eval_gate(probe, first_two + k, v.data(), logic::x) : logic::x;
@@ -82,7 +87,8 @@ void simulator::build_fast_paths() {
           const int at = i * 9 + j * 3 + q;
           lut_[k * 27 + at] = pair;
           lut_[(one_row + k) * 27 + at] = single;
-          if (kind == gate_kind::celem) lut_[c2_row * 27 + at] = eval_gate(probe, first_two + k, v.data(), levels[q]);
+          if (kind == gate_kind::celem)
+            lut_[c2_row * 27 + at] = eval_gate(probe, first_two + k, v.data(), levels[q]);
         }
       }
     }
@@ -99,8 +105,8 @@ void simulator::build_fast_paths() {
   // a tenth of the instructions of an event).
   prefetch_ = n_.gate_count() * sizeof(gate_rec) > prefetch_above;
   if (n_.gate_count() > reader(~fan_entry{0}))
-    throw std::length_error(
-        fmt::format("{} gates: the kernel takes at most {}", n_.gate_count(), reader(~fan_entry{0})));
+    throw std::length_error(fmt::format("{} gates: the kernel takes at most {}", n_.gate_count(),
+                                        reader(~fan_entry{0})));
   ins_.resize(n_.gate_count());
   for (gate_id g = 0; g < n_.gate_count(); ++g) {
     gate_rec& f = gate_[g];
@@ -109,8 +115,8 @@ void simulator::build_fast_paths() {
     f.out = n_.gate_out[g];
     ins_[g].in0 = fan > 0 ? n_.fanin[n_.fanin_begin[g]] : 0;
     ins_[g].in1 = fan > 1 ? n_.fanin[n_.fanin_begin[g] + 1] : ins_[g].in0;
-    const bool simple = k != gate_kind::mux && k != gate_kind::maj && k != gate_kind::gc && k != gate_kind::expr &&
-                        k != gate_kind::dff && !n_.enumerate[g];
+    const bool simple = k != gate_kind::mux && k != gate_kind::maj && k != gate_kind::gc &&
+                        k != gate_kind::expr && k != gate_kind::dff && !n_.enumerate[g];
     f.op = gate_rec::general;
     if (k == gate_kind::dff) {
       f.op = gate_rec::edge;
@@ -143,7 +149,8 @@ void simulator::build_fast_paths() {
   queued_.assign(n_.gate_count(), 0);
 }
 
-SETTLE_HOT std::span<const simulator::fan_entry> simulator::fanout_of(gate_id g, const gate_rec& r) const {
+SETTLE_HOT std::span<const simulator::fan_entry> simulator::fanout_of(gate_id g,
+                                                                      const gate_rec& r) const {
   const std::uint32_t n = r.nfo != gate_rec::many ? r.nfo : fo_start_[g + 1] - r.fo;
   return {fo_.data() + r.fo, n};
 }
@@ -160,8 +167,9 @@ void simulator::reset(const delay_table& delays) {
     queued_[g] = 0;
   }
   constexpr time_fs narrow = std::numeric_limits<std::uint32_t>::max();
-  wide_ = std::any_of(delays.rise.begin(), delays.rise.end(), [](time_fs d) { return d > narrow; }) ||
-          std::any_of(delays.fall.begin(), delays.fall.end(), [](time_fs d) { return d > narrow; });
+  wide_ =
+      std::any_of(delays.rise.begin(), delays.rise.end(), [](time_fs d) { return d > narrow; }) ||
+      std::any_of(delays.fall.begin(), delays.fall.end(), [](time_fs d) { return d > narrow; });
   wide_delay_.clear();
   within_reach_ = true;
   largest_delay_ = 0;
@@ -197,7 +205,8 @@ void simulator::track_state(bool on) {
 
 SETTLE_HOT time_fs simulator::delay_of(gate_id g, logic from, logic to) const {
   const gate_rec& d = gate_[g];
-  const time_fs r = wide_ ? wide_delay_[g].rise : d.delay[0], f = wide_ ? wide_delay_[g].fall : d.delay[1];
+  const time_fs r = wide_ ? wide_delay_[g].rise : d.delay[0],
+                f = wide_ ? wide_delay_[g].fall : d.delay[1];
   // A rise takes the rise delay, a fall the fall delay, anything through x
   // the shorter: by selects, with no branch on data that follows no pattern.
   const time_fs edge = to == logic::one ? r : f, shorter = r < f ? r : f;
@@ -262,7 +271,8 @@ SETTLE_HOT void simulator::pass_value(fan_entry e, logic v) {
 // Gate g's output takes the value v (the caller knows it differs); returns
 // the gates it feeds, for the caller to pass the value on.
 template <bool Plain>
-SETTLE_HOT std::span<const simulator::fan_entry> simulator::change_output(gate_id g, gate_rec& r, logic v, time_fs t) {
+SETTLE_HOT std::span<const simulator::fan_entry> simulator::change_output(gate_id g, gate_rec& r,
+                                                                          logic v, time_fs t) {
   change_value<Plain>(r.out, v, t);
   r.vout = v;
   ++r.toggles;
@@ -296,7 +306,8 @@ SETTLE_HOT void simulator::apply_output(gate_id g, gate_rec& r, logic v, time_fs
 SETTLE_HOT logic simulator::eval_fast(gate_id g, logic present) {
   const gate_rec& f = gate_[g];
   if (f.op < lut_rows) [[likely]]
-    return lut_[f.op * 27 + static_cast<int>(f.v0) * 9 + static_cast<int>(f.v1) * 3 + static_cast<int>(present)];
+    return lut_[f.op * 27 + static_cast<int>(f.v0) * 9 + static_cast<int>(f.v1) * 3 +
+                static_cast<int>(present)];
   if (f.op == gate_rec::edge) {
     // A flip-flop is evaluated whenever CK or D changes, so the CK it saw
     // last time tells a rising edge (0 -> 1) from anything else.
@@ -324,7 +335,9 @@ std::uint8_t simulator::plan_of(logic present, logic pend, logic v) {
     if (pend != none) next = 3, bump = 1, live = 0;
   } else {
     next = static_cast<unsigned>(v), queue = 1, bump = 1, live = pend == none ? 2 : 1;
-    pick = present == logic::zero && v == logic::one ? 0 : present == logic::one && v == logic::zero ? 1 : 2;
+    pick = present == logic::zero && v == logic::one   ? 0
+           : present == logic::one && v == logic::zero ? 1
+                                                       : 2;
   }
   return static_cast<std::uint8_t>(next | queue << 2 | bump << 3 | live << 4 | pick << 6);
 }
@@ -348,8 +361,9 @@ SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
   if constexpr (Plain) {
     // Inertial gates of a table row (transport ones have none) by one lookup.
     if (r.op < lut_rows) [[likely]] {
-      const unsigned at = unsigned{r.op} << 8 | static_cast<unsigned>(r.v0) << 6 | static_cast<unsigned>(r.v1) << 4 |
-                          static_cast<unsigned>(r.vout) << 2 | static_cast<unsigned>(r.pend);
+      const unsigned at = unsigned{r.op} << 8 | static_cast<unsigned>(r.v0) << 6 |
+                          static_cast<unsigned>(r.v1) << 4 | static_cast<unsigned>(r.vout) << 2 |
+                          static_cast<unsigned>(r.pend);
       take_step(g, r, step_[at], t);
       return;
     }
@@ -445,10 +459,13 @@ void simulator::process_instant(time_fs t, std::span<const assignment> inputs) {
   }
 }
 
-std::uint64_t simulator::run_quiet(time_fs last, std::uint64_t max_instants, std::uint64_t max_events) {
+std::uint64_t simulator::run_quiet(time_fs last, std::uint64_t max_instants,
+                                   std::uint64_t max_events) {
   std::uint64_t n = 0;
-  const std::uint64_t event_cap = max_events ? max_events : std::numeric_limits<std::uint64_t>::max();
-  const std::uint64_t instant_cap = max_instants ? max_instants : std::numeric_limits<std::uint64_t>::max();
+  const std::uint64_t event_cap =
+      max_events ? max_events : std::numeric_limits<std::uint64_t>::max();
+  const std::uint64_t instant_cap =
+      max_instants ? max_instants : std::numeric_limits<std::uint64_t>::max();
   if (eval_all_) {
     if (now_ > last) return 0;
     process_instant(now_, {});
@@ -456,12 +473,14 @@ std::uint64_t simulator::run_quiet(time_fs last, std::uint64_t max_instants, std
   }
   // Without trace or hash, and with every delay within the queue's reach,
   // the loop skips their tests and the queue's checks on each push.
-  if (!sink_ && !tracking_ && within_reach_ && !wide_) return run_loop<true>(last, n, instant_cap, event_cap);
+  if (!sink_ && !tracking_ && within_reach_ && !wide_)
+    return run_loop<true>(last, n, instant_cap, event_cap);
   return run_loop<false>(last, n, instant_cap, event_cap);
 }
 
 template <bool Plain>
-std::uint64_t simulator::run_loop(time_fs last, std::uint64_t n, std::uint64_t instant_cap, std::uint64_t event_cap) {
+std::uint64_t simulator::run_loop(time_fs last, std::uint64_t n, std::uint64_t instant_cap,
+                                  std::uint64_t event_cap) {
   for (;;) {
     if (live_ == 0) {
       queue_.clear();
@@ -502,7 +521,8 @@ void simulator::gather_pending(std::vector<std::pair<std::uint64_t, std::uint64_
   out.clear();
   queue_.for_each([&](const queued_event& e) {
     const gate_rec& r = gate_[e.gate];
-    if (!r.transport && r.pend != none && r.gen == e.gen) out.push_back(pending_key(e.time - now_, e.gate, r.pend));
+    if (!r.transport && r.pend != none && r.gen == e.gen)
+      out.push_back(pending_key(e.time - now_, e.gate, r.pend));
   });
   if (!tq_.empty())
     for (gate_id g = 0; g < n_.gate_count(); ++g)

@@ -9,9 +9,9 @@
 #include <utility>
 #include <vector>
 
-#include "sim/model/corner.hpp"
-#include "sim/kernel/run.hpp"
 #include "sim/kernel/event_queue.hpp"
+#include "sim/kernel/run.hpp"
+#include "sim/model/corner.hpp"
 #include "sim/model/netlist.hpp"
 
 namespace settle {
@@ -22,7 +22,8 @@ struct state_snapshot {
   time_fs time = 0;
   std::uint64_t hash = 0;
   std::vector<logic> values;
-  std::vector<std::pair<std::uint64_t, std::uint64_t>> pending;  ///< (relative time, gate<<2|value), sorted
+  std::vector<std::pair<std::uint64_t, std::uint64_t>>
+      pending;                         ///< (relative time, gate<<2|value), sorted
   std::vector<std::uint64_t> extra;    ///< driver state (clocks)
   std::vector<std::uint32_t> toggles;  ///< per-net transition counts at the snapshot
 };
@@ -86,7 +87,8 @@ class simulator {
   template <bool Plain = false>
   void change_value(net_id net, logic v, time_fs t);
   template <bool Plain>
-  std::uint64_t run_loop(time_fs last, std::uint64_t n, std::uint64_t instant_cap, std::uint64_t event_cap);
+  std::uint64_t run_loop(time_fs last, std::uint64_t n, std::uint64_t instant_cap,
+                         std::uint64_t event_cap);
   struct gate_rec;
   // A fan-out entry: the gate reading a net, shifted left by two, and which
   // of its first two inputs the net is (bit 0: the first, bit 1: the second).
@@ -121,20 +123,21 @@ class simulator {
   // one or two inputs, or a two-input C-element, evaluates by one lookup: row
   // `op` of lut_, at 9 x v0 + 3 x v1 + vout (a one-input gate reads its input
   // as its second too; only the C-element's rows depend on vout).
-  struct alignas(32) gate_rec {  // aligned: none straddles two cache lines
+  struct alignas(32) gate_rec {                         // aligned: none straddles two cache lines
     enum : std::uint8_t { general = 254, edge = 255 };  // else: a row of lut_
-    static constexpr std::uint8_t many = 255;          // fan-out count in fo_start_
+    static constexpr std::uint8_t many = 255;           // fan-out count in fo_start_
     net_id out = 0;
-    std::uint32_t gen = 0;             // inertial: generation of the live queue entry
-    std::uint32_t delay[2] = {};       // this run's rise and fall delays when they fit 32 bits (see wide_)
-    std::uint32_t fo = 0;              // fo_start_[gate]
-    std::uint32_t toggles = 0;         // transitions of out since reset (toggle_count)
+    std::uint32_t gen = 0;  // inertial: generation of the live queue entry
+    std::uint32_t delay[2] =
+        {};                     // this run's rise and fall delays when they fit 32 bits (see wide_)
+    std::uint32_t fo = 0;       // fo_start_[gate]
+    std::uint32_t toggles = 0;  // transitions of out since reset (toggle_count)
     std::uint8_t op = general;
-    std::uint8_t nfo = 0;              // fan-out count, or `many`
+    std::uint8_t nfo = 0;  // fan-out count, or `many`
     bool transport = false;
-    logic pend = none;                 // inertial: the pending value, or none
+    logic pend = none;  // inertial: the pending value, or none
     logic v0 = logic::x, v1 = logic::x, vout = logic::x;
-    std::uint8_t shorter = 0;          // the index in delay of the shorter
+    std::uint8_t shorter = 0;  // the index in delay of the shorter
   };
   static_assert(sizeof(gate_rec) == 32);
   // The first two inputs of each gate (a one-input gate's input twice).
@@ -156,8 +159,9 @@ class simulator {
   std::vector<edge_delays> wide_delay_;
   bool wide_ = false;
   bool within_reach_ = false;
-  time_fs largest_delay_ = 0;  // of this run's delay table  // every delay of this run shorter than queue_.reach()
-  std::vector<logic> clock_seen_;   // flip-flop primitives: CK at their last evaluation
+  time_fs largest_delay_ =
+      0;  // of this run's delay table  // every delay of this run shorter than queue_.reach()
+  std::vector<logic> clock_seen_;    // flip-flop primitives: CK at their last evaluation
   std::vector<std::uint32_t> slot_;  // transport gates: index into tq_, else no_id
 
   struct transport_event {
@@ -192,7 +196,7 @@ class simulator {
   // Entries looked ahead: 6 against 3 gave 1.02x at 10^5 gates and 1.23x at
   // 10^6 (8 no better), once an event took fewer cycles.
   static constexpr std::size_t prefetch_depth = 6;
-  gate_id near_ = 0, mid_ = 0, far_ = 0;            // the last three the look-ahead passed, oldest first
+  gate_id near_ = 0, mid_ = 0, far_ = 0;  // the last three the look-ahead passed, oldest first
 };
 
 }  // namespace settle

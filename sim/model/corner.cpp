@@ -1,10 +1,10 @@
 // Corner names and the counter-based delay draws behind them.
 #include "sim/model/corner.hpp"
 
+#include <fmt/format.h>
+
 #include <charconv>
 #include <cmath>
-
-#include <fmt/format.h>
 
 namespace settle {
 namespace {
@@ -19,7 +19,9 @@ constexpr std::uint64_t mix(std::uint64_t z) {
 
 // A draw that depends on (seed, corner index, gate, edge, stream) alone: the
 // corner's key, mix(mix(seed) ^ index), is worked out once per corner.
-constexpr std::uint64_t corner_key(std::uint64_t seed, std::uint64_t index) { return mix(mix(seed) ^ index); }
+constexpr std::uint64_t corner_key(std::uint64_t seed, std::uint64_t index) {
+  return mix(mix(seed) ^ index);
+}
 std::uint64_t draw(std::uint64_t key, gate_id g, int edge, int stream) {
   return mix(key ^ (std::uint64_t{g} << 3 | std::uint64_t(edge) << 1 | stream));
 }
@@ -94,13 +96,27 @@ delay_range scaled(const delay_range& r, double spread) {
 std::string corner::name() const {
   std::string base;
   switch (what) {
-    case kind::min: base = "min"; break;
-    case kind::typ: base = "typ"; break;
-    case kind::max: base = "max"; break;
-    case kind::random: base = fmt::format("random:{}#{}", seed, index); break;
-    case kind::gauss: base = fmt::format("gauss:{}#{}", seed, index); break;
-    case kind::extremes: base = fmt::format("extremes#{}", index); break;
-    case kind::exhaustive: base = fmt::format("exhaustive#{}", index); break;
+    case kind::min:
+      base = "min";
+      break;
+    case kind::typ:
+      base = "typ";
+      break;
+    case kind::max:
+      base = "max";
+      break;
+    case kind::random:
+      base = fmt::format("random:{}#{}", seed, index);
+      break;
+    case kind::gauss:
+      base = fmt::format("gauss:{}#{}", seed, index);
+      break;
+    case kind::extremes:
+      base = fmt::format("extremes#{}", index);
+      break;
+    case kind::exhaustive:
+      base = fmt::format("exhaustive#{}", index);
+      break;
   }
   if (spread != 1.0) base += fmt::format("@{}", spread);
   return base;
@@ -121,23 +137,30 @@ std::optional<corner> parse_corner(std::string_view text, std::string* error) {
       return fail("the spread after '@' must be a number >= 0");
     s = s.substr(0, at);
   }
-  if (s == "min") c.what = corner::kind::min;
-  else if (s == "typ") c.what = corner::kind::typ;
-  else if (s == "max") c.what = corner::kind::max;
+  if (s == "min")
+    c.what = corner::kind::min;
+  else if (s == "typ")
+    c.what = corner::kind::typ;
+  else if (s == "max")
+    c.what = corner::kind::max;
   else if (s.starts_with("random:") || s.starts_with("gauss:")) {
     c.what = s[0] == 'r' ? corner::kind::random : corner::kind::gauss;
     s.remove_prefix(s.find(':') + 1);
     auto hash = s.find('#');
     if (!parse_u64(s.substr(0, hash), c.seed))
-      return fail("expected a seed, a whole number from 0 to 18446744073709551615 (2^64-1), e.g. random:7 or "
-                  "random:7#3");
+      return fail(
+          "expected a seed, a whole number from 0 to 18446744073709551615 (2^64-1), e.g. random:7 "
+          "or "
+          "random:7#3");
     if (hash != std::string_view::npos && !parse_u64(s.substr(hash + 1), c.index))
       return fail("expected a corner number after '#'");
   } else if (s.starts_with("extremes#") || s.starts_with("exhaustive#")) {
     c.what = s[1] == 'x' && s[2] == 't' ? corner::kind::extremes : corner::kind::exhaustive;
-    if (!parse_u64(s.substr(s.find('#') + 1), c.index)) return fail("expected a corner number after '#'");
+    if (!parse_u64(s.substr(s.find('#') + 1), c.index))
+      return fail("expected a corner number after '#'");
   } else {
-    return fail("expected min, typ, max, random:SEED[#i], gauss:SEED[#i], extremes#k or exhaustive#k");
+    return fail(
+        "expected min, typ, max, random:SEED[#i], gauss:SEED[#i], extremes#k or exhaustive#k");
   }
   return c;
 }
@@ -153,23 +176,30 @@ std::string corner_range_error(const corner& c, std::size_t variables) {
     if (g >= 64) return "";  // every 64-bit number names one
     const std::uint64_t count = std::uint64_t{1} << g;
     if (c.index < count) return "";
-    return fmt::format("this design's {} delay variable{} give {} exhaustive corners, numbered 0..{}", g,
-                       g == 1 ? "" : "s", count, count - 1);
+    return fmt::format(
+        "this design's {} delay variable{} give {} exhaustive corners, numbered 0..{}", g,
+        g == 1 ? "" : "s", count, count - 1);
   }
   return "";
 }
 
-time_fs rule_delay(const delay_table& t, const delay_range& range, std::uint32_t rule, std::uint64_t firing) {
+time_fs rule_delay(const delay_table& t, const delay_range& range, std::uint32_t rule,
+                   std::uint64_t firing) {
   const corner& c = t.which;
   const delay_range r = scaled(range, c.spread);
   // A stream of its own: the rule's draws never meet a gate's.
   const std::uint64_t key = mix(corner_key(c.seed, c.index) ^ mix(0x72756c65ull + rule));
   switch (c.what) {
-    case corner::kind::min: return r.min;
-    case corner::kind::typ: return r.typ;
-    case corner::kind::max: return r.max;
-    case corner::kind::random: return uniform(mix(key ^ (firing << 1)), r.min, r.max);
-    case corner::kind::gauss: return gaussian(mix(key ^ (firing << 1)), mix(key ^ (firing << 1 | 1)), r);
+    case corner::kind::min:
+      return r.min;
+    case corner::kind::typ:
+      return r.typ;
+    case corner::kind::max:
+      return r.max;
+    case corner::kind::random:
+      return uniform(mix(key ^ (firing << 1)), r.min, r.max);
+    case corner::kind::gauss:
+      return gaussian(mix(key ^ (firing << 1)), mix(key ^ (firing << 1 | 1)), r);
     case corner::kind::extremes:
     case corner::kind::exhaustive: {
       if (fixed(r)) return r.min;
@@ -208,11 +238,16 @@ void fill_delays(const netlist& n, const corner& c, delay_table& out) {
     // name means the same delays whatever the other gates are.
     auto pick = [&](const delay_range& r, int edge) -> time_fs {
       switch (c.what) {
-        case corner::kind::min: return r.min;
-        case corner::kind::max: return r.max;
-        case corner::kind::random: return uniform(draw(key, g, edge, 0), r.min, r.max);
-        case corner::kind::gauss: return gaussian(draw(key, g, edge, 0), draw(key, g, edge, 1), r);
-        default: return r.typ;
+        case corner::kind::min:
+          return r.min;
+        case corner::kind::max:
+          return r.max;
+        case corner::kind::random:
+          return uniform(draw(key, g, edge, 0), r.min, r.max);
+        case corner::kind::gauss:
+          return gaussian(draw(key, g, edge, 0), draw(key, g, edge, 1), r);
+        default:
+          return r.typ;
       }
     };
     out.rise[g] = pick(rise, 0);

@@ -33,7 +33,15 @@ std::size_t delay_variables(const design& d);
 /// "min", "max", "typ", "random:S" (= "random:S#0"), "random:S#i",
 /// "gauss:S#i", "extremes#k", "exhaustive#k".
 struct corner {
-  enum class kind : std::uint8_t { min, typ, max, random, gauss, extremes, exhaustive } what = kind::typ;
+  enum class kind : std::uint8_t {
+    min,
+    typ,
+    max,
+    random,
+    gauss,
+    extremes,
+    exhaustive
+  } what = kind::typ;
   std::uint64_t seed = 0;
   std::uint64_t index = 0;
   double spread = 1.0;  ///< ranges scaled about typ by this factor (1 = as written)
@@ -57,8 +65,8 @@ std::string corner_range_error(const corner& c, std::size_t variables);
 struct delay_table {
   std::vector<time_fs> rise, fall;
   corner which;
-  std::uint64_t gate_vars = 0;           ///< corner variables of the gates
-  std::vector<std::uint64_t> rule_var;   ///< per rule; none_var for a fixed delay
+  std::uint64_t gate_vars = 0;          ///< corner variables of the gates
+  std::vector<std::uint64_t> rule_var;  ///< per rule; none_var for a fixed delay
   static constexpr std::uint64_t none_var = ~std::uint64_t{0};
 };
 
@@ -67,7 +75,8 @@ struct delay_table {
 /// corner variable after the gates' (t.rule_var); `random:` and `gauss:` draw
 /// afresh for every firing from the corner's counter-based stream, so the
 /// corner replays exactly.
-time_fs rule_delay(const delay_table& t, const delay_range& r, std::uint32_t rule, std::uint64_t firing);
+time_fs rule_delay(const delay_table& t, const delay_range& r, std::uint32_t rule,
+                   std::uint64_t firing);
 
 /// Fills `out` with the delays corner `c` gives every gate of `n`. Depends on
 /// (corner, gate index) alone, so any thread computes the same table.

@@ -16,7 +16,7 @@ struct source_counts {
 };
 
 struct design {
-  std::string path;       ///< the design file as given
+  std::string path;  ///< the design file as given
   netlist nets;
   stimulus stim;
   source_counts source;

@@ -8,9 +8,9 @@ namespace settle {
 bool diagnostics::has_errors() const { return error_count() > 0; }
 
 std::size_t diagnostics::error_count() const {
-  return static_cast<std::size_t>(std::count_if(items.begin(), items.end(), [](const diagnostic& d) {
-    return d.severity == diagnostic::level::error;
-  }));
+  return static_cast<std::size_t>(
+      std::count_if(items.begin(), items.end(),
+                    [](const diagnostic& d) { return d.severity == diagnostic::level::error; }));
 }
 
 namespace {
@@ -31,8 +31,10 @@ std::string escape_controls(std::string_view text, bool keep_tabs) {
   out.reserve(text.size());
   for (char ch : text) {
     const auto c = static_cast<unsigned char>(ch);
-    if (!is_control(c) || (keep_tabs && c == '\t')) out += ch;
-    else out += shown_byte(c);
+    if (!is_control(c) || (keep_tabs && c == '\t'))
+      out += ch;
+    else
+      out += shown_byte(c);
   }
   return out;
 }
@@ -59,9 +61,12 @@ std::string format_diagnostic(const diagnostic& d) {
       // Keep tabs so the caret lines up under the same column in a terminal;
       // an escaped byte takes as many columns as its escape.
       for (std::uint32_t i = 0; i + d.source_col < d.col; ++i) {
-        const auto c = i < d.source_line.size() ? static_cast<unsigned char>(d.source_line[i]) : ' ';
-        if (c == '\t') out += '\t';
-        else out.append(is_control(c) ? shown_byte(c).size() : 1, ' ');
+        const auto c =
+            i < d.source_line.size() ? static_cast<unsigned char>(d.source_line[i]) : ' ';
+        if (c == '\t')
+          out += '\t';
+        else
+          out.append(is_control(c) ? shown_byte(c).size() : 1, ' ');
       }
       out += "^\n";
     }

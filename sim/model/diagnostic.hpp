@@ -13,8 +13,8 @@ struct diagnostic {
   std::string file;
   std::uint32_t line = 0, col = 0;  ///< 1-based; 0 when there is no position
   std::string message;
-  std::string source_line;          ///< the text of that line (or a window of it), without its newline
-  std::uint32_t source_col = 1;     ///< the column where source_line starts (> 1: a window)
+  std::string source_line;       ///< the text of that line (or a window of it), without its newline
+  std::uint32_t source_col = 1;  ///< the column where source_line starts (> 1: a window)
   /// Notes printed right after this diagnostic (e.g. where the other half of a conflict is).
   std::vector<diagnostic> notes;
 };

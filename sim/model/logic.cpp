@@ -13,8 +13,10 @@ std::string format_time(time_fs t) {
     time_fs fs;
     const char* name;
   };
-  static constexpr unit units[] = {
-      {1'000'000'000'000ULL, "ms"}, {1'000'000'000ULL, "us"}, {1'000'000ULL, "ns"}, {1'000ULL, "ps"}};
+  static constexpr unit units[] = {{1'000'000'000'000ULL, "ms"},
+                                   {1'000'000'000ULL, "us"},
+                                   {1'000'000ULL, "ns"},
+                                   {1'000ULL, "ps"}};
   for (const auto& u : units) {
     const time_fs step = u.fs / 1000;
     if (t < u.fs || t % step != 0) continue;

@@ -7,8 +7,9 @@
 namespace settle {
 
 const char* kind_name(gate_kind k) {
-  static constexpr const char* names[gate_kind_count] = {
-      "buf", "not", "and", "nand", "or", "nor", "xor", "xnor", "mux", "maj", "c", "gc", "expr", "dff"};
+  static constexpr const char* names[gate_kind_count] = {"buf", "not", "and",  "nand", "or",
+                                                         "nor", "xor", "xnor", "mux",  "maj",
+                                                         "c",   "gc",  "expr", "dff"};
   return names[static_cast<int>(k)];
 }
 
@@ -52,14 +53,16 @@ time_fs netlist::smallest_min_delay() const {
 }
 
 net_id netlist::find(std::string_view name) const {
-  const auto v = names_.find(std::hash<std::string_view>{}(name), [&](std::uint32_t v) { return key_of(v) == name; });
+  const auto v = names_.find(std::hash<std::string_view>{}(name),
+                             [&](std::uint32_t v) { return key_of(v) == name; });
   if (v == no_id) return no_id;
   return v & extra_bit ? extra_names_[v & ~extra_bit].second : v;
 }
 
 bool netlist::add_name(std::string full_name, net_id id) {
   const auto h = std::hash<std::string_view>{}(full_name);
-  if (names_.find(h, [&](std::uint32_t v) { return key_of(v) == full_name; }) != no_id) return false;
+  if (names_.find(h, [&](std::uint32_t v) { return key_of(v) == full_name; }) != no_id)
+    return false;
   const auto v = static_cast<std::uint32_t>(extra_names_.size()) | extra_bit;
   extra_names_.emplace_back(std::move(full_name), id);
   names_.insert(h, v, [&](std::uint32_t x) { return std::hash<std::string_view>{}(key_of(x)); });
@@ -87,9 +90,11 @@ void netlist::begin() {
 net_id netlist::add_net(std::string full_name, std::uint32_t scope_index) {
   auto id = static_cast<net_id>(net_name.size());
   const auto h = std::hash<std::string_view>{}(full_name);
-  const bool known = names_.find(h, [&](std::uint32_t v) { return key_of(v) == full_name; }) != no_id;
+  const bool known =
+      names_.find(h, [&](std::uint32_t v) { return key_of(v) == full_name; }) != no_id;
   net_name.push_back(std::move(full_name));
-  if (!known) names_.insert(h, id, [&](std::uint32_t x) { return std::hash<std::string_view>{}(key_of(x)); });
+  if (!known)
+    names_.insert(h, id, [&](std::uint32_t x) { return std::hash<std::string_view>{}(key_of(x)); });
   driver.push_back(no_id);
   init.push_back(logic::x);
   net_scope.push_back(scope_index);
@@ -124,8 +129,8 @@ void netlist::mark_enumerated_gates() {
       continue;
     }
     // and/or/nand/nor are idempotent, so a repeated input changes nothing.
-    if (k == gate_kind::and_ || k == gate_kind::nand || k == gate_kind::or_ || k == gate_kind::nor ||
-        k == gate_kind::buf || k == gate_kind::inv)
+    if (k == gate_kind::and_ || k == gate_kind::nand || k == gate_kind::or_ ||
+        k == gate_kind::nor || k == gate_kind::buf || k == gate_kind::inv)
       continue;
     bool dup = false;
     if (holds_state(k)) seen[gate_out[g]] = g;

@@ -23,7 +23,20 @@ inline constexpr std::uint32_t no_id = UINT32_MAX;
 /// primitive (fan-in D, CK: Q takes D at each rising edge of CK), made only by
 /// the .bench importer with `--dff primitive`.
 enum class gate_kind : std::uint8_t {
-  buf, inv, and_, nand, or_, nor, xor_, xnor, mux, maj, celem, gc, expr, dff,
+  buf,
+  inv,
+  and_,
+  nand,
+  or_,
+  nor,
+  xor_,
+  xnor,
+  mux,
+  maj,
+  celem,
+  gc,
+  expr,
+  dff,
 };
 inline constexpr int gate_kind_count = 14;
 
@@ -63,10 +76,12 @@ class id_table {
       if (v == no_id || same(v)) return v;
     }
   }
-  /// Stores `id` (not yet present) with hash `h`; `hash_of(id)` rehashes stored ids when the table grows.
+  /// Stores `id` (not yet present) with hash `h`; `hash_of(id)` rehashes stored ids when the table
+  /// grows.
   template <typename HashOf>
   void insert(std::size_t h, std::uint32_t id, HashOf hash_of) {
-    if ((used_ + 1) * 2 > slots_.size()) rebuild(std::max<std::size_t>(16, slots_.size() * 2), hash_of);
+    if ((used_ + 1) * 2 > slots_.size())
+      rebuild(std::max<std::size_t>(16, slots_.size() * 2), hash_of);
     place(h, id);
     ++used_;
   }
@@ -124,21 +139,23 @@ class gate_delays {
 /// One 32-bit word per instruction: the opcode in the low byte, the operand
 /// (an index into the gate's fan-in) above it.
 enum class op : std::uint8_t { input, const0, const1, inv, and2, or2, xor2 };
-constexpr std::uint32_t encode(op o, std::uint32_t arg = 0) { return static_cast<std::uint32_t>(o) | (arg << 8); }
+constexpr std::uint32_t encode(op o, std::uint32_t arg = 0) {
+  return static_cast<std::uint32_t>(o) | (arg << 8);
+}
 constexpr op opcode(std::uint32_t w) { return static_cast<op>(w & 0xff); }
 constexpr std::uint32_t operand(std::uint32_t w) { return w >> 8; }
 
 /// A block instance (or the top level, scope 0) for waveform hierarchy.
 struct scope {
-  std::string name;        ///< instance name; "" for the top
-  std::string block;       ///< block definition name; "" for the top
+  std::string name;   ///< instance name; "" for the top
+  std::string block;  ///< block definition name; "" for the top
   std::uint32_t parent = no_id;
 };
 
 /// A name visible in a scope. Port names of an instance alias the parent's net.
 struct net_alias {
   std::uint32_t scope = 0;
-  std::string local;       ///< the name inside its scope ("q_n")
+  std::string local;  ///< the name inside its scope ("q_n")
   net_id net = 0;
 };
 
@@ -151,9 +168,9 @@ struct source_loc {
 /// counted, not dumped). Every other net is driven by exactly one input or gate.
 struct netlist {
   // ---- nets
-  std::vector<std::string> net_name;   ///< full hierarchical name: "deb.x" or "clean"
-  std::vector<gate_id> driver;         ///< gate driving the net; no_id for inputs and constants
-  std::vector<logic> init;             ///< initial value (x unless `init` says otherwise)
+  std::vector<std::string> net_name;  ///< full hierarchical name: "deb.x" or "clean"
+  std::vector<gate_id> driver;        ///< gate driving the net; no_id for inputs and constants
+  std::vector<logic> init;            ///< initial value (x unless `init` says otherwise)
   std::vector<std::uint32_t> fanout_begin;  ///< CSR over nets: size nets+1
   std::vector<gate_id> fanout;              ///< gates reading each net (each gate once per net)
   std::vector<net_id> inputs, outputs;      ///< in declaration order
@@ -166,10 +183,10 @@ struct netlist {
   std::vector<net_id> gate_out;
   std::vector<std::uint32_t> fanin_begin;  ///< CSR over gates: size gates+1
   std::vector<net_id> fanin;
-  std::vector<std::uint32_t> code_begin;   ///< CSR over gates: programs of expr/gc gates
+  std::vector<std::uint32_t> code_begin;  ///< CSR over gates: programs of expr/gc gates
   std::vector<std::uint32_t> code;
-  gate_delays delay;                       ///< delay[g]: gate g's delays
-  std::vector<source_loc> gate_loc;        ///< where each gate was written
+  gate_delays delay;                 ///< delay[g]: gate g's delays
+  std::vector<source_loc> gate_loc;  ///< where each gate was written
   /// Set by finish(): gates whose exact ternary value needs enumeration of
   /// their x inputs (complex gates, and primitives that read a net twice or
   /// read their own output where that matters).
@@ -206,7 +223,8 @@ struct netlist {
   net_id add_net(std::string full_name, std::uint32_t scope_index);
   /// Adds a gate (fan-in, program) and records it as the driver of `out`.
   gate_id add_gate(gate_kind k, net_id out, const std::vector<net_id>& fanin,
-                   const std::vector<std::uint32_t>& program, const gate_delay& d, source_loc loc = {});
+                   const std::vector<std::uint32_t>& program, const gate_delay& d,
+                   source_loc loc = {});
   /// Builds the fan-out lists from the fan-in lists; call once after the last gate.
   void finish();
 
@@ -215,7 +233,8 @@ struct netlist {
   /// The name index: net ids (keyed by net_name) and, with the top bit set,
   /// indexes into extra_names_ (names that are not a net's own).
   std::string_view key_of(std::uint32_t v) const {
-    return v & extra_bit ? std::string_view(extra_names_[v & ~extra_bit].first) : std::string_view(net_name[v]);
+    return v & extra_bit ? std::string_view(extra_names_[v & ~extra_bit].first)
+                         : std::string_view(net_name[v]);
   }
   static constexpr std::uint32_t extra_bit = 0x80000000u;
   id_table names_;

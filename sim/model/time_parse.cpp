@@ -1,10 +1,10 @@
 // Exact parsing of time literals and delay ranges for command-line options.
 #include "sim/model/time_parse.hpp"
 
+#include <fmt/format.h>
+
 #include <cstdint>
 #include <vector>
-
-#include <fmt/format.h>
 
 namespace settle {
 namespace {
@@ -53,9 +53,11 @@ std::optional<time_fs> parse_time(std::string_view s, std::string* err) {
   while (i < s.size() && s[i] == ' ') ++i;
   std::string_view unit = s.substr(i);
   while (!unit.empty() && unit.back() == ' ') unit.remove_suffix(1);
-  if (unit.empty()) return fail(err, fmt::format("'{}': a time needs a unit (fs ps ns us ms)", shown));
+  if (unit.empty())
+    return fail(err, fmt::format("'{}': a time needs a unit (fs ps ns us ms)", shown));
   const int e = unit_exponent(unit);
-  if (e < 0) return fail(err, fmt::format("'{}': unknown time unit '{}' (fs ps ns us ms)", shown, unit));
+  if (e < 0)
+    return fail(err, fmt::format("'{}': unknown time unit '{}' (fs ps ns us ms)", shown, unit));
 
   // value = (whole . frac) * 10^e, computed in integers.
   std::uint64_t v = 0;

@@ -6,19 +6,15 @@ clause 18 (18.2.3.5: `$timescale number unit $end`, number 1, 10 or 100)."""
 import glob
 import os
 import re
-import shutil
 import subprocess
 import sys
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
 from settle_test import check, failures, run_settle, scratch  # noqa: E402
+from vcd_rules import UNITS, need_sigrok  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
-if shutil.which("sigrok-cli") is None:
-    print("skipped: sigrok-cli (Debian package sigrok-cli) is not installed")
-    sys.exit(77)
-
-UNITS = {"s": 10**15, "ms": 10**12, "us": 10**9, "ns": 10**6, "ps": 10**3, "fs": 1}
+need_sigrok()
 
 
 def timescale_of(path):

@@ -1,12 +1,13 @@
-// libFuzzer target: the .settle parser and elaborator, the .bench importer, diagnostics and a bounded run.
+// libFuzzer target: the .settle parser and elaborator, the .bench importer, diagnostics and a
+// bounded run.
 #include <cstddef>
 #include <cstdint>
 #include <string>
 #include <string_view>
 
 #include "parser/load.hpp"
-#include "sim/model/corner.hpp"
 #include "sim/kernel/run.hpp"
+#include "sim/model/corner.hpp"
 
 namespace {
 

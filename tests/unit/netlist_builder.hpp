@@ -29,14 +29,16 @@ class builder {
   void init(const std::string& name, logic v) { d_.nets.init[net(name)] = v; }
 
   /// A gate with the same delay range for rise and fall.
-  gate_id gate(gate_kind k, const std::string& out, std::initializer_list<std::string> in, delay_range r,
-               bool transport = false, std::vector<std::uint32_t> program = {}) {
+  gate_id gate(gate_kind k, const std::string& out, std::initializer_list<std::string> in,
+               delay_range r, bool transport = false, std::vector<std::uint32_t> program = {}) {
     return gate_rf(k, out, in, r, r, transport, std::move(program));
   }
-  gate_id gate_rf(gate_kind k, const std::string& out, std::initializer_list<std::string> in, delay_range rise,
-                  delay_range fall, bool transport = false, std::vector<std::uint32_t> program = {}) {
+  gate_id gate_rf(gate_kind k, const std::string& out, std::initializer_list<std::string> in,
+                  delay_range rise, delay_range fall, bool transport = false,
+                  std::vector<std::uint32_t> program = {}) {
     std::vector<net_id> fanin;
-    for (const auto& s : in) fanin.push_back(s == "0" ? netlist::const0 : s == "1" ? netlist::const1 : net(s));
+    for (const auto& s : in)
+      fanin.push_back(s == "0" ? netlist::const0 : s == "1" ? netlist::const1 : net(s));
     gate_delay gd{rise, fall, transport};
     return d_.nets.add_gate(k, net(out), fanin, program, gd);
   }
@@ -76,7 +78,8 @@ class builder {
   }
 
  private:
-  builder& action(stim_action::kind k, time_fs t, std::initializer_list<std::pair<std::string, logic>> as) {
+  builder& action(stim_action::kind k, time_fs t,
+                  std::initializer_list<std::pair<std::string, logic>> as) {
     stim_action a;
     a.what = k;
     a.time = t;

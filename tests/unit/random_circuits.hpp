@@ -29,11 +29,12 @@ class seeded_rng {
 
 /// Shape of the circuits random_feedback_circuit builds.
 struct random_circuit_options {
-  int inputs = 2;          ///< primary inputs in0, in1, ...
-  int steps = 4;           ///< stimulus steps: all inputs at 0ns, then flips of one or two inputs
-  bool watch_all = true;   ///< watch every gate output, so run results carry the full state
-  time_fs min_lo = 10'000, min_hi = 50'000;  ///< a gate's min delay is drawn from [min_lo, min_hi) fs
-  time_fs spread = 40'000;                   ///< its max is min + [0, spread) fs
+  int inputs = 2;         ///< primary inputs in0, in1, ...
+  int steps = 4;          ///< stimulus steps: all inputs at 0ns, then flips of one or two inputs
+  bool watch_all = true;  ///< watch every gate output, so run results carry the full state
+  time_fs min_lo = 10'000,
+          min_hi = 50'000;  ///< a gate's min delay is drawn from [min_lo, min_hi) fs
+  time_fs spread = 40'000;  ///< its max is min + [0, spread) fs
 };
 
 /// A design of `gates` gates n0, n1, ... of mixed kinds (not, buf, and, nand,
@@ -57,22 +58,26 @@ inline design random_feedback_circuit(std::uint64_t seed, int gates,
   for (int g = 0; g < gates; ++g) outs.push_back(n.add_net("n" + std::to_string(g), 0));
   auto pick = [&](int self) {
     // Prefer other gates; inputs a third of the time.
-    if (rng.below(3) == 0 || gates == 1) return ins[rng.below(static_cast<std::uint32_t>(ins.size()))];
+    if (rng.below(3) == 0 || gates == 1)
+      return ins[rng.below(static_cast<std::uint32_t>(ins.size()))];
     for (;;) {
       const int g = static_cast<int>(rng.below(static_cast<std::uint32_t>(gates)));
       if (g != self) return outs[g];
     }
   };
-  static constexpr gate_kind kinds[] = {gate_kind::inv,  gate_kind::buf, gate_kind::and_,  gate_kind::nand,
-                                        gate_kind::or_,  gate_kind::nor, gate_kind::xor_,  gate_kind::xnor,
-                                        gate_kind::celem, gate_kind::maj, gate_kind::mux,  gate_kind::nand,
-                                        gate_kind::nor,  gate_kind::inv};
+  static constexpr gate_kind kinds[] = {
+      gate_kind::inv, gate_kind::buf,  gate_kind::and_, gate_kind::nand,  gate_kind::or_,
+      gate_kind::nor, gate_kind::xor_, gate_kind::xnor, gate_kind::celem, gate_kind::maj,
+      gate_kind::mux, gate_kind::nand, gate_kind::nor,  gate_kind::inv};
   for (int g = 0; g < gates; ++g) {
     const gate_kind k = kinds[rng.below(std::size(kinds))];
     int arity = 2;
-    if (k == gate_kind::inv || k == gate_kind::buf) arity = 1;
-    else if (k == gate_kind::maj || k == gate_kind::mux) arity = 3;
-    else if (k != gate_kind::celem && rng.below(4) == 0) arity = 3;
+    if (k == gate_kind::inv || k == gate_kind::buf)
+      arity = 1;
+    else if (k == gate_kind::maj || k == gate_kind::mux)
+      arity = 3;
+    else if (k != gate_kind::celem && rng.below(4) == 0)
+      arity = 3;
     std::vector<net_id> fanin;
     for (int a = 0; a < arity; ++a) fanin.push_back(pick(g));
     auto edge = [&] {

@@ -1,18 +1,18 @@
 // Baselines: field errors, lower bounds at the search ceiling, merging, locked updates.
+#include "sim/analysis/baseline.hpp"
+
 #include <fcntl.h>
 #include <sys/file.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
 #include <atomic>
+#include <catch2/catch.hpp>
 #include <cstdlib>
 #include <fstream>
 #include <sstream>
 #include <string>
 
-#include <catch2/catch.hpp>
-
-#include "sim/analysis/baseline.hpp"
 #include "sim/analysis/baseline_store.hpp"
 
 namespace {

@@ -3,8 +3,8 @@
 #include <catch2/catch.hpp>
 #include <string>
 
-#include "sim/model/corner.hpp"
 #include "sim/analysis/sweep.hpp"
+#include "sim/model/corner.hpp"
 
 using namespace settle;
 

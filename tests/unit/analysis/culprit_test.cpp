@@ -1,10 +1,10 @@
 // Race culprits: ddmin on known predicates and a planted two-gate race.
-#include <catch2/catch.hpp>
+#include "sim/analysis/culprit.hpp"
 
 #include <algorithm>
+#include <catch2/catch.hpp>
 
 #include "parser/load.hpp"
-#include "sim/analysis/culprit.hpp"
 
 TEST_CASE("ddmin: returns a 1-minimal failing subset", "[culprit]") {
   // Zeller and Hildebrandt 2002 (IEEE TSE 28(2)), section 3: ddmin's result is
@@ -19,7 +19,9 @@ TEST_CASE("ddmin: returns a 1-minimal failing subset", "[culprit]") {
   CHECK(tests > 0);
   CHECK(tests < 16 * 16);  // far below the quadratic worst case (paper, section 4)
   // One element alone.
-  auto needs_11 = [](const std::vector<std::uint32_t>& s) { return std::count(s.begin(), s.end(), 11u) > 0; };
+  auto needs_11 = [](const std::vector<std::uint32_t>& s) {
+    return std::count(s.begin(), s.end(), 11u) > 0;
+  };
   CHECK(settle::ddmin(items, needs_11) == std::vector<std::uint32_t>{11});
   // Either of two: a 1-minimal answer is one of them.
   auto needs_2_or_9 = [](const std::vector<std::uint32_t>& s) {
@@ -39,7 +41,8 @@ TEST_CASE("culprits: a planted two-gate race inside a larger design", "[culprit]
   // (a still wins), moving cell_b alone 40 vs 41 (a still wins): only the two
   // together flip the grant, and no other gate takes part in the race.
   settle::diagnostics diags;
-  const auto d = settle::load_design(std::string(SETTLE_SOURCE_DIR) + "/tests/data/margin_planted.settle", {}, diags);
+  const auto d = settle::load_design(
+      std::string(SETTLE_SOURCE_DIR) + "/tests/data/margin_planted.settle", {}, diags);
   REQUIRE(d);
   const auto& n = d->nets;
   const settle::gate_id ga = n.driver[n.find("arb.cell_a")], gb = n.driver[n.find("arb.cell_b")];
@@ -51,7 +54,9 @@ TEST_CASE("culprits: a planted two-gate race inside a larger design", "[culprit]
   hi.what = settle::corner::kind::max;
   settle::fill_delays(n, lo, a);
   settle::fill_delays(n, hi, b);
-  auto set = [](settle::delay_table& t, settle::gate_id g, settle::time_fs v) { t.rise[g] = t.fall[g] = v; };
+  auto set = [](settle::delay_table& t, settle::gate_id g, settle::time_fs v) {
+    t.rise[g] = t.fall[g] = v;
+  };
   set(a, ga, 40'000), set(a, gb, 45'000);
   set(b, ga, 44'000), set(b, gb, 41'000);
   const std::string names[2] = {"A", "B"};
@@ -77,12 +82,14 @@ TEST_CASE("culprits: a planted two-gate race inside a larger design", "[culprit]
   CHECK(through(1, "arb.cell_b"));
   // Paths are in time order.
   for (int side = 0; side < 2; ++side)
-    for (std::size_t i = 1; i < r.path[side].size(); ++i) CHECK(r.path[side][i - 1].time < r.path[side][i].time);
+    for (std::size_t i = 1; i < r.path[side].size(); ++i)
+      CHECK(r.path[side][i - 1].time < r.path[side][i].time);
 }
 
 TEST_CASE("culprits: the same outcome gives no culprits", "[culprit]") {
   settle::diagnostics diags;
-  const auto d = settle::load_design(std::string(SETTLE_SOURCE_DIR) + "/tests/data/margin_planted.settle", {}, diags);
+  const auto d = settle::load_design(
+      std::string(SETTLE_SOURCE_DIR) + "/tests/data/margin_planted.settle", {}, diags);
   REQUIRE(d);
   settle::corner lo, hi;
   lo.what = settle::corner::kind::min;

@@ -1,10 +1,11 @@
-// State-graph exploration (Muller and Bartky 1959; Brzozowski and Seger, Asynchronous Circuits, 1995).
-#include <catch2/catch.hpp>
+// State-graph exploration (Muller and Bartky 1959; Brzozowski and Seger, Asynchronous Circuits,
+// 1995).
+#include "sim/analysis/explore.hpp"
 
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <set>
 
-#include "sim/analysis/explore.hpp"
 #include "sim/kernel/run.hpp"
 #include "tests/unit/netlist_builder.hpp"
 #include "tests/unit/random_circuits.hpp"
@@ -44,13 +45,16 @@ design buffered_c_element() {
   b.init("b_d", L0);
   b.init("c", L0);
   b.at(0, {{"a", L0}, {"b", L0}}).settle().expect("c", L0);
-  b.after(1000 * ps, {{"a", L1}}).settle().expect("c", L0);             // disagree: hold 0
-  b.after(1000 * ps, {{"b", L1}}).settle().expect("c", L1);             // agree: follow
-  b.after(1000 * ps, {{"a", L0}}).settle().expect("c", L1);             // disagree: hold 1
-  b.after(1000 * ps, {{"b", L0}}).settle().expect("c", L0);             // agree on 0
-  b.after(1000 * ps, {{"a", L1}, {"b", L1}}).settle().expect("c", L1);  // both together: a race, one outcome
-  b.after(1000 * ps, {{"a", L0}}).settle().expect("c", L1);             // hold 1
-  // Swapping (0,1) to (1,0) passes through (0,0) or (1,1) depending on the buffers: a critical race.
+  b.after(1000 * ps, {{"a", L1}}).settle().expect("c", L0);  // disagree: hold 0
+  b.after(1000 * ps, {{"b", L1}}).settle().expect("c", L1);  // agree: follow
+  b.after(1000 * ps, {{"a", L0}}).settle().expect("c", L1);  // disagree: hold 1
+  b.after(1000 * ps, {{"b", L0}}).settle().expect("c", L0);  // agree on 0
+  b.after(1000 * ps, {{"a", L1}, {"b", L1}})
+      .settle()
+      .expect("c", L1);                                      // both together: a race, one outcome
+  b.after(1000 * ps, {{"a", L0}}).settle().expect("c", L1);  // hold 1
+  // Swapping (0,1) to (1,0) passes through (0,0) or (1,1) depending on the buffers: a critical
+  // race.
   b.after(1000 * ps, {{"a", L1}, {"b", L0}}).settle();
   return b.finish();
 }
@@ -66,15 +70,18 @@ design nor_latch(bool both) {
   b.init("q", L0);
   b.init("q_n", L0);
   b.at(0, {{"s", L1}, {"r", L1}}).settle();
-  if (both) b.after(1000 * ps, {{"s", L0}, {"r", L0}}).settle();
-  else b.after(1000 * ps, {{"s", L0}}).settle();
+  if (both)
+    b.after(1000 * ps, {{"s", L0}, {"r", L0}}).settle();
+  else
+    b.after(1000 * ps, {{"s", L0}}).settle();
   return b.finish();
 }
 
 }  // namespace
 
-TEST_CASE("a C-element holds on disagreeing inputs and follows agreeing ones, in every interleaving",
-          "[explore]") {
+TEST_CASE(
+    "a C-element holds on disagreeing inputs and follows agreeing ones, in every interleaving",
+    "[explore]") {
   // Muller and Bartky 1959: c = 1 when all inputs are 1, 0 when all are 0, else hold.
   design d = buffered_c_element();
   for (auto m : {explore_model::gmw, explore_model::single}) {
@@ -115,7 +122,8 @@ TEST_CASE("NOR latch released from (1,1) to (0,0): two stable states and a cycle
   CHECK(s.states == 4);
   REQUIRE(s.stable.size() == 2);
   std::set<std::pair<logic, logic>> outcomes;
-  for (std::size_t i = 0; i < 2; ++i) outcomes.insert({value_in(d, s, i, "q"), value_in(d, s, i, "q_n")});
+  for (std::size_t i = 0; i < 2; ++i)
+    outcomes.insert({value_in(d, s, i, "q"), value_in(d, s, i, "q_n")});
   CHECK(outcomes == std::set<std::pair<logic, logic>>{{L1, L0}, {L0, L1}});
   CHECK(s.critical_race == answer::yes);
   CHECK(s.may_oscillate == answer::yes);

@@ -1,7 +1,7 @@
-// Bounded runs in the libraries: a stop flag ends a kernel run and a sweep at once, a wall-clock budget ends a sweep, the explore memory guard.
-#include <catch2/catch.hpp>
-
+// Bounded runs in the libraries: a stop flag ends a kernel run and a sweep at once, a wall-clock
+// budget ends a sweep, the explore memory guard.
 #include <atomic>
+#include <catch2/catch.hpp>
 #include <chrono>
 #include <string>
 #include <thread>
@@ -136,10 +136,12 @@ TEST_CASE("the explore memory guard stops a large state graph with a reason", "[
   text += "\n";
   for (int k = 0; k < 6; ++k) {
     const auto s = std::to_string(k);
-    text += "m" + s + " = not(q" + s + ") delay 10ps..90ps\nq" + s + " = c(go, m" + s + ") delay 10ps..90ps\n";
+    text += "m" + s + " = not(q" + s + ") delay 10ps..90ps\nq" + s + " = c(go, m" + s +
+            ") delay 10ps..90ps\n";
   }
   text += "init ";
-  for (int k = 0; k < 6; ++k) text += (k ? ", q" : "q") + std::to_string(k) + " = 0, m" + std::to_string(k) + " = 1";
+  for (int k = 0; k < 6; ++k)
+    text += (k ? ", q" : "q") + std::to_string(k) + " = 0, m" + std::to_string(k) + " = 1";
   text += "\nstimulus {\n  at 0ns go = 0\n  settle\n  after 1ns go = 1\n  settle\n}\n";
   const design d = load_text(text);
   explore_options o;

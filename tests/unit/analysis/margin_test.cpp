@@ -1,11 +1,11 @@
 // Delay margins by bisection, settle-time margins and baselines, checked against hand arithmetic.
-#include <catch2/catch.hpp>
+#include "sim/analysis/margin.hpp"
 
+#include <catch2/catch.hpp>
 #include <cmath>
 
 #include "parser/load.hpp"
 #include "sim/analysis/baseline.hpp"
-#include "sim/analysis/margin.hpp"
 
 namespace {
 
@@ -96,7 +96,8 @@ TEST_CASE("margin: settle-time margin of a budget at the written spread", "[marg
 TEST_CASE("margin: a step that fails at the typical delays reports 0", "[margin]") {
   settle::diagnostics diags;
   const auto d = settle::load_design_text(
-      "input a\noutput y\ny = not(a) delay 40ps..60ps\nstimulus {\n at 0ns a = 0\n settle\n expect y = 0\n}\n",
+      "input a\noutput y\ny = not(a) delay 40ps..60ps\nstimulus {\n at 0ns a = 0\n settle\n expect "
+      "y = 0\n}\n",
       "typ_fail.settle", {}, diags);
   REQUIRE(d);
   settle::margin_options o;

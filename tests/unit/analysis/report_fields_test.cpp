@@ -8,9 +8,9 @@
 #include <string>
 
 #include "parser/load.hpp"
-#include "sim/model/corner.hpp"
-#include "sim/kernel/run.hpp"
 #include "sim/analysis/sweep.hpp"
+#include "sim/kernel/run.hpp"
+#include "sim/model/corner.hpp"
 
 using namespace settle;
 

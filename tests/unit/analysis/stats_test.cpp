@@ -1,7 +1,7 @@
 // Wilson score intervals and zero-count bounds against values worked by hand from their formulas.
-#include <catch2/catch.hpp>
-
 #include "sim/analysis/stats.hpp"
+
+#include <catch2/catch.hpp>
 
 using namespace settle;
 

@@ -1,7 +1,9 @@
-// Corner sweeps: spec counts, races found and replayed, determinism across threads, soundness against interval runs.
-#include <catch2/catch.hpp>
+// Corner sweeps: spec counts, races found and replayed, determinism across threads, soundness
+// against interval runs.
+#include "sim/analysis/sweep.hpp"
 
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <cmath>
 #include <filesystem>
 #include <set>
@@ -9,7 +11,6 @@
 
 #include "parser/load.hpp"
 #include "sim/model/corner.hpp"
-#include "sim/analysis/sweep.hpp"
 #include "tests/unit/random_circuits.hpp"
 
 using namespace settle;
@@ -22,8 +23,12 @@ namespace {
 std::string door_latch(const std::string& a, const std::string& b) {
   return "input  open_n, close_n\n"
          "output door, door_n\n"
-         "door   = nand(open_n, door_n)   delay " + a + "\n"
-         "door_n = nand(close_n, door)    delay " + b + "\n"
+         "door   = nand(open_n, door_n)   delay " +
+         a +
+         "\n"
+         "door_n = nand(close_n, door)    delay " +
+         b +
+         "\n"
          "stimulus {\n"
          "    at 0ns     open_n = 0, close_n = 0\n"
          "    settle\n"
@@ -57,7 +62,8 @@ sweep_plan plan_of(const std::string& spec, std::uint64_t seed, std::size_t gate
   return *p;
 }
 
-sweep_result sweep(const design& d, const std::string& spec, unsigned threads = 2, std::uint64_t seed = 1) {
+sweep_result sweep(const design& d, const std::string& spec, unsigned threads = 2,
+                   std::uint64_t seed = 1) {
   sweep_options o;
   o.threads = threads;
   return run_sweep(d, plan_of(spec, seed, delay_variables(d)), o);
@@ -107,7 +113,8 @@ TEST_CASE("extremes has 3 + 2g corners in the order fill_delays defines", "[swee
 }
 
 TEST_CASE("exhaustive has 2^g corners and refuses more than 2^20", "[sweep][plan]") {
-  for (std::size_t g : {0u, 1u, 5u, 20u}) CHECK(plan_of("exhaustive", 1, g).corners == std::uint64_t{1} << g);
+  for (std::size_t g : {0u, 1u, 5u, 20u})
+    CHECK(plan_of("exhaustive", 1, g).corners == std::uint64_t{1} << g);
   std::string err;
   CHECK_FALSE(plan_sweep("exhaustive", 1, 21, &err));
   CHECK(err.find("2^21") != std::string::npos);
@@ -137,7 +144,8 @@ TEST_CASE("spec items number their corners in spec order", "[sweep][plan]") {
 }
 
 TEST_CASE("bad corner specs are refused with a reason", "[sweep][plan]") {
-  for (const char* bad : {"", "extremes+", "random:", "random:0", "random:x", "gauss:-1", "corners", "interval+"}) {
+  for (const char* bad :
+       {"", "extremes+", "random:", "random:0", "random:x", "gauss:-1", "corners", "interval+"}) {
     std::string err;
     INFO(bad);
     CHECK_FALSE(plan_sweep(bad, 1, 3, &err));
@@ -171,7 +179,8 @@ TEST_CASE("every sweep corner's name replays the same delay table", "[sweep][pla
 
 // A NAND latch released from (0, 0) is a critical race: the gate that falls
 // first wins (handbook behaviour of set/reset latches; METHODS.md section 7).
-TEST_CASE("overlapping delay ranges: the latch release settles two ways, and each witness replays", "[sweep]") {
+TEST_CASE("overlapping delay ranges: the latch release settles two ways, and each witness replays",
+          "[sweep]") {
   const design d = load_text(door_latch("40ps..60ps", "40ps..60ps"));
   const auto r = sweep(d, "extremes+random:200");
   REQUIRE(r.steps.size() == 2);
@@ -231,12 +240,14 @@ TEST_CASE("non-overlapping ranges: the faster gate always wins and interval prov
   REQUIRE(st.interval);
   CHECK(st.interval->proven);
   CHECK(st.interval->values == st.outcomes[0].values);
-  // Settle time: the door NAND falls within 20..30ps (the only change). Lower median of the sorted times.
+  // Settle time: the door NAND falls within 20..30ps (the only change). Lower median of the sorted
+  // times.
   CHECK(st.outcomes[0].settle.min == 20'000);
   CHECK(st.outcomes[0].settle.max == 30'000);
 }
 
-TEST_CASE("exactly equal fixed delays: the release oscillates with period 2 x the gate delay", "[sweep]") {
+TEST_CASE("exactly equal fixed delays: the release oscillates with period 2 x the gate delay",
+          "[sweep]") {
   // Common practice: the ideal model of metastability; both NANDs fall and rise together.
   const design d = load_text(door_latch("50ps", "50ps"));
   const auto r = sweep(d, "extremes+random:50");
@@ -297,7 +308,8 @@ TEST_CASE("the grouping is identical whatever the thread count", "[sweep][thread
   }
 }
 
-TEST_CASE("the sensor FIFO's C-element pipeline is deterministic under extremes+random:500", "[sweep]") {
+TEST_CASE("the sensor FIFO's C-element pipeline is deterministic under extremes+random:500",
+          "[sweep]") {
   // Muller C-elements (Muller and Bartky 1959) in a four-phase pipeline are
   // speed-independent: every step settles the same way whatever the delays.
   const design d = load_file(SETTLE_SOURCE_DIR "/examples/fifo_stage.settle");
@@ -324,8 +336,8 @@ void check_sound(const design& d, const sweep_result& r, std::size_t& binary_che
       if (v == logic::x) continue;
       ++binary_checked;
       for (const auto& o : st.outcomes) {
-        INFO(d.path << " step " << st.index << " net " << d.nets.net_name[r.reported[k]] << " witness "
-                    << o.witness_name);
+        INFO(d.path << " step " << st.index << " net " << d.nets.net_name[r.reported[k]]
+                    << " witness " << o.witness_name);
         CHECK(o.values[k] == v);
       }
     }
@@ -335,7 +347,8 @@ void check_sound(const design& d, const sweep_result& r, std::size_t& binary_che
 
 }  // namespace
 
-TEST_CASE("soundness: no sampled corner contradicts a binary interval value (examples)", "[sweep][soundness]") {
+TEST_CASE("soundness: no sampled corner contradicts a binary interval value (examples)",
+          "[sweep][soundness]") {
   std::size_t checked = 0, files = 0;
   for (const auto& e : std::filesystem::directory_iterator(SETTLE_SOURCE_DIR "/examples")) {
     if (e.path().extension() != ".settle") continue;
@@ -359,7 +372,8 @@ TEST_CASE("soundness: no sampled corner contradicts a binary interval value (exa
 
 TEST_CASE("soundness: no sampled corner contradicts a binary interval value (250 random circuits)",
           "[sweep][soundness]") {
-  // random_feedback_circuit: a seeded generator of small feedback circuits (invented data, tests only).
+  // random_feedback_circuit: a seeded generator of small feedback circuits (invented data, tests
+  // only).
   std::size_t checked = 0, proven = 0;
   for (std::uint64_t seed = 1; seed <= 250; ++seed) {
     const int gates = 2 + static_cast<int>(seed % 5);

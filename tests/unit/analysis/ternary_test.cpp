@@ -1,7 +1,8 @@
 // Ternary simulation (Eichelberger 1965, algorithms A and B) on small circuits with known answers.
+#include "sim/analysis/ternary.hpp"
+
 #include <catch2/catch.hpp>
 
-#include "sim/analysis/ternary.hpp"
 #include "tests/unit/netlist_builder.hpp"
 
 using namespace settle;
@@ -14,7 +15,9 @@ constexpr logic L0 = logic::zero, L1 = logic::one, LX = logic::x;
 // Per-net start vector from the design's init values (inputs included).
 std::vector<logic> start_of(const design& d) { return d.nets.init; }
 
-logic at(const design& d, const std::vector<logic>& v, const char* name) { return v[d.nets.find(name)]; }
+logic at(const design& d, const std::vector<logic>& v, const char* name) {
+  return v[d.nets.find(name)];
+}
 
 // NOR set/reset latch: q = nor(r, q_n), q_n = nor(s, q), held at s = r = 1 (q = q_n = 0).
 design nor_latch_held() {
@@ -92,8 +95,14 @@ TEST_CASE("six-NAND D flip-flop: on a clock rise with D steady, Q takes D", "[te
     b.output("q");
     // Stable with clk = 0: n2 = n3 = 1, n4 = not d, n1 = d; Q holds the opposite of D.
     const logic nd = dval == L1 ? L0 : L1;
-    for (auto [n, v] : {std::pair{"clk", L0}, {"d", dval}, {"n1", dval}, {"n2", L1}, {"n3", L1}, {"n4", nd},
-                        {"q", nd}, {"q_n", dval}})
+    for (auto [n, v] : {std::pair{"clk", L0},
+                        {"d", dval},
+                        {"n1", dval},
+                        {"n2", L1},
+                        {"n3", L1},
+                        {"n4", nd},
+                        {"q", nd},
+                        {"q_n", dval}})
       b.init(n, v);
     design dd = b.finish();
     const assignment clk_rise[] = {{dd.nets.find("clk"), L1}};

@@ -8,8 +8,8 @@
 #include <vector>
 
 #include "parser/load.hpp"
-#include "sim/model/corner.hpp"
 #include "sim/kernel/run.hpp"
+#include "sim/model/corner.hpp"
 
 using namespace settle;
 
@@ -304,7 +304,8 @@ stimulus {
   CHECK(r == std::vector<time_fs>{5'000'000, 7'000'000, 9'000'000});
 }
 
-TEST_CASE("an at earlier than the time a settle reached stops the run with an error at its literal", "[closed]") {
+TEST_CASE("an at earlier than the time a settle reached stops the run with an error at its literal",
+          "[closed]") {
   // The first step takes 10ns to settle (a buffer of 10ns), so `at 3ns` lies
   // in the past when the second step begins: known only at run time.
   const design d = load(R"(input a

@@ -1,11 +1,11 @@
 // Truth tables of every gate kind, x included, against a reference built from
 // the definition of the ternary extension.
-#include <catch2/catch.hpp>
+#include "sim/kernel/eval.hpp"
 
+#include <catch2/catch.hpp>
 #include <functional>
 
 #include "tests/unit/netlist_builder.hpp"
-#include "sim/kernel/eval.hpp"
 
 using namespace settle;
 using namespace settle::testing;
@@ -16,8 +16,8 @@ constexpr logic O = logic::zero, I = logic::one, X = logic::x;
 
 // The ternary extension of a binary function f (Eichelberger 1965): the lub
 // of f over every binary resolution of the x arguments.
-logic extension(const std::function<logic(const std::vector<bool>&, bool)>& f, const std::vector<logic>& in,
-                logic present) {
+logic extension(const std::function<logic(const std::vector<bool>&, bool)>& f,
+                const std::vector<logic>& in, logic present) {
   std::vector<logic> all = in;
   all.push_back(present);
   std::vector<int> xs;
@@ -38,7 +38,8 @@ logic extension(const std::function<logic(const std::vector<bool>&, bool)>& f, c
 
 // Evaluates `kind` over every ternary input vector of `arity` and present
 // value, comparing with the extension of the binary function `f`.
-void check_kind(gate_kind kind, int arity, const std::function<logic(const std::vector<bool>&, bool)>& f,
+void check_kind(gate_kind kind, int arity,
+                const std::function<logic(const std::vector<bool>&, bool)>& f,
                 std::vector<std::uint32_t> program = {}) {
   builder b;
   std::vector<std::string> names;
@@ -132,15 +133,25 @@ TEST_CASE("complex and generalised C-element gates are exact over repeated x inp
   std::vector<std::uint32_t> p = {encode(op::input, 0), encode(op::input, 1), encode(op::and2),
                                   encode(op::input, 0), encode(op::input, 1), encode(op::inv),
                                   encode(op::and2),     encode(op::or2)};
-  check_kind(gate_kind::expr, 2, [](auto& a, bool) { return from_bool(a[0]); }, p);
+  check_kind(
+      gate_kind::expr, 2, [](auto& a, bool) { return from_bool(a[0]); }, p);
   // gc(set: a0 & a1, reset: ~a0 & ~a1): a C-element written as set/reset.
   std::vector<std::uint32_t> q = {encode(op::input, 0), encode(op::input, 1), encode(op::and2),
                                   encode(op::input, 0), encode(op::inv),      encode(op::input, 1),
                                   encode(op::inv),      encode(op::and2)};
-  check_kind(gate_kind::gc, 2, [](auto& a, bool q) { return a[0] && a[1] ? I : !a[0] && !a[1] ? O : from_bool(q); }, q);
+  check_kind(
+      gate_kind::gc, 2,
+      [](auto& a, bool q) { return a[0] && a[1]     ? I
+                                   : !a[0] && !a[1] ? O
+                                                    : from_bool(q); }, q);
   // gc(set: a0, reset: a1): x when both.
   std::vector<std::uint32_t> r = {encode(op::input, 0), encode(op::input, 1)};
-  check_kind(gate_kind::gc, 2, [](auto& a, bool q) { return a[0] && a[1] ? X : a[0] ? I : a[1] ? O : from_bool(q); }, r);
+  check_kind(
+      gate_kind::gc, 2,
+      [](auto& a, bool q) { return a[0] && a[1] ? X
+                                   : a[0]       ? I
+                                   : a[1]       ? O
+                                                : from_bool(q); }, r);
   // and(0, x) = 0, or(1, x) = 1 (issue 2, Eichelberger 1965).
   check_kind(gate_kind::expr, 2, [](auto& a, bool) { return from_bool(a[0] && a[1]); },
              {encode(op::input, 0), encode(op::input, 1), encode(op::and2)});

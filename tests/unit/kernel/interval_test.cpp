@@ -1,10 +1,10 @@
 // The min-max ambiguity run: what it proves, and that no sampled corner ever contradicts it.
-#include <catch2/catch.hpp>
+#include "sim/kernel/interval.hpp"
 
+#include <catch2/catch.hpp>
 #include <random>
 
 #include "tests/unit/netlist_builder.hpp"
-#include "sim/kernel/interval.hpp"
 
 using namespace settle;
 using namespace settle::testing;
@@ -28,8 +28,10 @@ design nand_latch_release(delay_range dq, delay_range dqn) {
 
 // Abramovici, Breuer and Friedman (1990), ch. 3: overlapping ambiguity windows
 // of two racing gates leave the outcome unknown; disjoint windows decide it.
-TEST_CASE("interval runs prove a latch release with disjoint ranges and not with overlapping ones", "[interval]") {
-  auto overlap = run_interval(nand_latch_release(range(35 * ps, 55 * ps), range(35 * ps, 55 * ps)), {});
+TEST_CASE("interval runs prove a latch release with disjoint ranges and not with overlapping ones",
+          "[interval]") {
+  auto overlap =
+      run_interval(nand_latch_release(range(35 * ps, 55 * ps), range(35 * ps, 55 * ps)), {});
   REQUIRE(overlap.steps.size() == 2);
   CHECK(overlap.steps[0].proven);
   CHECK(overlap.steps[0].values == std::vector<logic>{I, I});
@@ -37,7 +39,8 @@ TEST_CASE("interval runs prove a latch release with disjoint ranges and not with
   CHECK(overlap.steps[1].values[0] == X);
 
   // q's gate is always faster: q falls first and holds qn at 1.
-  auto disjoint = run_interval(nand_latch_release(range(10 * ps, 20 * ps), range(50 * ps, 60 * ps)), {});
+  auto disjoint =
+      run_interval(nand_latch_release(range(10 * ps, 20 * ps), range(50 * ps, 60 * ps)), {});
   CHECK(disjoint.steps[1].proven);
   CHECK(disjoint.steps[1].values == std::vector<logic>{O, I});
 }
@@ -59,7 +62,7 @@ TEST_CASE("an interval run of a clean chain is binary after the last window clos
 // the value of every sampled corner that settled.
 TEST_CASE("no sampled corner contradicts a binary interval value", "[interval][property]") {
   std::mt19937_64 rng(20261202);
-  const gate_kind kinds[] = {gate_kind::nand, gate_kind::nor, gate_kind::inv, gate_kind::celem,
+  const gate_kind kinds[] = {gate_kind::nand, gate_kind::nor,  gate_kind::inv, gate_kind::celem,
                              gate_kind::xor_, gate_kind::and_, gate_kind::or_};
   int proven_values = 0, checked = 0;
   for (int c = 0; c < 250; ++c) {
@@ -76,12 +79,16 @@ TEST_CASE("no sampled corner contradicts a binary interval value", "[interval][p
       const time_fs lo = (5 + rng() % 40) * ps, hi = lo + (rng() % 30) * ps;
       const bool transport = rng() % 6 == 0;
       const std::string out = "g" + std::to_string(g);
-      if (k == gate_kind::inv) b.gate(k, out, {pick(g)}, range(lo, hi), transport);
-      else b.gate(k, out, {pick(g), pick(g)}, range(lo, hi), transport);
+      if (k == gate_kind::inv)
+        b.gate(k, out, {pick(g)}, range(lo, hi), transport);
+      else
+        b.gate(k, out, {pick(g), pick(g)}, range(lo, hi), transport);
     }
     for (int g = 0; g < gates; ++g) b.output("g" + std::to_string(g));
     for (int s = 0; s < 4; ++s) {
-      b.after((s == 0 ? 0 : 2000) * ps, {{"i0", from_bool(rng() & 1)}, {"i1", from_bool(rng() & 1)}}).settle();
+      b.after((s == 0 ? 0 : 2000) * ps,
+              {{"i0", from_bool(rng() & 1)}, {"i1", from_bool(rng() & 1)}})
+          .settle();
     }
     design d = b.finish();
     run_options opt;

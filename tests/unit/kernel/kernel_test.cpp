@@ -1,10 +1,10 @@
 // The kernel against circuit facts: ring periods, latches, inertial versus transport delay.
 #include <catch2/catch.hpp>
 
+#include "sim/kernel/run.hpp"
+#include "sim/model/corner.hpp"
 #include "tests/unit/netlist_builder.hpp"
 #include "tests/unit/random_circuits.hpp"
-#include "sim/model/corner.hpp"
-#include "sim/kernel/run.hpp"
 
 using namespace settle;
 using namespace settle::testing;
@@ -35,7 +35,8 @@ design ring(int stages, std::vector<time_fs> delays) {
   b.input("en");
   b.gate(gate_kind::nand, "s0", {"en", "s" + std::to_string(stages - 1)}, fixed(delays[0]));
   for (int i = 1; i < stages; ++i)
-    b.gate(gate_kind::inv, "s" + std::to_string(i), {"s" + std::to_string(i - 1)}, fixed(delays[i]));
+    b.gate(gate_kind::inv, "s" + std::to_string(i), {"s" + std::to_string(i - 1)},
+           fixed(delays[i]));
   b.output("s0");
   b.at(0, {{"en", O}}).settle();
   b.after(1000 * ps, {{"en", I}}).settle();
@@ -112,10 +113,10 @@ TEST_CASE("NAND and NOR set/reset latches set, reset and hold", "[kernel]") {
     b.gate(gate_kind::nand, "q", {"s_n", "qn"}, range(35 * ps, 55 * ps));
     b.gate(gate_kind::nand, "qn", {"r_n", "q"}, range(35 * ps, 55 * ps));
     b.output("q"), b.output("qn");
-    b.at(0, {{"s_n", O}, {"r_n", I}}).settle();           // set
-    b.after(1000 * ps, {{"s_n", I}}).settle();           // hold
-    b.after(1000 * ps, {{"r_n", O}}).settle();           // reset
-    b.after(1000 * ps, {{"r_n", I}}).settle();           // hold
+    b.at(0, {{"s_n", O}, {"r_n", I}}).settle();  // set
+    b.after(1000 * ps, {{"s_n", I}}).settle();   // hold
+    b.after(1000 * ps, {{"r_n", O}}).settle();   // reset
+    b.after(1000 * ps, {{"r_n", I}}).settle();   // hold
     design d = b.finish();
     for (auto k : {corner::kind::min, corner::kind::typ, corner::kind::max}) {
       auto r = run_at(d, k);
@@ -153,7 +154,8 @@ TEST_CASE("NAND and NOR set/reset latches set, reset and hold", "[kernel]") {
 // Common practice (the ideal model of metastability): two cross-coupled NANDs
 // with equal delays released together switch together and keep switching,
 // period 2 x the gate delay (METHODS.md §7, derived).
-TEST_CASE("a NAND latch released from (0,0) with equal delays oscillates with period 2d", "[kernel]") {
+TEST_CASE("a NAND latch released from (0,0) with equal delays oscillates with period 2d",
+          "[kernel]") {
   builder b;
   b.input("s_n"), b.input("r_n");
   b.gate(gate_kind::nand, "q", {"s_n", "qn"}, fixed(40 * ps));
@@ -178,8 +180,8 @@ TEST_CASE("inertial gates reject short pulses, transport gates propagate them", 
     b.gate(gate_kind::buf, "y", {"a"}, fixed(50 * ps), transport);
     b.output("y");
     b.at(0, {{"a", O}}).settle();
-    b.at(1000 * ps, {{"a", I}}).after(20 * ps, {{"a", O}}).settle();   // 20ps pulse < 50ps
-    b.at(2000 * ps, {{"a", I}}).after(80 * ps, {{"a", O}}).settle();   // 80ps pulse > 50ps
+    b.at(1000 * ps, {{"a", I}}).after(20 * ps, {{"a", O}}).settle();  // 20ps pulse < 50ps
+    b.at(2000 * ps, {{"a", I}}).after(80 * ps, {{"a", O}}).settle();  // 80ps pulse > 50ps
     design d = b.finish();
     auto r = run_at(d);
     REQUIRE(r.steps.size() == 3);
@@ -251,7 +253,8 @@ TEST_CASE("clocks drive inputs and run steps advance time", "[kernel]") {
 }
 
 TEST_CASE("corner names print and parse back; extremes follow their formula", "[corner]") {
-  for (const char* s : {"min", "typ", "max", "random:7#3", "gauss:11#0", "extremes#4", "exhaustive#5", "max@0.5"}) {
+  for (const char* s :
+       {"min", "typ", "max", "random:7#3", "gauss:11#0", "extremes#4", "exhaustive#5", "max@0.5"}) {
     std::string err;
     auto c = parse_corner(s, &err);
     REQUIRE(c);
@@ -281,7 +284,8 @@ TEST_CASE("corner names print and parse back; extremes follow their formula", "[
   fill_delays(d, c, t);
   fill_delays(d, c, t2);
   CHECK(t.rise == t2.rise);
-  for (int g = 0; g < 2; ++g) CHECK((t.rise[g] >= d.nets.delay[g].rise.min && t.rise[g] <= d.nets.delay[g].rise.max));
+  for (int g = 0; g < 2; ++g)
+    CHECK((t.rise[g] >= d.nets.delay[g].rise.min && t.rise[g] <= d.nets.delay[g].rise.max));
 }
 
 namespace {

@@ -1,7 +1,6 @@
 // The timing-wheel event queue against a plain ordered multiset.
-#include <catch2/catch.hpp>
-
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <map>
 #include <random>
 #include <utility>
@@ -14,7 +13,8 @@ namespace {
 
 // The instant `front` taken at t holds exactly the reference's entries at t
 // (in any order); they leave the reference.
-void take_from_reference(std::span<const queued_event> front, time_fs t, std::multimap<time_fs, gate_id>& ref) {
+void take_from_reference(std::span<const queued_event> front, time_fs t,
+                         std::multimap<time_fs, gate_id>& ref) {
   auto [lo, hi] = ref.equal_range(t);
   std::vector<gate_id> want, got;
   for (auto it = lo; it != hi; ++it) want.push_back(it->second);
@@ -31,12 +31,14 @@ void take_from_reference(std::span<const queued_event> front, time_fs t, std::mu
 // Pushes 0 to 3 entries at now + d into the queue and the reference: d is
 // mostly within the largest delay, zero `zero_percent` % of the time,
 // sometimes far beyond the wheel.
-void push_some(event_queue& q, std::multimap<time_fs, gate_id>& ref, std::mt19937_64& rng, time_fs now,
-               time_fs largest, unsigned zero_percent, gate_id& next) {
+void push_some(event_queue& q, std::multimap<time_fs, gate_id>& ref, std::mt19937_64& rng,
+               time_fs now, time_fs largest, unsigned zero_percent, gate_id& next) {
   const int pushes = static_cast<int>(rng() % 4);
   for (int k = 0; k < pushes; ++k) {
     const auto r = rng() % 100;
-    const time_fs d = r < zero_percent ? 0 : r < 90 ? rng() % (largest + 1) : rng() % (50 * largest + 1000000);
+    const time_fs d = r < zero_percent ? 0
+                      : r < 90         ? rng() % (largest + 1)
+                                       : rng() % (50 * largest + 1000000);
     q.push({now + d, next, 0});
     ref.emplace(now + d, next);
     ++next;
@@ -45,11 +47,17 @@ void push_some(event_queue& q, std::multimap<time_fs, gate_id>& ref, std::mt1993
 
 }  // namespace
 
-TEST_CASE("the event queue returns instants in time order, like an ordered multiset", "[kernel][queue]") {
+TEST_CASE("the event queue returns instants in time order, like an ordered multiset",
+          "[kernel][queue]") {
   // Wheels of 64 slots (no smallest delay known, or slots up to half of it)
   // and of 4096 (a smallest delay of 1 fs).
-  for (const auto& [largest, smallest] : {std::pair<time_fs, time_fs>{0, 0}, {1000, 0}, {60000, 0}, {5000000, 0},
-                                         {60000, 20000}, {60000, 1}, {5000000, 1}}) {
+  for (const auto& [largest, smallest] : {std::pair<time_fs, time_fs>{0, 0},
+                                          {1000, 0},
+                                          {60000, 0},
+                                          {5000000, 0},
+                                          {60000, 20000},
+                                          {60000, 1},
+                                          {5000000, 1}}) {
     std::mt19937_64 rng(largest + smallest + 7);
     event_queue q(largest, smallest);
     std::multimap<time_fs, gate_id> ref;
@@ -75,11 +83,17 @@ TEST_CASE("the event queue returns instants in time order, like an ordered multi
 // it is not after `last`, and leaves the queue as it was otherwise. Checked
 // against the same ordered multiset (the reference), with zero-delay pushes
 // that land on the sorted cursor slot and far pushes beyond the wheel.
-TEST_CASE("take_until takes instants in time order and nothing after its bound", "[kernel][queue]") {
+TEST_CASE("take_until takes instants in time order and nothing after its bound",
+          "[kernel][queue]") {
   // Wheels of 64 slots (no smallest delay known, or slots up to half of it)
   // and of 4096 (a smallest delay of 1 fs).
-  for (const auto& [largest, smallest] : {std::pair<time_fs, time_fs>{0, 0}, {1000, 0}, {60000, 0}, {5000000, 0},
-                                         {60000, 20000}, {60000, 1}, {5000000, 1}}) {
+  for (const auto& [largest, smallest] : {std::pair<time_fs, time_fs>{0, 0},
+                                          {1000, 0},
+                                          {60000, 0},
+                                          {5000000, 0},
+                                          {60000, 20000},
+                                          {60000, 1},
+                                          {5000000, 1}}) {
     std::mt19937_64 rng(largest + smallest + 11);
     event_queue q(largest, smallest);
     std::multimap<time_fs, gate_id> ref;
@@ -89,8 +103,10 @@ TEST_CASE("take_until takes instants in time order and nothing after its bound",
     for (int round = 0; round < 20000; ++round) {
       push_some(q, ref, rng, now, largest, 10, next);
       // A bound before, at or after the earliest instant.
-      const time_fs last = ref.empty() ? now : ref.begin()->first + (rng() % 3 == 0 ? 0 : rng() % (largest + 2)) -
-                                                  (rng() % 4 == 0 && ref.begin()->first > now ? 1 : 0);
+      const time_fs last = ref.empty()
+                               ? now
+                               : ref.begin()->first + (rng() % 3 == 0 ? 0 : rng() % (largest + 2)) -
+                                     (rng() % 4 == 0 && ref.begin()->first > now ? 1 : 0);
       const auto front = q.take_until(last);
       if (ref.empty() || ref.begin()->first > last) {
         REQUIRE(front.empty());

@@ -47,7 +47,8 @@ TEST_CASE("format_time uses the largest exact unit with at most three decimals",
   CHECK(format_time(1'000'005'000'000) == "1000.005us");
   CHECK(format_time(2'000'000'000'000) == "2ms");
   CHECK(format_time(1'234'567) == "1234.567ps");
-  CHECK(format_time(1'000'001) == "1000.001ps");  // every count of 1ps or more fits ps with 3 decimals
+  CHECK(format_time(1'000'001) ==
+        "1000.001ps");  // every count of 1ps or more fits ps with 3 decimals
   CHECK(format_time(999) == "999fs");
   // Whatever it prints parses back to the same count.
   for (time_fs t : {1ull, 999ull, 1'000ull, 1'001ull, 45'500ull, 10'375'000ull, 123'456'789'000ull})

@@ -1,7 +1,7 @@
-// The malformed-design corpus: each tests/bad file names the line:col and message its first error must have.
-#include <catch2/catch.hpp>
-
+// The malformed-design corpus: each tests/bad file names the line:col and message its first error
+// must have.
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <filesystem>
 #include <fstream>
 #include <regex>
@@ -28,7 +28,8 @@ expected_error header_of(const fs::path& p) {
   std::smatch m;
   INFO(p.string());
   REQUIRE(std::regex_match(first, m, rx));
-  return {static_cast<std::uint32_t>(std::stoul(m[1])), static_cast<std::uint32_t>(std::stoul(m[2])), m[3]};
+  return {static_cast<std::uint32_t>(std::stoul(m[1])),
+          static_cast<std::uint32_t>(std::stoul(m[2])), m[3]};
 }
 
 std::vector<fs::path> files(const fs::path& dir, const std::string& ext) {
@@ -45,7 +46,9 @@ void check_one(const fs::path& p) {
   auto d = load_design(p.string(), load_options{}, diags);
   std::string all;
   for (auto& x : diags.items) all += format_diagnostic(x);
-  INFO(p.filename().string() << " wants " << want.line << ":" << want.col << ": " << want.text << "\n" << all);
+  INFO(p.filename().string() << " wants " << want.line << ":" << want.col << ": " << want.text
+                             << "\n"
+                             << all);
   CHECK_FALSE(d);
   bool found = std::any_of(diags.items.begin(), diags.items.end(), [&](const diagnostic& x) {
     return x.severity == diagnostic::level::error && x.file == p.string() && x.line == want.line &&
@@ -59,22 +62,26 @@ void check_one(const fs::path& p) {
 
 }  // namespace
 
-TEST_CASE("every malformed design in tests/bad is rejected at the expected line and column", "[parser][corpus]") {
+TEST_CASE("every malformed design in tests/bad is rejected at the expected line and column",
+          "[parser][corpus]") {
   const fs::path dir = fs::path(SETTLE_SOURCE_DIR) / "tests" / "bad";
   auto designs = files(dir, ".settle");
   CHECK(designs.size() >= 60);
   for (auto& p : designs) check_one(p);
 }
 
-TEST_CASE("every malformed Verilog netlist in tests/bad/verilog is rejected at the expected line and column",
-          "[parser][corpus]") {
+TEST_CASE(
+    "every malformed Verilog netlist in tests/bad/verilog is rejected at the expected line and "
+    "column",
+    "[parser][corpus]") {
   const fs::path dir = fs::path(SETTLE_SOURCE_DIR) / "tests" / "bad" / "verilog";
   auto netlists = files(dir, ".v");
   CHECK(netlists.size() >= 15);
   for (auto& p : netlists) check_one(p);
 }
 
-TEST_CASE("every malformed stimulus file in tests/bad/stim is rejected against a good design", "[parser][corpus]") {
+TEST_CASE("every malformed stimulus file in tests/bad/stim is rejected against a good design",
+          "[parser][corpus]") {
   const fs::path dir = fs::path(SETTLE_SOURCE_DIR) / "tests" / "bad" / "stim";
   const auto host = (dir / "host.design").string();
   {
@@ -92,11 +99,14 @@ TEST_CASE("every malformed stimulus file in tests/bad/stim is rejected against a
     auto d = load_design(host, opt, diags);
     std::string all;
     for (auto& x : diags.items) all += format_diagnostic(x);
-    INFO(p.filename().string() << " wants " << want.line << ":" << want.col << ": " << want.text << "\n" << all);
+    INFO(p.filename().string() << " wants " << want.line << ":" << want.col << ": " << want.text
+                               << "\n"
+                               << all);
     CHECK_FALSE(d);
     CHECK(std::any_of(diags.items.begin(), diags.items.end(), [&](const diagnostic& x) {
-      return x.severity == diagnostic::level::error && x.file == p.string() && x.line == want.line &&
-             x.col == want.col && x.message.find(want.text) != std::string::npos;
+      return x.severity == diagnostic::level::error && x.file == p.string() &&
+             x.line == want.line && x.col == want.col &&
+             x.message.find(want.text) != std::string::npos;
     }));
   }
 }

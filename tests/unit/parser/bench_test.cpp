@@ -1,7 +1,6 @@
 // The .bench importer against the published ISCAS figures, its flip-flop expansion and its errors.
-#include <catch2/catch.hpp>
-
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <filesystem>
 #include <fstream>
 #include <map>
@@ -97,7 +96,8 @@ TEST_CASE("every shared .bench file loads with the published line counts", "[par
     if (e.path().extension() != ".bench") continue;
     ++files;
     const auto stem = e.path().stem().string();
-    CHECK(std::any_of(rows.begin(), rows.end(), [&](const stats_row& r) { return r.name == stem; }));
+    CHECK(
+        std::any_of(rows.begin(), rows.end(), [&](const stats_row& r) { return r.name == stem; }));
   }
   CHECK(files == rows.size());
   for (const auto& row : rows) {
@@ -120,7 +120,8 @@ TEST_CASE("every shared .bench file loads with the published line counts", "[par
     // The generated clock is one more input when there is a flip-flop, and a
     // net read but defined nowhere (s400 has one) floats as one more.
     std::size_t floating = 0;
-    for (const auto& w : diags.items) floating += w.message.find("is never driven") != std::string::npos;
+    for (const auto& w : diags.items)
+      floating += w.message.find("is never driven") != std::string::npos;
     CHECK(floating == (row.name == "s400" ? 1 : 0));
     CHECK(d->nets.inputs.size() == row.inputs + floating + (row.dffs > 0 ? 1 : 0));
     CHECK(d->nets.outputs.size() == row.outputs);
@@ -134,17 +135,18 @@ TEST_CASE("every shared .bench file loads with the published line counts", "[par
 
 TEST_CASE("bench syntax: case, comments, BUF, forward use, no final newline", "[parser][bench]") {
   diagnostics diags;
-  auto d = load("# demo: a panel-switch debouncer output stage\n"
-                "INPUT(press)  # the contact\n"
-                "\n"
-                "\tINPUT( hold )\n"
-                "OUTPUT(lamp)\n"
-                "OUTPUT(press)\n"
-                "lamp = nand(press_n , hold_b)\n"
-                "press_n = Not(press)\r\n"
-                "hold_b = BUF(hold)\n"
-                "x = xnor(press, hold, lamp)",
-                diags);
+  auto d = load(
+      "# demo: a panel-switch debouncer output stage\n"
+      "INPUT(press)  # the contact\n"
+      "\n"
+      "\tINPUT( hold )\n"
+      "OUTPUT(lamp)\n"
+      "OUTPUT(press)\n"
+      "lamp = nand(press_n , hold_b)\n"
+      "press_n = Not(press)\r\n"
+      "hold_b = BUF(hold)\n"
+      "x = xnor(press, hold, lamp)",
+      diags);
   REQUIRE(d);
   CHECK(diags.items.empty());
   const auto& n = d->nets;
@@ -178,7 +180,8 @@ TEST_CASE("the --delay range reaches every imported gate", "[parser][bench]") {
   diagnostics diags;
   auto d = load("INPUT(a)\nOUTPUT(q)\nq = DFF(a)\n", diags, opt);
   REQUIRE(d);
-  for (gate_id g = 0; g < d->nets.gate_count(); ++g) CHECK(d->nets.delay[g].rise == opt.bench_delay);
+  for (gate_id g = 0; g < d->nets.gate_count(); ++g)
+    CHECK(d->nets.delay[g].rise == opt.bench_delay);
 }
 
 // The flip-flop's behaviour as METHODS.md section 7 states it for the six-NAND
@@ -239,7 +242,8 @@ TEST_CASE("DFF becomes a six-NAND edge-triggered flip-flop starting in reset", "
   }
 }
 
-TEST_CASE("a file net named CK moves the generated clock to CK_ with a warning", "[parser][bench]") {
+TEST_CASE("a file net named CK moves the generated clock to CK_ with a warning",
+          "[parser][bench]") {
   diagnostics diags;
   auto d = load("INPUT(CK)\nINPUT(CK_)\nOUTPUT(q)\nq = DFF(t)\nt = AND(CK, CK_)\n", diags);
   REQUIRE(d);
@@ -264,9 +268,11 @@ TEST_CASE("bench errors carry line and column", "[parser][bench]") {
   CHECK(only_error("INPUT(a)\ny = AND(a,)\n") == "2:11: expected a net name, found ')'");
   CHECK(only_error("INPUT(a)\ny AND(a)\n") == "2:3: expected '=', found 'A'");
   CHECK(only_error("INPUT(a)\ny = AND a\n") == "2:9: expected '(', found 'a'");
-  CHECK(only_error("INPUT(a)\ny = AND(a) extra\n") == "2:12: expected the end of the line, found 'e'");
+  CHECK(only_error("INPUT(a)\ny = AND(a) extra\n") ==
+        "2:12: expected the end of the line, found 'e'");
   CHECK(only_error("GATE(a)\n") == "1:1: expected INPUT or OUTPUT before '(', found 'GATE'");
-  CHECK(only_error("INPUT(a)\nINPUT(b)\ny = NOT(a, b)\n") == "3:12: NOT takes exactly one input, found 2");
+  CHECK(only_error("INPUT(a)\nINPUT(b)\ny = NOT(a, b)\n") ==
+        "3:12: NOT takes exactly one input, found 2");
   CHECK(only_error("INPUT(a)\ny = = AND(a)\n") == "2:5: expected a gate kind, found '='");
   // The offending line travels with the diagnostic for the caret display.
   diagnostics diags;
@@ -286,7 +292,8 @@ TEST_CASE("several errors are reported in one run", "[parser][bench]") {
   CHECK(more.error_count() == 3);  // w twice driven, p and r never driven
 }
 
-TEST_CASE("a net read but defined nowhere floats as an extra input, with a warning", "[parser][bench]") {
+TEST_CASE("a net read but defined nowhere floats as an extra input, with a warning",
+          "[parser][bench]") {
   diagnostics diags;
   auto d = load("INPUT(a)\nOUTPUT(y)\n  y = AND(a, b)\nz = OR(b, a)\n", diags);
   REQUIRE(d);
@@ -295,9 +302,10 @@ TEST_CASE("a net read but defined nowhere floats as an extra input, with a warni
   CHECK(w.severity == diagnostic::level::warning);
   CHECK(w.line == 3);
   CHECK(w.col == 14);
-  CHECK(w.message ==
-        "net 'b' is never driven (no INPUT or gate line defines it); it becomes an extra input that "
-        "stays x unless the stimulus drives it");
+  CHECK(
+      w.message ==
+      "net 'b' is never driven (no INPUT or gate line defines it); it becomes an extra input that "
+      "stays x unless the stimulus drives it");
   const auto b = d->nets.find("b");
   REQUIRE(b != no_id);
   CHECK(d->nets.driver[b] == no_id);

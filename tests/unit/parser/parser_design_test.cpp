@@ -21,7 +21,8 @@ design load_ok(const std::string& text) {
 
 std::vector<std::string> fanin_names(const netlist& nl, gate_id g) {
   std::vector<std::string> out;
-  for (auto i = nl.fanin_begin[g]; i < nl.fanin_begin[g + 1]; ++i) out.push_back(nl.net_name[nl.fanin[i]]);
+  for (auto i = nl.fanin_begin[g]; i < nl.fanin_begin[g + 1]; ++i)
+    out.push_back(nl.net_name[nl.fanin[i]]);
   return out;
 }
 
@@ -95,7 +96,8 @@ TEST_CASE("the debouncer elaborates into two NAND gates with port aliases", "[pa
   CHECK(nl.inputs == std::vector<net_id>{nl.find("contact_a"), nl.find("contact_b")});
   CHECK(nl.outputs == std::vector<net_id>{nl.find("clean")});
   bool alias_found = false;
-  for (auto& a : nl.aliases) alias_found = alias_found || (a.scope == 1 && a.local == "q_n" && a.net == nl.find("clean_n"));
+  for (auto& a : nl.aliases)
+    alias_found = alias_found || (a.scope == 1 && a.local == "q_n" && a.net == nl.find("clean_n"));
   CHECK(alias_found);
   CHECK(d.source.format == "settle");
   CHECK(d.source.inputs == 2);
@@ -143,9 +145,10 @@ o11 = c(a, b)
 )");
   const auto& nl = d.nets;
   const std::pair<const char*, gate_kind> kinds[] = {
-      {"o1", gate_kind::inv},  {"o2", gate_kind::buf},  {"o3", gate_kind::and_},  {"o4", gate_kind::or_},
-      {"o5", gate_kind::nand}, {"o6", gate_kind::nor},  {"o7", gate_kind::xor_},  {"o8", gate_kind::xnor},
-      {"o9", gate_kind::mux},  {"o10", gate_kind::maj}, {"o11", gate_kind::celem},
+      {"o1", gate_kind::inv},  {"o2", gate_kind::buf},    {"o3", gate_kind::and_},
+      {"o4", gate_kind::or_},  {"o5", gate_kind::nand},   {"o6", gate_kind::nor},
+      {"o7", gate_kind::xor_}, {"o8", gate_kind::xnor},   {"o9", gate_kind::mux},
+      {"o10", gate_kind::maj}, {"o11", gate_kind::celem},
   };
   for (auto& [name, k] : kinds) {
     INFO(name);
@@ -174,22 +177,26 @@ g = gc(set: a & b, reset: ~a & ~b) delay 30ps
   CHECK(nl.kind[y] == gate_kind::expr);
   CHECK(fanin_names(nl, y) == std::vector<std::string>{"a", "b", "c", "e"});
   // a | (b ^ (c & e))
-  CHECK(program(nl, y) == std::vector<std::uint32_t>{encode(o::input, 0), encode(o::input, 1), encode(o::input, 2),
-                                                       encode(o::input, 3), encode(o::and2), encode(o::xor2),
-                                                       encode(o::or2)});
+  CHECK(program(nl, y) == std::vector<std::uint32_t>{encode(o::input, 0), encode(o::input, 1),
+                                                     encode(o::input, 2), encode(o::input, 3),
+                                                     encode(o::and2), encode(o::xor2),
+                                                     encode(o::or2)});
   auto z = gate_of(nl, "z");
   CHECK(fanin_names(nl, z) == std::vector<std::string>{"a", "b", "c"});
-  CHECK(program(nl, z) == std::vector<std::uint32_t>{encode(o::input, 0), encode(o::input, 1), encode(o::and2),
-                                                       encode(o::inv), encode(o::input, 2), encode(o::or2)});
+  CHECK(program(nl, z) == std::vector<std::uint32_t>{encode(o::input, 0), encode(o::input, 1),
+                                                     encode(o::and2), encode(o::inv),
+                                                     encode(o::input, 2), encode(o::or2)});
   auto k = gate_of(nl, "k");
-  CHECK(program(nl, k) == std::vector<std::uint32_t>{encode(o::input, 0), encode(o::const1), encode(o::and2)});
+  CHECK(program(nl, k) ==
+        std::vector<std::uint32_t>{encode(o::input, 0), encode(o::const1), encode(o::and2)});
   // gc: the set program, then the reset program; fan-in is the distinct nets read.
   auto g = gate_of(nl, "g");
   CHECK(nl.kind[g] == gate_kind::gc);
   CHECK(fanin_names(nl, g) == std::vector<std::string>{"a", "b"});
-  CHECK(program(nl, g) == std::vector<std::uint32_t>{encode(o::input, 0), encode(o::input, 1), encode(o::and2),
-                                                       encode(o::input, 0), encode(o::inv), encode(o::input, 1),
-                                                       encode(o::inv), encode(o::and2)});
+  CHECK(program(nl, g) == std::vector<std::uint32_t>{encode(o::input, 0), encode(o::input, 1),
+                                                     encode(o::and2), encode(o::input, 0),
+                                                     encode(o::inv), encode(o::input, 1),
+                                                     encode(o::inv), encode(o::and2)});
 }
 
 TEST_CASE("delay forms, rise/fall, transport and default scoping", "[parser]") {
@@ -229,7 +236,8 @@ inst u cell(a: a, q: d8)
 }
 
 TEST_CASE("nested blocks defined after use flatten to inst.inner.net", "[parser]") {
-  auto d = load_ok(R"(# sensor FIFO handshake: two stages, each a C-element with an inverted acknowledge
+  auto d =
+      load_ok(R"(# sensor FIFO handshake: two stages, each a C-element with an inverted acknowledge
 default delay 50ps..80ps
 input req, ack_in
 output ack_out
@@ -276,7 +284,8 @@ init fifo.s1.done = 0
   CHECK(nl.gate_count() == 6);
 }
 
-TEST_CASE("stimulus: clocks, run, watch, every expectation and the implicit last settle", "[parser]") {
+TEST_CASE("stimulus: clocks, run, watch, every expectation and the implicit last settle",
+          "[parser]") {
   diagnostics diags;
   auto d = load_design_text(R"(default delay 10ps
 input ck, en
@@ -295,7 +304,8 @@ stimulus {
   expect oscillating
   after 1ns en = x
 }
-)", "t.settle", load_options{}, diags);
+)",
+                            "t.settle", load_options{}, diags);
   REQUIRE(d);
   const auto& nl = d->nets;
   const auto& st = d->stim;
@@ -335,11 +345,15 @@ stimulus {
   REQUIRE(diags.items.size() == 1);
   CHECK(diags.items[0].severity == diagnostic::level::warning);
   CHECK(diags.items[0].line == 16);
-  CHECK(diags.items[0].message == "input changes after the last settle or run: an implicit settle ends them");
+  CHECK(diags.items[0].message ==
+        "input changes after the last settle or run: an implicit settle ends them");
 }
 
-TEST_CASE("a step with no action is labelled settle; statements may share a line with ';'", "[parser]") {
-  auto d = load_ok("default delay 1ps; input a; output q; q = buf(a)\nstimulus {\n settle\n at 1ns a = 1; settle\n}\n");
+TEST_CASE("a step with no action is labelled settle; statements may share a line with ';'",
+          "[parser]") {
+  auto d = load_ok(
+      "default delay 1ps; input a; output q; q = buf(a)\nstimulus {\n settle\n at 1ns a = 1; "
+      "settle\n}\n");
   REQUIRE(d.stim.steps.size() == 2);
   CHECK(d.stim.steps[0].label == "settle");
   CHECK(d.stim.steps[1].label == "at 1ns a = 1");

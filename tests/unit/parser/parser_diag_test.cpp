@@ -1,6 +1,6 @@
-// Parser diagnostics as a contract: whole messages with source line and caret, recovery, warnings, --stim.
+// Parser diagnostics as a contract: whole messages with source line and caret, recovery, warnings,
+// --stim.
 #include <catch2/catch.hpp>
-
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
@@ -39,24 +39,25 @@ TEST_CASE("an unknown net is reported with its line and a caret", "[parser][diag
 }
 
 TEST_CASE("syntax errors on several lines are all reported in one run", "[parser][diag]") {
-  CHECK(messages("input req, ack\n"
-                 "output done\n"
-                 "done = c(req ack) delay 1ps\n"
-                 "wire\n"
-                 "settle\n"
-                 "done = buf(req) delay 10\n") ==
-        "fifo.settle:3:14: error: expected ')', found 'ack'\n"
-        "done = c(req ack) delay 1ps\n"
-        "             ^\n"
-        "fifo.settle:4:5: error: expected a net name at the end of the statement\n"
-        "wire\n"
-        "    ^\n"
-        "fifo.settle:5:1: error: 'settle' is only allowed inside stimulus { }\n"
-        "settle\n"
-        "^\n"
-        "fifo.settle:6:25: error: expected a time unit (fs ps ns us ms) at the end of the statement\n"
-        "done = buf(req) delay 10\n"
-        "                        ^\n");
+  CHECK(
+      messages("input req, ack\n"
+               "output done\n"
+               "done = c(req ack) delay 1ps\n"
+               "wire\n"
+               "settle\n"
+               "done = buf(req) delay 10\n") ==
+      "fifo.settle:3:14: error: expected ')', found 'ack'\n"
+      "done = c(req ack) delay 1ps\n"
+      "             ^\n"
+      "fifo.settle:4:5: error: expected a net name at the end of the statement\n"
+      "wire\n"
+      "    ^\n"
+      "fifo.settle:5:1: error: 'settle' is only allowed inside stimulus { }\n"
+      "settle\n"
+      "^\n"
+      "fifo.settle:6:25: error: expected a time unit (fs ps ns us ms) at the end of the statement\n"
+      "done = buf(req) delay 10\n"
+      "                        ^\n");
 }
 
 TEST_CASE("elaboration errors are reported together, in source order", "[parser][diag]") {
@@ -79,7 +80,8 @@ TEST_CASE("elaboration errors are reported together, in source order", "[parser]
 
 TEST_CASE("a driven net nobody reads is a warning, not an error", "[parser][diag]") {
   bool loaded = false;
-  CHECK(messages("default delay 1ps\ninput req\noutput ack\nwire spare\nack = buf(req)\nspare = not(req)\n",
+  CHECK(messages("default delay 1ps\ninput req\noutput ack\nwire spare\nack = buf(req)\nspare = "
+                 "not(req)\n",
                  &loaded) ==
         "fifo.settle:4:6: warning: net 'spare' is driven but never read\n"
         "wire spare\n"
@@ -98,7 +100,8 @@ TEST_CASE("a hierarchy 10,000 blocks deep elaborates without deep recursion", "[
   std::string text = "default delay 1ps\n";
   const int depth = 10000;
   for (int i = 0; i < depth; ++i)
-    text += "block b" + std::to_string(i) + "(in a; out q) {\n  inst u b" + std::to_string(i + 1) + "(a: a, q: q)\n}\n";
+    text += "block b" + std::to_string(i) + "(in a; out q) {\n  inst u b" + std::to_string(i + 1) +
+            "(a: a, q: q)\n}\n";
   text += "block b" + std::to_string(depth) + "(in a; out q) {\n  q = not(a)\n}\n";
   text += "input a\noutput q\ninst u b0(a: a, q: q)\n";
   diagnostics diags;
@@ -109,10 +112,12 @@ TEST_CASE("a hierarchy 10,000 blocks deep elaborates without deep recursion", "[
 }
 
 TEST_CASE("expression nesting is capped with a diagnostic", "[parser][diag]") {
-  std::string ok = "input a\noutput q\nq = " + std::string(256, '(') + "a" + std::string(256, ')') + " delay 1ps\n";
+  std::string ok = "input a\noutput q\nq = " + std::string(256, '(') + "a" + std::string(256, ')') +
+                   " delay 1ps\n";
   diagnostics d1;
   CHECK(load_design_text(ok, "t.settle", {}, d1));
-  std::string deep = "input a\noutput q\nq = " + std::string(5000, '(') + "a" + std::string(5000, ')') + " delay 1ps\n";
+  std::string deep = "input a\noutput q\nq = " + std::string(5000, '(') + "a" +
+                     std::string(5000, ')') + " delay 1ps\n";
   diagnostics d2;
   CHECK_FALSE(load_design_text(deep, "t.settle", {}, d2));
   REQUIRE(d2.items.size() == 1);
@@ -120,15 +125,19 @@ TEST_CASE("expression nesting is capped with a diagnostic", "[parser][diag]") {
   CHECK(d2.items[0].message == "expression nested deeper than 256 levels");
 }
 
-TEST_CASE("a stimulus file (--stim) replaces the embedded stimulus, parsed against the design's nets", "[parser][stim]") {
-  auto design_path = write_temp("host.settle",
-                                "default delay 40ps..60ps\ninput contact_a, contact_b\noutput clean\nwire clean_n\n"
-                                "clean = nand(contact_a, clean_n)\nclean_n = nand(contact_b, clean)\n"
-                                "stimulus {\n  at 0ns contact_a = 1, contact_b = 0\n  settle\n}\n");
-  auto stim_path = write_temp("bounce.stim",
-                              "# contact bounce on the set side\nstimulus {\n  at 0ns contact_a = 0, contact_b = 1\n"
-                              "  settle\n  after 1ns contact_a = 1\n  after 30ps contact_a = 0\n  settle\n"
-                              "  expect clean = 1\n}\n");
+TEST_CASE(
+    "a stimulus file (--stim) replaces the embedded stimulus, parsed against the design's nets",
+    "[parser][stim]") {
+  auto design_path = write_temp(
+      "host.settle",
+      "default delay 40ps..60ps\ninput contact_a, contact_b\noutput clean\nwire clean_n\n"
+      "clean = nand(contact_a, clean_n)\nclean_n = nand(contact_b, clean)\n"
+      "stimulus {\n  at 0ns contact_a = 1, contact_b = 0\n  settle\n}\n");
+  auto stim_path = write_temp(
+      "bounce.stim",
+      "# contact bounce on the set side\nstimulus {\n  at 0ns contact_a = 0, contact_b = 1\n"
+      "  settle\n  after 1ns contact_a = 1\n  after 30ps contact_a = 0\n  settle\n"
+      "  expect clean = 1\n}\n");
   load_options opt;
   opt.stim_path = stim_path;
   diagnostics diags;
@@ -144,8 +153,10 @@ TEST_CASE("a stimulus file (--stim) replaces the embedded stimulus, parsed again
   diagnostics bad;
   CHECK_FALSE(load_design(design_path, opt, bad));
   REQUIRE(bad.items.size() == 1);
-  CHECK(format_diagnostic(bad.items[0]) == bad_path + ":2:10: error: 'clean' is not an input; the stimulus drives "
-                                                      "inputs only\n  at 0ns clean = 1\n         ^\n");
+  CHECK(format_diagnostic(bad.items[0]) ==
+        bad_path +
+            ":2:10: error: 'clean' is not an input; the stimulus drives "
+            "inputs only\n  at 0ns clean = 1\n         ^\n");
   std::remove(design_path.c_str());
   std::remove(stim_path.c_str());
   std::remove(bad_path.c_str());
@@ -156,6 +167,7 @@ TEST_CASE("a missing file is a diagnostic without a position", "[parser][diag]")
   CHECK_FALSE(load_design("/nonexistent/panel.settle", load_options{}, diags));
   REQUIRE(diags.items.size() == 1);
   CHECK(diags.items[0].line == 0);
-  CHECK(format_diagnostic(diags.items[0]) == "/nonexistent/panel.settle: error: cannot open file: No such file or "
-                                             "directory\n");
+  CHECK(format_diagnostic(diags.items[0]) ==
+        "/nonexistent/panel.settle: error: cannot open file: No such file or "
+        "directory\n");
 }

@@ -85,9 +85,11 @@ TEST_CASE("the timescale is the coarsest power of ten dividing every time", "[wa
   // it wrote; the commands always pass the design's (next test), and this
   // choice remains the fallback when a written time does not fit it.
   fixture f;
-  CHECK(between(f.dump({{5000, f.a, logic::one}, {15000, f.a, logic::zero}}, 20000), "$timescale ", " $end") == "1 ps");
+  CHECK(between(f.dump({{5000, f.a, logic::one}, {15000, f.a, logic::zero}}, 20000), "$timescale ",
+                " $end") == "1 ps");
   CHECK(between(f.dump({{1500, f.a, logic::one}}, 3000), "$timescale ", " $end") == "100 fs");
-  CHECK(between(f.dump({{10'000'000, f.a, logic::one}}, 50'000'000), "$timescale ", " $end") == "10 ns");
+  CHECK(between(f.dump({{10'000'000, f.a, logic::one}}, 50'000'000), "$timescale ", " $end") ==
+        "10 ns");
   CHECK(between(f.dump({{7, f.a, logic::one}}, 10), "$timescale ", " $end") == "1 fs");
   CHECK(between(f.dump({}, 0), "$timescale ", " $end") == "1 fs");
   CHECK(vcd_timescale(15) == "1 s");
@@ -146,7 +148,8 @@ TEST_CASE("scopes follow the instance hierarchy and aliases share codes", "[wave
 
 TEST_CASE("only the selected nets are dumped, constants never", "[waves][vcd]") {
   fixture f;
-  const auto v = f.dump({{5000, f.a, logic::one}, {5000, f.y, logic::one}}, 10000, vcd_options{"t", "", "", {f.y}});
+  const auto v = f.dump({{5000, f.a, logic::one}, {5000, f.y, logic::one}}, 10000,
+                        vcd_options{"t", "", "", {f.y}});
   CHECK(v.find(" a $end") == std::string::npos);
   CHECK(v.find("$var wire 1 ! y $end") != std::string::npos);
   CHECK(v.find("$const") == std::string::npos);
@@ -159,7 +162,8 @@ TEST_CASE("long runs spill to disk and keep every instant", "[waves][vcd]") {
   const std::uint64_t instants = 4'000'000;
   std::vector<change> c;
   c.reserve(instants);
-  for (std::uint64_t i = 1; i <= instants; ++i) c.push_back({i * 1000, f.a, i % 2 ? logic::one : logic::zero});
+  for (std::uint64_t i = 1; i <= instants; ++i)
+    c.push_back({i * 1000, f.a, i % 2 ? logic::one : logic::zero});
   const auto v = f.dump(c, (instants + 1) * 1000);
   CHECK(between(v, "$timescale ", " $end") == "1 ps");
   std::uint64_t times = 0, last = 0;
