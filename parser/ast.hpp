@@ -18,7 +18,7 @@ struct name {
 };
 
 /// A time literal: the digits as written ("1.5") and the unit as a power of
-/// ten of femtoseconds (ns = 6). Converted exactly by parser/time_literal.hpp.
+/// ten of femtoseconds (ns = 6). Converted exactly by sim/model/time_parse.hpp.
 struct time_lit {
   std::string number;
   int exponent = 0;

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <deque>
 
+#include "parser/lexical.hpp"
 #include "parser/lower.hpp"
 #include "parser/parse.hpp"
 
@@ -298,11 +299,8 @@ struct visitor {
     const char* end = text.data() + text.size();
     for (const char* p = from; p + w.size() <= end; ++p) {
       if (std::string_view(p, w.size()) != w) continue;
-      const bool left =
-          p == text.data() || !(std::isalnum(static_cast<unsigned char>(p[-1])) || p[-1] == '_');
-      const bool right =
-          p + w.size() == end ||
-          !(std::isalnum(static_cast<unsigned char>(p[w.size()])) || p[w.size()] == '_');
+      const bool left = p == text.data() || !lexical::ident_char(p[-1]);
+      const bool right = p + w.size() == end || !lexical::ident_char(p[w.size()]);
       if (left && right) return p;
     }
     return nullptr;
@@ -442,8 +440,6 @@ struct visitor {
 };
 
 bool blank(char c) { return c == ' ' || c == '\t' || c == '\r'; }
-bool ident_start(char c) { return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || c == '_'; }
-bool ident_char(char c) { return ident_start(c) || (c >= '0' && c <= '9'); }
 
 /// True for `NAME[.NAME...] = ...` whose first word is not a keyword: only a
 /// gate statement can parse from it (every other statement starts with a
@@ -452,12 +448,12 @@ bool ident_char(char c) { return ident_start(c) || (c >= '0' && c <= '9'); }
 bool looks_like_gate(std::string_view piece) {
   std::size_t i = 0;
   const std::size_t n = piece.size();
-  if (n == 0 || piece.back() == '{' || !ident_start(piece[0])) return false;
-  while (i < n && ident_char(piece[i])) ++i;
+  if (n == 0 || piece.back() == '{' || !lexical::ident_start(piece[0])) return false;
+  while (i < n && lexical::ident_char(piece[i])) ++i;
   if (grammar::is_reserved_word(piece.substr(0, i))) return false;
-  while (i < n && piece[i] == '.' && i + 1 < n && ident_start(piece[i + 1])) {
+  while (i < n && piece[i] == '.' && i + 1 < n && lexical::ident_start(piece[i + 1])) {
     ++i;
-    while (i < n && ident_char(piece[i])) ++i;
+    while (i < n && lexical::ident_char(piece[i])) ++i;
   }
   while (i < n && blank(piece[i])) ++i;
   return i < n && piece[i] == '=';

@@ -8,6 +8,7 @@
 #include "parser/ast.hpp"
 #include "parser/ast_adapted.hpp"
 #include "parser/grammar.hpp"
+#include "parser/lexical.hpp"
 
 namespace settle::grammar {
 namespace x3 = boost::spirit::x3;
@@ -27,7 +28,7 @@ struct kw_parser : x3::parser<kw_parser> {
     It i = first;
     for (const char* p = word; *p; ++p, ++i)
       if (i == last || *i != *p) return false;
-    if (i != last && (std::isalnum(static_cast<unsigned char>(*i)) || *i == '_')) return false;
+    if (i != last && lexical::ident_char(*i)) return false;
     first = i;
     return true;
   }
@@ -89,8 +90,8 @@ auto list(P const& p) {
   return p >> *(',' > p);
 }
 
-auto const ident_chars = (x3::alpha | '_') >> *(x3::alnum | '_');
-auto const word_end = !(x3::alnum | '_');
+auto const ident_chars = x3::char_(lexical::ident_start_set) >> *x3::char_(lexical::ident_char_set);
+auto const word_end = !x3::char_(lexical::ident_char_set);
 
 ///////////////////////////////////////////////////////////////////////////////
 // Rules

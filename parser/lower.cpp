@@ -6,9 +6,10 @@
 #include <algorithm>
 #include <unordered_map>
 
+#include "parser/lexical.hpp"
 #include "parser/parse.hpp"
-#include "parser/time_literal.hpp"
 #include "sim/model/time.hpp"
+#include "sim/model/time_parse.hpp"
 
 namespace settle::ir {
 namespace {
@@ -40,8 +41,6 @@ const char* arity_problem(gate_kind k, std::size_t n) {
 }
 
 bool is_blank(char c) { return c == ' ' || c == '\t'; }
-bool is_ident_start(char c) { return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || c == '_'; }
-bool is_ident_char(char c) { return is_ident_start(c) || (c >= '0' && c <= '9'); }
 
 /// Finds the position of the first name in an expression (for diagnostics).
 const char* first_pos(const ast::or_expr& e);
@@ -281,8 +280,8 @@ bool lower_simple_gate(std::string_view text, source_loc at, gate& out, scope_de
   };
   auto word = [&]() -> std::string_view {
     const char* s = p;
-    if (p == e || !is_ident_start(*p)) return {};
-    while (p < e && is_ident_char(*p)) ++p;
+    if (p == e || !lexical::ident_start(*p)) return {};
+    while (p < e && lexical::ident_char(*p)) ++p;
     return std::string_view(s, static_cast<std::size_t>(p - s));
   };
   auto loc = [&](const char* q) {
@@ -314,7 +313,7 @@ bool lower_simple_gate(std::string_view text, source_loc at, gate& out, scope_de
     const char* s = p;
     if (*p == '0' || *p == '1') {
       ++p;
-      if (p < e && is_ident_char(*p)) return fail();
+      if (p < e && lexical::ident_char(*p)) return fail();
       pools.read_pool.push_back(ref{*s == '1' ? std::string_view("1") : std::string_view("0"), {}});
     } else {
       const auto w = word();

@@ -8,6 +8,7 @@
 #include <bit>
 #include <cstring>
 
+#include "sim/analysis/graph.hpp"
 #include "sim/kernel/eval.hpp"
 
 namespace settle {
@@ -27,9 +28,10 @@ std::uint64_t hash_words(const std::uint64_t* s, std::size_t n) {
 
 state_graph::state_graph(std::size_t gates)
     : gates_(gates), words_(std::max<std::size_t>(1, (gates + 63) / 64)) {
-  table_.assign(1024, no_id);
-  mask_ = table_.size() - 1;
+  ids_.reserve(512, [&](std::uint32_t i) { return hash_of(i); });
 }
+
+std::size_t state_graph::hash_of(std::uint32_t i) const { return hash_words(state(i), words_); }
 
 std::string state_graph::bits_text(std::uint32_t i) const {
   std::string s(gates_, '0');
@@ -50,33 +52,19 @@ std::string state_order_text(const netlist& n) {
 }
 
 std::size_t state_graph::bytes() const {
-  return arena_.capacity() * 8 + table_.capacity() * 4 + edge_to.capacity() * 4 +
-         edge_begin.capacity() * 4 + parent.capacity() * 4;
-}
-
-void state_graph::grow() {
-  std::vector<std::uint32_t> bigger(table_.size() * 2, no_id);
-  const std::size_t m = bigger.size() - 1;
-  for (std::uint32_t i = 0; i < size(); ++i) {
-    std::size_t h = hash_words(state(i), words_) & m;
-    while (bigger[h] != no_id) h = (h + 1) & m;
-    bigger[h] = i;
-  }
-  table_.swap(bigger);
-  mask_ = m;
+  return arena_.capacity() * 8 + ids_.bytes() + edge_to.capacity() * 4 + edge_begin.capacity() * 4 +
+         parent.capacity() * 4;
 }
 
 std::pair<std::uint32_t, bool> state_graph::intern(const std::uint64_t* s, std::uint32_t from) {
-  std::size_t h = hash_words(s, words_) & mask_;
-  while (table_[h] != no_id) {
-    if (std::memcmp(state(table_[h]), s, words_ * 8) == 0) return {table_[h], false};
-    h = (h + 1) & mask_;
-  }
+  const std::size_t h = hash_words(s, words_);
+  const std::uint32_t found =
+      ids_.find(h, [&](std::uint32_t i) { return std::memcmp(state(i), s, words_ * 8) == 0; });
+  if (found != no_id) return {found, false};
   const std::uint32_t id = size();
-  table_[h] = id;
   arena_.insert(arena_.end(), s, s + words_);
   parent.push_back(from);
-  if (std::size_t{size()} * 2 > table_.size()) grow();  // keep the load under one half
+  ids_.insert(h, id, [&](std::uint32_t i) { return hash_of(i); });
   return {id, true};
 }
 
@@ -159,48 +147,12 @@ scc_info strongly_connected(const state_graph& g) {
   auto out_end = [&](std::uint32_t v) { return v < g.explored ? g.edge_begin[v + 1] : 0u; };
   scc_info r;
   r.comp.assign(n, no_id);
-  std::vector<std::uint32_t> index(n, no_id), low(n), stack;
-  std::vector<std::uint8_t> on_stack(n, 0);
-  struct frame {
-    std::uint32_t v, pos;
-  };
-  std::vector<frame> calls;
-  std::uint32_t counter = 0;
-  for (std::uint32_t root = 0; root < n; ++root) {
-    if (index[root] != no_id) continue;
-    index[root] = low[root] = counter++;
-    stack.push_back(root);
-    on_stack[root] = 1;
-    calls.push_back({root, out_begin(root)});
-    while (!calls.empty()) {
-      frame& f = calls.back();
-      const std::uint32_t v = f.v;
-      if (f.pos < out_end(v)) {
-        const std::uint32_t w = g.edge_to[f.pos++];
-        if (index[w] == no_id) {
-          index[w] = low[w] = counter++;
-          stack.push_back(w);
-          on_stack[w] = 1;
-          calls.push_back({w, out_begin(w)});
-        } else if (on_stack[w]) {
-          low[v] = std::min(low[v], index[w]);
-        }
-        continue;
-      }
-      calls.pop_back();
-      if (low[v] == index[v]) {
-        std::uint32_t w;
-        do {
-          w = stack.back();
-          stack.pop_back();
-          on_stack[w] = 0;
-          r.comp[w] = r.count;
-        } while (w != v);
+  for_each_component(
+      n, out_begin, out_end, [&](std::uint32_t e) { return g.edge_to[e]; },
+      [&](std::span<const std::uint32_t> members) {
+        for (std::uint32_t v : members) r.comp[v] = r.count;
         ++r.count;
-      }
-      if (!calls.empty()) low[calls.back().v] = std::min(low[calls.back().v], low[v]);
-    }
-  }
+      });
 
   const std::size_t words = g.words();
   r.size.assign(r.count, 0);

@@ -64,12 +64,11 @@ class state_graph {
   bool is_stable(std::uint32_t i) const { return edge_begin[i] == edge_begin[i + 1]; }
 
  private:
-  void grow();
+  std::size_t hash_of(std::uint32_t i) const;
   std::size_t gates_;
   std::size_t words_;
   std::vector<std::uint64_t> arena_;
-  std::vector<std::uint32_t> table_;  ///< open addressing; no_id = empty
-  std::size_t mask_ = 0;
+  id_table ids_;  ///< the interned states, keyed by their words in arena_
 };
 
 /// Gate outputs (one 0 or 1 per gate, in gate order) as text: the spelling of

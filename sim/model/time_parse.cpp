@@ -26,14 +26,51 @@ int unit_exponent(std::string_view u) {
   return -1;
 }
 
-// a = a * 10 + d with overflow detection.
-bool push_digit(std::uint64_t& a, unsigned d) {
-  if (a > (UINT64_MAX - d) / 10) return false;
-  a = a * 10 + d;
-  return true;
+}  // namespace
+
+const char* time_unit_name(int exponent) {
+  switch (exponent) {
+    case 0:
+      return "fs";
+    case 3:
+      return "ps";
+    case 6:
+      return "ns";
+    case 9:
+      return "us";
+    default:
+      return "ms";
+  }
 }
 
-}  // namespace
+bool time_to_fs(std::string_view number, int exponent, time_fs& out, std::string& why) {
+  const std::string written = std::string(number) + time_unit_name(exponent);
+  auto dot = number.find('.');
+  std::string_view whole = number.substr(0, dot);
+  std::string_view frac =
+      dot == std::string_view::npos ? std::string_view{} : number.substr(dot + 1);
+  while (!frac.empty() && frac.back() == '0') frac.remove_suffix(1);
+  if (frac.size() > static_cast<std::size_t>(exponent)) {
+    why = "time " + written + " is not a whole number of femtoseconds";
+    return false;
+  }
+  time_fs v = 0;
+  auto push = [&](unsigned d) {
+    if (v > (UINT64_MAX - d) / 10) return false;
+    v = v * 10 + d;
+    return true;
+  };
+  bool ok = true;
+  for (char c : whole) ok = ok && push(static_cast<unsigned>(c - '0'));
+  for (char c : frac) ok = ok && push(static_cast<unsigned>(c - '0'));
+  for (auto i = frac.size(); i < static_cast<std::size_t>(exponent); ++i) ok = ok && push(0);
+  if (!ok) {
+    why = "time " + written + " does not fit in 64 bits of femtoseconds";
+    return false;
+  }
+  out = v;
+  return true;
+}
 
 std::optional<time_fs> parse_time(std::string_view s, std::string* err) {
   const std::string shown(s);
@@ -49,6 +86,7 @@ std::optional<time_fs> parse_time(std::string_view s, std::string* err) {
     frac = s.substr(b, i - b);
     if (frac.empty()) return fail(err, fmt::format("'{}': expected digits after '.'", shown));
   }
+  const std::size_t number_end = i;
   if (whole.empty()) return fail(err, fmt::format("'{}' is not a time (e.g. 40ps, 1.5ns)", shown));
   while (i < s.size() && s[i] == ' ') ++i;
   std::string_view unit = s.substr(i);
@@ -59,20 +97,11 @@ std::optional<time_fs> parse_time(std::string_view s, std::string* err) {
   if (e < 0)
     return fail(err, fmt::format("'{}': unknown time unit '{}' (fs ps ns us ms)", shown, unit));
 
-  // value = (whole . frac) * 10^e, computed in integers.
-  std::uint64_t v = 0;
-  bool ok = true;
-  for (char c : whole) ok = ok && push_digit(v, static_cast<unsigned>(c - '0'));
-  for (std::size_t k = 0; k < frac.size(); ++k) {
-    const unsigned d = static_cast<unsigned>(frac[k] - '0');
-    if (static_cast<int>(k) < e) {
-      ok = ok && push_digit(v, d);
-    } else if (d != 0) {
-      return fail(err, fmt::format("'{}' is not a whole number of femtoseconds", shown));
-    }
-  }
-  for (int k = static_cast<int>(frac.size()); k < e; ++k) ok = ok && push_digit(v, 0);
-  if (!ok) return fail(err, fmt::format("'{}' does not fit in 64 bits of femtoseconds", shown));
+  // The digits exactly as written ("1.5"), scaled by the unit in integers.
+  const std::string_view number = s.substr(int_begin, number_end - int_begin);
+  time_fs v = 0;
+  std::string why;
+  if (!time_to_fs(number, e, v, why)) return fail(err, std::move(why));
   return v;
 }
 

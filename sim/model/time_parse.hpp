@@ -10,6 +10,17 @@
 
 namespace settle {
 
+/// The unit name for a power of ten of femtoseconds (0 fs, 3 ps, 6 ns, 9 us, 12 ms).
+const char* time_unit_name(int exponent);
+
+/// Converts `number` ("1.5", digits with an optional fraction) times 10^exponent
+/// fs, exactly on the digit string (never through floating point). Returns
+/// false with the reason in `why` when the value is not a whole number of
+/// femtoseconds or does not fit in 64 bits. The grammar's time literals and
+/// parse_time below both end here, so one value reads and fails alike in a
+/// design file and on the command line.
+bool time_to_fs(std::string_view number, int exponent, time_fs& out, std::string& why);
+
 /// Parses a time literal with a unit (fs ps ns us ms), decimals allowed:
 /// "40ps", "1.5ns". The value must be a whole number of femtoseconds and fit
 /// in 64 bits. On failure returns nullopt and sets *err (when err is not null).

@@ -2,7 +2,7 @@
 #include <catch2/catch.hpp>
 
 #include "parser/load.hpp"
-#include "parser/time_literal.hpp"
+#include "sim/model/time_parse.hpp"
 
 using namespace settle;
 
