@@ -13,8 +13,6 @@
 namespace settle {
 namespace {
 
-constexpr time_fs one_ns = 1'000'000;
-
 // What one probe (a sweep at spread w) says about every step.
 struct probe_outcome {
   std::vector<bool> pass;               // per step
@@ -89,12 +87,6 @@ margin_failure describe_property(const sweep_plan& plan, const sweep_property& p
 
 }  // namespace
 
-time_fs default_horizon(const netlist& n) {
-  // 10,000 x the largest delay, clamped to the last representable instant.
-  const time_fs m = n.largest_max_delay();
-  return std::max<time_fs>(checked_mul(m, 10000).value_or(time_last), one_ns);
-}
-
 std::string spread_percent(double w) {
   std::string s = fmt::format("{:.2f}", 100.0 * w);
   while (s.back() == '0') s.pop_back();
@@ -160,6 +152,8 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
   so.run = o.run;
   so.stop = o.stop;
   struct halted {};  // a probe was stopped part-way: its verdicts are not used
+  // The horizon of the design as written, so that a run at a scaled copy and
+  // `settle run --corner NAME@w` stop at the same time.
   if (!so.run.horizon) so.run.horizon = default_horizon(d.nets);
   const std::size_t steps = d.stim.steps.empty() ? 1 : d.stim.steps.size();
   // Brackets: one per step, then one per property.

@@ -122,10 +122,6 @@ struct margin_result {
 std::optional<margin_result> find_margin(const design& d, const margin_options& o,
                                          std::string* error);
 
-/// The default horizon run_stimulus uses for `d` as written, so that a run at
-/// a scaled copy and `settle run --corner NAME@w` stop at the same time.
-time_fs default_horizon(const netlist& n);
-
 /// A spread as a percentage with at most two decimals: 0.19 -> "19%".
 std::string spread_percent(double w);
 

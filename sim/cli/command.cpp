@@ -171,6 +171,8 @@ void add_allow_x_flag(CLI::App& cmd, bool& allow_x) {
                "do not count an output or watched net left at x at the end of a step as a finding");
 }
 
+std::string version_text() { return std::string("settle ") + SETTLE_VERSION; }
+
 bool use_colour(int fd) {
   const char* no = std::getenv("NO_COLOR");
   if (no && *no) return false;  // no-color.org: any non-empty value disables colour

@@ -80,4 +80,7 @@ std::optional<design> load(const design_options& o, bool empty_ok = false);
 /// True when colour may be used on this stream (a terminal, NO_COLOR unset).
 bool use_colour(int fd);
 
+/// "settle VERSION": what --version prints and the VCD $version and baseline files record.
+std::string version_text();
+
 }  // namespace settle::cli

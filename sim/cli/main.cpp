@@ -12,10 +12,6 @@
 #include "sim/cli/command.hpp"
 #include "sim/cli/interrupt.hpp"
 
-#ifndef SETTLE_VERSION
-#define SETTLE_VERSION "0"
-#endif
-
 namespace {
 
 // Logs go to stderr as "settle: warning: ...", coloured only on a terminal
@@ -85,8 +81,7 @@ int main(int argc, char** argv) {
   settle::cli::install_exit_on_interrupt();
   CLI::App app{"settle: event-driven timing simulation of gate-level asynchronous designs",
                "settle"};
-  app.set_version_flag("--version", std::string("settle ") + SETTLE_VERSION,
-                       "print the version and exit");
+  app.set_version_flag("--version", settle::cli::version_text(), "print the version and exit");
   app.require_subcommand(1);
   app.fallthrough(false);
   exit_status status = exit_status::ok;

@@ -437,11 +437,10 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
                          : "the search was interrupted; the file is unchanged";
   } else if (o.update_baseline) {
     // Re-read and merged under the lock, so concurrent updates keep each other's entries.
-    const auto u = update_baseline_file(
-        o.baseline, now, std::string("settle ") + SETTLE_VERSION, mo.stop, [&] {
-          spdlog::info("waiting for the lock on baseline '{}': another process is updating it",
-                       o.baseline);
-        });
+    const auto u = update_baseline_file(o.baseline, now, version_text(), mo.stop, [&] {
+      spdlog::info("waiting for the lock on baseline '{}': another process is updating it",
+                   o.baseline);
+    });
     switch (u.status) {
       case baseline_update_status::written:
         bo.updated = true;
@@ -504,30 +503,9 @@ void add_margin(CLI::App& app, exit_status& status) {
   auto* cmd = app.add_subcommand(
       "margin", "find how far every gate's delay range can widen before a step fails");
   add_design_options(*cmd, o->design);
-  cmd->add_option(
-      "--corners", o->corners,
-      "corners run at every probed spread: extremes, exhaustive, random:N, gauss:N joined by '+' "
-      "(default extremes+random:200)");
-  check_whole_number(
-      cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)"), 0,
-      UINT64_MAX, "the seed");
-  cmd->add_option("--threads", o->threads, "worker threads, 1 to 4096 (default: the hardware's)")
-      ->check(CLI::Validator(
-          [](std::string& v) -> std::string {
-            std::size_t used = 0;
-            unsigned long n = 0;
-            try {
-              n = std::stoul(v, &used);
-            } catch (const std::exception&) {
-              used = 0;
-            }
-            if (used != v.size() || v.empty() || v[0] == '-' || n < 1 || n > 4096)
-              return "the number of worker threads must be a whole number from 1 to 4096; leave "
-                     "the option out "
-                     "to use every core";
-            return {};
-          },
-          "1..4096"));
+  add_corner_options(*cmd, o->corners, o->seed, o->threads,
+                     "corners run at every probed spread: extremes, exhaustive, random:N, gauss:N "
+                     "joined by '+' (default extremes+random:200)");
   cmd->add_option("--resolution", o->resolution,
                   "stop bisecting when the bracket is PCT percentage points wide (default 1)");
   cmd->add_option("--up-to", o->ceiling,
@@ -553,8 +531,7 @@ void add_margin(CLI::App& app, exit_status& status) {
   check_output_path(cmd->add_option(
       "--html", o->html,
       "write a self-contained HTML report (margins, culprits, witness waveforms) to PATH"));
-  cmd->add_option("--horizon", o->horizon,
-                  "time limit per step (default 10,000 x the largest written gate delay)");
+  add_run_limit_options(*cmd, o->horizon);
   cmd->add_flag("--no-culprits", o->no_culprits,
                 "skip the search for the gates that decide a race");
   add_quiet_flag(*cmd, o->quiet);

@@ -176,6 +176,26 @@ void add_max_memory_option(CLI::App& cmd, std::uint64_t& mib) {
   check_whole_number(opt, 1, std::uint64_t{1} << 40, "the memory in MiB");
 }
 
+void add_corner_options(CLI::App& cmd, std::string& spec, std::uint64_t& seed, unsigned& threads,
+                        const char* help) {
+  cmd.add_option("--corners", spec, help);
+  check_whole_number(
+      cmd.add_option("--seed", seed, "seed of the random and gauss corners (default 1)"), 0,
+      UINT64_MAX, "the seed");
+  check_whole_number(
+      cmd.add_option("--threads", threads, "worker threads (default: the hardware's)"), 1, 4096,
+      "the thread count", "; leave --threads out to use every hardware thread");
+}
+
+void add_run_limit_options(CLI::App& cmd, std::string& horizon, std::uint64_t* max_events,
+                           const char* events_help) {
+  cmd.add_option("--horizon", horizon,
+                 "time limit per step (default 10,000 x the largest written gate delay)");
+  if (max_events)
+    check_whole_number(cmd.add_option("--max-events", *max_events, events_help), 0, UINT64_MAX,
+                       "the event limit");
+}
+
 bool fits_memory(const sweep_plan& plan, std::size_t steps, unsigned copies, std::uint64_t mib,
                  std::size_t gauges) {
   const std::uint64_t one = sweep_result_bytes(plan, steps, gauges);

@@ -80,6 +80,17 @@ void add_junit_option(CLI::App& cmd, std::string& path);
 void add_quiet_flag(CLI::App& cmd, bool& quiet);
 /// --max-memory MIB on sweep and margin: the per-corner results a sweep may hold.
 void add_max_memory_option(CLI::App& cmd, std::uint64_t& mib);
+/// The corner options of sweep and margin, one wording and one check each:
+/// --corners SPEC (`help` says what the corners are for and the default),
+/// --seed N (0 to 2^64-1) and --threads N (1 to 4096).
+void add_corner_options(CLI::App& cmd, std::string& spec, std::uint64_t& seed, unsigned& threads,
+                        const char* help);
+/// The run limits of run, sweep and margin: --horizon TIME (parsed later by
+/// parse_horizon_option) and, when `max_events` is not null, --max-events N
+/// (`events_help` says what stops).
+void add_run_limit_options(CLI::App& cmd, std::string& horizon, std::uint64_t* max_events = nullptr,
+                           const char* events_help = "");
+
 /// True when `copies` sweeps of `plan` over `steps` steps and `gauges` gauges
 /// fit in `mib` MiB of per-corner results (sweep_result_bytes); otherwise
 /// prints why on stderr (the caller exits 2 before any corner runs).

@@ -325,7 +325,7 @@ exit_status run_run(const run_cli_options& o) {
   if (!o.vcd.empty()) {
     vcd_options vo;
     vo.top = file_stem(d->path);
-    vo.version = std::string("settle ") + SETTLE_VERSION;
+    vo.version = version_text();
     vo.timescale = design_timescale(*d, ro.horizon);  // the same under every corner
     if (o.vcd_nets == "outputs") {
       vo.only = d->nets.outputs;
@@ -388,11 +388,7 @@ void add_run(CLI::App& app, exit_status& status) {
                   "nets in the VCD: all (default) or outputs (outputs and watched nets)")
       ->check(one_of({"all", "outputs"}));
   add_json_option(*cmd, o->json);
-  cmd->add_option("--horizon", o->horizon,
-                  "time limit per step (default 10,000 x the largest gate delay)");
-  check_whole_number(
-      cmd->add_option("--max-events", o->max_events, "stop after N events (0: no limit)"), 0,
-      UINT64_MAX, "the event limit");
+  add_run_limit_options(*cmd, o->horizon, &o->max_events, "stop after N events (0: no limit)");
   add_junit_option(*cmd, o->junit);
   add_allow_x_flag(*cmd, o->allow_x);
   check_output_path(cmd->add_option(

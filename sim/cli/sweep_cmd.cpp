@@ -472,7 +472,7 @@ bool write_witness_vcds(const design& d, const sweep_cli_options& o, const sweep
                                            corner_file_part(oc.witness_name));
       vcd_options vo;
       vo.top = file_stem(d.path);
-      vo.version = std::string("settle ") + SETTLE_VERSION;
+      vo.version = version_text();
       vo.timescale = design_timescale(d, ro.horizon);  // every witness of the design alike
       vcd_writer vcd(d.nets, std::move(vo));
       if (interrupted()) return false;  // the caller reports it
@@ -599,25 +599,16 @@ void add_sweep(CLI::App& app, exit_status& status) {
   auto* cmd =
       app.add_subcommand("sweep", "run the stimulus under many delay corners and judge every step");
   add_design_options(*cmd, o->design);
-  cmd->add_option("--corners", o->corners,
-                  "corner spec: extremes, exhaustive, random:N, gauss:N, interval joined by '+' "
-                  "(default extremes+random:1000)");
-  check_whole_number(
-      cmd->add_option("--seed", o->seed, "seed of the random and gauss corners (default 1)"), 0,
-      UINT64_MAX, "the seed");
-  check_whole_number(
-      cmd->add_option("--threads", o->threads, "worker threads (default: the hardware's)"), 1, 4096,
-      "the thread count", "; leave --threads out to use every hardware thread");
+  add_corner_options(*cmd, o->corners, o->seed, o->threads,
+                     "corner spec: extremes, exhaustive, random:N, gauss:N, interval joined by '+' "
+                     "(default extremes+random:1000)");
   add_json_option(*cmd, o->json);
   check_output_path(cmd->add_option(
       "--vcd-dir", o->vcd_dir,
       "write one VCD per outcome of every step that is not deterministic, replaying its witness, "
       "as DIR/step<k>_outcome<r>_<corner>.vcd"));
-  cmd->add_option("--horizon", o->horizon,
-                  "time limit per step (default 10,000 x the largest gate delay)");
-  check_whole_number(cmd->add_option("--max-events", o->max_events,
-                                     "stop each corner after N events (0: no limit)"),
-                     0, UINT64_MAX, "the event limit");
+  add_run_limit_options(*cmd, o->horizon, &o->max_events,
+                        "stop each corner after N events (0: no limit)");
   check_number_at_least(
       cmd->add_option("--timeout", o->timeout_s,
                       "wall-clock budget in seconds: past it the sweep stops, reports the corners "

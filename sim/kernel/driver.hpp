@@ -40,9 +40,7 @@ class driver {
   /// rules draw their delays from its corner); null: rules take typ.
   driver(Sim& sim, const design& d, const run_options& opt, const delay_table* delays = nullptr)
       : d_(d), sim_(sim), opt_(opt), delays_(delays) {
-    const time_fs m = d.nets.largest_max_delay();
-    horizon_ = opt.horizon ? opt.horizon
-                           : std::max<time_fs>(checked_mul(m, 10000).value_or(time_last), one_ns);
+    horizon_ = opt.horizon ? opt.horizon : default_horizon(d.nets);
     auto report = [&](net_id n) {
       if (std::find(result_.reported.begin(), result_.reported.end(), n) == result_.reported.end())
         result_.reported.push_back(n);

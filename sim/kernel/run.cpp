@@ -5,6 +5,11 @@
 
 namespace settle {
 
+time_fs default_horizon(const netlist& n) {
+  const time_fs m = n.largest_max_delay();
+  return std::max<time_fs>(checked_mul(m, 10000).value_or(time_last), detail::one_ns);
+}
+
 const char* status_name(step_status s) {
   switch (s) {
     case step_status::settled:

@@ -103,8 +103,12 @@ struct gauge_result {
   double mean = 0;           ///< fs; 0 when count is 0
 };
 
+/// The time limit of a step when run_options::horizon is 0: 10,000 x the
+/// largest gate max delay of `n`, at least 1 ns, at most the last instant.
+time_fs default_horizon(const netlist& n);
+
 struct run_options {
-  time_fs horizon = 0;           ///< 0: 10,000 x the largest gate max delay
+  time_fs horizon = 0;           ///< 0: default_horizon(the design's nets)
   std::uint64_t max_events = 0;  ///< 0: unlimited
   bool allow_x = false;          ///< --allow-x: a net at x at the end of a step is no finding
   /// When set and true, the run stops at the next instant as if the event
