@@ -13,6 +13,7 @@ import tempfile
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
 from settle_test import fail, failures  # noqa: E402
+from vcd_rules import changes_of  # noqa: E402
 
 settle, src = sys.argv[1], sys.argv[2]
 examples = os.path.join(src, "examples")
@@ -132,25 +133,6 @@ def main():
     return 0
 
 
-def sigrok_changes(text):
-    """Value changes per net name from sigrok-cli's VCD output: {name: [(time_fs, value)]}."""
-    unit = {"s": 10**15, "ms": 10**12, "us": 10**9, "ns": 10**6, "ps": 10**3, "fs": 1}
-    scale, names, changes, now = 1, {}, {}, 0
-    # sigrok-cli may write a decimal time number ("0.100 ps").
-    m = re.search(r"\$timescale\s+([\d.]+)\s*(\w+)\s+\$end", text)
-    if m:
-        scale = round(float(m.group(1)) * unit[m.group(2)])
-    for code, name in re.findall(r"\$var\s+wire\s+1\s+(\S+)\s+(\S+)\s+\$end", text):
-        names[code] = name
-    body = text.split("$enddefinitions", 1)[-1]
-    for tok in body.split():
-        if tok.startswith("#"):
-            now = int(tok[1:]) * scale
-        elif tok[0] in "01xXzZ" and tok[1:] in names:
-            changes.setdefault(names[tok[1:]], []).append((now, tok[0]))
-    return changes
-
-
 def step(doc, i):
     steps = (doc or {}).get("steps") or []
     return steps[i - 1] if len(steps) >= i else {}
@@ -186,7 +168,7 @@ def example_facts(docs, tmp):
     if text is not None:
         window = step(docs.get("delay_ring.settle"), 2)  # from `enable` rising to just before it falls
         lo, hi = window.get("start_fs", 0), window.get("end_fs", 0)
-        rises = [t for t, v in sigrok_changes(text).get("tap", []) if v == "1" and lo < t <= hi]
+        rises = [t for t, v in changes_of(text).get("tap", []) if v == "1" and lo < t <= hi]
         gaps = {b - a for a, b in zip(rises, rises[1:])}
         if len(rises) < 20 or gaps != {280000}:
             fail(f"delay_ring VCD via sigrok-cli: {len(rises)} rising edges of tap, gaps {sorted(gaps)[:5]} fs, "
@@ -199,7 +181,7 @@ def example_facts(docs, tmp):
     # sigrok-cli as above.
     text = docs.get("clock_switch.settle vcd")
     if text is not None:
-        edges = [(t, v) for t, v in sigrok_changes(text).get("clk_out", []) if v in "01"]
+        edges = [(t, v) for t, v in changes_of(text).get("clk_out", []) if v in "01"]
         edges = [e for i, e in enumerate(edges) if i == 0 or e[1] != edges[i - 1][1]]
         widths = [(b[0] - a[0], a[1]) for a, b in zip(edges, edges[1:])]
         highs = {w for w, v in widths if v == "1"}
@@ -285,7 +267,7 @@ def closed_loop_facts(docs):
         if prop.get("holds") is not True:
             fail(f"fifo_loop: property {prop}, want it to hold")
     if text is not None:
-        ch = sigrok_changes(text)
+        ch = changes_of(text)
         # A FIFO delivers every sample it takes, once (common practice): the reader acknowledges as
         # many samples as the sensor offered, 20 each (the rules' `times 20`), read via sigrok-cli.
         for net in ("sensor_req", "reader_ack"):

@@ -2,11 +2,11 @@
 its JSON report, reading a VCD back through sigrok-cli's VCD input (Debian package sigrok-cli),
 and picking edges out of the changes. A test puts this folder on sys.path beside settle_test."""
 import json
-import re
 import shutil
 import subprocess
 
 from settle_test import fail
+from vcd_rules import changes_of
 
 
 def report(binary, args, what, want_rc=None):
@@ -35,21 +35,7 @@ def sigrok_changes(vcd_path):
     if p.returncode != 0 or not p.stdout.strip():
         fail(f"sigrok-cli could not read {vcd_path}: rc={p.returncode} {p.stderr.decode()[:300]}")
         return None
-    text = p.stdout.decode(errors="replace")
-    unit = {"s": 10**15, "ms": 10**12, "us": 10**9, "ns": 10**6, "ps": 10**3, "fs": 1}
-    scale, names, changes, now = 1, {}, {}, 0
-    m = re.search(r"\$timescale\s+([\d.]+)\s*(\w+)\s+\$end", text)
-    if m:
-        scale = round(float(m.group(1)) * unit[m.group(2)])
-    for code, name in re.findall(r"\$var\s+wire\s+1\s+(\S+)\s+(\S+)\s+\$end", text):
-        names[code] = name
-    body = text.split("$enddefinitions", 1)[-1]
-    for tok in body.split():
-        if tok.startswith("#"):
-            now = int(tok[1:]) * scale
-        elif tok[0] in "01xXzZ" and tok[1:] in names:
-            changes.setdefault(names[tok[1:]], []).append((now, tok[0]))
-    return changes
+    return changes_of(p.stdout.decode(errors="replace"))
 
 
 def edges(changes, net, value):
