@@ -92,24 +92,15 @@ class cond_compiler {
   cond_compiler(std::vector<std::uint32_t>& code, std::vector<ref>& reads, const reporter& rep)
       : code_(code), reads_(reads), rep_(rep) {}
   void expr(const ast::cond_or& e) {
-    for (std::size_t i = 0; i < e.size(); ++i) {
-      xor_term(e[i]);
-      if (i) code_.push_back(encode(op::or2));
-    }
+    lower_chain(e, op::or2, code_, [&](const auto& t) { xor_term(t); });
   }
 
  private:
   void xor_term(const ast::cond_xor& e) {
-    for (std::size_t i = 0; i < e.size(); ++i) {
-      and_term(e[i]);
-      if (i) code_.push_back(encode(op::xor2));
-    }
+    lower_chain(e, op::xor2, code_, [&](const auto& t) { and_term(t); });
   }
   void and_term(const ast::cond_and& e) {
-    for (std::size_t i = 0; i < e.size(); ++i) {
-      unary(e[i]);
-      if (i) code_.push_back(encode(op::and2));
-    }
+    lower_chain(e, op::and2, code_, [&](const auto& t) { unary(t); });
   }
   void unary(const ast::cond_unary& u) {
     if (auto a = boost::get<ast::cond_atom>(&u.operand)) {

@@ -8,6 +8,7 @@
 #include "parser/ast.hpp"
 #include "parser/ast_adapted.hpp"
 #include "parser/grammar.hpp"
+#include "parser/keyword_x3.hpp"
 #include "parser/lexical.hpp"
 
 namespace settle::grammar {
@@ -16,33 +17,15 @@ namespace x3 = boost::spirit::x3;
 ///////////////////////////////////////////////////////////////////////////////
 // Keywords: a whole word, not the prefix of an identifier
 ///////////////////////////////////////////////////////////////////////////////
-struct kw_parser : x3::parser<kw_parser> {
-  using attribute_type = x3::unused_type;
-  static bool const has_attribute = false;
-  const char* word;
-  constexpr explicit kw_parser(const char* w) : word(w) {}
-
-  template <typename It, typename Ctx, typename RCtx, typename Attr>
-  bool parse(It& first, It const& last, Ctx const& ctx, RCtx&, Attr&) const {
-    x3::skip_over(first, last, ctx);
-    It i = first;
-    for (const char* p = word; *p; ++p, ++i)
-      if (i == last || *i != *p) return false;
-    if (i != last && lexical::ident_char(*i)) return false;
-    first = i;
-    return true;
-  }
-};
+using kw_parser = lexical::keyword_parser<lexical::ident_char>;
 inline constexpr kw_parser kw(const char* w) { return kw_parser(w); }
 
 /// Words that cannot name a net, block or instance (they begin statements or delays).
 inline bool is_reserved(std::string_view w) {
-  for (const char* k :
-       {"input", "output", "wire",  "default",  "delay",  "rise",  "fall",  "transport",
-        "block", "inst",   "init",  "stimulus", "at",     "after", "clock", "settle",
-        "run",   "expect", "watch", "when",     "always", "never", "gauge"})
-    if (w == k) return true;
-  return false;
+  return lexical::one_of(
+      w, {"input", "output", "wire",  "default",  "delay",  "rise",  "fall",  "transport",
+          "block", "inst",   "init",  "stimulus", "at",     "after", "clock", "settle",
+          "run",   "expect", "watch", "when",     "always", "never", "gauge"});
 }
 
 namespace detail {

@@ -1,5 +1,5 @@
-// The character classes of .settle names: one definition for the grammar, the
-// gate fast path in lower.cpp and the statement scanner in driver.cpp.
+// The character classes of names: one definition for the .settle grammar, the gate fast
+// path in lower.cpp, the statement scanner in driver.cpp and the Verilog reader.
 #pragma once
 
 namespace settle::lexical {
@@ -12,8 +12,12 @@ constexpr bool ident_start(char c) {
 /// it is not followed by one of these.
 constexpr bool ident_char(char c) { return ident_start(c) || (c >= '0' && c <= '9'); }
 
-/// The same two classes as X3 character-set strings (x3::char_(...)).
+/// Verilog names (IEEE 1364-2005 3.7) also go on with '$'.
+constexpr bool verilog_ident_char(char c) { return ident_char(c) || c == '$'; }
+
+/// The same classes as X3 character-set strings (x3::char_(...)).
 inline constexpr const char ident_start_set[] = "a-zA-Z_";
 inline constexpr const char ident_char_set[] = "a-zA-Z0-9_";
+inline constexpr const char verilog_ident_char_set[] = "a-zA-Z0-9_$";
 
 }  // namespace settle::lexical

@@ -65,24 +65,15 @@ class compiler {
       : reads_(reads), code_(code), rep_(rep), base_(reads.size()) {}
 
   void expr(const ast::or_expr& e) {
-    for (std::size_t i = 0; i < e.size(); ++i) {
-      xor_term(e[i]);
-      if (i) code_.push_back(encode(op::or2));
-    }
+    lower_chain(e, op::or2, code_, [&](const auto& t) { xor_term(t); });
   }
 
  private:
   void xor_term(const ast::xor_expr& e) {
-    for (std::size_t i = 0; i < e.size(); ++i) {
-      and_term(e[i]);
-      if (i) code_.push_back(encode(op::xor2));
-    }
+    lower_chain(e, op::xor2, code_, [&](const auto& t) { and_term(t); });
   }
   void and_term(const ast::and_expr& e) {
-    for (std::size_t i = 0; i < e.size(); ++i) {
-      unary(e[i]);
-      if (i) code_.push_back(encode(op::and2));
-    }
+    lower_chain(e, op::and2, code_, [&](const auto& t) { unary(t); });
   }
   void unary(const ast::unary& u) {
     if (auto n = boost::get<ast::name>(&u.operand)) {

@@ -29,4 +29,16 @@ ref lower_ref(const ast::name& n, const reporter& rep);
 /// A value character '0' '1' 'x' 'X'.
 logic lower_value(char c);
 
+/// Compiles an operand list `a op b op c ...` (left-associative) into postfix
+/// code: each operand by `operand`, then `o` after every operand but the
+/// first. Gate expressions and stimulus conditions share it.
+template <class Operands, class Operand>
+void lower_chain(const Operands& operands, op o, std::vector<std::uint32_t>& code,
+                 Operand operand) {
+  for (std::size_t i = 0; i < operands.size(); ++i) {
+    operand(operands[i]);
+    if (i) code.push_back(encode(o));
+  }
+}
+
 }  // namespace settle::ir

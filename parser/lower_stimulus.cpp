@@ -100,6 +100,17 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
     return &out.steps.back();
   };
 
+  // Appends `item` (a rule, property or gauge) to `list` and to the step an
+  // action that refers to it by index, at the item's place in the file.
+  auto append = [&](stim_action::kind what, auto& list, auto&& item) {
+    stim_action a;
+    a.what = what;
+    a.index = static_cast<std::uint32_t>(list.size());
+    a.loc = item.loc;
+    list.push_back(std::forward<decltype(item)>(item));
+    cur.actions.push_back(std::move(a));
+  };
+
   for (const auto& s : sb.stmts) {
     using k = stim_stmt::kind;
     switch (s.what) {
@@ -189,12 +200,7 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
           rule.assigns.push_back({n, s.values[i]});
         }
         if (!ok) break;
-        stim_action a;
-        a.what = stim_action::kind::rule;
-        a.index = static_cast<std::uint32_t>(out.rules.size());
-        a.loc = s.loc;
-        out.rules.push_back(std::move(rule));
-        cur.actions.push_back(std::move(a));
+        append(stim_action::kind::rule, out.rules, std::move(rule));
         break;
       }
       case k::property: {
@@ -214,12 +220,7 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
         if (!ok) break;
         for (net_id n : p.expr.nets)
           if (std::find(p.nets.begin(), p.nets.end(), n) == p.nets.end()) p.nets.push_back(n);
-        stim_action a;
-        a.what = stim_action::kind::property;
-        a.index = static_cast<std::uint32_t>(out.properties.size());
-        a.loc = s.loc;
-        out.properties.push_back(std::move(p));
-        cur.actions.push_back(std::move(a));
+        append(stim_action::kind::property, out.properties, std::move(p));
         break;
       }
       case k::gauge: {
@@ -247,12 +248,7 @@ void build_stimulus(const stim_block& sb, const netlist& nl, stimulus& out, repo
           ok = false;
         }
         if (!ok) break;
-        stim_action a;
-        a.what = stim_action::kind::gauge;
-        a.index = static_cast<std::uint32_t>(out.gauges.size());
-        a.loc = s.loc;
-        out.gauges.push_back(std::move(g));
-        cur.actions.push_back(std::move(a));
+        append(stim_action::kind::gauge, out.gauges, std::move(g));
         break;
       }
       case k::expect_gauge: {

@@ -14,13 +14,14 @@
 #include <vector>
 
 #include "parser/ir.hpp"
+#include "parser/lexical.hpp"
 #include "parser/verilog_parse.hpp"
 
 namespace settle {
 namespace {
 
-bool id_start(char c) { return std::isalpha(static_cast<unsigned char>(c)) || c == '_'; }
-bool id_char(char c) { return std::isalnum(static_cast<unsigned char>(c)) || c == '_' || c == '$'; }
+constexpr auto id_start = lexical::ident_start;
+constexpr auto id_char = lexical::verilog_ident_char;
 bool space(char c) { return std::isspace(static_cast<unsigned char>(c)) != 0; }
 /// Bounds on one statement (see reader::statement).
 constexpr int max_nesting = 256;

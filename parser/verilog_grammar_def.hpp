@@ -4,6 +4,8 @@
 #include <boost/fusion/include/adapt_struct.hpp>
 #include <boost/spirit/home/x3.hpp>
 
+#include "parser/keyword_x3.hpp"
+#include "parser/lexical.hpp"
 #include "parser/verilog_ast.hpp"
 #include "parser/verilog_grammar.hpp"
 
@@ -22,41 +24,22 @@ namespace settle::vgrammar {
 namespace x3 = boost::spirit::x3;
 
 /// A keyword: the whole word, not the prefix of an identifier.
-struct vkw_parser : x3::parser<vkw_parser> {
-  using attribute_type = x3::unused_type;
-  static bool const has_attribute = false;
-  const char* word;
-  constexpr explicit vkw_parser(const char* w) : word(w) {}
-
-  template <typename It, typename Ctx, typename RCtx, typename Attr>
-  bool parse(It& first, It const& last, Ctx const& ctx, RCtx&, Attr&) const {
-    x3::skip_over(first, last, ctx);
-    It i = first;
-    for (const char* p = word; *p; ++p, ++i)
-      if (i == last || *i != *p) return false;
-    if (i != last && (std::isalnum(static_cast<unsigned char>(*i)) || *i == '_' || *i == '$'))
-      return false;
-    first = i;
-    return true;
-  }
-};
+using vkw_parser = lexical::keyword_parser<lexical::verilog_ident_char>;
 inline constexpr vkw_parser kw(const char* w) { return vkw_parser(w); }
 
 /// The keywords of IEEE 1364-2005 that cannot name a net, module or instance
 /// here (the ones the structural subset uses, and the common others).
 inline bool is_keyword(std::string_view w) {
-  for (const char* k :
-       {"module",    "endmodule",  "input",    "output",      "inout",     "wire",
-        "reg",       "assign",     "and",      "nand",        "or",        "nor",
-        "xor",       "xnor",       "buf",      "not",         "always",    "initial",
-        "begin",     "end",        "if",       "else",        "case",      "endcase",
-        "parameter", "localparam", "generate", "endgenerate", "primitive", "endprimitive",
-        "table",     "endtable",   "specify",  "endspecify",  "supply0",   "supply1",
-        "tri",       "integer",    "function", "task",        "bufif0",    "bufif1",
-        "notif0",    "notif1",     "posedge",  "negedge",     "defparam",  "genvar",
-        "for",       "while"})
-    if (w == k) return true;
-  return false;
+  return lexical::one_of(
+      w, {"module",    "endmodule",  "input",    "output",      "inout",     "wire",
+          "reg",       "assign",     "and",      "nand",        "or",        "nor",
+          "xor",       "xnor",       "buf",      "not",         "always",    "initial",
+          "begin",     "end",        "if",       "else",        "case",      "endcase",
+          "parameter", "localparam", "generate", "endgenerate", "primitive", "endprimitive",
+          "table",     "endtable",   "specify",  "endspecify",  "supply0",   "supply1",
+          "tri",       "integer",    "function", "task",        "bufif0",    "bufif1",
+          "notif0",    "notif1",     "posedge",  "negedge",     "defparam",  "genvar",
+          "for",       "while"});
 }
 
 namespace detail {
@@ -82,8 +65,9 @@ struct primitive_kinds : x3::symbols<> {
 };
 inline primitive_kinds const primitive_table;
 
-auto const id_chars = (x3::alpha | '_') >> *(x3::alnum | '_' | '$');
-auto const word_end = !(x3::alnum | '_' | '$');
+auto const id_chars = x3::char_(lexical::ident_start_set) >>
+                      *x3::char_(lexical::verilog_ident_char_set);
+auto const word_end = !x3::char_(lexical::verilog_ident_char_set);
 
 using raw_range = boost::iterator_range<const char*>;
 

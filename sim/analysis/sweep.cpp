@@ -9,6 +9,7 @@
 #include <cmath>
 #include <cstring>
 #include <exception>
+#include <iterator>
 #include <limits>
 #include <map>
 #include <mutex>
@@ -405,23 +406,13 @@ void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt
 }  // namespace
 
 const char* verdict_name(sweep_verdict v) {
-  switch (v) {
-    case sweep_verdict::deterministic:
-      return "deterministic";
-    case sweep_verdict::nondeterministic:
-      return "nondeterministic";
-    case sweep_verdict::oscillating:
-      return "oscillating";
-    case sweep_verdict::mixed:
-      return "mixed";
-    case sweep_verdict::timeout:
-      return "timeout";
-    case sweep_verdict::inconclusive:
-      return "inconclusive";
-    case sweep_verdict::deadlock:
-      return "deadlock";
-  }
-  return "?";
+  // In the enum's order; the JSON and text reports spell a verdict so.
+  static constexpr const char* names[] = {"deterministic", "nondeterministic", "oscillating",
+                                          "mixed",         "timeout",          "inconclusive",
+                                          "deadlock"};
+  static_assert(std::size(names) == std::size_t(sweep_verdict::deadlock) + 1);
+  const auto i = static_cast<std::size_t>(v);
+  return i < std::size(names) ? names[i] : "?";
 }
 
 bool sweep_result::pass() const {

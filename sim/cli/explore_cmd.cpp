@@ -281,9 +281,7 @@ void add_explore(CLI::App& app, exit_status& status) {
   add_json_option(*cmd, o->json);
   check_output_path(
       cmd->add_option("--dot", o->dot, "write the explored state graphs as Graphviz DOT to PATH"));
-  check_output_path(cmd->add_option(
-      "--html", o->html,
-      "write a self-contained HTML report (stable states, small state graphs) to PATH"));
+  add_html_option(*cmd, o->html, "stable states, small state graphs");
   cmd->callback([o, &status] { status = run_explore(*o); });
 }
 

@@ -520,17 +520,13 @@ void add_margin(CLI::App& app, exit_status& status) {
       cmd->add_option("--tolerance", o->tolerance,
                       "percentage points a margin may fall before it counts (default 2)"),
       0, "the tolerance in percentage points");
-  check_number_at_least(
-      cmd->add_option("--timeout", o->timeout_s,
-                      "wall-clock budget in seconds for the whole search; when it runs out the "
-                      "margins found so far are reported and the command exits 1"),
-      0, "the timeout in seconds");
+  add_timeout_option(*cmd, o->timeout_s,
+                     "wall-clock budget in seconds for the whole search; when it runs out the "
+                     "margins found so far are reported and the command exits 1");
   add_junit_option(*cmd, o->junit);
   add_allow_x_flag(*cmd, o->allow_x);
   add_max_memory_option(*cmd, o->max_memory_mib);
-  check_output_path(cmd->add_option(
-      "--html", o->html,
-      "write a self-contained HTML report (margins, culprits, witness waveforms) to PATH"));
+  add_html_option(*cmd, o->html, "margins, culprits, witness waveforms");
   add_run_limit_options(*cmd, o->horizon);
   cmd->add_flag("--no-culprits", o->no_culprits,
                 "skip the search for the gates that decide a race");

@@ -162,6 +162,15 @@ void add_junit_option(CLI::App& cmd, std::string& path) {
   check_output_path(cmd.add_option("--junit", path, "write a JUnit-style XML report to PATH"));
 }
 
+void add_html_option(CLI::App& cmd, std::string& path, const char* what) {
+  check_output_path(cmd.add_option(
+      "--html", path, fmt::format("write a self-contained HTML report ({}) to PATH", what)));
+}
+
+void add_timeout_option(CLI::App& cmd, double& seconds, const char* help) {
+  check_number_at_least(cmd.add_option("--timeout", seconds, help), 0, "the timeout in seconds");
+}
+
 void add_quiet_flag(CLI::App& cmd, bool& quiet) {
   cmd.add_flag("-q,--quiet", quiet, "print nothing on stdout; errors still go to stderr");
 }

@@ -76,6 +76,10 @@ nlohmann::ordered_json report_head(const std::string& design_path);
 void add_json_option(CLI::App& cmd, std::string& path);
 /// --junit PATH: "write a JUnit-style XML report to PATH".
 void add_junit_option(CLI::App& cmd, std::string& path);
+/// --html PATH: "write a self-contained HTML report (`what`) to PATH".
+void add_html_option(CLI::App& cmd, std::string& path, const char* what);
+/// --timeout SECONDS (0 or more); `help` says what stops when it runs out.
+void add_timeout_option(CLI::App& cmd, double& seconds, const char* help);
 /// -q,--quiet: "print nothing on stdout; errors still go to stderr".
 void add_quiet_flag(CLI::App& cmd, bool& quiet);
 /// --max-memory MIB on sweep and margin: the per-corner results a sweep may hold.

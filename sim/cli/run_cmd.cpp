@@ -391,9 +391,7 @@ void add_run(CLI::App& app, exit_status& status) {
   add_run_limit_options(*cmd, o->horizon, &o->max_events, "stop after N events (0: no limit)");
   add_junit_option(*cmd, o->junit);
   add_allow_x_flag(*cmd, o->allow_x);
-  check_output_path(cmd->add_option(
-      "--html", o->html,
-      "write a self-contained HTML report with the waveforms of every step to PATH"));
+  add_html_option(*cmd, o->html, "the waveforms of every step");
   cmd->add_flag("-v,--verbose", o->verbose, "also print events and events per second");
   add_quiet_flag(*cmd, o->quiet);
   cmd->callback([o, &status] { status = run_run(*o); });

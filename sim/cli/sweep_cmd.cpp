@@ -609,17 +609,13 @@ void add_sweep(CLI::App& app, exit_status& status) {
       "as DIR/step<k>_outcome<r>_<corner>.vcd"));
   add_run_limit_options(*cmd, o->horizon, &o->max_events,
                         "stop each corner after N events (0: no limit)");
-  check_number_at_least(
-      cmd->add_option("--timeout", o->timeout_s,
-                      "wall-clock budget in seconds: past it the sweep stops, reports the corners "
-                      "finished and exits 1 (0: none)"),
-      0, "the timeout in seconds");
+  add_timeout_option(*cmd, o->timeout_s,
+                     "wall-clock budget in seconds: past it the sweep stops, reports the corners "
+                     "finished and exits 1 (0: none)");
   add_max_memory_option(*cmd, o->max_memory_mib);
   add_junit_option(*cmd, o->junit);
   add_allow_x_flag(*cmd, o->allow_x);
-  check_output_path(cmd->add_option(
-      "--html", o->html,
-      "write a self-contained HTML report (waveforms of the witnesses, histograms) to PATH"));
+  add_html_option(*cmd, o->html, "waveforms of the witnesses, histograms");
   cmd->add_flag("-q,--quiet", o->quiet,
                 "print nothing on stdout and no progress; errors still go to stderr");
   cmd->callback([o, &status] { status = run_sweep_cmd(*o); });
