@@ -9,12 +9,13 @@
 #include <cmath>
 #include <cstring>
 #include <exception>
-#include <iterator>
 #include <limits>
 #include <map>
 #include <mutex>
 #include <thread>
 #include <unordered_map>
+
+#include "sim/model/enum_names.hpp"
 
 namespace settle {
 namespace {
@@ -406,13 +407,10 @@ void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt
 }  // namespace
 
 const char* verdict_name(sweep_verdict v) {
-  // In the enum's order; the JSON and text reports spell a verdict so.
   static constexpr const char* names[] = {"deterministic", "nondeterministic", "oscillating",
                                           "mixed",         "timeout",          "inconclusive",
                                           "deadlock"};
-  static_assert(std::size(names) == std::size_t(sweep_verdict::deadlock) + 1);
-  const auto i = static_cast<std::size_t>(v);
-  return i < std::size(names) ? names[i] : "?";
+  return enum_name<sweep_verdict::deadlock>(v, names);
 }
 
 bool sweep_result::pass() const {

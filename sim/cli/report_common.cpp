@@ -13,6 +13,7 @@
 #include <cstdlib>
 
 #include "sim/analysis/sweep.hpp"
+#include "sim/model/enum_names.hpp"
 #include "sim/model/time.hpp"
 #include "sim/model/time_parse.hpp"
 
@@ -21,23 +22,9 @@ namespace settle::cli {
 std::string logic_text(logic v) { return std::string(1, to_char(v)); }
 
 const char* expect_kind_word(expectation::kind k) {
-  switch (k) {
-    case expectation::kind::value:
-      return "value";
-    case expectation::kind::stable:
-      return "stable";
-    case expectation::kind::oscillating:
-      return "oscillating";
-    case expectation::kind::within:
-      return "within";
-    case expectation::kind::no_glitch:
-      return "no_glitch";
-    case expectation::kind::deterministic:
-      return "deterministic";
-    case expectation::kind::gauge:
-      return "gauge";
-  }
-  return "?";
+  static constexpr const char* names[] = {"value",     "stable",        "oscillating", "within",
+                                          "no_glitch", "deterministic", "gauge"};
+  return enum_name<expectation::kind::gauge>(k, names);
 }
 
 std::string file_stem(const std::string& path) {

@@ -7,8 +7,6 @@
 namespace settle {
 namespace {
 
-constexpr logic inv(logic v) { return v == logic::x ? logic::x : from_bool(v == logic::zero); }
-
 struct counts {
   std::uint32_t zero = 0, one = 0, x = 0, n = 0;
 };
@@ -23,49 +21,6 @@ logic c_element(const counts& c, logic present) {
   if (can0) seen |= 1;
   if (can_mixed) seen |= present == logic::zero ? 1 : present == logic::one ? 2 : 3;
   return seen == 1 ? logic::zero : seen == 2 ? logic::one : logic::x;
-}
-
-// Runs a gate's postfix program over ternary values with monotone operators:
-// sound, though not exact when an x input is read twice.
-template <class Value>
-void run_program(const netlist& n, gate_id g, Value&& input, logic* stack, int& sp) {
-  sp = 0;
-  for (auto pc = n.code_begin[g]; pc < n.code_begin[g + 1]; ++pc) {
-    const auto w = n.code[pc];
-    switch (opcode(w)) {
-      case op::input:
-        stack[sp++] = input(operand(w));
-        break;
-      case op::const0:
-        stack[sp++] = logic::zero;
-        break;
-      case op::const1:
-        stack[sp++] = logic::one;
-        break;
-      case op::inv:
-        stack[sp - 1] = inv(stack[sp - 1]);
-        break;
-      case op::and2: {
-        logic b = stack[--sp], a = stack[sp - 1];
-        stack[sp - 1] = (a == logic::zero || b == logic::zero) ? logic::zero
-                        : (a == logic::one && b == logic::one) ? logic::one
-                                                               : logic::x;
-        break;
-      }
-      case op::or2: {
-        logic b = stack[--sp], a = stack[sp - 1];
-        stack[sp - 1] = (a == logic::one || b == logic::one)     ? logic::one
-                        : (a == logic::zero && b == logic::zero) ? logic::zero
-                                                                 : logic::x;
-        break;
-      }
-      case op::xor2: {
-        logic b = stack[--sp], a = stack[sp - 1];
-        stack[sp - 1] = (a == logic::x || b == logic::x) ? logic::x : from_bool(a != b);
-        break;
-      }
-    }
-  }
 }
 
 constexpr int max_stack = 256;
@@ -128,8 +83,9 @@ logic eval_direct(const netlist& n, gate_id g, Value&& input, logic present) {
     case gate_kind::gc:
     case gate_kind::expr: {
       std::array<logic, max_stack> stack;
-      int sp = 0;
-      run_program(n, g, input, stack.data(), sp);
+      const std::span<const std::uint32_t> code(n.code.data() + n.code_begin[g],
+                                                n.code_begin[g + 1] - n.code_begin[g]);
+      run_postfix(code, input, stack.data());
       if (n.kind[g] == gate_kind::expr) return stack[0];
       logic set = stack[0], reset = stack[1];
       if (set == logic::zero && reset == logic::zero) return present;

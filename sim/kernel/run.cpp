@@ -1,8 +1,8 @@
 // Running a stimulus on the timed kernel; step and run verdicts.
 #include <algorithm>
-#include <iterator>
 
 #include "sim/kernel/driver.hpp"
+#include "sim/model/enum_names.hpp"
 
 namespace settle {
 
@@ -12,12 +12,9 @@ time_fs default_horizon(const netlist& n) {
 }
 
 const char* status_name(step_status s) {
-  // In the enum's order; the JSON and text reports spell a status so.
   static constexpr const char* names[] = {"settled", "oscillating", "timeout",
                                           "running", "event_limit", "deadlock"};
-  static_assert(std::size(names) == std::size_t(step_status::deadlock) + 1);
-  const auto i = static_cast<std::size_t>(s);
-  return i < std::size(names) ? names[i] : "?";
+  return enum_name<step_status::deadlock>(s, names);
 }
 
 std::vector<net_id> unknown_at_end(const step_spec* spec, std::span<const net_id> reported,

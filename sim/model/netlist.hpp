@@ -11,6 +11,7 @@
 
 #include "sim/model/id_table.hpp"
 #include "sim/model/logic.hpp"
+#include "sim/model/program.hpp"
 
 namespace settle {
 
@@ -84,16 +85,6 @@ class gate_delays {
   std::vector<std::uint32_t> index_;
   id_table lookup_;
 };
-
-/// Programs of complex gates are postfix code over the gate's fan-in list.
-/// One 32-bit word per instruction: the opcode in the low byte, the operand
-/// (an index into the gate's fan-in) above it.
-enum class op : std::uint8_t { input, const0, const1, inv, and2, or2, xor2 };
-constexpr std::uint32_t encode(op o, std::uint32_t arg = 0) {
-  return static_cast<std::uint32_t>(o) | (arg << 8);
-}
-constexpr op opcode(std::uint32_t w) { return static_cast<op>(w & 0xff); }
-constexpr std::uint32_t operand(std::uint32_t w) { return w >> 8; }
 
 /// A block instance (or the top level, scope 0) for waveform hierarchy.
 struct scope {

@@ -3,68 +3,24 @@
 
 #include <fmt/format.h>
 
+#include "sim/model/enum_names.hpp"
+
 namespace settle {
 
 logic eval_expr(const net_expr& e, const logic* values) {
-  // Postfix code as in complex gates (sim/kernel/eval.cpp), over e.nets.
-  constexpr auto inv = [](logic v) {
-    return v == logic::x ? logic::x : from_bool(v == logic::zero);
-  };
+  // Postfix code as in complex gates, over e.nets.
   logic stack[64];
   std::vector<logic> big;
   logic* st = stack;
   if (e.code.size() > 64) big.resize(e.code.size()), st = big.data();
-  int sp = 0;
-  for (std::uint32_t w : e.code) {
-    switch (opcode(w)) {
-      case op::input:
-        st[sp++] = values[e.nets[operand(w)]];
-        break;
-      case op::const0:
-        st[sp++] = logic::zero;
-        break;
-      case op::const1:
-        st[sp++] = logic::one;
-        break;
-      case op::inv:
-        st[sp - 1] = inv(st[sp - 1]);
-        break;
-      case op::and2: {
-        const logic a = st[--sp], b = st[sp - 1];
-        st[sp - 1] = (a == logic::zero || b == logic::zero) ? logic::zero
-                     : (a == logic::x || b == logic::x)     ? logic::x
-                                                            : logic::one;
-        break;
-      }
-      case op::or2: {
-        const logic a = st[--sp], b = st[sp - 1];
-        st[sp - 1] = (a == logic::one || b == logic::one) ? logic::one
-                     : (a == logic::x || b == logic::x)   ? logic::x
-                                                          : logic::zero;
-        break;
-      }
-      case op::xor2: {
-        const logic a = st[--sp], b = st[sp - 1];
-        st[sp - 1] = (a == logic::x || b == logic::x) ? logic::x : from_bool(a != b);
-        break;
-      }
-    }
-  }
+  const int sp = run_postfix(
+      e.code, [&](std::uint32_t k) { return values[e.nets[k]]; }, st);
   return sp ? st[0] : logic::x;
 }
 
 const char* gauge_kind_name(gauge::kind k) {
-  switch (k) {
-    case gauge::kind::period:
-      return "period";
-    case gauge::kind::pulse_high:
-      return "pulse_high";
-    case gauge::kind::pulse_low:
-      return "pulse_low";
-    case gauge::kind::latency:
-      return "latency";
-  }
-  return "?";
+  static constexpr const char* names[] = {"period", "pulse_high", "pulse_low", "latency"};
+  return enum_name<gauge::kind::latency>(k, names);
 }
 
 std::string expectation_words(const netlist& n, const expectation& e) {

@@ -8,6 +8,7 @@
 
 #include "parser/load.hpp"
 #include "sim/analysis/sweep.hpp"
+#include "tests/unit/load_design.hpp"
 
 using namespace settle;
 
@@ -36,11 +37,7 @@ std::string handshake(const std::string& gate = "ack = buf(req) delay 30ps..90ps
 }
 
 design load_text(const std::string& text) {
-  diagnostics diags;
-  auto d = load_design_text(text, "handshake.settle", load_options{}, diags);
-  INFO((diags.items.empty() ? std::string() : format_diagnostic(diags.items.front())));
-  REQUIRE(d);
-  return std::move(*d);
+  return settle::testing::load_text(text, "handshake.settle");
 }
 
 sweep_plan plan_of(const design& d, const std::string& spec) {

@@ -9,6 +9,7 @@
 #include "parser/load.hpp"
 #include "sim/analysis/explore.hpp"
 #include "sim/analysis/sweep.hpp"
+#include "tests/unit/load_design.hpp"
 
 using namespace settle;
 
@@ -32,10 +33,7 @@ const char* ring_text =
     "}\n";
 
 design load_text(const std::string& text) {
-  diagnostics diags;
-  auto d = load_design_text(text, "ring.settle", load_options{}, diags);
-  REQUIRE(d);
-  return std::move(*d);
+  return settle::testing::load_text(text, "ring.settle");
 }
 
 double seconds_since(std::chrono::steady_clock::time_point t0) {

@@ -11,6 +11,7 @@
 
 #include "parser/load.hpp"
 #include "sim/model/corner.hpp"
+#include "tests/unit/load_design.hpp"
 #include "tests/unit/random_circuits.hpp"
 
 using namespace settle;
@@ -39,20 +40,10 @@ std::string door_latch(const std::string& a, const std::string& b) {
 }
 
 design load_text(const std::string& text) {
-  diagnostics diags;
-  auto d = load_design_text(text, "door.settle", load_options{}, diags);
-  INFO((diags.items.empty() ? std::string() : format_diagnostic(diags.items.front())));
-  REQUIRE(d);
-  return std::move(*d);
+  return settle::testing::load_text(text, "door.settle");
 }
 
-design load_file(const std::string& path) {
-  diagnostics diags;
-  auto d = load_design(path, load_options{}, diags);
-  INFO(path);
-  REQUIRE(d);
-  return std::move(*d);
-}
+design load_file(const std::string& path) { return settle::testing::load_file(path); }
 
 sweep_plan plan_of(const std::string& spec, std::uint64_t seed, std::size_t gates) {
   std::string err;

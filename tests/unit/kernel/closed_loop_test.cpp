@@ -10,18 +10,13 @@
 #include "parser/load.hpp"
 #include "sim/kernel/run.hpp"
 #include "sim/model/corner.hpp"
+#include "tests/unit/load_design.hpp"
 
 using namespace settle;
 
 namespace {
 
-design load(const std::string& text) {
-  diagnostics diags;
-  auto d = load_design_text(text, "closed.settle", load_options{}, diags);
-  for (const auto& x : diags.items) UNSCOPED_INFO(format_diagnostic(x));
-  REQUIRE(d);
-  return std::move(*d);
-}
+design load(const std::string& text) { return settle::testing::load_text(text, "closed.settle"); }
 
 // Collects every value change of a run.
 struct recorder final : change_sink {

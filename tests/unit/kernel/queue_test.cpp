@@ -45,19 +45,16 @@ void push_some(event_queue& q, std::multimap<time_fs, gate_id>& ref, std::mt1993
   }
 }
 
+// (largest, smallest) delays: wheels of 64 slots (no smallest delay known, or
+// slots up to half of it) and of 4096 (a smallest delay of 1 fs).
+constexpr std::pair<time_fs, time_fs> wheel_shapes[] = {
+    {0, 0}, {1000, 0}, {60000, 0}, {5000000, 0}, {60000, 20000}, {60000, 1}, {5000000, 1}};
+
 }  // namespace
 
 TEST_CASE("the event queue returns instants in time order, like an ordered multiset",
           "[kernel][queue]") {
-  // Wheels of 64 slots (no smallest delay known, or slots up to half of it)
-  // and of 4096 (a smallest delay of 1 fs).
-  for (const auto& [largest, smallest] : {std::pair<time_fs, time_fs>{0, 0},
-                                          {1000, 0},
-                                          {60000, 0},
-                                          {5000000, 0},
-                                          {60000, 20000},
-                                          {60000, 1},
-                                          {5000000, 1}}) {
+  for (const auto& [largest, smallest] : wheel_shapes) {
     std::mt19937_64 rng(largest + smallest + 7);
     event_queue q(largest, smallest);
     std::multimap<time_fs, gate_id> ref;
@@ -85,15 +82,7 @@ TEST_CASE("the event queue returns instants in time order, like an ordered multi
 // that land on the sorted cursor slot and far pushes beyond the wheel.
 TEST_CASE("take_until takes instants in time order and nothing after its bound",
           "[kernel][queue]") {
-  // Wheels of 64 slots (no smallest delay known, or slots up to half of it)
-  // and of 4096 (a smallest delay of 1 fs).
-  for (const auto& [largest, smallest] : {std::pair<time_fs, time_fs>{0, 0},
-                                          {1000, 0},
-                                          {60000, 0},
-                                          {5000000, 0},
-                                          {60000, 20000},
-                                          {60000, 1},
-                                          {5000000, 1}}) {
+  for (const auto& [largest, smallest] : wheel_shapes) {
     std::mt19937_64 rng(largest + smallest + 11);
     event_queue q(largest, smallest);
     std::multimap<time_fs, gate_id> ref;

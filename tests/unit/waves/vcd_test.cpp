@@ -10,6 +10,7 @@
 
 #include "parser/load.hpp"
 #include "sim/model/corner.hpp"
+#include "tests/unit/load_design.hpp"
 
 using namespace settle;
 
@@ -217,11 +218,7 @@ TEST_CASE("names that meet after sanitising stay distinct", "[waves][vcd]") {
 namespace {
 
 settle::design load_text(const std::string& text) {
-  diagnostics diags;
-  auto d = load_design_text(text, "ts.settle", load_options{}, diags);
-  for (const auto& x : diags.items) UNSCOPED_INFO(format_diagnostic(x));
-  REQUIRE(d);
-  return std::move(*d);
+  return settle::testing::load_text(text, "ts.settle");
 }
 
 // The $timescale line of a run of `d` at corner `name` with the design's timescale.
