@@ -80,20 +80,28 @@ auto const word_end = !x3::char_(lexical::ident_char_set);
 // Rules
 ///////////////////////////////////////////////////////////////////////////////
 using raw_range = boost::iterator_range<const char*>;
+
+// Names, constants and time literals: the raw spans of the source ...
 x3::rule<class ident_raw, raw_range> const ident_raw = "name_";
 x3::rule<class ref_raw, raw_range> const ref_raw = "ref_";
 x3::rule<class const_raw, raw_range> const const_raw = "target_";
 x3::rule<class quoted_raw, raw_range> const quoted_raw = "ref_";
 x3::rule<class number_raw, raw_range> const number_raw = "time_";
+
+// ... and their values.
 x3::rule<class name_, ast::name> const name_ = "name_";
 x3::rule<class ref_, ast::name> const ref_ = "ref_";
 x3::rule<class const_name, ast::name> const const_name = "target_";
 x3::rule<class target_, ast::name> const target_ = "target_";
 x3::rule<class time_unit, int> const time_unit = "time_unit";
 x3::rule<class time_, ast::time_lit> const time_ = "time_";
+
+// Delays.
 x3::rule<class range_, ast::range> const range_ = "range_";
 x3::rule<class rise_fall, std::vector<ast::range>> const rise_fall = "rise_fall";
 x3::rule<class delay_body, std::vector<ast::range>> const delay_body = "delay_body";
+
+// Gate expressions and gate statements.
 x3::rule<class or_expr, ast::or_expr> const or_expr = "or_expr";
 x3::rule<class xor_expr, ast::xor_expr> const xor_expr = "xor_expr";
 x3::rule<class and_expr, ast::and_expr> const and_expr = "and_expr";
@@ -103,12 +111,16 @@ x3::rule<class arg, ast::arg> const arg = "arg";
 x3::rule<class call, ast::call> const call = "call";
 x3::rule<class rhs, ast::rhs> const rhs = "rhs";
 x3::rule<class gate, ast::gate_stmt> const gate = "gate";
+
+// Declarations, blocks and instances.
 x3::rule<class decl, ast::decl> const decl = "decl";
 x3::rule<class default_, ast::default_stmt> const default_ = "default_";
 x3::rule<class port_group, ast::port_group> const port_group = "port_group";
 x3::rule<class block_head, ast::block_head> const block_head = "block_head";
 x3::rule<class binding, ast::binding> const binding = "binding";
 x3::rule<class inst, ast::inst_stmt> const inst = "inst";
+
+// Stimulus: input changes, clocks and steps.
 x3::rule<class value_, char> const value_ = "value_";
 x3::rule<class assign, ast::assign> const assign = "assign";
 x3::rule<class assigns, std::vector<ast::assign>> const assigns = "assigns";
@@ -118,28 +130,38 @@ x3::rule<class clock, ast::clock_stmt> const clock = "clock";
 x3::rule<class cycles_count, unsigned long long> const cycles_count = "cycles_count";
 x3::rule<class settle_, ast::settle_stmt> const settle_ = "settle_";
 x3::rule<class run, ast::run_stmt> const run = "run";
+
+// Expectations.
 x3::rule<class expect_within, ast::expect_within> const expect_within = "expect_within";
 x3::rule<class expect_glitch, ast::expect_glitch> const expect_glitch = "expect_glitch";
 x3::rule<class expect_word, ast::expect_word> const expect_word = "expect_word";
 x3::rule<class expect_body, ast::expect_body> const expect_body = "expect_body";
 x3::rule<class expect, ast::expect_stmt> const expect = "expect";
+
+// Conditions of reaction rules and properties.
 x3::rule<class cond_or, ast::cond_or> const cond_or = "cond_or";
 x3::rule<class cond_xor, ast::cond_xor> const cond_xor = "cond_xor";
 x3::rule<class cond_and, ast::cond_and> const cond_and = "cond_and";
 x3::rule<class cond_unary, ast::cond_unary> const cond_unary = "cond_unary";
 x3::rule<class cond_primary, ast::cond_primary> const cond_primary = "cond_primary";
 x3::rule<class cond_atom, ast::cond_atom> const cond_atom = "cond_atom";
+
+// Reaction rules and properties.
 x3::rule<class count_, ast::name> const count_ = "count_";
 x3::rule<class count_raw, raw_range> const count_raw = "count_";
 x3::rule<class when_, ast::when_stmt> const when_ = "when_";
 x3::rule<class edge_part, ast::edge_part> const edge_part = "edge_part";
 x3::rule<class property, ast::property_stmt> const property = "property";
+
+// Gauges and their expectations.
 x3::rule<class gauge_period, ast::gauge_period> const gauge_period = "gauge_period";
 x3::rule<class gauge_pulse, ast::gauge_pulse> const gauge_pulse = "gauge_pulse";
 x3::rule<class gauge_latency, ast::gauge_latency> const gauge_latency = "gauge_latency";
 x3::rule<class gauge_body, ast::gauge_body> const gauge_body = "gauge_body";
 x3::rule<class gauge, ast::gauge_stmt> const gauge = "gauge";
 x3::rule<class expect_gauge, ast::expect_gauge> const expect_gauge = "expect_gauge";
+
+// Comma-separated lists.
 x3::rule<class ref_list, std::vector<ast::name>> const ref_list = "ref_list";
 x3::rule<class name_list, std::vector<ast::name>> const name_list = "name_list";
 x3::rule<class port_groups, std::vector<ast::port_group>> const port_groups = "port_groups";
@@ -252,16 +274,6 @@ BOOST_SPIRIT_DEFINE(cond_or, cond_xor, cond_and, cond_unary, cond_primary, cond_
                     gauge_body, gauge, expect_gauge)
 
 }  // namespace settle::grammar
-
-namespace boost::spirit::x3 {
-template <>
-struct get_info<settle::grammar::kw_parser> {
-  using result_type = std::string;
-  std::string operator()(settle::grammar::kw_parser const& p) const {
-    return "'" + std::string(p.word) + "'";
-  }
-};
-}  // namespace boost::spirit::x3
 
 namespace settle::grammar {
 inline statement_type const& statement() { return statement_rule; }

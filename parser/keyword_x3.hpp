@@ -3,6 +3,7 @@
 
 #include <boost/spirit/home/x3.hpp>
 #include <initializer_list>
+#include <string>
 #include <string_view>
 
 namespace settle::lexical {
@@ -37,3 +38,12 @@ inline bool one_of(std::string_view w, std::initializer_list<const char*> words)
 }
 
 }  // namespace settle::lexical
+
+/// What an expectation failure on a keyword names: the word in quotes.
+template <bool (*WordChar)(char)>
+struct boost::spirit::x3::get_info<settle::lexical::keyword_parser<WordChar>> {
+  using result_type = std::string;
+  std::string operator()(settle::lexical::keyword_parser<WordChar> const& p) const {
+    return "'" + std::string(p.word) + "'";
+  }
+};

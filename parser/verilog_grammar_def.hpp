@@ -165,16 +165,6 @@ BOOST_SPIRIT_DEFINE(ident_raw, ident, kind_raw, gate_kind, number, based, select
 
 }  // namespace settle::vgrammar
 
-namespace boost::spirit::x3 {
-template <>
-struct get_info<settle::vgrammar::vkw_parser> {
-  using result_type = std::string;
-  std::string operator()(settle::vgrammar::vkw_parser const& p) const {
-    return "'" + std::string(p.word) + "'";
-  }
-};
-}  // namespace boost::spirit::x3
-
 namespace settle::vgrammar {
 inline statement_type const& statement() { return statement_rule; }
 }  // namespace settle::vgrammar
