@@ -89,14 +89,8 @@ std::string result_json(const design& d, const explore_result& r, double wall) {
     if (!s.stop.empty()) js["stopped"] = s.stop;
     auto& ex = js["expect"] = nlohmann::ordered_json::array();
     for (const auto& e : s.expects) {
-      nlohmann::ordered_json je;
-      je["kind"] = expect_kind_word(e.spec->what);
-      if (e.spec->what == expectation::kind::value || e.spec->what == expectation::kind::no_glitch)
-        je["net"] = e.spec->ref.empty() ? n.net_name[e.spec->net] : e.spec->ref;
-      if (e.spec->what == expectation::kind::value) {
-        je["want"] = logic_text(e.spec->want);
-        je["got"] = logic_text(e.got);
-      }
+      nlohmann::ordered_json je = expectation_json(n, *e.spec);
+      if (e.spec->what == expectation::kind::value) je["got"] = logic_text(e.got);
       je["checked"] = e.checked;
       je["pass"] = e.pass;
       if (!e.detail.empty()) je["detail"] = e.detail;

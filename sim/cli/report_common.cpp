@@ -27,6 +27,19 @@ const char* expect_kind_word(expectation::kind k) {
   return enum_name<expectation::kind::gauge>(k, names);
 }
 
+nlohmann::ordered_json expectation_json(const netlist& n, const expectation& spec) {
+  using k = expectation::kind;
+  nlohmann::ordered_json e;
+  e["kind"] = expect_kind_word(spec.what);
+  if (spec.what == k::value || spec.what == k::no_glitch)
+    e["net"] = spec.ref.empty() ? n.net_name[spec.net] : spec.ref;
+  if (spec.what == k::value) e["want"] = logic_text(spec.want);
+  if (spec.what == k::within) e["budget_fs"] = spec.hi;
+  if (spec.what == k::gauge)
+    e["gauge"] = spec.ref, e["want"] = format_time(spec.lo) + ".." + format_time(spec.hi);
+  return e;
+}
+
 std::string file_stem(const std::string& path) {
   auto slash = path.rfind('/');
   std::string base = slash == std::string::npos ? path : path.substr(slash + 1);

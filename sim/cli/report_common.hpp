@@ -27,6 +27,11 @@ std::string logic_text(logic v);
 /// "within", "no_glitch" or "deterministic".
 const char* expect_kind_word(expectation::kind k);
 
+/// What every report says of an expectation before its result: "kind", then
+/// "net" (value, no_glitch), "want" (value: the level; gauge: the range),
+/// "budget_fs" (within) and "gauge" (gauge), the same in run, sweep and explore.
+nlohmann::ordered_json expectation_json(const netlist& n, const expectation& spec);
+
 /// The design file's name without folder and extension ("top" when that is
 /// empty): the scope name of a VCD dump.
 std::string file_stem(const std::string& path);

@@ -92,10 +92,6 @@ nlohmann::ordered_json owed_json(const design& d, const std::vector<owed_rule>& 
 }
 
 // A gauge expectation's range as written: "700ps..900ps".
-std::string gauge_want(const expectation& e) {
-  return format_time(e.lo) + ".." + format_time(e.hi);
-}
-
 // Top-level `properties` and `gauges` of a sweep (issue 15's contract).
 void closed_loop_json(const design& d, const sweep_result& r, nlohmann::ordered_json& j) {
   j["properties"] = nlohmann::ordered_json::array();
@@ -185,15 +181,8 @@ std::string result_json(const design& d, const sweep_cli_options& o, const sweep
     if (s.unseen_outcome_bound) st["unseen_outcome_bound"] = *s.unseen_outcome_bound;
     st["expect"] = nlohmann::ordered_json::array();
     for (const auto& x : s.expects) {
-      nlohmann::ordered_json e;
       const auto& spec = *x.spec;
-      e["kind"] = expect_kind_word(spec.what);
-      if (spec.what == expectation::kind::value || spec.what == expectation::kind::no_glitch)
-        e["net"] = spec.ref.empty() ? n.net_name[spec.net] : spec.ref;
-      if (spec.what == expectation::kind::value) e["want"] = logic_text(spec.want);
-      if (spec.what == expectation::kind::within) e["budget_fs"] = spec.hi;
-      if (spec.what == expectation::kind::gauge)
-        e["gauge"] = spec.ref, e["want"] = gauge_want(spec);
+      nlohmann::ordered_json e = expectation_json(n, spec);
       if (x.by_interval) {  // `interval` alone: no corner ran, the min-max run proves it or not
         e["proven"] = x.proven;
         e["pass"] = x.pass();

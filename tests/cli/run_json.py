@@ -57,7 +57,10 @@ for i, s in enumerate(j["steps"], 1):
     check(all(isinstance(t, int) for t in s["transitions"].values()), f"step {i} transitions are integers")
     for e in s["expect"]:
         check(isinstance(e["pass"], bool) and e["pass"], f"step {i} expectation passes")
-        if "kind" not in e:
+        # Every expectation names its kind, as in sweep and explore (issue 17).
+        check(e.get("kind") in ("value", "stable", "oscillating", "within", "no_glitch", "deterministic", "gauge"),
+              f"step {i} expectation kind {e.get('kind')}")
+        if e["kind"] == "value":
             check(set(e) >= {"net", "want", "got"} and e["got"] == e["want"], f"step {i} value expectation fields")
     check(s["end_fs"] >= s["start_fs"] + s["settle_fs"], f"step {i} settle time lies inside the step")
 check(j["steps"][0]["values"] == {"lamp": "0", "fault_seen": "0", "latched": "0"}, "step 1 values")
@@ -92,7 +95,7 @@ check(sorted(s.get("toggling", [])) == ["b1", "b2", "b3", "b4", "blink", "lamp"]
 rc, so, _ = run("run", design, "--stim", os.path.join(data, "lamp_panel_wrong.stim"), "--json", out)
 j = json.load(open(out))
 e = j["steps"][0]["expect"][0]
-check(rc == 1 and e == {"net": "latched", "want": "1", "got": "0", "pass": False} | ({"detail": e["detail"]} if "detail" in e else {}),
+check(rc == 1 and e == {"kind": "value", "net": "latched", "want": "1", "got": "0", "pass": False} | ({"detail": e["detail"]} if "detail" in e else {}),
       f"failed expectation {e}")
 check("FAIL" in so, "the table marks the failed expectation")
 
