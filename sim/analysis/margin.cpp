@@ -195,13 +195,9 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
       p.pass.push_back(s.pass);
       p.failure.push_back(s.pass ? margin_failure{} : describe(*plan, s, w));
       p.first_divergence.push_back(s.first_divergence);
-      // The two most common settled outcomes race.
-      std::vector<std::uint64_t> settled;
-      for (const auto& oc : s.outcomes)
-        if (oc.status == step_status::settled && settled.size() < 2) settled.push_back(oc.witness);
-      if (settled.size() == 2)
+      if (const auto race = race_witnesses(s))
         p.race.push_back(
-            std::make_pair(at_spread(*plan, settled[0], w), at_spread(*plan, settled[1], w)));
+            std::make_pair(at_spread(*plan, race->first, w), at_spread(*plan, race->second, w)));
       else
         p.race.emplace_back();
       all = all && s.pass;

@@ -406,6 +406,19 @@ void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt
 
 }  // namespace
 
+std::optional<std::pair<std::uint64_t, std::uint64_t>> race_witnesses(const sweep_step& s) {
+  const sweep_outcome* settled[2] = {nullptr, nullptr};
+  for (const auto& oc : s.outcomes) {
+    if (oc.status != step_status::settled) continue;
+    if (settled[0]) {
+      settled[1] = &oc;
+      return std::pair{settled[0]->witness, settled[1]->witness};
+    }
+    settled[0] = &oc;
+  }
+  return std::nullopt;
+}
+
 const char* verdict_name(sweep_verdict v) {
   static constexpr const char* names[] = {"deterministic", "nondeterministic", "oscillating",
                                           "mixed",         "timeout",          "inconclusive",

@@ -8,6 +8,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 #include "sim/analysis/stats.hpp"
@@ -160,6 +161,11 @@ struct sweep_step {
   /// every expectation proven by the min-max run.
   bool pass = true;
 };
+
+/// The race a step's culprit search explains: the witness corners of its two
+/// most common settled outcomes (outcomes are ordered by count), or nullopt
+/// when fewer than two outcomes settled. sweep and margin both ask here.
+std::optional<std::pair<std::uint64_t, std::uint64_t>> race_witnesses(const sweep_step& s);
 
 /// A whole-run property judged over every corner.
 struct sweep_property {

@@ -545,12 +545,10 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   for (const auto& s : r.steps) {
     if (r.stopped != sweep_stop::none) break;  // a stopped sweep reports what it has, at once
     if (!s.first_divergence || s.run_step) continue;
-    std::vector<const sweep_outcome*> settled;  // the two most common settled outcomes race
-    for (const auto& oc : s.outcomes)
-      if (oc.status == step_status::settled && settled.size() < 2) settled.push_back(&oc);
-    if (settled.size() < 2) continue;
-    auto race = find_culprits(*d, ro, s.index, plan->corner_at(settled[0]->witness),
-                              plan->corner_at(settled[1]->witness));
+    const auto witnesses = race_witnesses(s);
+    if (!witnesses) continue;
+    auto race = find_culprits(*d, ro, s.index, plan->corner_at(witnesses->first),
+                              plan->corner_at(witnesses->second));
     if (!race.gates.empty()) races.push_back(std::move(race));
   }
 
