@@ -17,7 +17,7 @@ extern const char* const html_script;
 
 namespace {
 
-using json = nlohmann::ordered_json;
+using json = report_json;
 
 /// The most nets drawn per waveform panel, and the most outcomes per step.
 constexpr std::size_t drawn_net_limit = 64;
@@ -50,9 +50,7 @@ page_data start(const design& d, const std::vector<net_id>& reported, const html
   if (reported.size() > drawn_net_limit)
     p.notes.push_back(fmt::format("{} nets are reported; the waveforms show the first {}.",
                                   reported.size(), drawn_net_limit));
-  j["result"] =
-      src.result_json.empty() ? json::object() : json::parse(src.result_json, nullptr, false);
-  if (j["result"].is_discarded()) j["result"] = json::object();
+  j["result"] = src.result.is_null() ? json::object() : src.result;
   j["gates"] = d.nets.gate_count();
   j["net_count"] = d.nets.net_count();
   return p;
@@ -202,76 +200,10 @@ void sweep_histograms(const sweep_result& r, page_data& p) {
   }
 }
 
-/// The sweep's figures in the sweep command's JSON shape (for the margin report's written spread).
-json sweep_json(const design& d, const sweep_result& r) {
-  const netlist& n = d.nets;
-  json j;
-  j["corners"] = r.corners;
-  j["steps"] = json::array();
-  for (const auto& s : r.steps) {
-    json st;
-    st["index"] = s.index;
-    st["label"] = s.label;
-    st["verdict"] = verdict_name(s.verdict);
-    st["first_divergence"] = s.first_divergence;
-    st["outcomes"] = json::array();
-    for (const auto& oc : s.outcomes) {
-      json e;
-      e["status"] = status_name(oc.status);
-      e["values"] = json::object();
-      for (std::size_t k = 0; k < r.reported.size() && k < oc.values.size(); ++k)
-        e["values"][n.net_name[r.reported[k]]] = one(oc.values[k]);
-      e["count"] = oc.count;
-      e["share"] = oc.share;
-      e["share_ci95"] = {oc.share_ci95.lo, oc.share_ci95.hi};
-      e["witness"] = oc.witness_name;
-      // Settle times only for outcomes that went quiet (the sweep command's JSON names).
-      const char* key = oc.status == step_status::oscillating ? "detected_fs"
-                        : oc.status == step_status::timeout || oc.status == step_status::event_limit
-                            ? "last_change_fs"
-                            : "settle_fs";
-      e[key] = {{"min", oc.settle.min}, {"median", oc.settle.median}, {"max", oc.settle.max}};
-      if (oc.status == step_status::oscillating) e["period_fs"] = oc.period;
-      if (oc.status == step_status::deadlock) {
-        e["owed"] = json::array();
-        for (const auto& w : oc.owed)
-          e["owed"].push_back(
-              {{"rule", w.rule < d.stim.rules.size() ? d.stim.rules[w.rule].text : std::string()},
-               {"fired", w.fired},
-               {"times", w.times},
-               {"condition", one(w.condition)}});
-      }
-      st["outcomes"].push_back(std::move(e));
-    }
-    j["steps"].push_back(std::move(st));
-  }
-  // Whole-run properties and gauges over the corners, in the sweep command's shape.
-  j["properties"] = json::array();
-  for (const auto& p : r.properties) {
-    json e = {{"text", d.stim.properties[p.index].text},
-              {"violating", p.violating},
-              {"corners", r.corners}};
-    if (p.violating) e["witness"] = p.witness_name;
-    j["properties"].push_back(std::move(e));
-  }
-  j["gauges"] = json::array();
-  for (const auto& g : r.gauges) {
-    const auto& spec = d.stim.gauges[g.index];
-    json e = {{"name", spec.name}, {"kind", gauge_kind_name(spec.what)}, {"corners", g.corners}};
-    if (g.corners) {
-      e["min_fs"] = g.min, e["median_fs"] = g.median, e["max_fs"] = g.max;
-      e["witness_min"] = g.witness_min_name, e["witness_max"] = g.witness_max_name;
-      if (spec.what == gauge::kind::period && g.median > 0) e["throughput_per_s"] = 1e15 / g.median;
-    }
-    j["gauges"].push_back(std::move(e));
-  }
-  return j;
-}
-
 /// JSON safe inside <script>: '<', '>' and '&' occur only inside strings, where \u escapes mean the
 /// same.
 std::string script_safe(const json& j) {
-  const std::string raw = j.dump();
+  const std::string raw = j.dump(-1, ' ', false, json::error_handler_t::replace);
   std::string out;
   out.reserve(raw.size() + raw.size() / 16);
   for (char c : raw) {
@@ -375,7 +307,8 @@ std::string html_report_sweep(const design& d, const sweep_result& r, const run_
 std::string html_report_margin(const design& d, const margin_result& r, const run_options& ro,
                                const html_source& src) {
   auto p = start(d, r.written.reported, src);
-  p.root["written"] = sweep_json(d, r.written);
+  auto& written = p.root["written"] = {{"corners", r.written.corners}};
+  sweep_figures_json(d, r.written, nullptr, written);
   run_options wro = ro;
   if (wro.horizon == 0) wro.horizon = default_horizon(d.nets);
   sweep_waves(d, r.written, wro, p);

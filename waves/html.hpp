@@ -13,6 +13,7 @@
 #include "sim/kernel/run.hpp"
 #include "sim/model/corner.hpp"
 #include "sim/model/design.hpp"
+#include "waves/json.hpp"
 
 namespace settle {
 
@@ -24,9 +25,9 @@ inline constexpr std::uint64_t html_graph_limit = 60;
 
 /// What every report states about where it came from.
 struct html_source {
-  std::string command;      ///< "run", "sweep", "margin" or "explore"
-  std::string result_json;  ///< the command's JSON for the same run, embedded verbatim
-  std::string invocation;   ///< the command line; empty: read from /proc/self/cmdline
+  std::string command;        ///< "run", "sweep", "margin" or "explore"
+  const report_json& result;  ///< the command's JSON report (json.hpp), embedded as it is
+  std::string invocation;     ///< the command line; empty: read from /proc/self/cmdline
 };
 
 /// `settle run`: the single run's waveforms per step (replayed under `c`).

@@ -6,7 +6,6 @@
 
 #include <algorithm>
 #include <map>
-#include <nlohmann/json.hpp>
 
 #include "sim/model/time_parse.hpp"
 
@@ -210,37 +209,6 @@ culprit_report find_culprits(const design& d, const run_options& opt, std::size_
   fill_delays(d, b, tb);
   const std::string names[2] = {a.name(), b.name()};
   return find_culprits(d, opt, step, ta, tb, names, max_tests);
-}
-
-nlohmann::ordered_json culprit_json(const netlist& n, const culprit_report& r) {
-  nlohmann::ordered_json j;
-  j["step"] = r.step;
-  j["corners"] = {r.corner[0], r.corner[1]};
-  j["culprits"] = nlohmann::ordered_json::array();
-  for (const auto& c : r.gates) {
-    nlohmann::ordered_json g;
-    g["gate"] = n.gate_name(c.gate);
-    g["kind"] = kind_name(n.kind[c.gate]);
-    g["delay_fs"] = {c.rise[0], c.rise[1]};
-    if (c.rise[0] != c.fall[0] || c.rise[1] != c.fall[1]) g["fall_fs"] = {c.fall[0], c.fall[1]};
-    j["culprits"].push_back(std::move(g));
-  }
-  j["paths"] = nlohmann::ordered_json::array();
-  for (int side = 0; side < 2; ++side) {
-    nlohmann::ordered_json p;
-    p["corner"] = r.corner[side];
-    p["nets"] = nlohmann::ordered_json::array();
-    p["times_fs"] = nlohmann::ordered_json::array();
-    for (const auto& h : r.path[side]) {
-      p["nets"].push_back(n.net_name[h.net]);
-      p["times_fs"].push_back(h.time);
-    }
-    j["paths"].push_back(std::move(p));
-  }
-  j["differing_gates"] = r.differing;
-  j["tests"] = r.tests;
-  j["minimal"] = r.minimal;
-  return j;
 }
 
 std::string culprit_text(const netlist& n, const culprit_report& r, const std::string& indent) {

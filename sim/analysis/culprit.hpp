@@ -3,7 +3,6 @@
 
 #include <cstdint>
 #include <functional>
-#include <nlohmann/json_fwd.hpp>
 #include <string>
 #include <vector>
 
@@ -66,10 +65,6 @@ culprit_report find_culprits(const design& d, const run_options& opt, std::size_
                              const delay_table& a, const delay_table& b, const std::string names[2],
                              std::size_t max_tests = 4096);
 
-/// `{"culprits":[{"gate":..,"delay_fs":[a,b]}],"paths":[[..],[..]], ...}`;
-/// delay_fs are the rise delays, with "fall_fs" added when a gate's rise and
-/// fall delays differ.
-nlohmann::ordered_json culprit_json(const netlist& n, const culprit_report& r);
 /// Readable lines, each prefixed with `indent`.
 std::string culprit_text(const netlist& n, const culprit_report& r, const std::string& indent);
 

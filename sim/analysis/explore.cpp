@@ -90,11 +90,6 @@ bool first_starts(const netlist& n, std::span<const logic> inputs, int max_unkno
   return true;
 }
 
-logic net_value(const netlist& n, const explore_step& st, const stable_state& s, net_id net) {
-  const gate_id g = n.driver[net];
-  return g == no_id ? st.inputs[net] : from_bool(s.gates[g]);
-}
-
 void check_expects(const netlist& n, const step_spec& spec, explore_step& st) {
   const bool exact = st.exact;
   for (const auto& e : spec.expects) {
@@ -104,9 +99,9 @@ void check_expects(const netlist& n, const step_spec& spec, explore_step& st) {
       case expectation::kind::value: {
         if (st.complete) {
           bool all = !st.stable.empty();
-          logic seen = st.stable.empty() ? logic::x : net_value(n, st, st.stable[0], e.net);
+          logic seen = st.stable.empty() ? logic::x : stable_value(n, st, st.stable[0], e.net);
           for (const auto& s : st.stable) {
-            const logic v = net_value(n, st, s, e.net);
+            const logic v = stable_value(n, st, s, e.net);
             if (v != e.want) all = false;
             if (v != seen) seen = logic::x;
           }
@@ -374,6 +369,11 @@ std::optional<explore_result> explore_design(const design& d, const explore_opti
     res.steps.push_back(std::move(st));
   }
   return res;
+}
+
+logic stable_value(const netlist& n, const explore_step& s, const stable_state& st, net_id net) {
+  const gate_id g = n.driver[net];
+  return g == no_id ? s.inputs[net] : from_bool(st.gates[g]);
 }
 
 }  // namespace settle

@@ -66,6 +66,10 @@ struct explore_step {
   bool pass() const;
 };
 
+/// The value of `net` in stable state `st` of step `s`: its driver's output,
+/// or for an input the step's input value.
+logic stable_value(const netlist& n, const explore_step& s, const stable_state& st, net_id net);
+
 struct explore_result {
   explore_model model = explore_model::gmw;
   std::vector<net_id> reported;  ///< outputs, then watched nets

@@ -313,6 +313,11 @@ std::optional<margin_result> find_margin(const design& d, const margin_options& 
   }
   const auto& written = stopped ? cache.at(1.0) : probe(1.0);
   res.written = written.sweep;
+  // The probes cleared their pointers into the scaled copy: the written
+  // sweep's expectations point into the design as written (same order).
+  for (std::size_t k = 0; k < d.stim.steps.size() && k < res.written.steps.size(); ++k)
+    for (std::size_t e = 0; e < res.written.steps[k].expects.size(); ++e)
+      res.written.steps[k].expects[e].spec = &d.stim.steps[k].expects[e];
   for (std::size_t k = 0; k < d.stim.steps.size() && k < written.sweep.steps.size(); ++k) {
     const auto& spec = d.stim.steps[k];
     const auto& s = written.sweep.steps[k];

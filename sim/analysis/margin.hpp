@@ -97,8 +97,9 @@ struct margin_result {
   std::vector<property_margin> properties;  ///< one per stimulus property
   std::vector<within_margin> within;
   std::vector<margin_probe> probes;  ///< in the order run
-  /// The sweep at the written spread (w = 1); its expects' spec pointers are
-  /// null: expectation e of step k is d.stim.steps[k].expects[e].
+  /// The sweep at the written spread (w = 1); its expects' spec pointers
+  /// point into the design searched (expectation e of step k is
+  /// d.stim.steps[k].expects[e]), which must outlive the result.
   sweep_result written;
   std::uint64_t corners_per_probe = 0;
   std::uint64_t corner_runs = 0;   ///< over all probes

@@ -7,7 +7,6 @@
 #include <algorithm>
 #include <array>
 #include <memory>
-#include <nlohmann/json.hpp>
 
 #include "sim/analysis/graph.hpp"
 #include "sim/cli/command.hpp"
@@ -73,19 +72,19 @@ exit_status run_check(const check_options& o) {
           l.nets.size() > shown_members ? ", ..." : "");
 
   if (!o.json.empty()) {
-    nlohmann::ordered_json j = report_head(d->path);
+    report_json j = report_head(d->path);
     j["blocks"] = n.blocks;
     j["instances"] = n.instances;
     j["gates"] = n.gate_count();
     j["nets"] = nets;
     j["inputs"] = n.inputs.size();
     j["outputs"] = n.outputs.size();
-    j["by_kind"] = nlohmann::ordered_json::object();
+    j["by_kind"] = report_json::object();
     for (int k = 0; k < gate_kind_count; ++k)
       if (by_kind[k]) j["by_kind"][kind_name(static_cast<gate_kind>(k))] = by_kind[k];
-    j["loops"] = nlohmann::ordered_json::array();
+    j["loops"] = report_json::array();
     for (const auto& l : loops) {
-      nlohmann::ordered_json e;
+      report_json e;
       e["size"] = l.size;
       e["nets"] = std::vector<std::string>(l.nets.begin(),
                                            l.nets.begin() + std::min(l.nets.size(), shown_members));
@@ -98,9 +97,7 @@ exit_status run_check(const check_options& o) {
                      {"dffs", s.dffs},     {"inverters", s.inverters}, {"buffers", s.buffers},
                      {"gates", s.gates}};
     }
-    if (!write_output(
-            o.json, j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n"))
-      return exit_status::error;
+    if (!write_output(o.json, json_text(j))) return exit_status::error;
     if (o.json == "-") return exit_status::ok;  // stdout carries the JSON alone
   }
 

@@ -7,7 +7,6 @@
 #include <cstdio>
 #include <fstream>
 #include <memory>
-#include <nlohmann/json.hpp>
 #include <optional>
 
 #include "sim/analysis/explore.hpp"
@@ -15,6 +14,7 @@
 #include "sim/cli/report_common.hpp"
 #include "waves/dot.hpp"
 #include "waves/html.hpp"
+#include "waves/json.hpp"
 
 namespace settle::cli {
 namespace {
@@ -28,81 +28,6 @@ struct explore_cli_options {
   std::uint64_t max_memory_mib = 0;  ///< --max-memory; 0: the default guard
   std::string json, dot, html;
 };
-
-nlohmann::ordered_json tri(answer a) {
-  if (a == answer::unknown) return nullptr;
-  return a == answer::yes;
-}
-
-logic stable_value(const netlist& n, const explore_step& s, const stable_state& st, net_id net) {
-  const gate_id g = n.driver[net];
-  return g == no_id ? s.inputs[net] : from_bool(st.gates[g]);
-}
-
-std::string result_json(const design& d, const explore_result& r, double wall) {
-  const netlist& n = d.nets;
-  nlohmann::ordered_json j = report_head(d.path);
-  j["model"] = model_name(r.model);
-  auto& order = j["state_order"] =
-      nlohmann::ordered_json::array();  // the gates behind each "state" character
-  for (gate_id g = 0; g < n.gate_count(); ++g) order.push_back(n.gate_name(g));
-  j["notes"] = r.notes;
-  auto& steps = j["steps"] = nlohmann::ordered_json::array();
-  for (const auto& s : r.steps) {
-    nlohmann::ordered_json js;
-    js["index"] = s.index;
-    js["label"] = s.label;
-    js["states"] = s.states;
-    js["edges"] = s.edges;
-    js["start_states"] = s.start_states;
-    auto& stable = js["stable"] = nlohmann::ordered_json::array();
-    for (const auto& st : s.stable) {
-      nlohmann::ordered_json e;
-      for (net_id net : r.reported)
-        e["values"][n.net_name[net]] = logic_text(stable_value(n, s, st, net));
-      e["state"] = state_text(st.gates);
-      auto& path = e["path"] =
-          nlohmann::ordered_json::array();  // gates fired together, from a start state
-      for (const auto& fired : st.path) {
-        auto& f = path.emplace_back(nlohmann::ordered_json::array());
-        for (gate_id g : fired) f.push_back(n.gate_name(g));
-      }
-      stable.push_back(std::move(e));
-    }
-    js["critical_race"] = tri(s.critical_race);
-    js["noncritical_race"] = tri(s.noncritical_race);
-    js["may_oscillate"] = tri(s.may_oscillate);
-    js["must_oscillate"] = tri(s.must_oscillate);
-    auto& hz = js["hazards"] = nlohmann::ordered_json::array();
-    for (net_id h : s.hazards) hz.push_back(n.net_name[h]);
-    js["hazards_from"] = s.complete ? "graph" : "ternary";  // ternary: possible static hazards only
-    for (net_id net : r.reported) js["ternary"][n.net_name[net]] = logic_text(s.ternary[net]);
-    if (!js.contains("ternary")) js["ternary"] = nlohmann::ordered_json::object();
-    if (s.complete)
-      js["sccs"] = {{"count", s.sccs},
-                    {"nontrivial", s.nontrivial_sccs},
-                    {"terminal", s.terminal_sccs},
-                    {"oscillating", s.oscillating_sccs},
-                    {"largest", s.largest_scc}};
-    js["complete"] = s.complete;
-    js["exact"] = s.exact;
-    if (!s.stop.empty()) js["stopped"] = s.stop;
-    auto& ex = js["expect"] = nlohmann::ordered_json::array();
-    for (const auto& e : s.expects) {
-      nlohmann::ordered_json je = expectation_json(n, *e.spec);
-      if (e.spec->what == expectation::kind::value) je["got"] = logic_text(e.got);
-      je["checked"] = e.checked;
-      je["pass"] = e.pass;
-      if (!e.detail.empty()) je["detail"] = e.detail;
-      ex.push_back(std::move(je));
-    }
-    js["pass"] = s.pass();
-    steps.push_back(std::move(js));
-  }
-  j["wall_s"] = wall;  // the one timing field: reports compare equal apart from wall_s (issue 7)
-  j["result"] = r.pass() ? "pass" : "findings";
-  return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
-}
 
 std::string yes_no(answer a, const char* yes) {
   return a == answer::unknown ? "?" : a == answer::yes ? yes : "no";
@@ -242,11 +167,12 @@ exit_status run_explore(const explore_cli_options& o) {
     return exit_status::error;
   }
   output_set outs;  // all or nothing
-  if (!o.json.empty() && !outs.put(o.json, result_json(*d, *r, wall))) return exit_status::error;
+  const report_json result =
+      o.json.empty() && o.html.empty() ? report_json() : explore_json(*d, *r, wall);
+  if (!o.json.empty() && !outs.put(o.json, json_text(result))) return exit_status::error;
   if (!o.dot.empty() && !outs.put(o.dot, state_graph_dot(d->nets, *r, d->path)))
     return exit_status::error;
-  if (!o.html.empty() &&
-      !outs.put(o.html, html_report_explore(*d, *r, {"explore", result_json(*d, *r, wall), ""})))
+  if (!o.html.empty() && !outs.put(o.html, html_report_explore(*d, *r, {"explore", result, ""})))
     return exit_status::error;
   if (!outs.commit()) return exit_status::error;
   if (o.json != "-" && o.dot != "-" && o.html != "-")

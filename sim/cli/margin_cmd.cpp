@@ -11,7 +11,6 @@
 #include <filesystem>
 #include <fstream>
 #include <memory>
-#include <nlohmann/json.hpp>
 #include <sstream>
 
 #include "sim/analysis/baseline.hpp"
@@ -22,12 +21,11 @@
 #include "sim/cli/report_common.hpp"
 #include "sim/model/time_parse.hpp"
 #include "waves/html.hpp"
+#include "waves/json.hpp"
 #include "waves/junit.hpp"
 
 namespace settle::cli {
 namespace {
-
-using json = nlohmann::ordered_json;
 
 struct margin_cli_options {
   design_options design;
@@ -48,127 +46,6 @@ std::string replay(const margin_cli_options& o, const std::string& corner) {
 
 std::string pct_words(double w, bool at_least) {
   return (at_least ? ">= " : "") + spread_percent(w);
-}
-
-// What became of the baseline: compared, written, or why not.
-struct baseline_outcome {
-  bool updated = false;
-  std::string
-      not_updated;  ///< with --update-baseline and no write: why ("the search was interrupted")
-};
-
-json failure_json(const design& d, const margin_cli_options& o, const margin_failure& f) {
-  json j;
-  j["spread_pct"] = 100.0 * f.spread;
-  j["step"] = f.step;
-  if (f.property && *f.property < d.stim.properties.size()) {
-    j["kind"] = "property";
-    j["property"] = d.stim.properties[*f.property].text;
-  } else if (f.expect_index && f.step <= d.stim.steps.size()) {
-    j["kind"] = "expectation";
-    j["expectation"] = expectation_words(d.nets, d.stim.steps[f.step - 1].expects[*f.expect_index]);
-  } else {
-    j["kind"] = f.verdict == sweep_verdict::nondeterministic ? "divergence" : "verdict";
-  }
-  j["verdict"] = verdict_name(f.verdict);
-  j["witness"] = f.witness;
-  if (!f.other_witness.empty()) j["other_witness"] = f.other_witness;
-  if (!f.detail.empty()) j["detail"] = f.detail;
-  j["failing"] = f.failing;
-  j["corners"] = f.corners;
-  j["replay"] = replay(o, f.witness);
-  if (f.culprits) {
-    json c = culprit_json(d.nets, *f.culprits);
-    j["culprits"] = c["culprits"];
-    j["paths"] = c["paths"];
-    j["race"] = {{"corners", c["corners"]},
-                 {"differing_gates", c["differing_gates"]},
-                 {"tests", c["tests"]},
-                 {"minimal", c["minimal"]}};
-  }
-  return j;
-}
-
-json baseline_json(const std::string& file, const baseline_outcome& out,
-                   const baseline_comparison* cmp, const baseline_entry* old, double ceiling_pct) {
-  json j;
-  j["file"] = file;
-  j["updated"] = out.updated;
-  if (!out.not_updated.empty()) j["not_updated"] = out.not_updated;
-  j["compared"] = cmp != nullptr;
-  j["ceiling_pct"] = ceiling_pct;
-  if (old) j["baseline_ceiling_pct"] = old->ceiling_pct;
-  j["regressions"] = json::array();
-  j["changes"] = json::array();
-  if (cmp) {
-    for (const auto& c : cmp->changes)
-      j[c.regression ? "regressions" : "changes"].push_back(
-          {{"what", c.what},
-           {"before_pct", c.before_pct},
-           {"after_pct", c.after_pct},
-           {"drop_pct", c.before_pct - c.after_pct},
-           {"before_at_least", c.before_at_least},
-           {"after_at_least", c.after_at_least}});
-    j["notes"] = cmp->notes;
-  }
-  return j;
-}
-
-std::string result_json(const design& d, const margin_cli_options& o, const margin_result& r,
-                        const json& base, bool pass) {
-  json j = report_head(d.path);
-  j["spec"] = o.corners;
-  j["seed"] = o.seed;
-  j["corners_per_probe"] = r.corners_per_probe;
-  j["resolution_pct"] = o.resolution;
-  j["ceiling_pct"] = o.ceiling;
-  j["margin_pct"] = 100.0 * r.margin;
-  j["at_least"] = r.at_ceiling;
-  j["fails_at_zero"] = r.fails_at_zero;
-  j["exact"] = r.exact;
-  j["confidence"] = r.confidence_note();
-  j["corner_runs"] = r.corner_runs;
-  j["culprit_runs"] = r.culprit_runs;
-  j["wall_s"] = r.wall_s;
-  j["interrupted"] = r.stopped != sweep_stop::none;
-  if (r.stopped != sweep_stop::none)
-    j["stop_reason"] = r.stopped == sweep_stop::timeout ? "timeout" : "signal";
-  j["probes"] = json::array();
-  for (const auto& p : r.probes)
-    j["probes"].push_back({{"spread_pct", 100.0 * p.spread}, {"pass", p.pass}});
-  if (r.failure) j["failure"] = failure_json(d, o, *r.failure);
-  j["steps"] = json::array();
-  for (const auto& s : r.steps) {
-    json st;
-    st["index"] = s.index;
-    st["label"] = s.label;
-    st["margin_pct"] = 100.0 * s.margin;
-    st["at_least"] = s.at_ceiling;
-    st["fails_at_zero"] = s.fails_at_zero;
-    if (s.failure) st["failure"] = failure_json(d, o, *s.failure);
-    j["steps"].push_back(std::move(st));
-  }
-  j["properties"] = json::array();
-  for (const auto& p : r.properties) {
-    json e;
-    e["text"] = d.stim.properties[p.index].text;
-    e["margin_pct"] = 100.0 * p.margin;
-    e["at_least"] = p.at_ceiling;
-    e["fails_at_zero"] = p.fails_at_zero;
-    if (p.failure) e["failure"] = failure_json(d, o, *p.failure);
-    j["properties"].push_back(std::move(e));
-  }
-  j["settle_within"] = json::array();
-  for (const auto& w : r.within) {
-    json e = {{"step", w.step},           {"budget_fs", w.budget},
-              {"worst_fs", w.worst},      {"worst_corner", w.worst_corner},
-              {"margin_fs", w.margin_fs}, {"unsettled", w.unsettled}};
-    if (!w.worst_corner.empty()) e["replay"] = replay(o, w.worst_corner);
-    j["settle_within"].push_back(std::move(e));
-  }
-  if (!base.is_null()) j["baseline"] = base;
-  j["result"] = pass ? "pass" : "findings";
-  return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
 }
 
 std::string failure_text(const design& d, const margin_cli_options& o, const margin_failure& f,
@@ -462,14 +339,16 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
   const bool regressed = cmp && !o.update_baseline && cmp->regressed();
   const bool pass = r->passes_as_written() && !regressed;
 
-  const json base = o.baseline.empty()
-                        ? json()
-                        : baseline_json(o.baseline, bo, cmp ? &*cmp : nullptr, old, o.ceiling);
+  const auto replay_of = [&](const std::string& c) { return replay(o, c); };
+  margin_source src{o.corners, o.seed, o.resolution, o.ceiling, replay_of, report_json(), pass};
+  if (!o.baseline.empty())
+    src.baseline = baseline_json(o.baseline, bo, cmp ? &*cmp : nullptr, old, o.ceiling);
+  const report_json result =
+      o.json.empty() && o.html.empty() ? report_json() : margin_json(*d, *r, src);
   // The reports are written to temporary files and put in place together, all or nothing. The
   // baseline, updated under its own lock just above, is already in place by then.
   output_set outs;
-  if (!o.json.empty() && !outs.put(o.json, result_json(*d, o, *r, base, pass)))
-    return exit_status::error;
+  if (!o.json.empty() && !outs.put(o.json, json_text(result))) return exit_status::error;
   if (!o.junit.empty()) {
     std::vector<std::pair<std::string, std::string>> shrank;
     if (regressed)
@@ -480,13 +359,11 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
               fmt::format("{} margin fell from {:g}% to {:g}% ({:.2f} points, tolerance {:g})",
                           c.what, c.before_pct, c.after_pct, c.before_pct - c.after_pct,
                           o.tolerance));
-    const auto suite = junit_of_margin(
-        *d, *r, [&](const std::string& c) { return replay(o, c); }, shrank);
+    const auto suite = junit_of_margin(*d, *r, replay_of, shrank);
     if (!outs.put(o.junit, junit_xml({suite}))) return exit_status::error;
   }
   if (!o.html.empty() &&
-      !outs.put(o.html, html_report_margin(*d, *r, mo.run,
-                                           {"margin", result_json(*d, o, *r, base, pass), ""})))
+      !outs.put(o.html, html_report_margin(*d, *r, mo.run, {"margin", result, ""})))
     return exit_status::error;
   if (!outs.commit()) return exit_status::error;
   if (!o.quiet && o.json != "-" && o.junit != "-" && o.html != "-")

@@ -13,32 +13,10 @@
 #include <cstdlib>
 
 #include "sim/analysis/sweep.hpp"
-#include "sim/model/enum_names.hpp"
 #include "sim/model/time.hpp"
 #include "sim/model/time_parse.hpp"
 
 namespace settle::cli {
-
-std::string logic_text(logic v) { return std::string(1, to_char(v)); }
-
-const char* expect_kind_word(expectation::kind k) {
-  static constexpr const char* names[] = {"value",     "stable",        "oscillating", "within",
-                                          "no_glitch", "deterministic", "gauge"};
-  return enum_name<expectation::kind::gauge>(k, names);
-}
-
-nlohmann::ordered_json expectation_json(const netlist& n, const expectation& spec) {
-  using k = expectation::kind;
-  nlohmann::ordered_json e;
-  e["kind"] = expect_kind_word(spec.what);
-  if (spec.what == k::value || spec.what == k::no_glitch)
-    e["net"] = spec.ref.empty() ? n.net_name[spec.net] : spec.ref;
-  if (spec.what == k::value) e["want"] = logic_text(spec.want);
-  if (spec.what == k::within) e["budget_fs"] = spec.hi;
-  if (spec.what == k::gauge)
-    e["gauge"] = spec.ref, e["want"] = format_time(spec.lo) + ".." + format_time(spec.hi);
-  return e;
-}
 
 std::string file_stem(const std::string& path) {
   auto slash = path.rfind('/');
@@ -119,38 +97,8 @@ std::string mark(std::string_view word, bool good, bool colour) {
       "{}", text);
 }
 
-nlohmann::ordered_json net_names_json(const netlist& n, const std::vector<net_id>& nets) {
-  auto j = nlohmann::ordered_json::array();
-  for (net_id id : nets) j.push_back(n.net_name[id]);
-  return j;
-}
-
-std::string values_repeat_words(time_fs at, time_fs period) {
-  if (!period) return "";
-  return fmt::format(
-      "the net values repeated (every {}, first seen at {}) but the full state with its pending "
-      "events did not yet; a longer --horizon may let the repeat show as an oscillation",
-      format_time(period), format_time(at));
-}
-
-std::string timeout_words(time_fs reached, std::uint64_t events, time_fs at, time_fs period) {
-  std::string s =
-      fmt::format("stopped at the step's time limit, {} after its start, after {} event{}",
-                  format_time(reached), events, events == 1 ? "" : "s");
-  if (period) s += "; " + values_repeat_words(at, period);
-  return s;
-}
-
 double seconds_since(std::chrono::steady_clock::time_point t0) {
   return std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
-}
-
-nlohmann::ordered_json report_head(const std::string& design_path) {
-  nlohmann::ordered_json j;
-  j["tool"] = "settle";
-  j["version"] = SETTLE_VERSION;
-  j["design"] = design_path;
-  return j;
 }
 
 void add_json_option(CLI::App& cmd, std::string& path) {

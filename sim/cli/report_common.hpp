@@ -2,13 +2,13 @@
 #pragma once
 
 #include <chrono>
-#include <nlohmann/json.hpp>
 #include <string>
 #include <string_view>
 
 #include "sim/model/logic.hpp"
 #include "sim/model/netlist.hpp"
 #include "sim/model/stimulus.hpp"
+#include "waves/json.hpp"
 
 namespace CLI {
 class App;
@@ -19,18 +19,6 @@ struct sweep_plan;
 }
 
 namespace settle::cli {
-
-/// One level as the one-character string the JSON reports use ("0", "1", "x").
-std::string logic_text(logic v);
-
-/// The JSON word of an expectation kind: "value", "stable", "oscillating",
-/// "within", "no_glitch" or "deterministic".
-const char* expect_kind_word(expectation::kind k);
-
-/// What every report says of an expectation before its result: "kind", then
-/// "net" (value, no_glitch), "want" (value: the level; gauge: the range),
-/// "budget_fs" (within) and "gauge" (gauge), the same in run, sweep and explore.
-nlohmann::ordered_json expectation_json(const netlist& n, const expectation& spec);
 
 /// The design file's name without folder and extension ("top" when that is
 /// empty): the scope name of a VCD dump.
@@ -57,25 +45,11 @@ void check_number_at_least(CLI::Option* opt, double lo, const char* what);
 /// terminal and NO_COLOR unset) a finding is bold red, the rest bold green.
 std::string mark(std::string_view word, bool good, bool colour);
 
-/// Why a timeout step stopped, in words, from its step_result figures: how
-/// far it got ("stopped 10ns after its start, 123 events") and, when its net
-/// values had repeated without its full state, that and the --horizon hint.
-std::string timeout_words(time_fs reached, std::uint64_t events, time_fs values_repeat_at,
-                          time_fs values_period);
-/// Only the hint part (empty when the values never repeated).
-std::string values_repeat_words(time_fs values_repeat_at, time_fs values_period);
-
 /// What the `unknown` line says after the names: why it is a finding and the two ways to accept it.
 inline constexpr const char* unknown_words =
     "at x at the end of the step (accept it with 'expect NET = x' or --allow-x)";
-/// The JSON array of the names of `nets`.
-nlohmann::ordered_json net_names_json(const netlist& n, const std::vector<net_id>& nets);
-
 /// Seconds of wall-clock time since `t0`.
 double seconds_since(std::chrono::steady_clock::time_point t0);
-
-/// The first fields of every JSON report: "tool", "version" and "design".
-nlohmann::ordered_json report_head(const std::string& design_path);
 
 /// --json PATH: "write the results as JSON to PATH ('-' for stdout)".
 void add_json_option(CLI::App& cmd, std::string& path);

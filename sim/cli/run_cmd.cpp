@@ -6,7 +6,6 @@
 #include <CLI/CLI.hpp>
 #include <chrono>
 #include <memory>
-#include <nlohmann/json.hpp>
 
 #include "sim/cli/command.hpp"
 #include "sim/cli/interrupt.hpp"
@@ -15,6 +14,7 @@
 #include "sim/model/time.hpp"
 #include "sim/model/time_parse.hpp"
 #include "waves/html.hpp"
+#include "waves/json.hpp"
 #include "waves/junit.hpp"
 #include "waves/vcd.hpp"
 
@@ -30,126 +30,6 @@ struct run_cli_options {
   bool allow_x = false;  ///< --allow-x
   bool verbose = false, quiet = false;
 };
-
-// Transitions beyond the one net change the step needed (0 or 1). An input's
-// changes are the environment's own (stimulus and reaction rules), each as
-// asked for: they are never glitches unless they pass through x.
-std::uint32_t glitches(const design& d, const run_result& r, const step_result& s, std::size_t i) {
-  const net_id net = r.reported[i];
-  if (d.nets.driver[net] == no_id && s.start_values[i] != logic::x && s.values[i] != logic::x)
-    return 0;
-  const std::uint32_t needed = s.start_values[i] != s.values[i] ? 1 : 0;
-  return s.transitions[i] > needed ? s.transitions[i] - needed : 0;
-}
-
-nlohmann::ordered_json expect_json(const netlist& n, const step_result& s, const expect_result& x) {
-  const auto& spec = *x.spec;
-  nlohmann::ordered_json e = expectation_json(n, spec);
-  if (spec.what == expectation::kind::value) e["got"] = logic_text(x.got);
-  if (spec.what == expectation::kind::within) e["got_fs"] = s.settle;
-  if (spec.what == expectation::kind::oscillating) {
-    if (spec.has_range) e["period_min_fs"] = spec.lo, e["period_max_fs"] = spec.hi;
-    if (s.status == step_status::oscillating) e["got_fs"] = s.period;
-  }
-  e["pass"] = x.pass;
-  if (!x.pass && !x.detail.empty()) e["detail"] = x.detail;
-  return e;
-}
-
-std::string result_json(const design& d, const run_result& r, const std::string& corner_name,
-                        double wall, bool stopped) {
-  const netlist& n = d.nets;
-  nlohmann::ordered_json j = report_head(d.path);
-  j["corner"] = r.corner.empty() ? corner_name : r.corner;
-  j["events"] = r.events;
-  j["wall_s"] = wall;
-  j["steps"] = nlohmann::ordered_json::array();
-  for (const auto& s : r.steps) {
-    nlohmann::ordered_json st;
-    st["index"] = s.index;
-    st["label"] = s.label;
-    st["start_fs"] = s.start;
-    st["end_fs"] = s.end;
-    st["status"] = status_name(s.status);
-    // A settle time only where the step went quiet (or, for a `run` window, its
-    // last change); an oscillation has its detection time, a timeout how far it got.
-    if (s.status == step_status::settled || s.status == step_status::running ||
-        s.status == step_status::deadlock)
-      st["settle_fs"] = s.settle;
-    else
-      st["last_change_fs"] = s.settle;
-    st["events"] = s.events;
-    if (s.end_of_time) st["detail"] = end_of_time_words;
-    if (s.status == step_status::timeout && !s.end_of_time) {
-      st["reached_fs"] = s.end - s.start;
-      st["detail"] = timeout_words(s.end - s.start, s.events, s.values_repeat_at, s.values_period);
-    }
-    if (s.values_period)
-      st["values_repeat"] = {{"at_fs", s.values_repeat_at}, {"period_fs", s.values_period}};
-    if (s.status == step_status::oscillating) {
-      st["period_fs"] = s.period;
-      st["detected_fs"] = s.end;  // the instant the repeated full state was recognised
-      st["toggling"] = nlohmann::ordered_json::array();
-      for (net_id t : s.toggling) st["toggling"].push_back(n.net_name[t]);
-    }
-    if (s.status == step_status::deadlock) {
-      st["owed"] = nlohmann::ordered_json::array();
-      for (const auto& o : s.owed)
-        st["owed"].push_back({{"rule", d.stim.rules[o.rule].text},
-                              {"fired", o.fired},
-                              {"times", o.times},
-                              {"condition", logic_text(o.condition)}});
-    }
-    st["unknown"] = net_names_json(n, s.unknown);
-    st["values"] = nlohmann::ordered_json::object();
-    st["transitions"] = nlohmann::ordered_json::object();
-    st["glitches"] = nlohmann::ordered_json::object();
-    for (std::size_t i = 0; i < r.reported.size(); ++i) {
-      const auto& name = n.net_name[r.reported[i]];
-      st["values"][name] = logic_text(s.values[i]);
-      st["transitions"][name] = s.transitions[i];
-      st["glitches"][name] = glitches(d, r, s, i);
-    }
-    st["expect"] = nlohmann::ordered_json::array();
-    for (const auto& x : s.expects) st["expect"].push_back(expect_json(n, s, x));
-    j["steps"].push_back(std::move(st));
-  }
-  if (!d.stim.properties.empty()) {
-    j["properties"] = nlohmann::ordered_json::array();
-    for (const auto& p : r.properties) {
-      nlohmann::ordered_json e;
-      e["text"] = d.stim.properties[p.property].text;
-      e["holds"] = p.holds;
-      if (!p.holds) {
-        e["first_violation_fs"] = p.first_violation;
-        e["step"] = p.step;
-        e["values"] = nlohmann::ordered_json::object();
-        for (const auto& [net, v] : p.values) e["values"][n.net_name[net]] = logic_text(v);
-      }
-      j["properties"].push_back(std::move(e));
-    }
-  }
-  if (!d.stim.gauges.empty()) {
-    j["gauges"] = nlohmann::ordered_json::array();
-    for (const auto& g : r.gauges) {
-      const auto& spec = d.stim.gauges[g.gauge];
-      nlohmann::ordered_json e;
-      e["name"] = spec.name;
-      e["kind"] = gauge_kind_name(spec.what);
-      e["nets"] = nlohmann::ordered_json::array();
-      for (net_id x : spec.nets) e["nets"].push_back(n.net_name[x]);
-      e["count"] = g.count;
-      e["min_fs"] = g.min;
-      e["mean_fs"] = g.mean;
-      e["max_fs"] = g.max;
-      j["gauges"].push_back(std::move(e));
-    }
-  }
-  j["result"] = r.pass() && !stopped ? "pass" : "findings";
-  j["interrupted"] = stopped;  // the steps above are those reached before the signal
-  if (stopped) j["stop_reason"] = "signal";
-  return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
-}
 
 std::string expect_text(const netlist& n, const step_result& s, const expect_result& x) {
   const auto& e = *x.spec;
@@ -214,7 +94,7 @@ std::string table(const design& d, const run_result& r, const std::string& corne
       for (std::size_t i = 0; i < r.reported.size(); ++i)
         out += fmt::format("  {:<{}}  {:<5}  {:<3}  {:<11}  {}\n", n.net_name[r.reported[i]], width,
                            to_char(s.start_values[i]), to_char(s.values[i]), s.transitions[i],
-                           glitches(d, r, s, i));
+                           glitches(d.nets, r, s, i));
     }
     for (const auto& x : s.expects) {
       std::string line = expect_text(n, s, x);
@@ -329,8 +209,9 @@ exit_status run_run(const run_cli_options& o) {
     spdlog::error("cannot write '{}': {}", o.vcd, err);
     return exit_status::error;
   }
-  const auto json = [&] { return result_json(*d, r, c->name(), wall, stopped); };
-  if (!o.json.empty() && !outs.put(o.json, json())) return exit_status::error;
+  const report_json result =
+      o.json.empty() && o.html.empty() ? report_json() : run_json(*d, r, c->name(), wall, stopped);
+  if (!o.json.empty() && !outs.put(o.json, json_text(result))) return exit_status::error;
   if (!o.junit.empty()) {
     const auto replay = [&](const std::string& corner) {
       return replay_command(o.design, corner, o.horizon, o.max_events, o.allow_x);
@@ -338,7 +219,7 @@ exit_status run_run(const run_cli_options& o) {
     if (!outs.put(o.junit, junit_xml({junit_of_run(*d, r, c->name(), replay, wall)})))
       return exit_status::error;
   }
-  if (!o.html.empty() && !outs.put(o.html, html_report_run(*d, *c, ro, {"run", json(), ""})))
+  if (!o.html.empty() && !outs.put(o.html, html_report_run(*d, *c, ro, {"run", result, ""})))
     return exit_status::error;
   if (!outs.commit()) return exit_status::error;
   if (stopped)  // on stderr even with -q: the report is partial

@@ -11,7 +11,6 @@
 #include <cmath>
 #include <filesystem>
 #include <memory>
-#include <nlohmann/json.hpp>
 
 #include "sim/analysis/culprit.hpp"
 #include "sim/analysis/sweep.hpp"
@@ -22,6 +21,7 @@
 #include "sim/model/time.hpp"
 #include "sim/model/time_parse.hpp"
 #include "waves/html.hpp"
+#include "waves/json.hpp"
 #include "waves/junit.hpp"
 #include "waves/vcd.hpp"
 
@@ -58,163 +58,9 @@ std::string stop_words(const sweep_result& r) {
 /// The most witness VCDs written for one step.
 constexpr std::size_t vcd_per_step_limit = 32;
 
-// The JSON name of an outcome's times: settle times only where the corners
-// went quiet (settled, running: last change, deadlock); an oscillating
-// outcome's are detection times, a timeout's (or event limit's) last changes.
-const char* outcome_times_key(step_status s) {
-  if (s == step_status::oscillating) return "detected_fs";
-  if (s == step_status::timeout || s == step_status::event_limit) return "last_change_fs";
-  return "settle_fs";
-}
-
 // The command that replays one corner with `settle run`.
 std::string replay(const sweep_cli_options& o, const std::string& corner) {
   return replay_command(o.design, corner, o.horizon, o.max_events, o.allow_x);
-}
-
-nlohmann::ordered_json values_json(const netlist& n, const std::vector<net_id>& reported,
-                                   const std::vector<logic>& values) {
-  auto j = nlohmann::ordered_json::object();
-  for (std::size_t i = 0; i < reported.size() && i < values.size(); ++i)
-    j[n.net_name[reported[i]]] = logic_text(values[i]);
-  return j;
-}
-
-// The rules a deadlocked outcome still owes, as `run` reports them.
-nlohmann::ordered_json owed_json(const design& d, const std::vector<owed_rule>& owed) {
-  auto j = nlohmann::ordered_json::array();
-  for (const auto& w : owed)
-    j.push_back({{"rule", w.rule < d.stim.rules.size() ? d.stim.rules[w.rule].text : std::string()},
-                 {"fired", w.fired},
-                 {"times", w.times},
-                 {"condition", logic_text(w.condition)}});
-  return j;
-}
-
-// A gauge expectation's range as written: "700ps..900ps".
-// Top-level `properties` and `gauges` of a sweep (issue 15's contract).
-void closed_loop_json(const design& d, const sweep_result& r, nlohmann::ordered_json& j) {
-  j["properties"] = nlohmann::ordered_json::array();
-  for (const auto& p : r.properties) {
-    nlohmann::ordered_json e;
-    e["text"] = d.stim.properties[p.index].text;
-    e["violating"] = p.violating;
-    e["corners"] = r.corners;
-    if (p.violating) {
-      e["witness"] = p.witness_name;
-      e["first_violation_fs"] = p.first_violation;
-      e["step"] = p.step;
-    }
-    j["properties"].push_back(std::move(e));
-  }
-  j["gauges"] = nlohmann::ordered_json::array();
-  for (const auto& g : r.gauges) {
-    const auto& spec = d.stim.gauges[g.index];
-    nlohmann::ordered_json e;
-    e["name"] = spec.name;
-    e["kind"] = gauge_kind_name(spec.what);
-    e["nets"] = nlohmann::ordered_json::array();
-    for (net_id n : spec.nets) e["nets"].push_back(d.nets.net_name[n]);
-    e["corners"] = g.corners;
-    e["samples"] = g.samples;
-    if (g.corners) {
-      e["min_fs"] = g.min;
-      e["median_fs"] = g.median;
-      e["max_fs"] = g.max;
-      e["witness_min"] = g.witness_min_name;
-      e["witness_max"] = g.witness_max_name;
-      if (spec.what == gauge::kind::period && g.median > 0) e["throughput_per_s"] = 1e15 / g.median;
-    }
-    j["gauges"].push_back(std::move(e));
-  }
-}
-
-std::string result_json(const design& d, const sweep_cli_options& o, const sweep_result& r,
-                        const std::vector<culprit_report>& races = {}) {
-  const netlist& n = d.nets;
-  nlohmann::ordered_json j = report_head(d.path);
-  j["seed"] = o.seed;
-  j["corners"] = r.corners;
-  if (r.stopped != sweep_stop::none) {
-    // The steps below cover the finished corners only.
-    j["corners_planned"] = r.planned;
-    j["stop_reason"] = r.stopped == sweep_stop::timeout ? "timeout" : "signal";
-  }
-  j["interrupted"] = r.stopped != sweep_stop::none;
-  j["spec"] = o.corners;
-  j["threads"] = r.threads;
-  j["events"] = r.events;
-  j["wall_s"] = r.wall_s;
-  j["steps"] = nlohmann::ordered_json::array();
-  for (const auto& s : r.steps) {
-    nlohmann::ordered_json st;
-    st["index"] = s.index;
-    st["label"] = s.label;
-    st["verdict"] = verdict_name(s.verdict);
-    st["first_divergence"] = s.first_divergence;
-    if (s.inherits) st["inherits"] = s.inherits;
-    st["outcomes"] = nlohmann::ordered_json::array();
-    for (const auto& out : s.outcomes) {
-      nlohmann::ordered_json e;
-      e["status"] = status_name(out.status);
-      if (out.end_of_time) e["detail"] = end_of_time_words;
-      e["values"] = values_json(n, r.reported, out.values);
-      e["count"] = out.count;
-      e["share"] = out.share;
-      e["share_ci95"] = {out.share_ci95.lo, out.share_ci95.hi};
-      e["witness"] = out.witness_name;
-      e[outcome_times_key(out.status)] = {
-          {"min", out.settle.min}, {"median", out.settle.median}, {"max", out.settle.max}};
-      if (out.status == step_status::oscillating) e["period_fs"] = out.period;
-      if (out.status == step_status::timeout && !out.end_of_time && out.reached) {
-        e["reached_fs"] = out.reached;
-        e["witness_events"] = out.events;
-        if (out.values_period)
-          e["values_repeat"] = {{"at_fs", out.values_repeat_at}, {"period_fs", out.values_period}};
-        e["detail"] =
-            timeout_words(out.reached, out.events, out.values_repeat_at, out.values_period);
-      }
-      if (out.status == step_status::deadlock) e["owed"] = owed_json(d, out.owed);
-      e["unknown"] = net_names_json(n, out.unknown);
-      st["outcomes"].push_back(std::move(e));
-    }
-    if (s.unseen_outcome_bound) st["unseen_outcome_bound"] = *s.unseen_outcome_bound;
-    st["expect"] = nlohmann::ordered_json::array();
-    for (const auto& x : s.expects) {
-      const auto& spec = *x.spec;
-      nlohmann::ordered_json e = expectation_json(n, spec);
-      if (x.by_interval) {  // `interval` alone: no corner ran, the min-max run proves it or not
-        e["proven"] = x.proven;
-        e["pass"] = x.pass();
-        if (!x.pass() && !x.detail.empty()) e["detail"] = x.detail;
-      } else {
-        e["failing"] = x.failing;
-        e["pass"] = x.pass();
-        if (!x.pass()) {
-          e["witness"] = x.witness_name;
-          if (!x.detail.empty()) e["detail"] = x.detail;
-        }
-      }
-      st["expect"].push_back(std::move(e));
-    }
-    if (s.interval)
-      st["interval"] = {{"values", values_json(n, r.reported, s.interval->values)},
-                        {"proven", s.interval->proven}};
-    for (const auto& race : races)
-      if (race.step == s.index) {
-        auto cj = culprit_json(n, race);
-        st["culprits"] = cj["culprits"];
-        st["paths"] = cj["paths"];
-        st["race"] = {{"corners", cj["corners"]},
-                      {"differing_gates", cj["differing_gates"]},
-                      {"tests", cj["tests"]},
-                      {"minimal", cj["minimal"]}};
-      }
-    j["steps"].push_back(std::move(st));
-  }
-  closed_loop_json(d, r, j);
-  j["result"] = r.pass() ? "pass" : "findings";
-  return j.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
 }
 
 std::string percent(double share) { return fmt::format("{:.1f}%", 100.0 * share); }
@@ -553,13 +399,15 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   }
 
   output_set outs;  // all or nothing
-  if (!o.json.empty() && !outs.put(o.json, result_json(*d, o, r, races))) return exit_status::error;
+  const report_json result = o.json.empty() && o.html.empty()
+                                 ? report_json()
+                                 : sweep_json(*d, r, {o.corners, o.seed, &races});
+  if (!o.json.empty() && !outs.put(o.json, json_text(result))) return exit_status::error;
   if (!o.junit.empty() &&
       !outs.put(o.junit, junit_xml({junit_of_sweep(
                              *d, r, [&](const std::string& c) { return replay(o, c); })})))
     return exit_status::error;
-  if (!o.html.empty() &&
-      !outs.put(o.html, html_report_sweep(*d, r, ro, {"sweep", result_json(*d, o, r, races), ""})))
+  if (!o.html.empty() && !outs.put(o.html, html_report_sweep(*d, r, ro, {"sweep", result, ""})))
     return exit_status::error;
   if (!o.vcd_dir.empty() && r.stopped == sweep_stop::none &&
       !write_witness_vcds(*d, o, *plan, r, ro, outs)) {

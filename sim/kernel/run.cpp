@@ -73,4 +73,11 @@ run_result run_stimulus(const design& d, const delay_table& delays, const run_op
   return run_stimulus(ctx, d, delays, opt, trace);
 }
 
+std::uint32_t glitches(const netlist& n, const run_result& r, const step_result& s, std::size_t i) {
+  const net_id net = r.reported[i];
+  if (n.driver[net] == no_id && s.start_values[i] != logic::x && s.values[i] != logic::x) return 0;
+  const std::uint32_t needed = s.start_values[i] != s.values[i] ? 1 : 0;
+  return s.transitions[i] > needed ? s.transitions[i] - needed : 0;
+}
+
 }  // namespace settle

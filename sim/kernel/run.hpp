@@ -135,6 +135,12 @@ struct run_result {
 std::vector<net_id> unknown_at_end(const step_spec* spec, std::span<const net_id> reported,
                                    std::span<const logic> values);
 
+/// Transitions of reported net `i` in step `s` beyond the one change the step
+/// needed (0 or 1). An input's changes are the environment's own (stimulus and
+/// reaction rules), each as asked for: they are never glitches unless they
+/// pass through x.
+std::uint32_t glitches(const netlist& n, const run_result& r, const step_result& s, std::size_t i);
+
 class simulator;
 
 /// Per-run state that survives between runs of one netlist: a worker keeps
