@@ -300,6 +300,15 @@ report_json failure_json(const design& d, const margin_source& src, const margin
   return j;
 }
 
+/// A step's or a property's margin figures and its failure, alike.
+template <class Margin>
+void margin_fields(const design& d, const margin_source& src, const Margin& m, report_json& j) {
+  j["margin_pct"] = 100.0 * m.margin;
+  j["at_least"] = m.at_ceiling;
+  j["fails_at_zero"] = m.fails_at_zero;
+  if (m.failure) j["failure"] = failure_json(d, src, *m.failure);
+}
+
 // ---- explore
 
 report_json tri(answer a) {
@@ -511,20 +520,14 @@ report_json margin_json(const design& d, const margin_result& r, const margin_so
     report_json st;
     st["index"] = s.index;
     st["label"] = s.label;
-    st["margin_pct"] = 100.0 * s.margin;
-    st["at_least"] = s.at_ceiling;
-    st["fails_at_zero"] = s.fails_at_zero;
-    if (s.failure) st["failure"] = failure_json(d, src, *s.failure);
+    margin_fields(d, src, s, st);
     j["steps"].push_back(std::move(st));
   }
   j["properties"] = report_json::array();
   for (const auto& p : r.properties) {
     report_json e;
     e["text"] = d.stim.properties[p.index].text;
-    e["margin_pct"] = 100.0 * p.margin;
-    e["at_least"] = p.at_ceiling;
-    e["fails_at_zero"] = p.fails_at_zero;
-    if (p.failure) e["failure"] = failure_json(d, src, *p.failure);
+    margin_fields(d, src, p, e);
     j["properties"].push_back(std::move(e));
   }
   j["settle_within"] = report_json::array();
