@@ -44,10 +44,6 @@ junit_case make_case(std::string classname, std::string name) {
   return c;
 }
 
-std::string step_name(std::size_t index, const std::string& label) {
-  return fmt::format("step {}: {}", index, label.empty() ? "(no input change)" : label);
-}
-
 std::string suite_name(const design& d) { return d.path.empty() ? std::string("design") : d.path; }
 
 // The owed rules of a deadlocked step, one a line: "owed: when ack after 1ns : req = 0 (fired 0 of
@@ -165,7 +161,7 @@ junit_suite junit_of_run(const design& d, const run_result& r, const std::string
   s.properties = {{"command", "run"}, {"corner", corner}};
   const std::string cls = suite_name(d) + "." + corner;
   for (const auto& st : r.steps) {
-    auto c = make_case(cls, step_name(st.index, st.label));
+    auto c = make_case(cls, step_title(st.index, st.label));
     bool bad_status = st.status == step_status::timeout || st.status == step_status::event_limit ||
                       st.status == step_status::deadlock;
     if (st.status == step_status::oscillating) {
@@ -229,7 +225,7 @@ junit_suite junit_of_sweep(const design& d, const sweep_result& r, const replay_
   s.properties = {{"command", "sweep"}, {"corners", std::to_string(r.corners)}};
   const std::string cls = suite_name(d) + ".sweep";
   for (const auto& st : r.steps) {
-    auto c = make_case(cls, step_name(st.index, st.label));
+    auto c = make_case(cls, step_title(st.index, st.label));
     // The step's own case carries the verdict; expectations have their own cases.
     bool expected_oscillation = false;
     for (const auto& x : st.expects)
@@ -324,7 +320,7 @@ junit_suite junit_of_margin(
   const std::string cls = suite_name(d) + ".margin";
   for (std::size_t k = 0; k < r.steps.size(); ++k) {
     const auto& sm = r.steps[k];
-    auto c = make_case(cls, step_name(sm.index, sm.label));
+    auto c = make_case(cls, step_title(sm.index, sm.label));
     if (!sm.at_ceiling && sm.margin < 1.0 && sm.failure) {
       const auto& f = *sm.failure;
       std::string text =

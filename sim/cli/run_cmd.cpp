@@ -56,7 +56,7 @@ std::string table(const design& d, const run_result& r, const std::string& corne
   std::size_t width = 3;
   for (net_id id : r.reported) width = std::max(width, n.net_name[id].size());
   for (const auto& s : r.steps) {
-    out += fmt::format("\nstep {}: {}\n", s.index, s.label.empty() ? "(no input change)" : s.label);
+    out += "\n" + step_title(s.index, s.label) + "\n";
     const bool good_status = s.status == step_status::settled || s.status == step_status::running;
     // The status word is the verdict, marked; the words after it explain.
     const bool expected_osc = s.status == step_status::oscillating && s.pass();

@@ -172,7 +172,7 @@ std::string summary(const design& d, const sweep_cli_options& o, const sweep_res
     out += fmt::format("{}  {}: {} of {} corners finished; the verdicts below cover those only\n",
                        paint("STOPPED", false), stop_words(r), r.corners, r.planned);
   for (const auto& s : r.steps) {
-    out += fmt::format("\nstep {}: {}\n", s.index, s.label.empty() ? "(no input change)" : s.label);
+    out += "\n" + step_title(s.index, s.label) + "\n";
     // Findings stand out in capitals, with or without colour (mark).
     const std::string verdict = verdict_name(s.verdict);
     if (interval_only) {

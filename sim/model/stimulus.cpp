@@ -46,4 +46,8 @@ std::string expectation_words(const netlist& n, const expectation& e) {
   return "expect";
 }
 
+std::string step_title(std::size_t index, const std::string& label) {
+  return fmt::format("step {}: {}", index, label.empty() ? "(no input change)" : label);
+}
+
 }  // namespace settle

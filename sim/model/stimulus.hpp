@@ -136,6 +136,10 @@ struct stimulus {
   bool closed_loop() const { return !rules.empty() || !properties.empty() || !gauges.empty(); }
 };
 
+/// How every report titles a step: "step 2: a=1 b=0", or "step 1: (no input
+/// change)" when its label is empty.
+std::string step_title(std::size_t index, const std::string& label);
+
 /// An expectation in the words of the language: "expect q = 1", "settle within
 /// 2ns", "expect oscillating period 9ns..11ns", "expect no glitch on q", ...
 std::string expectation_words(const netlist& n, const expectation& e);
