@@ -178,8 +178,8 @@ void for_each_statement(std::string_view text, const std::function<void(std::str
 
 /// Parses and lowers one top-level gate statement located by parse_file, its
 /// reads and program into `pools`; false (after reporting) when malformed.
-/// It is lower_simple_gate, and parse_gate_by_grammar for the forms that
-/// declines: the two must agree wherever the first one succeeds.
+/// It tries lower_simple_gate first and parse_gate_by_grammar on the forms
+/// the fast path declines: the two must agree wherever the fast path succeeds.
 bool parse_top_gate(const file& f, piece p, gate& out, scope_def& pools, reporter& rep);
 
 /// Lowers a gate of the plain form `NAME = KIND(NET|0|1, ...)` (no delay, no
