@@ -450,6 +450,35 @@ bool looks_like_gate(std::string_view piece) {
   return i < n && piece[i] == '=';
 }
 
+/// Calls `each(piece)` for every statement of `text`, in order: each line up
+/// to its '#' comment, cut at ';' outside parentheses (a block header has ';'
+/// between its port groups), blanks trimmed, empty pieces skipped. A piece
+/// views the text.
+template <typename Each>
+void split_statements(std::string_view text, Each&& each) {
+  const char* p = text.data();
+  const char* const end = text.data() + text.size();
+  while (p < end) {
+    const char* eol = std::find(p, end, '\n');
+    const char* stop = std::find(p, eol, '#');
+    const char* b = p;
+    int depth = 0;
+    for (const char* q = p;; ++q) {
+      if (q < stop && *q == '(') ++depth;
+      if (q < stop && *q == ')') --depth;
+      if (q < stop && !(*q == ';' && depth <= 0)) continue;
+      const char* s = b;
+      const char* e = q;
+      b = q + 1;
+      while (s < e && blank(*s)) ++s;
+      while (e > s && blank(e[-1])) --e;
+      if (s < e) each(std::string_view(s, static_cast<std::size_t>(e - s)));
+      if (q >= stop) break;
+    }
+    p = eol + 1;
+  }
+}
+
 /// An upper bound of the nets a gate statement reads.
 std::size_t reads_bound(std::string_view piece) {
   std::size_t k = 1;
@@ -487,86 +516,65 @@ void parse_file(std::string_view text, file_mode mode, file& f, reporter& rep) {
   source_loc open_loc;
   std::string open_name;
 
-  const char* p = text.data();
-  const char* const end = text.data() + text.size();
   ast::statement st;
-  while (p < end) {
-    const char* eol = std::find(p, end, '\n');
-    const char* stop = std::find(p, eol, '#');
-    // Split at ';' outside parentheses (a block header has ';' between its port groups).
-    const char* b = p;
-    int depth = 0;
-    for (const char* q = p;; ++q) {
-      if (q < stop && *q == '(') ++depth;
-      if (q < stop && *q == ')') --depth;
-      if (q < stop && !(*q == ';' && depth <= 0)) continue;
-      const char* s = b;
-      const char* e = q;
-      b = q + 1;
-      while (s < e && blank(*s)) ++s;
-      while (e > s && blank(e[-1])) --e;
-      if (s < e) {
-        std::string_view piece(s, static_cast<std::size_t>(e - s));
-        const auto here = rep.loc_of(s);
-        if (piece == "}") {
-          if (at == where::top) {
-            rep.error(here, "'}' without an open block or stimulus");
-          } else {
-            if (at == where::stim) stim->close_loc = here;
-            at = where::top;
-            scope = &f.top;
-            stim = &f.stim;
-          }
-        } else if (piece.substr(0, 8) == "stimulus" &&
-                   (piece.size() == 8 || blank(piece[8]) || piece[8] == '{')) {
-          auto rest = piece.substr(8);
-          while (!rest.empty() && blank(rest.front())) rest.remove_prefix(1);
-          if (rest != "{") {
-            rep.error(rest.empty() ? rep.loc_of(s + 8) : rep.loc_of(rest.data()),
-                      "expected '{' after 'stimulus'");
-          } else if (at != where::top) {
-            rep.error(here, "a stimulus block belongs at top level");
-          } else {
-            if (f.stim.present) {
-              rep.error(here, "only one stimulus block is allowed");
-              stim = &spare;
-            }
-            stim->present = true;
-            stim->loc = here;
-            at = where::stim;
-            open_loc = here;
-          }
-        } else if (mode == file_mode::stimulus_only && at == where::top) {
-          rep.error(here, "a stimulus file holds one stimulus { } block and nothing else");
-        } else if (at == where::top && looks_like_gate(piece)) {
-          f.top_gates.push_back(
-              {static_cast<std::uint32_t>(s - text.data()), static_cast<std::uint32_t>(e - s)});
-          f.top_reads += reads_bound(piece);
-        } else if (depth_ok(piece, rep)) {
-          grammar::syntax_error err;
-          st = ast::statement{};
-          if (grammar::parse_statement(piece, st, err)) {
-            visitor v{f, rep, mode, at, scope, stim, dead, s, piece};
-            boost::apply_visitor(v, st);
-            if (boost::get<ast::block_head>(&st))
-              open_loc = here, open_name = std::string(scope->id.name);
-          } else {
-            rep.error(rep.loc_of(err.pos), err.message);
-            // A broken block header still opens a block, so its '}' is not reported again.
-            if (piece.back() == '{' && at == where::top) {
-              dead.emplace_back();
-              scope = &dead.back();
-              at = where::block;
-              open_loc = here;
-              open_name.clear();
-            }
-          }
+  split_statements(text, [&](std::string_view piece) {
+    const char* const s = piece.data();
+    const auto here = rep.loc_of(s);
+    if (piece == "}") {
+      if (at == where::top) {
+        rep.error(here, "'}' without an open block or stimulus");
+      } else {
+        if (at == where::stim) stim->close_loc = here;
+        at = where::top;
+        scope = &f.top;
+        stim = &f.stim;
+      }
+    } else if (piece.substr(0, 8) == "stimulus" &&
+               (piece.size() == 8 || blank(piece[8]) || piece[8] == '{')) {
+      auto rest = piece.substr(8);
+      while (!rest.empty() && blank(rest.front())) rest.remove_prefix(1);
+      if (rest != "{") {
+        rep.error(rest.empty() ? rep.loc_of(s + 8) : rep.loc_of(rest.data()),
+                  "expected '{' after 'stimulus'");
+      } else if (at != where::top) {
+        rep.error(here, "a stimulus block belongs at top level");
+      } else {
+        if (f.stim.present) {
+          rep.error(here, "only one stimulus block is allowed");
+          stim = &spare;
+        }
+        stim->present = true;
+        stim->loc = here;
+        at = where::stim;
+        open_loc = here;
+      }
+    } else if (mode == file_mode::stimulus_only && at == where::top) {
+      rep.error(here, "a stimulus file holds one stimulus { } block and nothing else");
+    } else if (at == where::top && looks_like_gate(piece)) {
+      f.top_gates.push_back(
+          {static_cast<std::uint32_t>(s - text.data()), static_cast<std::uint32_t>(piece.size())});
+      f.top_reads += reads_bound(piece);
+    } else if (depth_ok(piece, rep)) {
+      grammar::syntax_error err;
+      st = ast::statement{};
+      if (grammar::parse_statement(piece, st, err)) {
+        visitor v{f, rep, mode, at, scope, stim, dead, s, piece};
+        boost::apply_visitor(v, st);
+        if (boost::get<ast::block_head>(&st))
+          open_loc = here, open_name = std::string(scope->id.name);
+      } else {
+        rep.error(rep.loc_of(err.pos), err.message);
+        // A broken block header still opens a block, so its '}' is not reported again.
+        if (piece.back() == '{' && at == where::top) {
+          dead.emplace_back();
+          scope = &dead.back();
+          at = where::block;
+          open_loc = here;
+          open_name.clear();
         }
       }
-      if (q >= stop) break;
     }
-    p = eol + 1;
-  }
+  });
   if (at == where::block)
     rep.error(open_loc, open_name.empty()
                             ? std::string("block is not closed with '}'")
@@ -578,9 +586,17 @@ void parse_file(std::string_view text, file_mode mode, file& f, reporter& rep) {
 
 namespace settle::ir {
 
+void for_each_statement(std::string_view text, const std::function<void(std::string_view)>& each) {
+  split_statements(text, each);
+}
+
 bool parse_top_gate(const file& f, piece p, gate& out, scope_def& pools, reporter& rep) {
   const std::string_view text = f.text.substr(p.begin, p.size);
-  if (lower_simple_gate(text, rep.loc_of(text.data()), out, pools)) return true;
+  return lower_simple_gate(text, rep.loc_of(text.data()), out, pools) ||
+         parse_gate_by_grammar(text, out, pools, rep);
+}
+
+bool parse_gate_by_grammar(std::string_view text, gate& out, scope_def& pools, reporter& rep) {
   if (!depth_ok(text, rep)) return false;
   ast::statement st;
   grammar::syntax_error err;

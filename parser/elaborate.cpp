@@ -28,6 +28,16 @@ struct frame {
   bool dry = false;                                        // check an unused block only
 };
 
+/// The names of one placed scope. At top level the netlist's own name table
+/// doubles as the scope's (the full name is the local name), which saves two
+/// big hash tables.
+struct scope_names {
+  bool top = false;
+  std::unordered_map<std::string_view, net_id> local;
+  std::unordered_map<std::string_view, source_loc> taken;
+  std::unordered_set<std::string_view> in_ports;  // a block's input ports
+};
+
 class elaborator {
  public:
   elaborator(file& f, reporter& rep) : f_(f), rep_(rep) {}
@@ -165,144 +175,166 @@ class elaborator {
   /// Elaborates one scope: its names, gates, inits, and pushes its instances.
   void place(netlist& nl, const frame& fr, std::vector<frame>& work) {
     const scope_def& d = *fr.def;
-    const bool top = fr.def == &f_.top;
-    std::unordered_map<std::string_view, net_id> local;
-    std::unordered_map<std::string_view, source_loc> taken;
-    std::unordered_set<std::string_view> in_ports;
-    // At top level the netlist's own name table doubles as the scope's (the
-    // full name is the local name), which saves two big hash tables.
-    auto claim = [&](const ref& r) {
-      if (top) {
-        const net_id n = nl.find(r.name);
-        if (n != no_id) {
-          rep_.error(r.loc, fmt::format("name '{}' is already declared at {}", r.name,
-                                        at_text(decl_loc_[n])));
-          return false;
-        }
-      }
-      auto [it, fresh] = taken.emplace(r.name, r.loc);
-      if (!fresh)
-        rep_.error(r.loc,
-                   fmt::format("name '{}' is already declared at {}", r.name, at_text(it->second)));
-      return fresh;
+    scope_names names;
+    names.top = fr.def == &f_.top;
+    declare_names(nl, fr, names);
+    auto place_one = [&](const gate& g, const scope_def& pools) {
+      place_gate(nl, d, names, g, pools);
     };
-    enum role { as_input, as_output, as_wire };
-    auto declare = [&](const ref& r, role ro) {
-      const bool input = ro == as_input;
-      if (top ? !claim_net_top(nl, r) : !claim(r)) return;
-      net_id id = new_net(nl, cat(fr.prefix, r.name), fr.scope, r.loc, input);
-      if (!top) local.emplace(r.name, id);
-      nl.aliases.push_back({fr.scope, std::string(r.name), id});
-      if (ro == as_input) nl.inputs.push_back(id);
-      if (ro == as_output) nl.outputs.push_back(id);
-    };
-    if (top) {
-      for (auto& r : d.ins) declare(r, as_input);
-      for (auto& r : d.outs) declare(r, as_output);
-    } else {
-      auto bound = [&](std::string_view port) -> net_id {
-        for (auto& [p, n] : fr.bound)
-          if (p == port) return n;
-        return no_id;
-      };
-      for (int dir = 0; dir < 2; ++dir)
-        for (auto& r : dir == 0 ? d.ins : d.outs) {
-          if (dir == 0) in_ports.insert(r.name);
-          net_id n = bound(r.name);
-          if (n == no_id) {
-            if (claim(r)) {
-              n = new_net(nl, cat(fr.prefix, r.name), fr.scope, r.loc, dir == 0 && fr.dry);
-              local.emplace(r.name, n);
-              nl.aliases.push_back({fr.scope, std::string(r.name), n});
-            }
-            continue;
-          }
-          if (!claim(r)) continue;
-          local.emplace(r.name, n);
-          nl.aliases.push_back({fr.scope, std::string(r.name), n});
-          nl.add_name(cat(fr.prefix, r.name), n);
-        }
-    }
-    for (auto& r : d.wires) declare(r, as_wire);
-    for (auto& i : d.insts) claim(i.id);
-    if (top) {
-      // The declarations are in the netlist now; their list can go.
-      f_.top.wires = {};
-    }
-
-    auto lookup = [&](const ref& r) -> net_id {
-      if (r.name == "0") return netlist::const0;
-      if (r.name == "1") return netlist::const1;
-      if (top) {
-        const net_id n = nl.find(r.name);
-        if (n != no_id) return n;
-      } else {
-        auto it = local.find(r.name);
-        if (it != local.end()) return it->second;
+    for (auto& g : d.gates) place_one(g, d);
+    if (names.top && !stream_top_gates(place_one)) return;
+    // Top-level inits may name nets inside instances: applied after elaboration.
+    if (!names.top)
+      for (auto& in : d.inits) {
+        net_id n = lookup(nl, names, in.net);
+        if (n != no_id) nl.init[n] = in.value;
       }
-      rep_.error(r.loc, fmt::format("unknown net '{}'", r.name));
-      return no_id;
-    };
-
-    std::vector<net_id> fanin;
-    std::vector<std::uint32_t> program;
-    auto place_gate = [&](const gate& g, const scope_def& pools) {
-      net_id out = lookup(g.out);
-      bool ok = out != no_id;
-      if (ok && out <= netlist::const1) {
-        rep_.error(g.out.loc, "a gate cannot drive a constant");
-        ok = false;
-      }
-      if (ok && in_ports.count(g.out.name)) {
-        rep_.error(g.out.loc,
-                   fmt::format("port '{}' is an input of block '{}'; a gate cannot drive it",
-                               g.out.name, d.id.name));
-        ok = false;
-      } else if (ok && is_input_[out]) {
-        rep_.error(g.out.loc,
-                   fmt::format("net '{}' is an input; a gate cannot drive it", nl.net_name[out]));
-        ok = false;
-      } else if (ok && nl.driver[out] != no_id) {
-        rep_.error(g.out.loc, fmt::format("net '{}' has two drivers (the other at {})",
-                                          nl.net_name[out], at_text(nl.gate_loc[nl.driver[out]])));
-        ok = false;
-      }
-      // A gate with an unknown input is still placed (reading constant 0) so
-      // that its output does not also show up as undriven; the design is
-      // rejected anyway.
-      fanin.clear();
-      for (auto i = g.reads_begin; i < g.reads_end; ++i) {
-        net_id n = lookup(pools.read_pool[i]);
-        fanin.push_back(n == no_id ? netlist::const0 : n);
-      }
-      gate_delay delay = g.delay;
-      if (!g.has_delay) {
-        const auto& dflt = d.default_delay ? d.default_delay : f_.top.default_delay;
-        if (!dflt) {
-          rep_.error(
-              g.out.loc,
-              fmt::format("gate '{}' has no delay and no default delay is in scope", g.out.name));
-        } else {
-          delay = *dflt;
-          delay.transport = g.delay.transport || dflt->transport;
-        }
-      }
-      program.assign(pools.code_pool.begin() + g.code_begin, pools.code_pool.begin() + g.code_end);
-      if (ok) nl.add_gate(g.kind, out, fanin, program, delay, g.out.loc);
-    };
-    for (auto& g : d.gates) place_gate(g, d);
-    if (top && !stream_top_gates(place_gate)) return;
-    for (auto& in : d.inits) {
-      if (top)
-        continue;  // top-level inits may name nets inside instances: applied after elaboration
-      net_id n = lookup(in.net);
-      if (n != no_id) nl.init[n] = in.value;
-    }
-    for (auto& in : d.insts) place_instance(nl, fr, in, lookup, work);
+    for (auto& in : d.insts) place_instance(nl, fr, names, in, work);
   }
 
-  template <typename Lookup>
-  void place_instance(netlist& nl, const frame& fr, const inst& in, Lookup& lookup,
+  /// A name declared in the scope: false (after reporting) when it is taken.
+  bool claim(const netlist& nl, scope_names& names, const ref& r) {
+    if (names.top && !claim_net_top(nl, r)) return false;
+    auto [it, fresh] = names.taken.emplace(r.name, r.loc);
+    if (!fresh)
+      rep_.error(r.loc,
+                 fmt::format("name '{}' is already declared at {}", r.name, at_text(it->second)));
+    return fresh;
+  }
+
+  /// The net a name in the scope refers to (0 and 1 are the constants), or
+  /// no_id after reporting.
+  net_id lookup(const netlist& nl, const scope_names& names, const ref& r) {
+    if (r.name == "0") return netlist::const0;
+    if (r.name == "1") return netlist::const1;
+    if (names.top) {
+      const net_id n = nl.find(r.name);
+      if (n != no_id) return n;
+    } else {
+      auto it = names.local.find(r.name);
+      if (it != names.local.end()) return it->second;
+    }
+    rep_.error(r.loc, fmt::format("unknown net '{}'", r.name));
+    return no_id;
+  }
+
+  /// The scope's own names: the top level's inputs and outputs or a block's
+  /// ports, then wires and instance names.
+  void declare_names(netlist& nl, const frame& fr, scope_names& names) {
+    const scope_def& d = *fr.def;
+    if (names.top) {
+      for (auto& r : d.ins) declare(nl, fr, names, r, as_input);
+      for (auto& r : d.outs) declare(nl, fr, names, r, as_output);
+    } else {
+      declare_ports(nl, fr, names);
+    }
+    for (auto& r : d.wires) declare(nl, fr, names, r, as_wire);
+    for (auto& i : d.insts) claim(nl, names, i.id);
+    // The declarations are in the netlist now; their list can go.
+    if (names.top) f_.top.wires = {};
+  }
+
+  enum role { as_input, as_output, as_wire };
+  /// A net of the scope's own.
+  void declare(netlist& nl, const frame& fr, scope_names& names, const ref& r, role ro) {
+    const bool input = ro == as_input;
+    if (names.top ? !claim_net_top(nl, r) : !claim(nl, names, r)) return;
+    net_id id = new_net(nl, cat(fr.prefix, r.name), fr.scope, r.loc, input);
+    if (!names.top) names.local.emplace(r.name, id);
+    nl.aliases.push_back({fr.scope, std::string(r.name), id});
+    if (ro == as_input) nl.inputs.push_back(id);
+    if (ro == as_output) nl.outputs.push_back(id);
+  }
+
+  /// A block's ports: a bound port names its parent's net; an unbound one
+  /// gets a net of its own (an input only when an unused block is checked).
+  void declare_ports(netlist& nl, const frame& fr, scope_names& names) {
+    const scope_def& d = *fr.def;
+    auto bound = [&](std::string_view port) -> net_id {
+      for (auto& [p, n] : fr.bound)
+        if (p == port) return n;
+      return no_id;
+    };
+    for (int dir = 0; dir < 2; ++dir)
+      for (auto& r : dir == 0 ? d.ins : d.outs) {
+        if (dir == 0) names.in_ports.insert(r.name);
+        net_id n = bound(r.name);
+        if (n == no_id) {
+          if (claim(nl, names, r)) {
+            n = new_net(nl, cat(fr.prefix, r.name), fr.scope, r.loc, dir == 0 && fr.dry);
+            names.local.emplace(r.name, n);
+            nl.aliases.push_back({fr.scope, std::string(r.name), n});
+          }
+          continue;
+        }
+        if (!claim(nl, names, r)) continue;
+        names.local.emplace(r.name, n);
+        nl.aliases.push_back({fr.scope, std::string(r.name), n});
+        nl.add_name(cat(fr.prefix, r.name), n);
+      }
+  }
+
+  /// Places gate `g` of scope `d`, its reads and program in `pools`.
+  void place_gate(netlist& nl, const scope_def& d, const scope_names& names, const gate& g,
+                  const scope_def& pools) {
+    net_id out = lookup(nl, names, g.out);
+    const bool ok = out != no_id && can_drive(nl, d, names, g.out, out);
+    // A gate with an unknown input is still placed (reading constant 0) so
+    // that its output does not also show up as undriven; the design is
+    // rejected anyway.
+    fanin_.clear();
+    for (auto i = g.reads_begin; i < g.reads_end; ++i) {
+      net_id n = lookup(nl, names, pools.read_pool[i]);
+      fanin_.push_back(n == no_id ? netlist::const0 : n);
+    }
+    const gate_delay delay = delay_of(g, d);
+    program_.assign(pools.code_pool.begin() + g.code_begin, pools.code_pool.begin() + g.code_end);
+    if (ok) nl.add_gate(g.kind, out, fanin_, program_, delay, g.out.loc);
+  }
+
+  /// False (after reporting) when a gate may not drive `out`, the net `r`
+  /// names: a constant, an input, or a net another gate drives.
+  bool can_drive(const netlist& nl, const scope_def& d, const scope_names& names, const ref& r,
+                 net_id out) {
+    if (out <= netlist::const1) {
+      rep_.error(r.loc, "a gate cannot drive a constant");
+      return false;
+    }
+    if (names.in_ports.count(r.name)) {
+      rep_.error(r.loc, fmt::format("port '{}' is an input of block '{}'; a gate cannot drive it",
+                                    r.name, d.id.name));
+      return false;
+    }
+    if (is_input_[out]) {
+      rep_.error(r.loc,
+                 fmt::format("net '{}' is an input; a gate cannot drive it", nl.net_name[out]));
+      return false;
+    }
+    if (nl.driver[out] != no_id) {
+      rep_.error(r.loc, fmt::format("net '{}' has two drivers (the other at {})", nl.net_name[out],
+                                    at_text(nl.gate_loc[nl.driver[out]])));
+      return false;
+    }
+    return true;
+  }
+
+  /// A gate's delay: its own, or else the default of its scope (of the top
+  /// level when the block sets none), reported when there is neither.
+  gate_delay delay_of(const gate& g, const scope_def& d) {
+    gate_delay delay = g.delay;
+    if (g.has_delay) return delay;
+    const auto& dflt = d.default_delay ? d.default_delay : f_.top.default_delay;
+    if (!dflt) {
+      rep_.error(g.out.loc, fmt::format("gate '{}' has no delay and no default delay is in scope",
+                                        g.out.name));
+      return delay;
+    }
+    delay = *dflt;
+    delay.transport = g.delay.transport || dflt->transport;
+    return delay;
+  }
+
+  void place_instance(netlist& nl, const frame& fr, const scope_names& names, const inst& in,
                       std::vector<frame>& work) {
     if (recursive_.count(&in)) return;
     auto it = block_.find(in.block.name);
@@ -337,7 +369,7 @@ class elaborator {
         ok = false;
         continue;
       }
-      net_id n = lookup(bind.target);
+      net_id n = lookup(nl, names, bind.target);
       if (n == no_id) {
         ok = false;
         continue;
@@ -431,6 +463,8 @@ class elaborator {
   std::unordered_set<const inst*> recursive_;
   std::vector<bool> is_input_;
   std::vector<source_loc> decl_loc_;
+  std::vector<net_id> fanin_;  // the gate being placed
+  std::vector<std::uint32_t> program_;
 };
 
 }  // namespace

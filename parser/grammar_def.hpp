@@ -10,6 +10,7 @@
 #include "parser/grammar.hpp"
 #include "parser/keyword_x3.hpp"
 #include "parser/lexical.hpp"
+#include "parser/rule_x3.hpp"
 
 namespace settle::grammar {
 namespace x3 = boost::spirit::x3;
@@ -82,91 +83,68 @@ auto const word_end = !x3::char_(lexical::ident_char_set);
 using raw_range = boost::iterator_range<const char*>;
 
 // Names, constants and time literals: the raw spans of the source ...
-x3::rule<class ident_raw, raw_range> const ident_raw = "name_";
-x3::rule<class ref_raw, raw_range> const ref_raw = "ref_";
-x3::rule<class const_raw, raw_range> const const_raw = "target_";
-x3::rule<class quoted_raw, raw_range> const quoted_raw = "ref_";
-x3::rule<class number_raw, raw_range> const number_raw = "time_";
+SIM_X3_RULES((ident_raw, raw_range, "name_"), (ref_raw, raw_range, "ref_"),
+             (const_raw, raw_range, "target_"), (quoted_raw, raw_range, "ref_"),
+             (number_raw, raw_range, "time_"))
 
 // ... and their values.
-x3::rule<class name_, ast::name> const name_ = "name_";
-x3::rule<class ref_, ast::name> const ref_ = "ref_";
-x3::rule<class const_name, ast::name> const const_name = "target_";
-x3::rule<class target_, ast::name> const target_ = "target_";
-x3::rule<class time_unit, int> const time_unit = "time_unit";
-x3::rule<class time_, ast::time_lit> const time_ = "time_";
+SIM_X3_RULES((name_, ast::name, "name_"), (ref_, ast::name, "ref_"),
+             (const_name, ast::name, "target_"), (target_, ast::name, "target_"),
+             (time_unit, int, "time_unit"), (time_, ast::time_lit, "time_"))
 
 // Delays.
-x3::rule<class range_, ast::range> const range_ = "range_";
-x3::rule<class rise_fall, std::vector<ast::range>> const rise_fall = "rise_fall";
-x3::rule<class delay_body, std::vector<ast::range>> const delay_body = "delay_body";
+SIM_X3_RULES((range_, ast::range, "range_"), (rise_fall, std::vector<ast::range>, "rise_fall"),
+             (delay_body, std::vector<ast::range>, "delay_body"))
 
 // Gate expressions and gate statements.
-x3::rule<class or_expr, ast::or_expr> const or_expr = "or_expr";
-x3::rule<class xor_expr, ast::xor_expr> const xor_expr = "xor_expr";
-x3::rule<class and_expr, ast::and_expr> const and_expr = "and_expr";
-x3::rule<class unary, ast::unary> const unary = "unary";
-x3::rule<class primary, ast::primary> const primary = "primary";
-x3::rule<class arg, ast::arg> const arg = "arg";
-x3::rule<class call, ast::call> const call = "call";
-x3::rule<class rhs, ast::rhs> const rhs = "rhs";
-x3::rule<class gate, ast::gate_stmt> const gate = "gate";
+SIM_X3_RULES((or_expr, ast::or_expr, "or_expr"), (xor_expr, ast::xor_expr, "xor_expr"),
+             (and_expr, ast::and_expr, "and_expr"), (unary, ast::unary, "unary"),
+             (primary, ast::primary, "primary"), (arg, ast::arg, "arg"), (call, ast::call, "call"),
+             (rhs, ast::rhs, "rhs"), (gate, ast::gate_stmt, "gate"))
 
 // Declarations, blocks and instances.
-x3::rule<class decl, ast::decl> const decl = "decl";
-x3::rule<class default_, ast::default_stmt> const default_ = "default_";
-x3::rule<class port_group, ast::port_group> const port_group = "port_group";
-x3::rule<class block_head, ast::block_head> const block_head = "block_head";
-x3::rule<class binding, ast::binding> const binding = "binding";
-x3::rule<class inst, ast::inst_stmt> const inst = "inst";
+SIM_X3_RULES((decl, ast::decl, "decl"), (default_, ast::default_stmt, "default_"),
+             (port_group, ast::port_group, "port_group"),
+             (block_head, ast::block_head, "block_head"), (binding, ast::binding, "binding"),
+             (inst, ast::inst_stmt, "inst"))
 
 // Stimulus: input changes, clocks and steps.
-x3::rule<class value_, char> const value_ = "value_";
-x3::rule<class assign, ast::assign> const assign = "assign";
-x3::rule<class assigns, std::vector<ast::assign>> const assigns = "assigns";
-x3::rule<class init, ast::init_stmt> const init = "init";
-x3::rule<class timed, ast::timed_stmt> const timed = "timed";
-x3::rule<class clock, ast::clock_stmt> const clock = "clock";
-x3::rule<class cycles_count, unsigned long long> const cycles_count = "cycles_count";
-x3::rule<class settle_, ast::settle_stmt> const settle_ = "settle_";
-x3::rule<class run, ast::run_stmt> const run = "run";
+SIM_X3_RULES((value_, char, "value_"), (assign, ast::assign, "assign"),
+             (assigns, std::vector<ast::assign>, "assigns"), (init, ast::init_stmt, "init"),
+             (timed, ast::timed_stmt, "timed"), (clock, ast::clock_stmt, "clock"),
+             (cycles_count, unsigned long long, "cycles_count"),
+             (settle_, ast::settle_stmt, "settle_"), (run, ast::run_stmt, "run"))
 
 // Expectations.
-x3::rule<class expect_within, ast::expect_within> const expect_within = "expect_within";
-x3::rule<class expect_glitch, ast::expect_glitch> const expect_glitch = "expect_glitch";
-x3::rule<class expect_word, ast::expect_word> const expect_word = "expect_word";
-x3::rule<class expect_body, ast::expect_body> const expect_body = "expect_body";
-x3::rule<class expect, ast::expect_stmt> const expect = "expect";
+SIM_X3_RULES((expect_within, ast::expect_within, "expect_within"),
+             (expect_glitch, ast::expect_glitch, "expect_glitch"),
+             (expect_word, ast::expect_word, "expect_word"),
+             (expect_body, ast::expect_body, "expect_body"), (expect, ast::expect_stmt, "expect"))
 
 // Conditions of reaction rules and properties.
-x3::rule<class cond_or, ast::cond_or> const cond_or = "cond_or";
-x3::rule<class cond_xor, ast::cond_xor> const cond_xor = "cond_xor";
-x3::rule<class cond_and, ast::cond_and> const cond_and = "cond_and";
-x3::rule<class cond_unary, ast::cond_unary> const cond_unary = "cond_unary";
-x3::rule<class cond_primary, ast::cond_primary> const cond_primary = "cond_primary";
-x3::rule<class cond_atom, ast::cond_atom> const cond_atom = "cond_atom";
+SIM_X3_RULES((cond_or, ast::cond_or, "cond_or"), (cond_xor, ast::cond_xor, "cond_xor"),
+             (cond_and, ast::cond_and, "cond_and"), (cond_unary, ast::cond_unary, "cond_unary"),
+             (cond_primary, ast::cond_primary, "cond_primary"),
+             (cond_atom, ast::cond_atom, "cond_atom"))
 
 // Reaction rules and properties.
-x3::rule<class count_, ast::name> const count_ = "count_";
-x3::rule<class count_raw, raw_range> const count_raw = "count_";
-x3::rule<class when_, ast::when_stmt> const when_ = "when_";
-x3::rule<class edge_part, ast::edge_part> const edge_part = "edge_part";
-x3::rule<class property, ast::property_stmt> const property = "property";
+SIM_X3_RULES((count_, ast::name, "count_"), (count_raw, raw_range, "count_"),
+             (when_, ast::when_stmt, "when_"), (edge_part, ast::edge_part, "edge_part"),
+             (property, ast::property_stmt, "property"))
 
 // Gauges and their expectations.
-x3::rule<class gauge_period, ast::gauge_period> const gauge_period = "gauge_period";
-x3::rule<class gauge_pulse, ast::gauge_pulse> const gauge_pulse = "gauge_pulse";
-x3::rule<class gauge_latency, ast::gauge_latency> const gauge_latency = "gauge_latency";
-x3::rule<class gauge_body, ast::gauge_body> const gauge_body = "gauge_body";
-x3::rule<class gauge, ast::gauge_stmt> const gauge = "gauge";
-x3::rule<class expect_gauge, ast::expect_gauge> const expect_gauge = "expect_gauge";
+SIM_X3_RULES((gauge_period, ast::gauge_period, "gauge_period"),
+             (gauge_pulse, ast::gauge_pulse, "gauge_pulse"),
+             (gauge_latency, ast::gauge_latency, "gauge_latency"),
+             (gauge_body, ast::gauge_body, "gauge_body"), (gauge, ast::gauge_stmt, "gauge"),
+             (expect_gauge, ast::expect_gauge, "expect_gauge"))
 
 // Comma-separated lists.
-x3::rule<class ref_list, std::vector<ast::name>> const ref_list = "ref_list";
-x3::rule<class name_list, std::vector<ast::name>> const name_list = "name_list";
-x3::rule<class port_groups, std::vector<ast::port_group>> const port_groups = "port_groups";
-x3::rule<class bindings, std::vector<ast::binding>> const bindings = "bindings";
-x3::rule<class args, std::vector<ast::arg>> const args = "args";
+SIM_X3_RULES((ref_list, std::vector<ast::name>, "ref_list"),
+             (name_list, std::vector<ast::name>, "name_list"),
+             (port_groups, std::vector<ast::port_group>, "port_groups"),
+             (bindings, std::vector<ast::binding>, "bindings"),
+             (args, std::vector<ast::arg>, "args"))
 statement_type const statement_rule = "statement";
 auto const ref_list_def = list(ref_);
 auto const name_list_def = list(name_);

@@ -172,9 +172,25 @@ enum class file_mode : std::uint8_t { design, stimulus_only };
 /// statements are only located (out.top_gates): elaborate() parses them.
 void parse_file(std::string_view text, file_mode mode, file& out, reporter& rep);
 
+/// Calls `each` with every statement of `text` in order, as parse_file splits
+/// them: comments, terminators and surrounding blanks removed.
+void for_each_statement(std::string_view text, const std::function<void(std::string_view)>& each);
+
 /// Parses and lowers one top-level gate statement located by parse_file, its
 /// reads and program into `pools`; false (after reporting) when malformed.
+/// It tries lower_simple_gate first and parse_gate_by_grammar on the forms
+/// the fast path declines: the two must agree wherever the fast path succeeds.
 bool parse_top_gate(const file& f, piece p, gate& out, scope_def& pools, reporter& rep);
+
+/// Lowers a gate of the plain form `NAME = KIND(NET|0|1, ...)` (no delay, no
+/// expression) straight from its text, a statement of the source that starts
+/// at `at`, without the grammar. False, with nothing reported and the pools
+/// as they were, for any other form.
+bool lower_simple_gate(std::string_view text, source_loc at, gate& out, scope_def& pools);
+
+/// Parses a gate statement (a view into the reporter's text) with the grammar
+/// and lowers it; false (after reporting) when malformed or not a gate.
+bool parse_gate_by_grammar(std::string_view text, gate& out, scope_def& pools, reporter& rep);
 
 /// Reports the syntax errors of the top-level gate statements (when the file
 /// has other errors and is not elaborated).

@@ -15,10 +15,6 @@ inline constexpr int max_expr_depth = 256;
 /// Lowers one gate statement, appending its reads and program to the scope's
 /// pools; false (after reporting, pools restored) when it is malformed.
 bool lower_gate(const ast::gate_stmt& g, gate& out, scope_def& pools, reporter& rep);
-/// Lowers a top-level gate of the plain form `NAME = KIND(NET|0|1, ...)` (no
-/// delay, no expression) straight from its text, which starts at `at`. False,
-/// with nothing reported and the pools as they were, for any other form.
-bool lower_simple_gate(std::string_view text, source_loc at, gate& out, scope_def& pools);
 /// Converts a delay written as one range (both edges) or two (rise, fall).
 bool lower_delay(const std::vector<ast::range>& ranges, bool transport, gate_delay& out,
                  reporter& rep);

@@ -6,6 +6,7 @@
 
 #include "parser/keyword_x3.hpp"
 #include "parser/lexical.hpp"
+#include "parser/rule_x3.hpp"
 #include "parser/verilog_ast.hpp"
 #include "parser/verilog_grammar.hpp"
 
@@ -74,43 +75,26 @@ using raw_range = boost::iterator_range<const char*>;
 ///////////////////////////////////////////////////////////////////////////////
 // Rules (the names are turned into words by describe() in verilog_grammar.cpp)
 ///////////////////////////////////////////////////////////////////////////////
-x3::rule<class ident_raw, raw_range> const ident_raw = "identifier";
-x3::rule<class ident, vast::raw> const ident = "identifier";
-x3::rule<class kind_raw, raw_range> const kind_raw = "gate kind";
-x3::rule<class gate_kind, vast::raw> const gate_kind = "gate kind";
-x3::rule<class number> const number = "number";
-x3::rule<class based> const based = "based constant";
-x3::rule<class select> const select = "select";
-x3::rule<class range_syn> const range_syn = "range";
-x3::rule<class range_raw, raw_range> const range_raw = "range";
-x3::rule<class range_, vast::raw> const range_ = "range";
-x3::rule<class term_raw, raw_range> const term_raw = "term";
-x3::rule<class term, vast::raw> const term = "term";
-x3::rule<class conn, vast::conn> const conn = "connection";
-x3::rule<class mtm> const mtm = "delay value";
-x3::rule<class delay_raw, raw_range> const delay_raw = "delay";
-x3::rule<class delay, vast::raw> const delay = "delay";
-x3::rule<class primary> const primary = "operand";
-x3::rule<class unary> const unary = "operand";
-x3::rule<class and_e> const and_e = "expression";
-x3::rule<class xor_e> const xor_e = "expression";
-x3::rule<class or_e> const or_e = "expression";
-x3::rule<class cond_e> const cond_e = "expression";
-x3::rule<class expr_raw, raw_range> const expr_raw = "expression";
-x3::rule<class expr, vast::raw> const expr = "expression";
-x3::rule<class dir_word, std::string> const dir_word = "direction";
-x3::rule<class port_item, vast::port_item> const port_item = "port";
-x3::rule<class module_hdr, vast::module_hdr> const module_hdr = "module header";
-x3::rule<class decl_kind, std::string> const decl_kind = "declaration";
-x3::rule<class decl_stmt, vast::decl_stmt> const decl_stmt = "declaration";
-x3::rule<class assign_item, vast::assign_item> const assign_item = "assignment";
-x3::rule<class assign_stmt, vast::assign_stmt> const assign_stmt = "assign";
-x3::rule<class gate_inst, vast::gate_inst> const gate_inst = "gate terminals";
-x3::rule<class gate_stmt, vast::gate_stmt> const gate_stmt = "gate";
-x3::rule<class udp_stmt, vast::gate_stmt> const udp_stmt = "gate";
-x3::rule<class port_conn, vast::port_conn> const port_conn = "port connection";
-x3::rule<class mod_inst, vast::mod_inst> const mod_inst = "instance";
-x3::rule<class inst_stmt, vast::inst_stmt> const inst_stmt = "instance";
+SIM_X3_RULES((ident_raw, raw_range, "identifier"), (ident, vast::raw, "identifier"),
+             (kind_raw, raw_range, "gate kind"), (gate_kind, vast::raw, "gate kind"),
+             (number, x3::unused_type, "number"), (based, x3::unused_type, "based constant"),
+             (select, x3::unused_type, "select"), (range_syn, x3::unused_type, "range"),
+             (range_raw, raw_range, "range"), (range_, vast::raw, "range"),
+             (term_raw, raw_range, "term"), (term, vast::raw, "term"),
+             (conn, vast::conn, "connection"), (mtm, x3::unused_type, "delay value"),
+             (delay_raw, raw_range, "delay"), (delay, vast::raw, "delay"),
+             (primary, x3::unused_type, "operand"), (unary, x3::unused_type, "operand"),
+             (and_e, x3::unused_type, "expression"), (xor_e, x3::unused_type, "expression"),
+             (or_e, x3::unused_type, "expression"), (cond_e, x3::unused_type, "expression"),
+             (expr_raw, raw_range, "expression"), (expr, vast::raw, "expression"),
+             (dir_word, std::string, "direction"), (port_item, vast::port_item, "port"),
+             (module_hdr, vast::module_hdr, "module header"),
+             (decl_kind, std::string, "declaration"), (decl_stmt, vast::decl_stmt, "declaration"),
+             (assign_item, vast::assign_item, "assignment"),
+             (assign_stmt, vast::assign_stmt, "assign"),
+             (gate_inst, vast::gate_inst, "gate terminals"), (gate_stmt, vast::gate_stmt, "gate"),
+             (udp_stmt, vast::gate_stmt, "gate"), (port_conn, vast::port_conn, "port connection"),
+             (mod_inst, vast::mod_inst, "instance"), (inst_stmt, vast::inst_stmt, "instance"))
 statement_type const statement_rule = "statement";
 
 auto const ident_raw_def = x3::raw[x3::lexeme[id_chars]];

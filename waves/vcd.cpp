@@ -290,36 +290,46 @@ void vcd_writer::put_value(net_id n, logic v) {
   pos_ += len + 2;
 }
 
-std::string vcd_writer::header() const {
-  std::string h;
-  h.reserve(4096);
-  auto put = [&h](std::string_view a) { h.append(a.data(), a.size()); };
-  put("$date\n\t"), put(opt_.date.empty() ? now_text() : opt_.date), put("\n$end\n");
-  put("$version\n\t"),
-      put(opt_.version.empty() ? std::string_view("settle") : std::string_view(opt_.version)),
-      put("\n$end\n");
+namespace {
 
-  // Full dotted path of every scope, and the variables each one declares.
-  const auto scopes = n_.scopes.empty() ? std::size_t{1} : n_.scopes.size();
+/// The full dotted path of each of `scopes` scopes ("" for the top one); a
+/// parent chain that loops or leaves the table stops there.
+std::vector<std::string> scope_paths(const netlist& n, std::size_t scopes) {
   std::vector<std::string> path(scopes);
   for (std::size_t s = 1; s < scopes; ++s) {
     std::vector<std::size_t> chain;
-    for (std::size_t q = s; q != 0 && q < scopes && chain.size() <= scopes; q = n_.scopes[q].parent)
+    for (std::size_t q = s; q != 0 && q < scopes && chain.size() <= scopes; q = n.scopes[q].parent)
       chain.push_back(q);
     for (auto it = chain.rbegin(); it != chain.rend(); ++it) {
       if (!path[s].empty()) path[s] += '.';
-      path[s] += n_.scopes[*it].name;
+      path[s] += n.scopes[*it].name;
     }
   }
-  // Candidates in declaration order (nets, then aliases); names are views into
-  // the netlist, which outlives this call. The first of each (scope, name) wins.
-  struct var {
-    std::uint32_t scope;
-    net_id net;
-    std::string_view name;
-  };
-  std::vector<var> cand;
-  cand.reserve(n_.net_count() + n_.aliases.size());
+  return path;
+}
+
+/// A variable a scope declares: a net under a local name (a view into the
+/// netlist, which outlives the header).
+struct vcd_var {
+  std::uint32_t scope;
+  net_id net;
+  std::string_view name;
+};
+
+/// The variables grouped by scope, in declaration order within a scope:
+/// scope s declares vars[first[s]] up to vars[first[s + 1]].
+struct scope_vars {
+  std::vector<vcd_var> vars;
+  std::vector<std::uint32_t> first;
+};
+
+/// The selected nets under their names local to their scopes, then the
+/// aliases; the first of each (scope, name) wins.
+scope_vars collect_vars(const netlist& n, const std::vector<std::uint8_t>& selected,
+                        const std::vector<std::string>& path) {
+  const std::size_t scopes = path.size();
+  std::vector<vcd_var> cand;
+  cand.reserve(n.net_count() + n.aliases.size());
   auto local_name = [&](std::size_t s, std::string_view full) {
     const std::string_view p = path[s];
     if (!p.empty() && full.size() > p.size() && full.compare(0, p.size(), p) == 0 &&
@@ -327,14 +337,14 @@ std::string vcd_writer::header() const {
       return full.substr(p.size() + 1);
     return full;
   };
-  for (net_id i = 2; i < n_.net_count(); ++i) {
-    if (!selected_[i]) continue;
-    std::size_t s = i < n_.net_scope.size() ? n_.net_scope[i] : 0;
+  for (net_id i = 2; i < n.net_count(); ++i) {
+    if (!selected[i]) continue;
+    std::size_t s = i < n.net_scope.size() ? n.net_scope[i] : 0;
     if (s >= scopes) s = 0;
-    cand.push_back({static_cast<std::uint32_t>(s), i, local_name(s, n_.net_name[i])});
+    cand.push_back({static_cast<std::uint32_t>(s), i, local_name(s, n.net_name[i])});
   }
-  for (const auto& a : n_.aliases) {
-    if (a.net >= selected_.size() || !selected_[a.net] || a.scope >= scopes) continue;
+  for (const auto& a : n.aliases) {
+    if (a.net >= selected.size() || !selected[a.net] || a.scope >= scopes) continue;
     cand.push_back({a.scope, a.net, a.local});
   }
   // Open-addressing set of candidate indices keyed by (scope, name).
@@ -342,7 +352,8 @@ std::string vcd_writer::header() const {
   while (slots < 2 * cand.size()) slots *= 2;
   std::vector<std::uint32_t> table(slots, 0);  // candidate index + 1; 0 is empty
   std::vector<std::uint8_t> keep(cand.size(), 0);
-  std::vector<std::uint32_t> per_scope(scopes + 1, 0);
+  scope_vars out;
+  out.first.assign(scopes + 1, 0);
   for (std::size_t c = 0; c < cand.size(); ++c) {
     const auto& v = cand[c];
     std::size_t at =
@@ -358,96 +369,144 @@ std::string vcd_writer::header() const {
     if (dup) continue;
     table[at] = static_cast<std::uint32_t>(c + 1);
     keep[c] = 1;
-    ++per_scope[v.scope + 1];
+    ++out.first[v.scope + 1];
   }
   // Group by scope, keeping declaration order within a scope (counting sort).
-  for (std::size_t s = 0; s < scopes; ++s) per_scope[s + 1] += per_scope[s];
-  std::vector<var> vars(per_scope[scopes]);
-  {
-    std::vector<std::uint32_t> fill(per_scope.begin(), per_scope.end() - 1);
-    for (std::size_t c = 0; c < cand.size(); ++c)
-      if (keep[c]) vars[fill[cand[c].scope]++] = cand[c];
-  }
+  for (std::size_t s = 0; s < scopes; ++s) out.first[s + 1] += out.first[s];
+  out.vars.resize(out.first[scopes]);
+  std::vector<std::uint32_t> fill(out.first.begin(), out.first.end() - 1);
+  for (std::size_t c = 0; c < cand.size(); ++c)
+    if (keep[c]) out.vars[fill[cand[c].scope]++] = cand[c];
+  return out;
+}
 
-  // Sanitised names (only those that change are copied), and the map of them.
-  std::string renamed;
-  std::deque<std::string> cleaned;  // stable storage for rewritten names
-  auto needs_cleaning = [](std::string_view name) {
+/// Names made fit for VCD (vcd_sanitise): each rewritten one is stored once
+/// and listed, "shown = as written", for the header's comment.
+class vcd_renamer {
+ public:
+  static bool needs_cleaning(std::string_view name) {
     bool bad = name.empty();
     for (char c : name) {
       const auto u = static_cast<unsigned char>(c);
       bad |= c == '.' || c == '/' || c == '[' || c == ']' || u <= 32 || u >= 127;
     }
     return bad;
-  };
-  // `taken`: the names already used in the scope; a sanitised name that meets
-  // one (nets a.b and a_b) gets the first free suffix _2, _3, ...
-  auto clean = [&](std::string_view name, std::string_view where,
-                   std::unordered_set<std::string_view>* taken = nullptr) -> std::string_view {
+  }
+
+  /// `name` (in the scope whose path is `where`) as VCD shows it. `taken`:
+  /// the names already used in the scope; a sanitised name that meets one
+  /// (nets a.b and a_b) gets the first free suffix _2, _3, ...
+  std::string_view clean(std::string_view name, std::string_view where,
+                         std::unordered_set<std::string_view>* taken = nullptr) {
     if (!needs_cleaning(name)) return name;
     std::string fresh = vcd_sanitise(name);
     if (taken)
       for (std::size_t k = 2; taken->count(fresh); ++k)
         fresh = vcd_sanitise(name) + "_" + std::to_string(k);
-    const std::string_view s = cleaned.emplace_back(std::move(fresh));
+    const std::string_view s = cleaned_.emplace_back(std::move(fresh));
     if (taken) taken->insert(s);
-    renamed += '\t';
-    if (!where.empty()) renamed.append(where), renamed += '.';
-    renamed.append(s), renamed += " = ";
-    if (!where.empty()) renamed.append(where), renamed += '.';
-    renamed.append(name), renamed += '\n';
+    renamed_ += '\t';
+    if (!where.empty()) renamed_.append(where), renamed_ += '.';
+    renamed_.append(s), renamed_ += " = ";
+    if (!where.empty()) renamed_.append(where), renamed_ += '.';
+    renamed_.append(name), renamed_ += '\n';
     return s;
-  };
-  std::vector<std::string_view> scope_name(scopes);
-  scope_name[0] =
-      clean(opt_.top.empty() ? std::string_view("top") : std::string_view(opt_.top), "");
-  for (std::size_t s = 1; s < scopes; ++s)
-    scope_name[s] =
-        clean(n_.scopes[s].name, path[n_.scopes[s].parent < scopes ? n_.scopes[s].parent : 0]);
-  for (std::size_t s = 0; s < scopes; ++s) {
-    bool any = false;  // most scopes need no renaming, and then no set
-    for (auto j = per_scope[s]; j < per_scope[s + 1] && !any; ++j)
-      any = needs_cleaning(vars[j].name);
-    if (!any) continue;
-    std::unordered_set<std::string_view> taken;
-    for (auto j = per_scope[s]; j < per_scope[s + 1]; ++j)
-      if (!needs_cleaning(vars[j].name)) taken.insert(vars[j].name);
-    for (auto j = per_scope[s]; j < per_scope[s + 1]; ++j)
-      vars[j].name = clean(vars[j].name, path[s], &taken);
   }
 
-  // Scopes with something to show, their children, then the declarations.
-  std::vector<std::uint8_t> live(scopes, 0);
+  /// The lines of the renamed names ("" when none was).
+  const std::string& listing() const { return renamed_; }
+
+ private:
+  std::string renamed_;
+  std::deque<std::string> cleaned_;  // stable storage for rewritten names
+};
+
+/// The names of the scopes as VCD shows them (the top one is `top`), and
+/// those of the variables, rewritten in place.
+std::vector<std::string_view> clean_names(const netlist& n, std::string_view top,
+                                          const std::vector<std::string>& path, scope_vars& sv,
+                                          vcd_renamer& ren) {
+  const std::size_t scopes = path.size();
+  std::vector<std::string_view> scope_name(scopes);
+  scope_name[0] = ren.clean(top, "");
+  for (std::size_t s = 1; s < scopes; ++s)
+    scope_name[s] =
+        ren.clean(n.scopes[s].name, path[n.scopes[s].parent < scopes ? n.scopes[s].parent : 0]);
   for (std::size_t s = 0; s < scopes; ++s) {
-    if (per_scope[s] == per_scope[s + 1]) continue;
-    for (std::size_t q = s, guard = 0; guard <= scopes; q = n_.scopes[q].parent, ++guard) {
-      if (live[q]) break;
-      live[q] = 1;
+    bool any = false;  // most scopes need no renaming, and then no set
+    for (auto j = sv.first[s]; j < sv.first[s + 1] && !any; ++j)
+      any = vcd_renamer::needs_cleaning(sv.vars[j].name);
+    if (!any) continue;
+    std::unordered_set<std::string_view> taken;
+    for (auto j = sv.first[s]; j < sv.first[s + 1]; ++j)
+      if (!vcd_renamer::needs_cleaning(sv.vars[j].name)) taken.insert(sv.vars[j].name);
+    for (auto j = sv.first[s]; j < sv.first[s + 1]; ++j)
+      sv.vars[j].name = ren.clean(sv.vars[j].name, path[s], &taken);
+  }
+  return scope_name;
+}
+
+/// The scopes the header opens: the top one, every scope that declares a
+/// variable, and their ancestors; children[s] lists those under s in order.
+struct scope_tree {
+  std::vector<std::uint8_t> live;
+  std::vector<std::vector<std::size_t>> children;
+};
+
+scope_tree live_scopes(const netlist& n, const scope_vars& sv, std::size_t scopes) {
+  scope_tree t;
+  t.live.assign(scopes, 0);
+  for (std::size_t s = 0; s < scopes; ++s) {
+    if (sv.first[s] == sv.first[s + 1]) continue;
+    for (std::size_t q = s, guard = 0; guard <= scopes; q = n.scopes[q].parent, ++guard) {
+      if (t.live[q]) break;
+      t.live[q] = 1;
       if (q == 0 || q >= scopes) break;
     }
   }
-  live[0] = 1;
-  std::vector<std::vector<std::size_t>> children(scopes);
+  t.live[0] = 1;
+  t.children.resize(scopes);
   for (std::size_t s = 1; s < scopes; ++s)
-    if (live[s] && n_.scopes[s].parent < scopes) children[n_.scopes[s].parent].push_back(s);
+    if (t.live[s] && n.scopes[s].parent < scopes) t.children[n.scopes[s].parent].push_back(s);
+  return t;
+}
+
+}  // namespace
+
+std::string vcd_writer::header() const {
+  std::string h;
+  h.reserve(4096);
+  auto put = [&h](std::string_view a) { h.append(a.data(), a.size()); };
+  put("$date\n\t"), put(opt_.date.empty() ? now_text() : opt_.date), put("\n$end\n");
+  put("$version\n\t"),
+      put(opt_.version.empty() ? std::string_view("settle") : std::string_view(opt_.version)),
+      put("\n$end\n");
+
+  const auto scopes = n_.scopes.empty() ? std::size_t{1} : n_.scopes.size();
+  const auto path = scope_paths(n_, scopes);
+  auto sv = collect_vars(n_, selected_, path);
+  vcd_renamer ren;
+  const auto scope_name = clean_names(
+      n_, opt_.top.empty() ? std::string_view("top") : std::string_view(opt_.top), path, sv, ren);
+  const auto tree = live_scopes(n_, sv, scopes);
 
   // Room for everything still to come, so the appends below never reallocate.
-  std::size_t room = h.size() + renamed.size() + 256 + codes_.size();
-  for (const auto& v : vars) room += v.name.size() + code_len_[v.net] + 20;
-  for (std::size_t s = 0; s < scopes; ++s) room += live[s] ? scope_name[s].size() + 40 : 0;
+  std::size_t room = h.size() + ren.listing().size() + 256 + codes_.size();
+  for (const auto& v : sv.vars) room += v.name.size() + code_len_[v.net] + 20;
+  for (std::size_t s = 0; s < scopes; ++s) room += tree.live[s] ? scope_name[s].size() + 40 : 0;
   room += 3 * n_.net_count();
   h.reserve(room);
 
-  if (!renamed.empty())
-    put("$comment\n\tnames changed for VCD (as shown = as written):\n"), put(renamed),
+  if (!ren.listing().empty())
+    put("$comment\n\tnames changed for VCD (as shown = as written):\n"), put(ren.listing()),
         put("$end\n");
   put("$timescale "), put(vcd_timescale(k_)), put(" $end\n");
   // Depth-first with an explicit stack: (scope, next child index).
   std::vector<std::pair<std::size_t, std::size_t>> stack{{0, 0}};
   auto open = [&](std::size_t s) {
     put("$scope module "), put(scope_name[s]), put(" $end\n");
-    for (auto j = per_scope[s]; j < per_scope[s + 1]; ++j) {
-      const auto& v = vars[j];
+    for (auto j = sv.first[s]; j < sv.first[s + 1]; ++j) {
+      const auto& v = sv.vars[j];
       put("$var wire 1 "), put(std::string_view(codes_.data() + code_at_[v.net], code_len_[v.net]));
       h += ' ', put(v.name), put(" $end\n");
     }
@@ -455,8 +514,8 @@ std::string vcd_writer::header() const {
   open(0);
   while (!stack.empty()) {
     auto& [s, next] = stack.back();
-    if (next < children[s].size()) {
-      const auto c = children[s][next++];
+    if (next < tree.children[s].size()) {
+      const auto c = tree.children[s][next++];
       open(c);
       stack.emplace_back(c, 0);
     } else {
