@@ -137,10 +137,16 @@ std::vector<net_id> unknown_at_end(const step_spec* spec, std::span<const net_id
 
 class simulator;
 
+/// Why the timed kernel cannot take `n` ("N gates: the kernel takes at most
+/// M"), or nullopt when it can. A run_context requires that it can: check
+/// before making one (the command line reports it as an error, exit 2).
+std::optional<std::string> kernel_size_error(const netlist& n);
+
 /// Per-run state that survives between runs of one netlist: a worker keeps
 /// one, so a corner costs a delay table and a state reset, nothing else.
 class run_context {
  public:
+  /// Requires !kernel_size_error(n).
   explicit run_context(const netlist& n);
   ~run_context();
   run_context(const run_context&) = delete;
