@@ -166,12 +166,11 @@ class driver {
            (opt_.stop && opt_.stop->load(std::memory_order_relaxed));
   }
 
-  void run_step(const step_spec& spec, std::size_t index) {
-    step_result r;
-    r.index = index;
-    r.label = spec.label;
-    for (auto& g : gauges_) g.step_begin();  // gauge expectations judge this step's samples
-    // Lay out the step's input changes in time.
+  // Lays the step's actions out in time: its input changes in pending_ (in
+  // time order), its activations in acts_ and its clocks in clock_starts_.
+  // Returns the step's start, or nullopt when an `at` lies before the time
+  // the stimulus has already reached: result_.error says so and the run stops.
+  std::optional<time_fs> lay_out(const step_spec& spec) {
     pending_.clear();
     time_fs cursor = ref_;
     bool first = true;
@@ -194,7 +193,7 @@ class driver {
         set_source_line(dg, a.source_line);
         result_.error = std::move(dg);
         stopped_ = true;
-        return;
+        return std::nullopt;
       }
       if (a.what == stim_action::kind::at)
         t = a.time;
@@ -217,6 +216,17 @@ class driver {
     }
     std::stable_sort(pending_.begin(), pending_.end(),
                      [](const timed_input& x, const timed_input& y) { return x.time < y.time; });
+    return start;
+  }
+
+  void run_step(const step_spec& spec, std::size_t index) {
+    step_result r;
+    r.index = index;
+    r.label = spec.label;
+    for (auto& g : gauges_) g.step_begin();  // gauge expectations judge this step's samples
+    const std::optional<time_fs> laid = lay_out(spec);
+    if (!laid) return;
+    const time_fs start = *laid;
     r.start = std::min(start, time_last);
 
     // What the step's expectations and report need counted from its start.
