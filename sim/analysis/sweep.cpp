@@ -1,4 +1,5 @@
-// The sweep engine: a worker pool over corners, outcome grouping, verdicts and statistics per step.
+// The sweep engine: outcome grouping, verdicts and statistics per step over the corners the
+// workers ran (sweep_workers.cpp).
 #include "sim/analysis/sweep.hpp"
 
 #include <fmt/format.h>
@@ -7,235 +8,25 @@
 #include <atomic>
 #include <chrono>
 #include <cmath>
-#include <cstring>
-#include <exception>
-#include <limits>
 #include <map>
-#include <mutex>
-#include <thread>
-#include <unordered_map>
 
+#include "sim/analysis/sweep_workers.hpp"
 #include "sim/model/check.hpp"
 #include "sim/model/enum_names.hpp"
 
 namespace settle {
 namespace {
 
-// An outcome as bytes: status (0x40 set for a timeout at the end of
-// representable time), period (oscillating only), then the values.
-constexpr char end_of_time_bit = 0x40;
-std::string key_of(step_status status, time_fs period, const std::vector<logic>& values,
-                   bool end_of_time = false) {
-  std::string k(1 + sizeof(time_fs) + values.size(), '\0');
-  k[0] = static_cast<char>(static_cast<char>(status) | (end_of_time ? end_of_time_bit : 0));
-  if (status != step_status::oscillating) period = 0;
-  std::memcpy(k.data() + 1, &period, sizeof period);
-  for (std::size_t i = 0; i < values.size(); ++i)
-    k[1 + sizeof(time_fs) + i] = static_cast<char>(values[i]);
-  return k;
-}
-
-void decode_key(const std::string& k, sweep_outcome& o) {
-  o.status = static_cast<step_status>(k[0] & ~end_of_time_bit);
-  o.end_of_time = (k[0] & end_of_time_bit) != 0;
-  std::memcpy(&o.period, k.data() + 1, sizeof o.period);
-  for (std::size_t i = 1 + sizeof(time_fs); i < k.size(); ++i)
-    o.values.push_back(static_cast<logic>(k[i]));
-}
+using detail::corner_table;
+using detail::decode_key;
+using detail::expect_acc;
+using detail::gauge_acc;
+using detail::outcome_registry;
+using detail::shared_run;
+using detail::spec_of;
+using detail::worker_state;
 
 bool settles(step_status s) { return s == step_status::settled || s == step_status::running; }
-
-// What one worker learns about one expectation of one step.
-struct expect_acc {
-  std::uint64_t failing = 0;
-  std::uint64_t first = UINT64_MAX;
-  std::string detail;
-};
-
-// Outcome numbering shared by the workers. Ids are internal: the final order
-// comes from counts and witnesses, so it does not depend on which worker saw
-// an outcome first.
-class outcome_registry {
- public:
-  explicit outcome_registry(std::size_t steps) : ids_(steps), keys_(steps) {}
-  std::uint32_t id(std::size_t step, const std::string& key) {
-    std::lock_guard lock(mutex_);
-    auto [it, fresh] = ids_[step].try_emplace(key, static_cast<std::uint32_t>(keys_[step].size()));
-    if (fresh) keys_[step].push_back(key);
-    return it->second;
-  }
-  const std::vector<std::string>& keys(std::size_t step) const { return keys_[step]; }
-
- private:
-  std::mutex mutex_;
-  std::vector<std::unordered_map<std::string, std::uint32_t>> ids_;
-  std::vector<std::vector<std::string>> keys_;
-};
-
-// What one worker learns about one property: its violating corners and the lowest of them.
-struct property_acc {
-  std::uint64_t violating = 0;
-  std::uint64_t first = UINT64_MAX;
-  time_fs at = 0;
-  std::size_t step = 0;
-};
-
-// What one worker learns about one gauge: the extremes with their corners (a
-// smaller value wins, then a lower corner, so merging is order-free).
-struct gauge_acc {
-  std::uint64_t corners = 0, samples = 0;
-  time_fs min = std::numeric_limits<time_fs>::max(), max = 0;
-  std::uint64_t min_at = UINT64_MAX, max_at = UINT64_MAX;
-  void add(time_fs lo, std::uint64_t lo_at, time_fs hi, std::uint64_t hi_at) {
-    if (lo < min || (lo == min && lo_at < min_at)) min = lo, min_at = lo_at;
-    if (max_at == UINT64_MAX || hi > max || (hi == max && hi_at < max_at)) max = hi, max_at = hi_at;
-  }
-};
-
-struct worker_state {
-  std::uint64_t events = 0;
-  std::vector<property_acc> properties;  // [property]
-  std::vector<gauge_acc> gauges;         // [gauge]
-  std::vector<net_id> reported;
-  bool have_reported = false;
-  std::vector<std::vector<expect_acc>> expects;                       // [step][expectation]
-  std::vector<std::unordered_map<std::string, std::uint32_t>> cache;  // [step] key -> id
-  std::exception_ptr error;
-  // The lowest-numbered corner whose stimulus could not go on (run_result::error).
-  std::uint64_t stim_error_corner = UINT64_MAX;
-  std::optional<diagnostic> stim_error;
-};
-
-// Every corner's results, each entry written only by the worker that ran
-// its corner, so no lock guards them.
-struct corner_table {
-  corner_table(std::uint64_t corners, std::size_t steps, std::size_t gauges)
-      : steps(steps),
-        gauges(gauges),
-        outcome_of(corners * steps),
-        settle_of(corners * steps),
-        finished(corners, 0),
-        gauge_mean_of(corners * gauges, std::nan("")) {}
-  std::size_t steps, gauges;
-  std::vector<std::uint32_t> outcome_of;  // [corner * steps + step]
-  std::vector<time_fs> settle_of;         // [corner * steps + step]
-  std::vector<std::uint8_t> finished;     // [corner]: 1 once its results are stored
-  std::vector<double> gauge_mean_of;      // [corner * gauges + gauge]: NaN without samples
-};
-
-// What the workers share: the work, where its results go, and the counters.
-struct shared_run {
-  const design& d;
-  const sweep_plan& plan;
-  const run_options& opt;
-  corner_table& table;
-  const std::atomic<bool>& halt;  // stop taking corners, drop the one running
-  outcome_registry& registry;
-  std::atomic<std::uint64_t>& next;
-  std::atomic<std::uint64_t>& done;
-};
-
-const step_spec* spec_of(const design& d, std::size_t step) {
-  return step < d.stim.steps.size() ? &d.stim.steps[step] : nullptr;
-}
-
-// Sizes a worker's accumulators for the design's steps, properties and gauges.
-void prepare(const design& d, std::size_t steps, worker_state& w) {
-  w.cache.resize(steps);
-  w.expects.resize(steps);
-  for (std::size_t k = 0; k < steps; ++k) {
-    const step_spec* spec = spec_of(d, k);
-    w.expects[k].resize(spec ? spec->expects.size() : 0);
-  }
-  w.properties.resize(d.stim.properties.size());
-  w.gauges.resize(d.stim.gauges.size());
-}
-
-// Corner i's steps: each one's outcome id and settle time in the table, and
-// its failing expectations in the worker's accumulators. `unknown` is a
-// buffer for the outcome of a step the run did not reach.
-void record_steps(shared_run& s, worker_state& w, std::uint64_t i, const run_result& r,
-                  std::vector<logic>& unknown) {
-  const std::size_t steps = s.table.steps;
-  unknown.assign(r.reported.size(), logic::x);
-  for (std::size_t k = 0; k < steps; ++k) {
-    const bool ran = k < r.steps.size();
-    // A run stopped by --max-events has no later steps: they count as stopped.
-    const std::string key = ran ? key_of(r.steps[k].status, r.steps[k].period, r.steps[k].values,
-                                         r.steps[k].end_of_time)
-                                : key_of(step_status::event_limit, 0, unknown);
-    auto& cache = w.cache[k];
-    auto it = cache.find(key);
-    const std::uint32_t id =
-        it != cache.end() ? it->second : cache.emplace(key, s.registry.id(k, key)).first->second;
-    s.table.outcome_of[i * steps + k] = id;
-    // An oscillating step's time is when its repeat was detected, not a settle time.
-    s.table.settle_of[i * steps + k] = !ran ? 0
-                                       : r.steps[k].status == step_status::oscillating
-                                           ? r.steps[k].end - r.steps[k].start
-                                           : r.steps[k].settle;
-    auto& accs = w.expects[k];
-    for (std::size_t e = 0; e < accs.size(); ++e) {
-      const bool pass = ran && e < r.steps[k].expects.size() && r.steps[k].expects[e].pass;
-      if (pass) continue;
-      ++accs[e].failing;
-      if (i < accs[e].first) {
-        accs[e].first = i;
-        accs[e].detail =
-            ran ? r.steps[k].expects[e].detail : "the run stopped before this step (event limit)";
-      }
-    }
-  }
-}
-
-// Corner i's properties and gauges: violations and extremes in the worker's
-// accumulators, each gauge's mean in the table.
-void record_closed_loop(shared_run& s, worker_state& w, std::uint64_t i, const run_result& r) {
-  for (const auto& p : r.properties) {
-    if (p.holds || p.property >= w.properties.size()) continue;
-    auto& acc = w.properties[p.property];
-    ++acc.violating;
-    if (i < acc.first) acc.first = i, acc.at = p.first_violation, acc.step = p.step;
-  }
-  const std::size_t n_gauges = s.table.gauges;
-  for (std::size_t g = 0; g < n_gauges; ++g) s.table.gauge_mean_of[i * n_gauges + g] = std::nan("");
-  for (const auto& g : r.gauges) {
-    if (g.count == 0 || g.gauge >= n_gauges) continue;
-    auto& acc = w.gauges[g.gauge];
-    ++acc.corners;
-    acc.samples += g.count;
-    acc.add(g.min, i, g.max, i);
-    s.table.gauge_mean_of[i * n_gauges + g.gauge] = g.mean;
-  }
-}
-
-// A worker: takes the next corner from the shared counter and runs it, until
-// none is left or the sweep halts (a corner cut short is not stored). One
-// run_context and delay table serve all its corners.
-void work(shared_run& s, worker_state& w) {
-  try {
-    run_context ctx(s.d.nets);
-    delay_table table;
-    prepare(s.d, s.table.steps, w);
-    std::vector<logic> unknown;
-    for (;;) {
-      const std::uint64_t i = s.next.fetch_add(1, std::memory_order_relaxed);
-      if (i >= s.plan.corners || s.halt.load(std::memory_order_relaxed)) break;
-      fill_delays(s.d, s.plan.corner_at(i), table);
-      const run_result r = run_stimulus(ctx, s.d, table, s.opt);
-      if (s.halt.load(std::memory_order_relaxed)) break;  // possibly cut short: not a result
-      if (r.error && i < w.stim_error_corner) w.stim_error_corner = i, w.stim_error = r.error;
-      w.events += r.events;
-      if (!w.have_reported) w.reported = r.reported, w.have_reported = true;
-      record_steps(s, w, i, r, unknown);
-      record_closed_loop(s, w, i, r);
-      s.table.finished[i] = 1;
-      s.done.fetch_add(1, std::memory_order_relaxed);
-    }
-  } catch (...) {
-    w.error = std::current_exception();
-  }
-}
 
 sweep_verdict verdict_of(const std::vector<sweep_outcome>& outs) {
   if (outs.empty()) return sweep_verdict::timeout;  // a stopped sweep that finished no corner
@@ -439,69 +230,6 @@ void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt
     }
 }
 
-// Threads for a sweep: as asked (0: the hardware's), at most one per corner, at least one.
-unsigned pool_size(const sweep_options& opt, const sweep_plan& plan) {
-  unsigned threads = opt.threads ? opt.threads : std::max(1u, std::thread::hardware_concurrency());
-  if (plan.corners < threads)
-    threads = static_cast<unsigned>(std::max<std::uint64_t>(plan.corners, 1));
-  return threads;
-}
-
-// Runs one worker per entry of `workers` on its own thread. Meanwhile this
-// thread reports progress and raises `halt` (which the workers and their
-// kernels poll) on the caller's stop flag or once the wall-clock budget is
-// spent. Returns why it halted them; none when they ran out of corners.
-sweep_stop run_pool(shared_run& shared, std::vector<worker_state>& workers,
-                    const sweep_options& opt, std::atomic<bool>& halt,
-                    std::chrono::steady_clock::time_point started) {
-  const auto threads = static_cast<unsigned>(workers.size());
-  std::atomic<unsigned> finished{0};
-  sweep_stop stopped = sweep_stop::none;
-  std::vector<std::thread> pool;
-  pool.reserve(threads);
-  for (unsigned t = 0; t < threads; ++t)
-    pool.emplace_back([&, t] {
-      work(shared, workers[t]);
-      finished.fetch_add(1);
-    });
-  const bool watch = opt.stop || opt.timeout_s > 0;
-  if (opt.progress || watch) {
-    const std::uint64_t corners = shared.plan.corners;
-    auto last = std::chrono::steady_clock::now();
-    while (finished.load() < threads) {
-      std::this_thread::sleep_for(std::chrono::milliseconds(20));
-      const auto now = std::chrono::steady_clock::now();
-      if (!halt.load() && opt.stop && opt.stop->load())
-        stopped = sweep_stop::interrupted, halt.store(true);
-      if (!halt.load() && opt.timeout_s > 0 &&
-          std::chrono::duration<double>(now - started).count() >= opt.timeout_s)
-        stopped = sweep_stop::timeout, halt.store(true);
-      if (opt.progress &&
-          std::chrono::duration<double>(now - last).count() >= opt.progress_every_s) {
-        opt.progress(shared.done.load(), corners);
-        last = now;
-      }
-    }
-    if (opt.progress) opt.progress(shared.done.load(), corners);
-  }
-  for (auto& th : pool) th.join();
-  return stopped;
-}
-
-// What the workers learned besides the corner table: an exception of one is
-// rethrown here; their events add up; the reported nets, and the diagnostic
-// of the lowest-numbered corner whose stimulus could not go on.
-void merge_workers(const std::vector<worker_state>& workers, sweep_result& res) {
-  for (const auto& w : workers)
-    if (w.error) std::rethrow_exception(w.error);
-  for (const auto& w : workers) {
-    res.events += w.events;
-    if (w.have_reported && res.reported.empty()) res.reported = w.reported;
-    if (w.stim_error && w.stim_error_corner < res.error_corner)
-      res.error_corner = w.stim_error_corner, res.error = w.stim_error;
-  }
-}
-
 // The random and gauss corners that finished.
 std::uint64_t sampled_finished(const sweep_plan& plan, const corner_table& table,
                                sweep_stop stopped) {
@@ -616,7 +344,7 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
   sweep_result res;
   res.planned = plan.corners;
   const std::size_t steps = d.stim.steps.empty() ? 1 : d.stim.steps.size();
-  res.threads = pool_size(opt, plan);
+  res.threads = detail::pool_size(opt, plan);
 
   corner_table table(plan.corners, steps, d.stim.gauges.size());
   outcome_registry registry(steps);
@@ -626,8 +354,8 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
   ro.stop = &halt;
   shared_run shared{d, plan, ro, table, halt, registry, next, done};
   std::vector<worker_state> workers(res.threads);
-  res.stopped = run_pool(shared, workers, opt, halt, started);
-  merge_workers(workers, res);
+  res.stopped = detail::run_pool(shared, workers, opt, halt, started);
+  detail::merge_workers(workers, res);
   res.corners = done.load();
 
   std::optional<interval_result> iv;
