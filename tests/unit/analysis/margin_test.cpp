@@ -18,6 +18,18 @@ settle::design load_data(const std::string& name) {
   return std::move(*d);
 }
 
+// One inverter, y = not(a) at 40ps..60ps, with a = 0 and `expect y = WANT` after it settles.
+settle::design inverter(char want) {
+  settle::diagnostics diags;
+  auto d = settle::load_design_text(
+      std::string("input a\noutput y\ny = not(a) delay 40ps..60ps\nstimulus {\n at 0ns a = 0\n "
+                  "settle\n expect y = ") +
+          want + "\n}\n",
+      "inverter.settle", {}, diags);
+  REQUIRE(d);
+  return std::move(*d);
+}
+
 }  // namespace
 
 TEST_CASE("margin: bisection finds the delay ratio at which two chains swap order", "[margin]") {
@@ -96,16 +108,11 @@ TEST_CASE("margin: settle-time margin of a budget at the written spread", "[marg
 }
 
 TEST_CASE("margin: a step that fails at the typical delays reports 0", "[margin]") {
-  settle::diagnostics diags;
-  const auto d = settle::load_design_text(
-      "input a\noutput y\ny = not(a) delay 40ps..60ps\nstimulus {\n at 0ns a = 0\n settle\n expect "
-      "y = 0\n}\n",
-      "typ_fail.settle", {}, diags);
-  REQUIRE(d);
+  const auto d = inverter('0');
   settle::margin_options o;
   o.spec = "extremes";
   std::string err;
-  const auto r = settle::find_margin(*d, o, &err);
+  const auto r = settle::find_margin(d, o, &err);
   REQUIRE(r);
   CHECK(r->fails_at_zero);
   CHECK(r->margin == 0);
@@ -121,12 +128,7 @@ TEST_CASE("margin: a budget spent before the written spread is probed stops the 
   // spread (100%) is still to be probed when the budget runs out. margin.hpp's
   // contract for a stopped search: the finished probes' margins, no sweep
   // at the written spread, and the reason.
-  settle::diagnostics diags;
-  const auto d = settle::load_design_text(
-      "input a\noutput y\ny = not(a) delay 40ps..60ps\nstimulus {\n at 0ns a = 0\n settle\n "
-      "expect y = 1\n}\n",
-      "budget_spent.settle", {}, diags);
-  REQUIRE(d);
+  const auto d = inverter('1');
   settle::margin_options o;
   o.spec = "extremes";
   o.threads = 1;
@@ -136,7 +138,7 @@ TEST_CASE("margin: a budget spent before the written spread is probed stops the 
     std::this_thread::sleep_for(std::chrono::duration<double>(o.timeout_s + 0.1));
   };
   std::string err;
-  const auto r = settle::find_margin(*d, o, &err);
+  const auto r = settle::find_margin(d, o, &err);
   REQUIRE(r);
   CHECK(r->stopped == settle::sweep_stop::timeout);
   REQUIRE(r->probes.size() == 1);
