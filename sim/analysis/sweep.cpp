@@ -1,4 +1,5 @@
-// The sweep engine: a worker pool over corners, outcome grouping, verdicts and statistics per step.
+// The sweep engine: outcome grouping, verdicts and statistics per step over the corners the
+// workers ran (sweep_workers.cpp).
 #include "sim/analysis/sweep.hpp"
 
 #include <fmt/format.h>
@@ -7,198 +8,25 @@
 #include <atomic>
 #include <chrono>
 #include <cmath>
-#include <cstring>
-#include <exception>
-#include <limits>
 #include <map>
-#include <mutex>
-#include <thread>
-#include <unordered_map>
 
+#include "sim/analysis/sweep_workers.hpp"
+#include "sim/model/check.hpp"
 #include "sim/model/enum_names.hpp"
 
 namespace settle {
 namespace {
 
-// An outcome as bytes: status (0x40 set for a timeout at the end of
-// representable time), period (oscillating only), then the values.
-constexpr char end_of_time_bit = 0x40;
-std::string key_of(step_status status, time_fs period, const std::vector<logic>& values,
-                   bool end_of_time = false) {
-  std::string k(1 + sizeof(time_fs) + values.size(), '\0');
-  k[0] = static_cast<char>(static_cast<char>(status) | (end_of_time ? end_of_time_bit : 0));
-  if (status != step_status::oscillating) period = 0;
-  std::memcpy(k.data() + 1, &period, sizeof period);
-  for (std::size_t i = 0; i < values.size(); ++i)
-    k[1 + sizeof(time_fs) + i] = static_cast<char>(values[i]);
-  return k;
-}
-
-void decode_key(const std::string& k, sweep_outcome& o) {
-  o.status = static_cast<step_status>(k[0] & ~end_of_time_bit);
-  o.end_of_time = (k[0] & end_of_time_bit) != 0;
-  std::memcpy(&o.period, k.data() + 1, sizeof o.period);
-  for (std::size_t i = 1 + sizeof(time_fs); i < k.size(); ++i)
-    o.values.push_back(static_cast<logic>(k[i]));
-}
+using detail::corner_table;
+using detail::decode_key;
+using detail::expect_acc;
+using detail::gauge_acc;
+using detail::outcome_registry;
+using detail::shared_run;
+using detail::spec_of;
+using detail::worker_state;
 
 bool settles(step_status s) { return s == step_status::settled || s == step_status::running; }
-
-// What one worker learns about one expectation of one step.
-struct expect_acc {
-  std::uint64_t failing = 0;
-  std::uint64_t first = UINT64_MAX;
-  std::string detail;
-};
-
-// Outcome numbering shared by the workers. Ids are internal: the final order
-// comes from counts and witnesses, so it does not depend on which worker saw
-// an outcome first.
-class outcome_registry {
- public:
-  explicit outcome_registry(std::size_t steps) : ids_(steps), keys_(steps) {}
-  std::uint32_t id(std::size_t step, const std::string& key) {
-    std::lock_guard lock(mutex_);
-    auto [it, fresh] = ids_[step].try_emplace(key, static_cast<std::uint32_t>(keys_[step].size()));
-    if (fresh) keys_[step].push_back(key);
-    return it->second;
-  }
-  const std::vector<std::string>& keys(std::size_t step) const { return keys_[step]; }
-
- private:
-  std::mutex mutex_;
-  std::vector<std::unordered_map<std::string, std::uint32_t>> ids_;
-  std::vector<std::vector<std::string>> keys_;
-};
-
-// What one worker learns about one property: its violating corners and the lowest of them.
-struct property_acc {
-  std::uint64_t violating = 0;
-  std::uint64_t first = UINT64_MAX;
-  time_fs at = 0;
-  std::size_t step = 0;
-};
-
-// What one worker learns about one gauge: the extremes with their corners (a
-// smaller value wins, then a lower corner, so merging is order-free).
-struct gauge_acc {
-  std::uint64_t corners = 0, samples = 0;
-  time_fs min = std::numeric_limits<time_fs>::max(), max = 0;
-  std::uint64_t min_at = UINT64_MAX, max_at = UINT64_MAX;
-  void add(time_fs lo, std::uint64_t lo_at, time_fs hi, std::uint64_t hi_at) {
-    if (lo < min || (lo == min && lo_at < min_at)) min = lo, min_at = lo_at;
-    if (max_at == UINT64_MAX || hi > max || (hi == max && hi_at < max_at)) max = hi, max_at = hi_at;
-  }
-};
-
-struct worker_state {
-  std::uint64_t events = 0;
-  std::vector<property_acc> properties;  // [property]
-  std::vector<gauge_acc> gauges;         // [gauge]
-  std::vector<net_id> reported;
-  bool have_reported = false;
-  std::vector<std::vector<expect_acc>> expects;                       // [step][expectation]
-  std::vector<std::unordered_map<std::string, std::uint32_t>> cache;  // [step] key -> id
-  std::exception_ptr error;
-  // The lowest-numbered corner whose stimulus could not go on (run_result::error).
-  std::uint64_t stim_error_corner = UINT64_MAX;
-  std::optional<diagnostic> stim_error;
-};
-
-struct shared_run {
-  const design& d;
-  const sweep_plan& plan;
-  const run_options& opt;
-  std::size_t steps;
-  std::vector<std::uint32_t>& outcome_of;  // [corner * steps + step]
-  std::vector<time_fs>& settle_of;         // [corner * steps + step]
-  std::vector<std::uint8_t>& finished;     // [corner]: 1 once its results are stored
-  std::vector<double>& gauge_mean_of;      // [corner * gauges + gauge]: NaN without samples
-  const std::atomic<bool>& halt;           // stop taking corners, drop the one running
-  outcome_registry& registry;
-  std::atomic<std::uint64_t>& next;
-  std::atomic<std::uint64_t>& done;
-};
-
-const step_spec* spec_of(const design& d, std::size_t step) {
-  return step < d.stim.steps.size() ? &d.stim.steps[step] : nullptr;
-}
-
-void work(shared_run& s, worker_state& w) {
-  try {
-    run_context ctx(s.d.nets);
-    delay_table table;
-    w.cache.resize(s.steps);
-    w.expects.resize(s.steps);
-    for (std::size_t k = 0; k < s.steps; ++k) {
-      const step_spec* spec = spec_of(s.d, k);
-      w.expects[k].resize(spec ? spec->expects.size() : 0);
-    }
-    const std::size_t n_gauges = s.d.stim.gauges.size();
-    w.properties.resize(s.d.stim.properties.size());
-    w.gauges.resize(n_gauges);
-    std::vector<logic> unknown;
-    for (;;) {
-      const std::uint64_t i = s.next.fetch_add(1, std::memory_order_relaxed);
-      if (i >= s.plan.corners || s.halt.load(std::memory_order_relaxed)) break;
-      fill_delays(s.d, s.plan.corner_at(i), table);
-      const run_result r = run_stimulus(ctx, s.d, table, s.opt);
-      if (s.halt.load(std::memory_order_relaxed)) break;  // possibly cut short: not a result
-      if (r.error && i < w.stim_error_corner) w.stim_error_corner = i, w.stim_error = r.error;
-      w.events += r.events;
-      if (!w.have_reported) w.reported = r.reported, w.have_reported = true;
-      unknown.assign(r.reported.size(), logic::x);
-      for (std::size_t k = 0; k < s.steps; ++k) {
-        const bool ran = k < r.steps.size();
-        // A run stopped by --max-events has no later steps: they count as stopped.
-        const std::string key = ran ? key_of(r.steps[k].status, r.steps[k].period,
-                                             r.steps[k].values, r.steps[k].end_of_time)
-                                    : key_of(step_status::event_limit, 0, unknown);
-        auto& cache = w.cache[k];
-        auto it = cache.find(key);
-        const std::uint32_t id = it != cache.end()
-                                     ? it->second
-                                     : cache.emplace(key, s.registry.id(k, key)).first->second;
-        s.outcome_of[i * s.steps + k] = id;
-        // An oscillating step's time is when its repeat was detected, not a settle time.
-        s.settle_of[i * s.steps + k] = !ran ? 0
-                                       : r.steps[k].status == step_status::oscillating
-                                           ? r.steps[k].end - r.steps[k].start
-                                           : r.steps[k].settle;
-        auto& accs = w.expects[k];
-        for (std::size_t e = 0; e < accs.size(); ++e) {
-          const bool pass = ran && e < r.steps[k].expects.size() && r.steps[k].expects[e].pass;
-          if (pass) continue;
-          ++accs[e].failing;
-          if (i < accs[e].first) {
-            accs[e].first = i;
-            accs[e].detail = ran ? r.steps[k].expects[e].detail
-                                 : "the run stopped before this step (event limit)";
-          }
-        }
-      }
-      for (const auto& p : r.properties) {
-        if (p.holds || p.property >= w.properties.size()) continue;
-        auto& acc = w.properties[p.property];
-        ++acc.violating;
-        if (i < acc.first) acc.first = i, acc.at = p.first_violation, acc.step = p.step;
-      }
-      for (std::size_t g = 0; g < n_gauges; ++g) s.gauge_mean_of[i * n_gauges + g] = std::nan("");
-      for (const auto& g : r.gauges) {
-        if (g.count == 0 || g.gauge >= n_gauges) continue;
-        auto& acc = w.gauges[g.gauge];
-        ++acc.corners;
-        acc.samples += g.count;
-        acc.add(g.min, i, g.max, i);
-        s.gauge_mean_of[i * n_gauges + g.gauge] = g.mean;
-      }
-      s.finished[i] = 1;
-      s.done.fetch_add(1, std::memory_order_relaxed);
-    }
-  } catch (...) {
-    w.error = std::current_exception();
-  }
-}
 
 sweep_verdict verdict_of(const std::vector<sweep_outcome>& outs) {
   if (outs.empty()) return sweep_verdict::timeout;  // a stopped sweep that finished no corner
@@ -223,21 +51,19 @@ sweep_verdict verdict_of(const std::vector<sweep_outcome>& outs) {
 }
 
 // Groups step k's corners into outcomes, ordered by count, then witness.
-std::vector<sweep_outcome> group_step(const sweep_plan& plan, std::size_t steps, std::size_t k,
-                                      const std::vector<std::uint32_t>& outcome_of,
-                                      const std::vector<time_fs>& settle_of,
-                                      const outcome_registry& reg,
-                                      const std::vector<std::uint8_t>& finished,
+std::vector<sweep_outcome> group_step(const sweep_plan& plan, const corner_table& table,
+                                      const outcome_registry& reg, std::size_t k,
                                       std::uint64_t corners, std::size_t& sampled_outcomes) {
+  const std::size_t steps = table.steps;
   const auto& keys = reg.keys(k);
   std::vector<sweep_outcome> outs(keys.size());
   std::vector<std::vector<time_fs>> times(keys.size());
   std::vector<std::uint8_t> seen_sampled(keys.size(), 0);
   for (std::size_t id = 0; id < keys.size(); ++id) decode_key(keys[id], outs[id]);
   for (std::uint64_t i = 0; i < plan.corners; ++i) {
-    if (!finished[i]) continue;
-    const std::uint32_t id = outcome_of[i * steps + k];
-    const time_fs t = settle_of[i * steps + k];
+    if (!table.finished[i]) continue;
+    const std::uint32_t id = table.outcome_of[i * steps + k];
+    const time_fs t = table.settle_of[i * steps + k];
     if (outs[id].count++ == 0) outs[id].witness = i;  // ascending: the first seen is the lowest
     if (times[id].empty() || t > outs[id].settle.max) outs[id].slowest = i, outs[id].settle.max = t;
     times[id].push_back(t);
@@ -248,6 +74,7 @@ std::vector<sweep_outcome> group_step(const sweep_plan& plan, std::size_t steps,
     auto& o = outs[id];
     auto& t = times[id];
     sampled_outcomes += seen_sampled[id];
+    SETTLE_CHECK(!t.empty(), "an outcome is registered only by a corner that finished");
     std::sort(t.begin(), t.end());
     o.settle = {t.front(), t[(t.size() - 1) / 2], t.back()};
     o.settle_times = std::move(t);
@@ -322,9 +149,8 @@ void judge_by_interval(const step_spec* spec, const std::optional<interval_resul
 // extremes keep the lower corner on a tie, and the median is taken over the
 // per-corner means in corner order.
 void gather_closed_loop(const design& d, const sweep_plan& plan,
-                        const std::vector<worker_state>& workers,
-                        const std::vector<double>& gauge_mean_of,
-                        const std::vector<std::uint8_t>& finished, sweep_result& res) {
+                        const std::vector<worker_state>& workers, const corner_table& table,
+                        sweep_result& res) {
   for (std::uint32_t p = 0; p < d.stim.properties.size(); ++p) {
     sweep_property sp;
     sp.index = p;
@@ -360,8 +186,8 @@ void gather_closed_loop(const design& d, const sweep_plan& plan,
       sg.witness_max_name = plan.corner_at(all.max_at).name();
       means.clear();
       for (std::uint64_t i = 0; i < plan.corners; ++i) {
-        if (!finished[i]) continue;
-        const double m = gauge_mean_of[i * n_gauges + g];
+        if (!table.finished[i]) continue;
+        const double m = table.gauge_mean_of[i * n_gauges + g];
         if (!std::isnan(m)) means.push_back(m);
       }
       // The lower median, the ((n-1)/2)-th smallest, as for settle times.
@@ -404,6 +230,86 @@ void replay_owed(const design& d, const sweep_plan& plan, const run_options& opt
     }
 }
 
+// The random and gauss corners that finished.
+std::uint64_t sampled_finished(const sweep_plan& plan, const corner_table& table,
+                               sweep_stop stopped) {
+  if (stopped == sweep_stop::none) return plan.sampled;
+  std::uint64_t sampled = 0;
+  for (std::uint64_t i = 0; i < plan.corners; ++i)
+    sampled += table.finished[i] && plan.is_sampled(i);
+  return sampled;
+}
+
+// What judging a step over the finished corners reads.
+struct corner_judge {
+  const sweep_plan& plan;
+  const corner_table& table;
+  const outcome_registry& registry;
+  const std::vector<worker_state>& workers;
+  std::uint64_t corners;  // finished
+  std::uint64_t sampled;  // finished random and gauss corners
+  bool allow_x;
+  const std::vector<net_id>& reported;
+};
+
+// Expectation e of step st (the step's k-th) over the corners. `expect
+// deterministic` is judged from the outcomes: the corners outside the most
+// common one fail it. Any other kind from the workers' accumulators: the
+// corners where it failed, the lowest of them and why.
+sweep_expect judge_expect(const corner_judge& j, const sweep_step& st, std::size_t k,
+                          const expectation& spec, std::size_t e) {
+  sweep_expect x;
+  x.spec = &spec;
+  if (spec.what == expectation::kind::deterministic) {
+    if (st.verdict != sweep_verdict::deterministic && !st.outcomes.empty()) {
+      const bool several = st.outcomes.size() > 1;
+      x.failing = several ? j.corners - st.outcomes[0].count : j.corners;
+      x.witness = st.outcomes[several ? 1 : 0].witness;
+      for (std::size_t o = 1; o < st.outcomes.size(); ++o)
+        x.witness = std::min(x.witness, st.outcomes[o].witness);
+      x.witness_name = j.plan.corner_at(x.witness).name();
+      x.detail = fmt::format("the step is {} across corners", verdict_name(st.verdict));
+    }
+    return x;
+  }
+  expect_acc acc;
+  for (const auto& w : j.workers) {
+    if (k >= w.expects.size() || e >= w.expects[k].size()) continue;
+    const auto& a = w.expects[k][e];
+    acc.failing += a.failing;
+    if (a.first < acc.first) acc.first = a.first, acc.detail = a.detail;
+  }
+  x.failing = acc.failing;
+  if (acc.failing) {
+    x.witness = acc.first;
+    x.witness_name = j.plan.corner_at(acc.first).name();
+    x.detail = acc.detail;
+  }
+  return x;
+}
+
+// Step k over the finished corners: its outcomes and verdict, whether it is
+// the first to diverge (`divergence`: the first divergent step so far, 0 for
+// none, updated here), the rule-of-three bound, and its expectations.
+void judge_by_corners(const corner_judge& j, const step_spec* spec, std::size_t k,
+                      std::size_t& divergence, sweep_step& st) {
+  std::size_t sampled_outcomes = 0;
+  st.outcomes = group_step(j.plan, j.table, j.registry, k, j.corners, sampled_outcomes);
+  st.verdict = verdict_of(st.outcomes);
+  if (!j.allow_x)
+    for (auto& o : st.outcomes)
+      if (o.status != step_status::oscillating)
+        o.unknown = unknown_at_end(spec, j.reported, o.values);
+  if (divergence) st.inherits = divergence;
+  // A step every corner deadlocks in has not diverged: it is stuck alike everywhere.
+  else if (st.verdict != sweep_verdict::deterministic && st.verdict != sweep_verdict::deadlock)
+    st.first_divergence = true, divergence = st.index;
+  if (j.sampled > 0 && sampled_outcomes == 1) st.unseen_outcome_bound = rule_of_three(j.sampled);
+  const std::size_t n_expects = spec ? spec->expects.size() : 0;
+  for (std::size_t e = 0; e < n_expects; ++e)
+    st.expects.push_back(judge_expect(j, st, k, spec->expects[e], e));
+}
+
 }  // namespace
 
 std::optional<std::pair<std::uint64_t, std::uint64_t>> race_witnesses(const sweep_step& s) {
@@ -438,77 +344,32 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
   sweep_result res;
   res.planned = plan.corners;
   const std::size_t steps = d.stim.steps.empty() ? 1 : d.stim.steps.size();
-  unsigned threads = opt.threads ? opt.threads : std::max(1u, std::thread::hardware_concurrency());
-  if (plan.corners < threads)
-    threads = static_cast<unsigned>(std::max<std::uint64_t>(plan.corners, 1));
-  res.threads = threads;
+  res.threads = detail::pool_size(opt, plan);
 
-  std::vector<std::uint32_t> outcome_of(plan.corners * steps);
-  std::vector<time_fs> settle_of(plan.corners * steps);
-  std::vector<std::uint8_t> finished_corner(plan.corners, 0);
-  const std::size_t n_gauges = d.stim.gauges.size();
-  std::vector<double> gauge_mean_of(plan.corners * n_gauges, std::nan(""));
+  corner_table table(plan.corners, steps, d.stim.gauges.size());
   outcome_registry registry(steps);
   std::atomic<std::uint64_t> next{0}, done{0};
-  std::atomic<unsigned> finished{0};
-  // The workers and their kernels poll `halt`; this thread raises it on the
-  // caller's stop flag or when the wall-clock budget is spent.
   std::atomic<bool> halt{false};
   run_options ro = opt.run;
   ro.stop = &halt;
-  shared_run shared{
-      d,    plan,     ro,   steps, outcome_of, settle_of, finished_corner, gauge_mean_of,
-      halt, registry, next, done};
-  std::vector<worker_state> workers(threads);
-  {
-    std::vector<std::thread> pool;
-    pool.reserve(threads);
-    for (unsigned t = 0; t < threads; ++t)
-      pool.emplace_back([&, t] {
-        work(shared, workers[t]);
-        finished.fetch_add(1);
-      });
-    const bool watch = opt.stop || opt.timeout_s > 0;
-    if (opt.progress || watch) {
-      auto last = std::chrono::steady_clock::now();
-      while (finished.load() < threads) {
-        std::this_thread::sleep_for(std::chrono::milliseconds(20));
-        const auto now = std::chrono::steady_clock::now();
-        if (!halt.load() && opt.stop && opt.stop->load())
-          res.stopped = sweep_stop::interrupted, halt.store(true);
-        if (!halt.load() && opt.timeout_s > 0 &&
-            std::chrono::duration<double>(now - started).count() >= opt.timeout_s)
-          res.stopped = sweep_stop::timeout, halt.store(true);
-        if (opt.progress &&
-            std::chrono::duration<double>(now - last).count() >= opt.progress_every_s) {
-          opt.progress(done.load(), plan.corners);
-          last = now;
-        }
-      }
-      if (opt.progress) opt.progress(done.load(), plan.corners);
-    }
-    for (auto& th : pool) th.join();
-  }
-  for (auto& w : workers)
-    if (w.error) std::rethrow_exception(w.error);
-  for (auto& w : workers) {
-    res.events += w.events;
-    if (w.have_reported && res.reported.empty()) res.reported = w.reported;
-    if (w.stim_error && w.stim_error_corner < res.error_corner)
-      res.error_corner = w.stim_error_corner, res.error = w.stim_error;
-  }
+  shared_run shared{d, plan, ro, table, halt, registry, next, done};
+  std::vector<worker_state> workers(res.threads);
+  res.stopped = detail::run_pool(shared, workers, opt, halt, started);
+  detail::merge_workers(workers, res);
   res.corners = done.load();
-  std::uint64_t sampled = plan.sampled;
-  if (res.stopped != sweep_stop::none) {
-    sampled = 0;
-    for (std::uint64_t i = 0; i < plan.corners; ++i)
-      sampled += finished_corner[i] && plan.is_sampled(i);
-  }
 
   std::optional<interval_result> iv;
   if (plan.interval && res.stopped == sweep_stop::none) iv = run_interval(d, opt.run);
   if (iv && res.reported.empty()) res.reported = iv->reported;  // `interval` alone: no corner ran
 
+  const corner_judge judge{plan,
+                           table,
+                           registry,
+                           workers,
+                           res.corners,
+                           sampled_finished(plan, table, res.stopped),
+                           opt.run.allow_x,
+                           res.reported};
   std::size_t divergence = 0;
   for (std::size_t k = 0; k < steps; ++k) {
     sweep_step st;
@@ -518,61 +379,15 @@ sweep_result run_sweep(const design& d, const sweep_plan& plan, const sweep_opti
     st.run_step = spec && spec->end == step_spec::end_kind::run;
     if (plan.interval_only()) {
       judge_by_interval(spec, iv, k, res.reported.size(), st);
-      res.steps.push_back(std::move(st));
-      continue;
+    } else {
+      judge_by_corners(judge, spec, k, divergence, st);
+      if (iv && k < iv->steps.size()) st.interval = iv->steps[k];
+      st.pass = step_passes(st);
     }
-    std::size_t sampled_outcomes = 0;
-    st.outcomes = group_step(plan, steps, k, outcome_of, settle_of, registry, finished_corner,
-                             res.corners, sampled_outcomes);
-    st.verdict = verdict_of(st.outcomes);
-    if (!opt.run.allow_x)
-      for (auto& o : st.outcomes)
-        if (o.status != step_status::oscillating)
-          o.unknown = unknown_at_end(spec, res.reported, o.values);
-    if (divergence) st.inherits = divergence;
-    // A step every corner deadlocks in has not diverged: it is stuck alike everywhere.
-    else if (st.verdict != sweep_verdict::deterministic && st.verdict != sweep_verdict::deadlock)
-      st.first_divergence = true, divergence = st.index;
-    if (sampled > 0 && sampled_outcomes == 1) st.unseen_outcome_bound = rule_of_three(sampled);
-
-    const std::size_t n_expects = spec ? spec->expects.size() : 0;
-    for (std::size_t e = 0; e < n_expects; ++e) {
-      sweep_expect x;
-      x.spec = &spec->expects[e];
-      if (x.spec->what == expectation::kind::deterministic) {
-        // Judged across corners: the corners outside the most common outcome fail it.
-        if (st.verdict != sweep_verdict::deterministic && !st.outcomes.empty()) {
-          const bool several = st.outcomes.size() > 1;
-          x.failing = several ? res.corners - st.outcomes[0].count : res.corners;
-          x.witness = st.outcomes[several ? 1 : 0].witness;
-          for (std::size_t o = 1; o < st.outcomes.size(); ++o)
-            x.witness = std::min(x.witness, st.outcomes[o].witness);
-          x.witness_name = plan.corner_at(x.witness).name();
-          x.detail = fmt::format("the step is {} across corners", verdict_name(st.verdict));
-        }
-      } else {
-        expect_acc acc;
-        for (const auto& w : workers) {
-          if (k >= w.expects.size() || e >= w.expects[k].size()) continue;
-          const auto& a = w.expects[k][e];
-          acc.failing += a.failing;
-          if (a.first < acc.first) acc.first = a.first, acc.detail = a.detail;
-        }
-        x.failing = acc.failing;
-        if (acc.failing) {
-          x.witness = acc.first;
-          x.witness_name = plan.corner_at(acc.first).name();
-          x.detail = acc.detail;
-        }
-      }
-      st.expects.push_back(std::move(x));
-    }
-    if (iv && k < iv->steps.size()) st.interval = iv->steps[k];
-    st.pass = step_passes(st);
     res.steps.push_back(std::move(st));
   }
   if (!plan.interval_only()) {
-    gather_closed_loop(d, plan, workers, gauge_mean_of, finished_corner, res);
+    gather_closed_loop(d, plan, workers, table, res);
     if (res.stopped == sweep_stop::none) replay_owed(d, plan, opt.run, res);
   }
   res.wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();

@@ -7,6 +7,7 @@
 #include <utility>
 
 #include "sim/analysis/sweep.hpp"
+#include "sim/model/check.hpp"
 
 namespace settle {
 namespace {
@@ -26,6 +27,7 @@ std::string_view trim(std::string_view s) {
 }  // namespace
 
 corner sweep_plan::corner_at(std::uint64_t i) const {
+  SETTLE_CHECK(i < corners, "a corner number within the plan");
   for (const auto& it : items) {
     if (i < it.first || i >= it.first + it.count) continue;
     corner c;
@@ -34,7 +36,7 @@ corner sweep_plan::corner_at(std::uint64_t i) const {
     if (it.what == corner::kind::random || it.what == corner::kind::gauss) c.seed = seed;
     return c;
   }
-  return corner{};  // out of range: the caller's bug; typ is harmless
+  return corner{};  // not reached: the items cover every corner number
 }
 
 std::uint64_t sweep_result_bytes(const sweep_plan& plan, std::size_t steps, std::size_t gauges) {

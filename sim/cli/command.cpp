@@ -13,6 +13,7 @@
 #include <cstdlib>
 #include <cstring>
 
+#include "sim/kernel/run.hpp"
 #include "sim/model/time_parse.hpp"
 
 namespace settle::cli {
@@ -139,6 +140,12 @@ std::optional<design> load(const design_options& o, bool empty_ok) {
     spdlog::warn("{}: the design is empty (no gates and no inputs)", o.path);
   }
   return d;
+}
+
+bool fits_kernel(const design& d) {
+  const auto why = kernel_size_error(d.nets);
+  if (why) spdlog::error("{}: {}", d.path, *why);
+  return !why;
 }
 
 std::string replay_command(const design_options& o, const std::string& corner,

@@ -77,6 +77,10 @@ std::vector<path_use> design_inputs(const design_options& o);
 /// Returns nullopt when there was an error (the command then exits 2).
 std::optional<design> load(const design_options& o, bool empty_ok = false);
 
+/// True when the timed kernel takes the design; otherwise says why on stderr
+/// (the command then exits 2). The commands that run it ask before they do.
+bool fits_kernel(const design& d);
+
 /// True when colour may be used on this stream (a terminal, NO_COLOR unset).
 bool use_colour(int fd);
 

@@ -253,7 +253,7 @@ exit_status run_margin_cmd(const margin_cli_options& o) {
     }
   }
   auto d = load(o.design);
-  if (!d) return exit_status::error;
+  if (!d || !fits_kernel(*d)) return exit_status::error;
   {
     // A probe in flight and the sweep kept at the written spread hold per-corner results.
     auto plan = plan_sweep(o.corners, o.seed, delay_variables(*d), &err);

@@ -166,7 +166,7 @@ exit_status run_run(const run_cli_options& o) {
   ro.allow_x = o.allow_x;
   if (!parse_horizon_option(o.horizon, ro.horizon)) return exit_status::error;
   auto d = load(o.design);
-  if (!d) return exit_status::error;
+  if (!d || !fits_kernel(*d)) return exit_status::error;
   if (const auto why = corner_range_error(*c, delay_variables(*d)); !why.empty()) {
     spdlog::error("--corner {}: {}", o.corner, why);
     return exit_status::error;

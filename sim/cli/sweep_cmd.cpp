@@ -352,7 +352,7 @@ exit_status run_sweep_cmd(const sweep_cli_options& o) {
   ro.allow_x = o.allow_x;
   if (!parse_horizon_option(o.horizon, ro.horizon)) return exit_status::error;
   auto d = load(o.design);
-  if (!d) return exit_status::error;
+  if (!d || !fits_kernel(*d)) return exit_status::error;
   auto plan = plan_sweep(o.corners, o.seed, delay_variables(*d), &err);
   if (!plan) {
     spdlog::error("{}", err);

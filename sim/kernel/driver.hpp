@@ -8,6 +8,7 @@
 #include <algorithm>
 #include <limits>
 
+#include "sim/kernel/repeat_detector.hpp"
 #include "sim/kernel/run.hpp"
 #include "sim/kernel/simulator.hpp"
 #include "sim/model/time.hpp"
@@ -165,12 +166,11 @@ class driver {
            (opt_.stop && opt_.stop->load(std::memory_order_relaxed));
   }
 
-  void run_step(const step_spec& spec, std::size_t index) {
-    step_result r;
-    r.index = index;
-    r.label = spec.label;
-    for (auto& g : gauges_) g.step_begin();  // gauge expectations judge this step's samples
-    // Lay out the step's input changes in time.
+  // Lays the step's actions out in time: its input changes in pending_ (in
+  // time order), its activations in acts_ and its clocks in clock_starts_.
+  // Returns the step's start, or nullopt when an `at` lies before the time
+  // the stimulus has already reached: result_.error says so and the run stops.
+  std::optional<time_fs> lay_out(const step_spec& spec) {
     pending_.clear();
     time_fs cursor = ref_;
     bool first = true;
@@ -193,7 +193,7 @@ class driver {
         set_source_line(dg, a.source_line);
         result_.error = std::move(dg);
         stopped_ = true;
-        return;
+        return std::nullopt;
       }
       if (a.what == stim_action::kind::at)
         t = a.time;
@@ -216,6 +216,17 @@ class driver {
     }
     std::stable_sort(pending_.begin(), pending_.end(),
                      [](const timed_input& x, const timed_input& y) { return x.time < y.time; });
+    return start;
+  }
+
+  void run_step(const step_spec& spec, std::size_t index) {
+    step_result r;
+    r.index = index;
+    r.label = spec.label;
+    for (auto& g : gauges_) g.step_begin();  // gauge expectations judge this step's samples
+    const std::optional<time_fs> laid = lay_out(spec);
+    if (!laid) return;
+    const time_fs start = *laid;
     r.start = std::min(start, time_last);
 
     // What the step's expectations and report need counted from its start.
@@ -240,18 +251,7 @@ class driver {
     const time_fs change_before = sim_.last_change();
     const std::uint64_t events_before = sim_.events();
     std::size_t next_input = 0;
-    // Brent's cycle detection over instants once every input of the step is
-    // in. Most steps settle within a few instants, so detection starts only
-    // after `warmup` of them: a snapshot (and turning the hash on) costs
-    // O(nets) while an instant costs a few events, so the warm-up grows with
-    // the design (a quarter of its nets) to keep detection a small share of a
-    // step that settles; in s38417's clocked runs with random delays it was
-    // two thirds of the time at a fixed 128.
-    const std::uint64_t warmup = std::max<std::uint64_t>(128, sim_.values().size() / 4);
-    std::uint64_t settling = 0;
-    state_snapshot snap;
-    bool have_snap = false;
-    std::uint64_t power = 1, lambda = 0;
+    repeat_detector<Sim> detector(sim_);  // once every input of the step is in
     std::vector<std::uint64_t> extra;
     std::vector<assignment> inputs;
     r.status = step_status::settled;
@@ -269,17 +269,15 @@ class driver {
       if (t < outside && t <= last_instant && !observing_) {
         // Instants of gate events alone go to the kernel in a batch, until
         // repeat detection is due: it starts once the step's inputs are all
-        // in and `warmup` instants have passed. Batches stay short enough for
-        // the stop flag to be seen promptly.
+        // in and its warm-up instants have passed. Batches stay short enough
+        // for the stop flag to be seen promptly.
         const bool counting = settle_step && next_input == pending_.size() &&
                               clock_starts_.empty() && next_act_ == acts_.size();
-        const std::uint64_t budget = !counting               ? 4096
-                                     : settling + 1 < warmup ? warmup - 1 - settling
-                                                             : 0;
+        const std::uint64_t budget = counting ? detector.warmup_left() : 4096;
         if (budget) {
           const std::uint64_t n =
               sim_.run_quiet(std::min(last_instant, outside - 1), budget, opt_.max_events);
-          if (counting) settling += n;
+          if (counting) detector.count(n);
           if (limited()) {
             r.status = step_status::event_limit;
             r.end = sim_.now();
@@ -349,32 +347,16 @@ class driver {
       if (!settle_step || next_input < pending_.size() || !clock_starts_.empty() ||
           next_act_ < acts_.size())
         continue;
-      if (++settling < warmup) continue;
-      if (settling == warmup) sim_.track_state(true);
+      if (!detector.due()) continue;
       clock_state_words(extra);
-      if (have_snap && sim_.hash() == snap.hash && r.values_period == 0 &&
-          sim_.values() == snap.values && !sim_.same_state(snap, extra)) {
-        r.values_repeat_at = t;  // the waveform repeats, its full state not (yet)
-        r.values_period = t - snap.time;
-      }
-      if (have_snap && sim_.hash() == snap.hash && sim_.same_state(snap, extra)) {
+      if (detector.repeats(t, extra, r)) {
         r.status = step_status::oscillating;
-        r.values_repeat_at = r.values_period = 0;
-        r.period = t - snap.time;
         r.end = t;
-        for (net_id n = 2; n < snap.toggles.size(); ++n)
-          if (sim_.toggle_count(n) != snap.toggles[n]) r.toggling.push_back(n);
         break;
-      }
-      if (!have_snap || ++lambda == power) {
-        sim_.snapshot(snap, extra);
-        have_snap = true;
-        if (lambda == power) power *= 2;
-        lambda = 0;
       }
     }
 
-    if (settling >= warmup) sim_.track_state(false);
+    detector.finish();
     r.events = sim_.events() - events_before;
     const time_fs last = sim_.last_change();
     r.settle = last > change_before && last >= start ? last - start : 0;

@@ -143,10 +143,16 @@ std::uint32_t glitches(const netlist& n, const run_result& r, const step_result&
 
 class simulator;
 
+/// Why the timed kernel cannot take `n` ("N gates: the kernel takes at most
+/// M"), or nullopt when it can. A run_context requires that it can: check
+/// before making one (the command line reports it as an error, exit 2).
+std::optional<std::string> kernel_size_error(const netlist& n);
+
 /// Per-run state that survives between runs of one netlist: a worker keeps
 /// one, so a corner costs a delay table and a state reset, nothing else.
 class run_context {
  public:
+  /// Requires !kernel_size_error(n).
   explicit run_context(const netlist& n);
   ~run_context();
   run_context(const run_context&) = delete;

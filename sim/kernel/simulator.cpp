@@ -5,9 +5,9 @@
 
 #include <algorithm>
 #include <limits>
-#include <stdexcept>
 
 #include "sim/kernel/eval.hpp"
+#include "sim/model/check.hpp"
 
 namespace settle {
 namespace {
@@ -34,8 +34,16 @@ std::pair<std::uint64_t, std::uint64_t> pending_key(time_fs rel, gate_id g, logi
 
 }  // namespace
 
+std::optional<std::string> kernel_size_error(const netlist& n) {
+  if (n.gate_count() <= simulator::gate_limit()) return std::nullopt;
+  return fmt::format("{} gates: the kernel takes at most {}", n.gate_count(),
+                     simulator::gate_limit());
+}
+
 simulator::simulator(const netlist& n)
     : n_(n), queue_(n.largest_max_delay(), n.smallest_min_delay()) {
+  SETTLE_CHECK(n.gate_count() <= gate_limit(),
+               "more gates than the kernel takes: callers check kernel_size_error first");
   const auto nets = n.net_count(), gates = n.gate_count();
   build_fast_paths();
   val_.resize(nets);
@@ -104,9 +112,6 @@ void simulator::build_fast_paths() {
   // Records that fit in the core's own caches need no prefetching (it costs
   // a tenth of the instructions of an event).
   prefetch_ = n_.gate_count() * sizeof(gate_rec) > prefetch_above;
-  if (n_.gate_count() > reader(~fan_entry{0}))
-    throw std::length_error(fmt::format("{} gates: the kernel takes at most {}", n_.gate_count(),
-                                        reader(~fan_entry{0})));
   ins_.resize(n_.gate_count());
   for (gate_id g = 0; g < n_.gate_count(); ++g) {
     gate_rec& f = gate_[g];
@@ -156,6 +161,8 @@ SETTLE_HOT std::span<const simulator::fan_entry> simulator::fanout_of(gate_id g,
 }
 
 void simulator::reset(const delay_table& delays) {
+  SETTLE_CHECK(delays.rise.size() == n_.gate_count() && delays.fall.size() == n_.gate_count(),
+               "the delay table was filled for this netlist (fill_delays)");
   std::copy(n_.init.begin(), n_.init.end(), val_.begin());
   clock_seen_.assign(n_.gate_count(), logic::x);
   for (gate_id g = 0; g < n_.gate_count(); ++g) {

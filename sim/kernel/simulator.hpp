@@ -30,7 +30,10 @@ struct state_snapshot {
 
 class simulator {
  public:
+  /// Requires n.gate_count() <= gate_limit() (see kernel_size_error in run.hpp).
   explicit simulator(const netlist& n);
+  /// The most gates the kernel takes: a fan-out entry holds a gate's number in 30 bits.
+  static constexpr std::size_t gate_limit();
 
   /// Starts a run with `delays`: init values, nothing pending, time 0, and
   /// every gate due for evaluation at the first instant.
@@ -198,5 +201,7 @@ class simulator {
   static constexpr std::size_t prefetch_depth = 6;
   gate_id near_ = 0, mid_ = 0, far_ = 0;  // the last three the look-ahead passed, oldest first
 };
+
+constexpr std::size_t simulator::gate_limit() { return reader(~fan_entry{0}); }
 
 }  // namespace settle

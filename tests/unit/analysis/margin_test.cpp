@@ -2,7 +2,9 @@
 #include "sim/analysis/margin.hpp"
 
 #include <catch2/catch.hpp>
+#include <chrono>
 #include <cmath>
+#include <thread>
 
 #include "parser/load.hpp"
 #include "sim/analysis/baseline.hpp"
@@ -12,6 +14,18 @@ namespace {
 settle::design load_data(const std::string& name) {
   settle::diagnostics diags;
   auto d = settle::load_design(std::string(SETTLE_SOURCE_DIR) + "/tests/data/" + name, {}, diags);
+  REQUIRE(d);
+  return std::move(*d);
+}
+
+// One inverter, y = not(a) at 40ps..60ps, with a = 0 and `expect y = WANT` after it settles.
+settle::design inverter(char want) {
+  settle::diagnostics diags;
+  auto d = settle::load_design_text(
+      std::string("input a\noutput y\ny = not(a) delay 40ps..60ps\nstimulus {\n at 0ns a = 0\n "
+                  "settle\n expect y = ") +
+          want + "\n}\n",
+      "inverter.settle", {}, diags);
   REQUIRE(d);
   return std::move(*d);
 }
@@ -94,22 +108,47 @@ TEST_CASE("margin: settle-time margin of a budget at the written spread", "[marg
 }
 
 TEST_CASE("margin: a step that fails at the typical delays reports 0", "[margin]") {
-  settle::diagnostics diags;
-  const auto d = settle::load_design_text(
-      "input a\noutput y\ny = not(a) delay 40ps..60ps\nstimulus {\n at 0ns a = 0\n settle\n expect "
-      "y = 0\n}\n",
-      "typ_fail.settle", {}, diags);
-  REQUIRE(d);
+  const auto d = inverter('0');
   settle::margin_options o;
   o.spec = "extremes";
   std::string err;
-  const auto r = settle::find_margin(*d, o, &err);
+  const auto r = settle::find_margin(d, o, &err);
   REQUIRE(r);
   CHECK(r->fails_at_zero);
   CHECK(r->margin == 0);
   REQUIRE(r->failure);
   CHECK(r->failure->spread == 0);
   CHECK(r->probes.size() == 2);  // w = 1 fails, w = 0 fails: nothing to bisect
+}
+
+TEST_CASE("margin: a budget spent before the written spread is probed stops the search",
+          "[margin]") {
+  // y = not(a) with a = 0 is 1 at any delay (Boolean algebra), so the step
+  // passes at the ceiling (200%) and nothing is left to bisect; the written
+  // spread (100%) is still to be probed when the budget runs out. margin.hpp's
+  // contract for a stopped search: the finished probes' margins, no sweep
+  // at the written spread, and the reason.
+  const auto d = inverter('1');
+  settle::margin_options o;
+  o.spec = "extremes";
+  o.threads = 1;
+  o.ceiling_pct = 200;
+  o.timeout_s = 0.5;
+  o.progress = [&](double, std::uint64_t, bool) {
+    std::this_thread::sleep_for(std::chrono::duration<double>(o.timeout_s + 0.1));
+  };
+  std::string err;
+  const auto r = settle::find_margin(d, o, &err);
+  REQUIRE(r);
+  CHECK(r->stopped == settle::sweep_stop::timeout);
+  REQUIRE(r->probes.size() == 1);
+  CHECK(r->probes[0].spread == 2.0);
+  CHECK(r->probes[0].pass);
+  REQUIRE(r->steps.size() == 1);
+  CHECK(r->steps[0].at_ceiling);
+  CHECK(r->at_ceiling);
+  CHECK(r->written.steps.empty());
+  CHECK(r->within.empty());
 }
 
 TEST_CASE("margin: bad options are refused", "[margin]") {
