@@ -83,68 +83,69 @@ auto const word_end = !x3::char_(lexical::ident_char_set);
 using raw_range = boost::iterator_range<const char*>;
 
 // Names, constants and time literals: the raw spans of the source ...
-SIM_X3_RULES((ident_raw, raw_range, "name_"), (ref_raw, raw_range, "ref_"),
-             (const_raw, raw_range, "target_"), (quoted_raw, raw_range, "ref_"),
-             (number_raw, raw_range, "time_"))
+SETTLE_X3_RULES((ident_raw, raw_range, "name_"), (ref_raw, raw_range, "ref_"),
+                (const_raw, raw_range, "target_"), (quoted_raw, raw_range, "ref_"),
+                (number_raw, raw_range, "time_"))
 
 // ... and their values.
-SIM_X3_RULES((name_, ast::name, "name_"), (ref_, ast::name, "ref_"),
-             (const_name, ast::name, "target_"), (target_, ast::name, "target_"),
-             (time_unit, int, "time_unit"), (time_, ast::time_lit, "time_"))
+SETTLE_X3_RULES((name_, ast::name, "name_"), (ref_, ast::name, "ref_"),
+                (const_name, ast::name, "target_"), (target_, ast::name, "target_"),
+                (time_unit, int, "time_unit"), (time_, ast::time_lit, "time_"))
 
 // Delays.
-SIM_X3_RULES((range_, ast::range, "range_"), (rise_fall, std::vector<ast::range>, "rise_fall"),
-             (delay_body, std::vector<ast::range>, "delay_body"))
+SETTLE_X3_RULES((range_, ast::range, "range_"), (rise_fall, std::vector<ast::range>, "rise_fall"),
+                (delay_body, std::vector<ast::range>, "delay_body"))
 
 // Gate expressions and gate statements.
-SIM_X3_RULES((or_expr, ast::or_expr, "or_expr"), (xor_expr, ast::xor_expr, "xor_expr"),
-             (and_expr, ast::and_expr, "and_expr"), (unary, ast::unary, "unary"),
-             (primary, ast::primary, "primary"), (arg, ast::arg, "arg"), (call, ast::call, "call"),
-             (rhs, ast::rhs, "rhs"), (gate, ast::gate_stmt, "gate"))
+SETTLE_X3_RULES((or_expr, ast::or_expr, "or_expr"), (xor_expr, ast::xor_expr, "xor_expr"),
+                (and_expr, ast::and_expr, "and_expr"), (unary, ast::unary, "unary"),
+                (primary, ast::primary, "primary"), (arg, ast::arg, "arg"),
+                (call, ast::call, "call"), (rhs, ast::rhs, "rhs"), (gate, ast::gate_stmt, "gate"))
 
 // Declarations, blocks and instances.
-SIM_X3_RULES((decl, ast::decl, "decl"), (default_, ast::default_stmt, "default_"),
-             (port_group, ast::port_group, "port_group"),
-             (block_head, ast::block_head, "block_head"), (binding, ast::binding, "binding"),
-             (inst, ast::inst_stmt, "inst"))
+SETTLE_X3_RULES((decl, ast::decl, "decl"), (default_, ast::default_stmt, "default_"),
+                (port_group, ast::port_group, "port_group"),
+                (block_head, ast::block_head, "block_head"), (binding, ast::binding, "binding"),
+                (inst, ast::inst_stmt, "inst"))
 
 // Stimulus: input changes, clocks and steps.
-SIM_X3_RULES((value_, char, "value_"), (assign, ast::assign, "assign"),
-             (assigns, std::vector<ast::assign>, "assigns"), (init, ast::init_stmt, "init"),
-             (timed, ast::timed_stmt, "timed"), (clock, ast::clock_stmt, "clock"),
-             (cycles_count, unsigned long long, "cycles_count"),
-             (settle_, ast::settle_stmt, "settle_"), (run, ast::run_stmt, "run"))
+SETTLE_X3_RULES((value_, char, "value_"), (assign, ast::assign, "assign"),
+                (assigns, std::vector<ast::assign>, "assigns"), (init, ast::init_stmt, "init"),
+                (timed, ast::timed_stmt, "timed"), (clock, ast::clock_stmt, "clock"),
+                (cycles_count, unsigned long long, "cycles_count"),
+                (settle_, ast::settle_stmt, "settle_"), (run, ast::run_stmt, "run"))
 
 // Expectations.
-SIM_X3_RULES((expect_within, ast::expect_within, "expect_within"),
-             (expect_glitch, ast::expect_glitch, "expect_glitch"),
-             (expect_word, ast::expect_word, "expect_word"),
-             (expect_body, ast::expect_body, "expect_body"), (expect, ast::expect_stmt, "expect"))
+SETTLE_X3_RULES((expect_within, ast::expect_within, "expect_within"),
+                (expect_glitch, ast::expect_glitch, "expect_glitch"),
+                (expect_word, ast::expect_word, "expect_word"),
+                (expect_body, ast::expect_body, "expect_body"),
+                (expect, ast::expect_stmt, "expect"))
 
 // Conditions of reaction rules and properties.
-SIM_X3_RULES((cond_or, ast::cond_or, "cond_or"), (cond_xor, ast::cond_xor, "cond_xor"),
-             (cond_and, ast::cond_and, "cond_and"), (cond_unary, ast::cond_unary, "cond_unary"),
-             (cond_primary, ast::cond_primary, "cond_primary"),
-             (cond_atom, ast::cond_atom, "cond_atom"))
+SETTLE_X3_RULES((cond_or, ast::cond_or, "cond_or"), (cond_xor, ast::cond_xor, "cond_xor"),
+                (cond_and, ast::cond_and, "cond_and"), (cond_unary, ast::cond_unary, "cond_unary"),
+                (cond_primary, ast::cond_primary, "cond_primary"),
+                (cond_atom, ast::cond_atom, "cond_atom"))
 
 // Reaction rules and properties.
-SIM_X3_RULES((count_, ast::name, "count_"), (count_raw, raw_range, "count_"),
-             (when_, ast::when_stmt, "when_"), (edge_part, ast::edge_part, "edge_part"),
-             (property, ast::property_stmt, "property"))
+SETTLE_X3_RULES((count_, ast::name, "count_"), (count_raw, raw_range, "count_"),
+                (when_, ast::when_stmt, "when_"), (edge_part, ast::edge_part, "edge_part"),
+                (property, ast::property_stmt, "property"))
 
 // Gauges and their expectations.
-SIM_X3_RULES((gauge_period, ast::gauge_period, "gauge_period"),
-             (gauge_pulse, ast::gauge_pulse, "gauge_pulse"),
-             (gauge_latency, ast::gauge_latency, "gauge_latency"),
-             (gauge_body, ast::gauge_body, "gauge_body"), (gauge, ast::gauge_stmt, "gauge"),
-             (expect_gauge, ast::expect_gauge, "expect_gauge"))
+SETTLE_X3_RULES((gauge_period, ast::gauge_period, "gauge_period"),
+                (gauge_pulse, ast::gauge_pulse, "gauge_pulse"),
+                (gauge_latency, ast::gauge_latency, "gauge_latency"),
+                (gauge_body, ast::gauge_body, "gauge_body"), (gauge, ast::gauge_stmt, "gauge"),
+                (expect_gauge, ast::expect_gauge, "expect_gauge"))
 
 // Comma-separated lists.
-SIM_X3_RULES((ref_list, std::vector<ast::name>, "ref_list"),
-             (name_list, std::vector<ast::name>, "name_list"),
-             (port_groups, std::vector<ast::port_group>, "port_groups"),
-             (bindings, std::vector<ast::binding>, "bindings"),
-             (args, std::vector<ast::arg>, "args"))
+SETTLE_X3_RULES((ref_list, std::vector<ast::name>, "ref_list"),
+                (name_list, std::vector<ast::name>, "name_list"),
+                (port_groups, std::vector<ast::port_group>, "port_groups"),
+                (bindings, std::vector<ast::binding>, "bindings"),
+                (args, std::vector<ast::arg>, "args"))
 statement_type const statement_rule = "statement";
 auto const ref_list_def = list(ref_);
 auto const name_list_def = list(name_);

@@ -7,13 +7,13 @@
 
 /// Declares one rule: its ID class is its name, and `description` is the
 /// name a diagnostic translates into words (describe()).
-#define SIM_X3_RULE(name, attribute, description) \
+#define SETTLE_X3_RULE(name, attribute, description) \
   ::boost::spirit::x3::rule<class name, attribute> const name = description;
 
-#define SIM_X3_RULE_EACH(r, data, rule) SIM_X3_RULE rule
+#define SETTLE_X3_RULE_EACH(r, data, rule) SETTLE_X3_RULE rule
 
 /// Declares the rules of a grammar from a list of `(name, attribute,
 /// "description")`, as BOOST_SPIRIT_DEFINE defines them from a list of names;
 /// `x3::unused_type` stands for no attribute.
-#define SIM_X3_RULES(...) \
-  BOOST_PP_SEQ_FOR_EACH(SIM_X3_RULE_EACH, _, BOOST_PP_VARIADIC_TO_SEQ(__VA_ARGS__))
+#define SETTLE_X3_RULES(...) \
+  BOOST_PP_SEQ_FOR_EACH(SETTLE_X3_RULE_EACH, _, BOOST_PP_VARIADIC_TO_SEQ(__VA_ARGS__))

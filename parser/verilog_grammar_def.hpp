@@ -75,26 +75,25 @@ using raw_range = boost::iterator_range<const char*>;
 ///////////////////////////////////////////////////////////////////////////////
 // Rules (the names are turned into words by describe() in verilog_grammar.cpp)
 ///////////////////////////////////////////////////////////////////////////////
-SIM_X3_RULES((ident_raw, raw_range, "identifier"), (ident, vast::raw, "identifier"),
-             (kind_raw, raw_range, "gate kind"), (gate_kind, vast::raw, "gate kind"),
-             (number, x3::unused_type, "number"), (based, x3::unused_type, "based constant"),
-             (select, x3::unused_type, "select"), (range_syn, x3::unused_type, "range"),
-             (range_raw, raw_range, "range"), (range_, vast::raw, "range"),
-             (term_raw, raw_range, "term"), (term, vast::raw, "term"),
-             (conn, vast::conn, "connection"), (mtm, x3::unused_type, "delay value"),
-             (delay_raw, raw_range, "delay"), (delay, vast::raw, "delay"),
-             (primary, x3::unused_type, "operand"), (unary, x3::unused_type, "operand"),
-             (and_e, x3::unused_type, "expression"), (xor_e, x3::unused_type, "expression"),
-             (or_e, x3::unused_type, "expression"), (cond_e, x3::unused_type, "expression"),
-             (expr_raw, raw_range, "expression"), (expr, vast::raw, "expression"),
-             (dir_word, std::string, "direction"), (port_item, vast::port_item, "port"),
-             (module_hdr, vast::module_hdr, "module header"),
-             (decl_kind, std::string, "declaration"), (decl_stmt, vast::decl_stmt, "declaration"),
-             (assign_item, vast::assign_item, "assignment"),
-             (assign_stmt, vast::assign_stmt, "assign"),
-             (gate_inst, vast::gate_inst, "gate terminals"), (gate_stmt, vast::gate_stmt, "gate"),
-             (udp_stmt, vast::gate_stmt, "gate"), (port_conn, vast::port_conn, "port connection"),
-             (mod_inst, vast::mod_inst, "instance"), (inst_stmt, vast::inst_stmt, "instance"))
+SETTLE_X3_RULES(
+    (ident_raw, raw_range, "identifier"), (ident, vast::raw, "identifier"),
+    (kind_raw, raw_range, "gate kind"), (gate_kind, vast::raw, "gate kind"),
+    (number, x3::unused_type, "number"), (based, x3::unused_type, "based constant"),
+    (select, x3::unused_type, "select"), (range_syn, x3::unused_type, "range"),
+    (range_raw, raw_range, "range"), (range_, vast::raw, "range"), (term_raw, raw_range, "term"),
+    (term, vast::raw, "term"), (conn, vast::conn, "connection"),
+    (mtm, x3::unused_type, "delay value"), (delay_raw, raw_range, "delay"),
+    (delay, vast::raw, "delay"), (primary, x3::unused_type, "operand"),
+    (unary, x3::unused_type, "operand"), (and_e, x3::unused_type, "expression"),
+    (xor_e, x3::unused_type, "expression"), (or_e, x3::unused_type, "expression"),
+    (cond_e, x3::unused_type, "expression"), (expr_raw, raw_range, "expression"),
+    (expr, vast::raw, "expression"), (dir_word, std::string, "direction"),
+    (port_item, vast::port_item, "port"), (module_hdr, vast::module_hdr, "module header"),
+    (decl_kind, std::string, "declaration"), (decl_stmt, vast::decl_stmt, "declaration"),
+    (assign_item, vast::assign_item, "assignment"), (assign_stmt, vast::assign_stmt, "assign"),
+    (gate_inst, vast::gate_inst, "gate terminals"), (gate_stmt, vast::gate_stmt, "gate"),
+    (udp_stmt, vast::gate_stmt, "gate"), (port_conn, vast::port_conn, "port connection"),
+    (mod_inst, vast::mod_inst, "instance"), (inst_stmt, vast::inst_stmt, "instance"))
 statement_type const statement_rule = "statement";
 
 auto const ident_raw_def = x3::raw[x3::lexeme[id_chars]];
