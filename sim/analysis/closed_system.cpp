@@ -19,6 +19,9 @@ constexpr unsigned pending_bits = 2;
 constexpr std::uint64_t pending_most = (1u << pending_bits) - 1;
 // Findings of one kind listed per step.
 constexpr std::size_t most_listed = 64;
+// Paths kept per property and per gate: when the shortest is not feasible in
+// time, the next ones are tried.
+constexpr std::size_t candidates_kept = 16;
 
 // Where each part of a state lies among its bits: the gate outputs first (so
 // the open explorer's analyses read them as they are), then the inputs, then
@@ -199,7 +202,8 @@ struct step_store {
   std::vector<std::uint32_t> origin;  ///< per start state: the previous step's state
   std::vector<assignment> changes;
   std::vector<std::uint8_t> active, fresh, props;  ///< rules active, activated here; properties
-  std::vector<finding_at> deadlock_at, property_at, hazard_at;
+  std::vector<finding_at> deadlock_at;
+  std::vector<std::vector<finding_at>> property_at, hazard_at;  ///< candidates, shortest first
 };
 
 class closed_explorer {
@@ -339,9 +343,12 @@ class closed_explorer {
         note(sk.property_at, p, finding_at{id, {}});
   }
 
-  static void note(std::vector<finding_at>& list, std::size_t i, finding_at f) {
+  static bool wanted(const std::vector<std::vector<finding_at>>& list, std::size_t i) {
+    return list.size() <= i || list[i].size() < candidates_kept;
+  }
+  static void note(std::vector<std::vector<finding_at>>& list, std::size_t i, finding_at f) {
     if (list.size() <= i) list.resize(i + 1);
-    if (list[i].at == no_id) list[i] = std::move(f);
+    if (list[i].size() < candidates_kept) list[i].push_back(std::move(f));
   }
 
   // Breadth-first over the step's states, as state_graph::explore does over
@@ -451,11 +458,10 @@ class closed_explorer {
                           const std::vector<gate_id>& excited,
                           const std::vector<closed_event>& subset, std::uint32_t i) {
     for (std::uint32_t p = 0; p < d_.stim.properties.size(); ++p)
-      if (sk.props[p] && (sk.property_at.size() <= p || sk.property_at[p].at == no_id) &&
-          m_.violates(d_.stim.properties[p], cur, next))
+      if (sk.props[p] && wanted(sk.property_at, p) && m_.violates(d_.stim.properties[p], cur, next))
         note(sk.property_at, p, finding_at{i, subset});
     for (gate_id k : excited) {
-      if (sk.hazard_at.size() > k && sk.hazard_at[k].at != no_id) continue;
+      if (!wanted(sk.hazard_at, k)) continue;
       const bool fired = std::any_of(subset.begin(), subset.end(), [&](const closed_event& e) {
         return e.what == closed_event::kind::gate && e.id == k;
       });
@@ -593,14 +599,11 @@ class closed_explorer {
       st.deadlocks.push_back(std::move(dl));
     }
     for (auto& cp : st.properties) {
-      if (sk.property_at.size() <= cp.index || sk.property_at[cp.index].at == no_id) continue;
-      const finding_at& f = sk.property_at[cp.index];
+      if (sk.property_at.size() <= cp.index || sk.property_at[cp.index].empty()) continue;
       cp.holds = false;
+      const finding_at& f =
+          choose(k, sk.property_at[cp.index], timed_problem::kind::property, cp.index, cp.timed);
       cp.path = full_path(k, f);
-      timed_problem p = problem(k, f);
-      p.what = timed_problem::kind::property;
-      p.property = cp.index;
-      cp.timed = check_timed(d_, p);
     }
     std::vector<std::uint8_t> reported_gate(n_.gate_count(), 0);
     for (net_id r : res_.reported)
@@ -609,18 +612,40 @@ class closed_explorer {
     // reported nets whose gate is not persistent.
     st.hazards.clear();
     for (gate_id g = 0; g < sk.hazard_at.size(); ++g) {
-      const finding_at& f = sk.hazard_at[g];
-      if (f.at == no_id) continue;
+      if (sk.hazard_at[g].empty()) continue;
       closed_hazard h;
       h.gate = g;
       h.output = reported_gate[g];
       if (h.output) st.hazards.push_back(n_.gate_out[g]);
-      h.path = full_path(k, f);
-      timed_problem p = problem(k, f);
-      p.what = timed_problem::kind::hazard;
-      h.timed = check_timed(d_, p);
+      h.path = full_path(k, choose(k, sk.hazard_at[g], timed_problem::kind::hazard, 0, h.timed));
       st.nonpersistent.push_back(std::move(h));
     }
+  }
+
+  // The first candidate, shortest first, whose path is feasible in time; the
+  // shortest when none is, its check saying how many were tried.
+  const finding_at& choose(std::size_t k, const std::vector<finding_at>& candidates,
+                           timed_problem::kind what, std::uint32_t property,
+                           timed_check& out) const {
+    bool exact = true;
+    for (const auto& f : candidates) {
+      timed_problem p = problem(k, f);
+      p.what = what;
+      p.property = property;
+      timed_check t = check_timed(d_, p);
+      if (t.feasible) {
+        out = std::move(t);
+        return f;
+      }
+      exact = exact && t.exact;
+      if (&f == &candidates.front()) out = std::move(t);
+    }
+    if (candidates.size() > 1) {
+      out.exact = exact;
+      out.why += fmt::format("; {} other paths to it were tried, none {}", candidates.size() - 1,
+                             exact ? "feasible" : "found feasible");
+    }
+    return candidates.front();
   }
 
   const design& d_;
