@@ -581,11 +581,44 @@ const char* const html_script = R"SETTLE((function () {
     });
     return svg;
   }
+  // A closed system's firing sequence: instants in order, the firings of one instant together.
+  function pathText(p) {
+    if (!p || !p.length) return 'at the step\u2019s start';
+    return p.map(function (inst) {
+      var t = inst.map(function (f) { return f.gate !== undefined ? f.gate + '=' + f.value : 'rule ' + f.rule; }).join(' ');
+      return inst.length > 1 ? '(' + t + ')' : t;
+    }).join(' \u2192 ');
+  }
+  function timedCell(t) {
+    if (!t) return '';
+    if (t.feasible) return el('div', {}, [el('code', { text: t.replay || t.corner }), el('div', { cls: 'legend', text: t.confirmed ? 'replayed in the timed kernel' : 'not confirmed: ' + (t.why || '') })]);
+    return el('span', { text: (t.exact ? 'no delays within the ranges' : 'not decided') + (t.why ? ': ' + t.why : '') });
+  }
+  function closedFindings(body, st) {
+    if (st.deadlocks === undefined) return;
+    body.appendChild(el('h3', { text: 'deadlocks (quiet while a rule is owed)' }));
+    if (st.deadlocks.length) body.appendChild(table(['state bits', 'inputs', 'owed', 'firing sequence', 'timed'], st.deadlocks.map(function (x) {
+      return [el('code', { text: x.state }), chips(x.inputs), x.owed.map(function (o) { return 'rule ' + o.rule + ' (' + o.fired + ' of ' + o.times + ')'; }).join(', '), pathText(x.path), timedCell(x.timed)];
+    })));
+    else body.appendChild(el('p', { text: st.complete ? 'none reachable' : 'none found (incomplete)' }));
+    if (st.properties.length) {
+      body.appendChild(el('h3', { text: 'properties' }));
+      body.appendChild(table(['property', 'verdict', 'firing sequence', 'timed'], st.properties.map(function (x) {
+        return [el('code', { text: x.text }), x.holds ? (x.proved ? 'holds' : 'not violated (incomplete)') : 'VIOLATED', x.holds ? '' : pathText(x.path), timedCell(x.timed)];
+      })));
+    }
+    body.appendChild(el('h3', { text: 'gates not persistent (excited, then disabled without firing)' }));
+    if (st.nonpersistent.length) body.appendChild(table(['gate', 'output', 'firing sequence', 'timed'], st.nonpersistent.map(function (x) {
+      return [el('code', { text: x.gate }), x.output ? 'yes' : 'no', pathText(x.path), timedCell(x.timed)];
+    })));
+    else body.appendChild(el('p', { text: st.complete ? 'every gate is persistent' : 'none found (incomplete)' }));
+  }
   function exploreSteps(target, R, D) {
     (R.steps || []).forEach(function (st) {
       var race = st.critical_race === true, stuck = st.must_oscillate === true, may = st.may_oscillate === true;
-      var cls = race ? 'e-race' : stuck ? 'e-stuck' : may ? 'e-maybe' : 'e-one';
-      var word = race ? 'critical race' : stuck ? 'stuck oscillating' : may ? 'may oscillate' : (st.stable.length === 1 ? 'one stable state' : st.stable.length + ' stable states');
+      var dead = (st.deadlocks || []).length > 0, broken = (st.properties || []).some(function (p) { return !p.holds; });
+      var cls = dead || broken || race ? 'e-race' : stuck ? 'e-stuck' : may ? 'e-maybe' : 'e-one';
+      var word = dead ? 'deadlock' : broken ? 'property violated' : race ? 'critical race' : stuck ? 'stuck oscillating' : may ? 'may oscillate' : (st.stable.length === 1 ? 'one stable state' : st.stable.length + ' stable states');
       var sec = el('section', { cls: 'step', 'data-step': st.index });
       sec.appendChild(banner(cls, word, 'step ' + st.index + ': ' + st.label, st.states + ' states \u00b7 ' + st.edges + ' edges' + (st.complete ? '' : ' \u00b7 incomplete')));
       var body = el('div', { cls: 'body' });
@@ -596,6 +629,7 @@ const char* const html_script = R"SETTLE((function () {
       body.appendChild(el('p', {}, ['ternary simulation: ', chips(st.ternary)]));
       body.appendChild(el('p', { text: 'may oscillate: ' + st.may_oscillate + ' \u00b7 must oscillate: ' + st.must_oscillate + ' \u00b7 non-critical race: ' + st.noncritical_race + ' \u00b7 hazards (' + st.hazards_from + '): ' + (st.hazards.length ? st.hazards.join(', ') : 'none') }));
       if (st.stopped) body.appendChild(el('p', { cls: 'note', text: 'stopped: ' + st.stopped }));
+      closedFindings(body, st);
       var g = (D.graphs || []).filter(function (x) { return x.step === st.index; })[0];
       if (g) {
         body.appendChild(el('h3', { text: 'state graph (layers by firing depth; filled squares are stable states, thick outlines start states)' }));
