@@ -180,14 +180,27 @@ culprit_report find_culprits(const design& d, const run_options& opt, std::size_
     if (pick != no_id) rep.path[side] = trace_back(n, *logs[side], pick, s.start, s.end);
   }
 
+  // A gate moves with its arcs, when it has them.
+  auto arc_range = [&](gate_id g) {
+    const std::size_t first = n.has_arcs(g) ? n.arc_at[g] : 0;
+    return std::pair{first, first + n.arcs_of(g).size()};
+  };
   std::vector<std::uint32_t> differing;
-  for (gate_id g = 0; g < n.gate_count(); ++g)
-    if (a.rise[g] != b.rise[g] || a.fall[g] != b.fall[g]) differing.push_back(g);
+  for (gate_id g = 0; g < n.gate_count(); ++g) {
+    bool differs = a.rise[g] != b.rise[g] || a.fall[g] != b.fall[g];
+    for (auto [k, end] = arc_range(g); k < end; ++k)
+      differs = differs || a.arc_rise[k] != b.arc_rise[k] || a.arc_fall[k] != b.arc_fall[k];
+    if (differs) differing.push_back(g);
+  }
   rep.differing = differing.size();
   delay_table mixed;
   auto flips = [&](const std::vector<std::uint32_t>& moved) {
     mixed = a;
-    for (auto g : moved) mixed.rise[g] = b.rise[g], mixed.fall[g] = b.fall[g];
+    for (auto g : moved) {
+      mixed.rise[g] = b.rise[g], mixed.fall[g] = b.fall[g];
+      for (auto [k, end] = arc_range(g); k < end; ++k)
+        mixed.arc_rise[k] = b.arc_rise[k], mixed.arc_fall[k] = b.arc_fall[k];
+    }
     return outcome_key(run_stimulus(ctx, d, mixed, opt), step) == key_b;
   };
   const auto gates = ddmin(differing, flips, max_tests, &rep.tests);

@@ -110,6 +110,10 @@ void scale_delays(const design& d, double w, design& out) {
     to[r].rise = scaled(from[r].rise, w);
     to[r].fall = scaled(from[r].fall, w);
   }
+  for (std::size_t a = 0; a < d.nets.arcs.size(); ++a) {
+    out.nets.arcs[a].rise = scaled(d.nets.arcs[a].rise, w);
+    out.nets.arcs[a].fall = scaled(d.nets.arcs[a].fall, w);
+  }
   for (std::size_t r = 0; r < d.stim.rules.size(); ++r)
     out.stim.rules[r].delay = scaled(d.stim.rules[r].delay, w);
 }

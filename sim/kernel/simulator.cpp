@@ -56,6 +56,9 @@ simulator::simulator(const netlist& n)
       // Off the table paths, which are inertial.
       if (gate_[g].op < lut_rows) gate_[g].op = gate_rec::general;
     }
+  arcs_ = !n.arcs.empty();
+  for (gate_id g = 0; g < gates && arcs_; ++g)  // off the table paths, whose delay is the gate's
+    if (n.has_arcs(g) && gate_[g].op < lut_rows) gate_[g].op = gate_rec::general;
 }
 
 // Gates of one or two inputs (and two-input C-elements) evaluate by one table
@@ -191,6 +194,12 @@ void simulator::reset(const delay_table& delays) {
       gate_[g].shorter = delays.fall[g] < delays.rise[g];
     }
   }
+  if (arcs_) {
+    SETTLE_CHECK(delays.arc_rise.size() == n_.arcs.size(), "the delay table has every arc's delay");
+    changed_at_.assign(n_.net_count(), std::numeric_limits<time_fs>::max());
+    arc_rise_ = delays.arc_rise;
+    arc_fall_ = delays.arc_fall;
+  }
   std::fill(toggles_.begin(), toggles_.end(), 0);
   for (auto& q : tq_) q.clear();
   queue_.clear();
@@ -210,7 +219,31 @@ void simulator::track_state(bool on) {
     for (net_id i = 0; i < val_.size(); ++i) hash_ ^= value_key(i, val_[i]);
 }
 
+// A change caused by inputs that changed now takes the largest of their arcs'
+// delays (the latest arrival); with none to name (the first evaluation) the
+// largest of all its arcs, which the delay table gives the gate itself.
+time_fs simulator::arc_delay_of(gate_id g, logic from, logic to) const {
+  time_fs r = 0, f = 0;
+  bool named = false;
+  const std::uint32_t first = n_.fanin_begin[g], count = n_.fanin_begin[g + 1] - first;
+  const std::uint32_t at = n_.arc_at[g];
+  for (std::uint32_t k = 0; k < count; ++k)
+    if (changed_at_[n_.fanin[first + k]] == now_) {
+      named = true;
+      r = std::max(r, arc_rise_[at + k]);
+      f = std::max(f, arc_fall_[at + k]);
+    }
+  if (!named) {
+    r = wide_ ? wide_delay_[g].rise : gate_[g].delay[0];
+    f = wide_ ? wide_delay_[g].fall : gate_[g].delay[1];
+  }
+  const time_fs edge = to == logic::one ? r : f, shorter = r < f ? r : f;
+  return (static_cast<unsigned>(from) | static_cast<unsigned>(to)) & 2u ? shorter : edge;
+}
+
 SETTLE_HOT time_fs simulator::delay_of(gate_id g, logic from, logic to) const {
+  if (arcs_ && n_.has_arcs(g)) [[unlikely]]
+    return arc_delay_of(g, from, to);
   const gate_rec& d = gate_[g];
   const time_fs r = wide_ ? wide_delay_[g].rise : d.delay[0],
                 f = wide_ ? wide_delay_[g].fall : d.delay[1];
@@ -257,6 +290,7 @@ SETTLE_HOT void simulator::schedule(gate_id g, logic v, time_fs t) {
 template <bool Plain>
 SETTLE_HOT void simulator::change_value(net_id net, logic v, time_fs t) {
   if (!Plain && tracking_) hash_ ^= value_key(net, val_[net]) ^ value_key(net, v);
+  if (!Plain && arcs_) changed_at_[net] = t;
   val_[net] = v;
   ++events_;
   last_change_ = t;
@@ -480,7 +514,7 @@ std::uint64_t simulator::run_quiet(time_fs last, std::uint64_t max_instants,
   }
   // Without trace or hash, and with every delay within the queue's reach,
   // the loop skips their tests and the queue's checks on each push.
-  if (!sink_ && !tracking_ && within_reach_ && !wide_)
+  if (!sink_ && !tracking_ && within_reach_ && !wide_ && !arcs_)
     return run_loop<true>(last, n, instant_cap, event_cap);
   return run_loop<false>(last, n, instant_cap, event_cap);
 }

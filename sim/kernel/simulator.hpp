@@ -106,6 +106,7 @@ class simulator {
   void apply_front(std::span<const queued_event> front, time_fs t);
   void prefetch_ahead();
   time_fs delay_of(gate_id g, logic from, logic to) const;
+  time_fs arc_delay_of(gate_id g, logic from, logic to) const;
   void gather_pending(std::vector<std::pair<std::uint64_t, std::uint64_t>>& out) const;
   void flush_trace();
 
@@ -161,6 +162,11 @@ class simulator {
   // A delay of 2^32 fs (4.3 us) or more anywhere puts every delay here instead.
   std::vector<edge_delays> wide_delay_;
   bool wide_ = false;
+  // Pin-to-pin delays: when the netlist has arcs, every net's last change
+  // time (kept off the plain path, which such a design never takes) and this
+  // run's delay of each arc.
+  bool arcs_ = false;
+  std::vector<time_fs> changed_at_, arc_rise_, arc_fall_;
   bool within_reach_ = false;
   time_fs largest_delay_ =
       0;  // of this run's delay table  // every delay of this run shorter than queue_.reach()

@@ -78,9 +78,16 @@ gate_variables variables_of(const gate_delay& d) {
   return v;
 }
 
+std::uint32_t gate_variable_count(const netlist& n, gate_id g) {
+  if (!n.has_arcs(g)) return variables_of(n.delay[g]).count();
+  std::uint32_t count = 0;
+  for (const auto& a : n.arcs_of(g)) count += variables_of(a).count();
+  return count;
+}
+
 std::size_t delay_variables(const design& d) {
   std::size_t count = 0;
-  for (gate_id g = 0; g < d.nets.gate_count(); ++g) count += variables_of(d.nets.delay[g]).count();
+  for (gate_id g = 0; g < d.nets.gate_count(); ++g) count += gate_variable_count(d.nets, g);
   for (const auto& r : d.stim.rules) count += !fixed(r.delay);
   return count;
 }
@@ -233,16 +240,23 @@ void fill_delays(const netlist& n, const corner& c, delay_table& out) {
   out.rule_var.clear();
   const std::uint64_t key = corner_key(c.seed, c.index);
   out.gate_vars = 0;
+  out.arc_rise.resize(n.arcs.size());
+  out.arc_fall.resize(n.arcs.size());
   if (c.what == corner::kind::fixed) {
     detail::fill_fixed(n, c.fixed ? *c.fixed : fixed_delays{}, out);
+    // A fixed: corner names gates: every arc of a gate takes the gate's delays.
+    for (gate_id g = 0; g < gates; ++g)
+      for (std::size_t k = 0; k < n.arcs_of(g).size(); ++k)
+        out.arc_rise[n.arc_at[g] + k] = out.rise[g], out.arc_fall[n.arc_at[g] + k] = out.fall[g];
     return;
   }
   out.rise.resize(gates);
   out.fall.resize(gates);
   const bool enumerating = c.what == corner::kind::extremes || c.what == corner::kind::exhaustive;
   std::uint64_t var = 0;  // the next corner variable's number
-  for (gate_id g = 0; g < gates; ++g) {
-    const gate_delay& d = n.delay[g];
+  // One delay record's rise and fall at this corner; `stream` keys its draws.
+  auto delays_of = [&](const gate_delay& d, std::uint64_t stream, gate_id g, time_fs& rise_out,
+                       time_fs& fall_out) {
     const delay_range rise = scaled(d.rise, c.spread);
     const delay_range fall = scaled(d.fall, c.spread);
     if (enumerating) {
@@ -251,9 +265,9 @@ void fill_delays(const netlist& n, const corner& c, delay_table& out) {
       if (v.rise) ++var;
       const std::uint64_t fall_var = v.shared ? rise_var : var;
       if (v.fall && !v.shared) ++var;
-      out.rise[g] = v.rise ? enumerated(c, rise_var, rise) : rise.min;
-      out.fall[g] = v.fall ? enumerated(c, fall_var, fall) : fall.min;
-      continue;
+      rise_out = v.rise ? enumerated(c, rise_var, rise) : rise.min;
+      fall_out = v.fall ? enumerated(c, fall_var, fall) : fall.min;
+      return;
     }
     // Draws are keyed by (gate, edge), not by variable: a random corner's
     // name means the same delays whatever the other gates are.
@@ -264,15 +278,30 @@ void fill_delays(const netlist& n, const corner& c, delay_table& out) {
         case corner::kind::max:
           return r.max;
         case corner::kind::random:
-          return uniform(draw(key, g, edge, 0), r.min, r.max);
+          return uniform(draw(stream, g, edge, 0), r.min, r.max);
         case corner::kind::gauss:
-          return gaussian(draw(key, g, edge, 0), draw(key, g, edge, 1), r);
+          return gaussian(draw(stream, g, edge, 0), draw(stream, g, edge, 1), r);
         default:
           return r.typ;
       }
     };
-    out.rise[g] = pick(rise, 0);
-    out.fall[g] = pick(fall, 1);
+    rise_out = pick(rise, 0);
+    fall_out = pick(fall, 1);
+  };
+  for (gate_id g = 0; g < gates; ++g) {
+    if (!n.has_arcs(g)) {
+      delays_of(n.delay[g], key, g, out.rise[g], out.fall[g]);
+      continue;
+    }
+    // Each arc draws from a stream of its own; the gate keeps the largest.
+    out.rise[g] = out.fall[g] = 0;
+    const auto arcs = n.arcs_of(g);
+    for (std::size_t k = 0; k < arcs.size(); ++k) {
+      const std::size_t a = n.arc_at[g] + k;
+      delays_of(arcs[k], mix(key ^ (0x61726300ull + k)), g, out.arc_rise[a], out.arc_fall[a]);
+      out.rise[g] = std::max(out.rise[g], out.arc_rise[a]);
+      out.fall[g] = std::max(out.fall[g], out.arc_fall[a]);
+    }
   }
   out.gate_vars = var;
 }

@@ -30,6 +30,8 @@ gate_variables variables_of(const gate_delay& d);
 /// (variables_of), then each reaction rule whose delay is a range (a fixed
 /// `after` is no variable). What `extremes` and `exhaustive` enumerate.
 std::size_t delay_variables(const design& d);
+/// Gate g's corner variables: its delay's, or with arcs the sum of its arcs'.
+std::uint32_t gate_variable_count(const netlist& n, gate_id g);
 
 struct fixed_delays;
 
@@ -119,6 +121,10 @@ std::uint64_t fixed_rule_firings(const corner& c, std::uint32_t rule);
 /// number among the corner variables (a fixed rule has none).
 struct delay_table {
   std::vector<time_fs> rise, fall;
+  /// Per arc (netlist::arcs), when the netlist has any; a gate with arcs
+  /// then has in rise/fall the largest of its arcs' delays, which the kernel
+  /// takes where no input change can be named (the first evaluation).
+  std::vector<time_fs> arc_rise, arc_fall;
   corner which;
   std::uint64_t gate_vars = 0;          ///< corner variables of the gates
   std::vector<std::uint64_t> rule_var;  ///< per rule; none_var for a fixed delay

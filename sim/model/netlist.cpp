@@ -4,6 +4,8 @@
 #include <algorithm>
 #include <functional>
 
+#include "sim/model/check.hpp"
+
 namespace settle {
 
 const char* kind_name(gate_kind k) {
@@ -26,6 +28,10 @@ void gate_delays::push_back(const gate_delay& d) {
     index_.push_back(index_.back());
     return;
   }
+  index_.push_back(record_for(d));
+}
+
+std::uint32_t gate_delays::record_for(const gate_delay& d) {
   const auto h = hash(d);
   auto r = lookup_.find(h, [&](std::uint32_t i) { return records_[i] == d; });
   if (r == no_id) {
@@ -33,7 +39,26 @@ void gate_delays::push_back(const gate_delay& d) {
     records_.push_back(d);
     lookup_.insert(h, r, [&](std::uint32_t i) { return hash(records_[i]); });
   }
-  index_.push_back(r);
+  return r;
+}
+
+void netlist::set_arcs(gate_id g, std::span<const gate_delay> a) {
+  SETTLE_CHECK(a.size() == fanin_begin[g + 1] - fanin_begin[g] && !a.empty(),
+               "set_arcs takes one delay per fan-in");
+  if (arc_at.empty()) arc_at.assign(gate_count(), no_id);
+  arc_at[g] = static_cast<std::uint32_t>(arcs.size());
+  arcs.insert(arcs.end(), a.begin(), a.end());
+  gate_delay env = a.front();
+  env.transport = delay[g].transport;
+  for (const auto& d : a) {
+    for (auto [e, x] : {std::pair{&env.rise, &d.rise}, std::pair{&env.fall, &d.fall}}) {
+      e->min = std::min(e->min, x->min);
+      e->max = std::max(e->max, x->max);
+      e->typ = std::clamp(std::max(e->typ, x->typ), e->min, e->max);
+    }
+  }
+  for (auto& d : arcs) d.transport = env.transport;
+  delay.assign(g, env);
 }
 
 time_fs netlist::largest_max_delay() const {

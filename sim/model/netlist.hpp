@@ -3,6 +3,7 @@
 
 #include <algorithm>
 #include <cstdint>
+#include <span>
 #include <string>
 #include <string_view>
 #include <unordered_map>
@@ -73,6 +74,8 @@ class gate_delays {
   void reserve(std::size_t gates) { index_.reserve(gates); }
   /// Appends the next gate's delay, sharing an equal record when there is one.
   void push_back(const gate_delay& d);
+  /// Gives gate g the delay d (sharing an equal record when there is one).
+  void assign(gate_id g, const gate_delay& d) { index_[g] = record_for(d); }
   /// The distinct records; changing one changes every gate that shares it.
   std::vector<gate_delay>& records() { return records_; }
   const std::vector<gate_delay>& records() const { return records_; }
@@ -81,6 +84,7 @@ class gate_delays {
 
  private:
   static std::size_t hash(const gate_delay& d);
+  std::uint32_t record_for(const gate_delay& d);
   std::vector<gate_delay> records_;
   std::vector<std::uint32_t> index_;
   id_table lookup_;
@@ -126,7 +130,14 @@ struct netlist {
   std::vector<net_id> fanin;
   std::vector<std::uint32_t> code_begin;  ///< CSR over gates: programs of expr/gc gates
   std::vector<std::uint32_t> code;
-  gate_delays delay;                 ///< delay[g]: gate g's delays
+  gate_delays delay;  ///< delay[g]: gate g's delays
+  /// Pin-to-pin delays: a gate with arcs has one delay per fan-in, arc k
+  /// timing the output changes that a change of fan-in k causes. Gate g's
+  /// arcs are arcs[arc_at[g] ..] when arc_at is not empty and arc_at[g] is
+  /// not no_id; its `delay` is then their envelope (each edge from the
+  /// smallest min to the largest max), for whatever needs one range.
+  std::vector<std::uint32_t> arc_at;
+  std::vector<gate_delay> arcs;
   std::vector<source_loc> gate_loc;  ///< where each gate was written
   /// Set by finish(): gates whose exact ternary value needs enumeration of
   /// their x inputs (complex gates, and primitives that read a net twice or
@@ -150,6 +161,15 @@ struct netlist {
   bool add_name(std::string full_name, net_id id);
   /// Sizes the name index (and the net arrays) for `nets` nets.
   void reserve_nets(std::size_t nets);
+  bool has_arcs(gate_id g) const { return !arc_at.empty() && arc_at[g] != no_id; }
+  /// Gate g's arcs, in fan-in order (empty when it has none).
+  std::span<const gate_delay> arcs_of(gate_id g) const {
+    if (!has_arcs(g)) return {};
+    return {arcs.data() + arc_at[g], fanin_begin[g + 1] - fanin_begin[g]};
+  }
+  /// Gives gate g one delay per fan-in (`a` has its fan-in count of them) and
+  /// sets its delay to their envelope; transport follows the gate's own.
+  void set_arcs(gate_id g, std::span<const gate_delay> a);
   /// Largest max delay over all gates and edges (0 for an empty netlist).
   time_fs largest_max_delay() const;
   /// Smallest nonzero min delay over all gates and edges (0 when there is none).
