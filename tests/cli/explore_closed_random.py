@@ -15,6 +15,8 @@
 #   evaluation of the gates in Python (the gate kinds' Boolean functions, common practice; the
 #   C-element's hold, Muller and Bartky 1959), with the owed counts equal to the rule firings
 #   along the path.
+# - Under the single-firing model, explore's deadlock states are those a breadth-first search of
+#   our own finds (reference_deadlocks, reachability by networkx).
 import itertools
 import os
 import random
@@ -150,6 +152,64 @@ def replay_path(sys_, d, order, what):
     check(owed, f"{what}: a deadlock with no owed rule")
 
 
+def reference_deadlocks(sys_):
+    """The deadlock states of the single-firing model, found by a breadth-first search of our own
+    over the states (gate outputs, inputs, and per rule its pending firings and the firings it has
+    scheduled), with the successor relation read off LANGUAGE.md's rule semantics: one excited
+    gate fires or one pending firing applies; then every rule whose condition turned from false to
+    true, and which has scheduled fewer than `times` firings, schedules one more. Reachability by
+    networkx (Debian python3-networkx, descendants). Returns {(gate state, inputs)}."""
+    import networkx as nx
+    names = sys_.gates + sys_.inputs
+    nr = len(sys_.rules)
+
+    def cond(r, v):
+        return all(v[n] == want for n, want in r["lits"])
+
+    def after(v, pend, sched, before):
+        pend, sched = list(pend), list(sched)
+        for k, r in enumerate(sys_.rules):
+            if not cond(r, before) and cond(r, v) and sched[k] < r["times"]:
+                pend[k] += 1
+                sched[k] += 1
+        return tuple(v[n] for n in names), tuple(pend), tuple(sched)
+
+    v0 = {**{i: 0 for i in sys_.inputs}, **sys_.init}
+    # At the rules' line a rule whose condition already holds triggers (LANGUAGE.md).
+    pend0 = tuple(1 if cond(r, v0) else 0 for r in sys_.rules)
+    start = (tuple(v0[n] for n in names), pend0, pend0)
+    g = nx.DiGraph()
+    g.add_node(start)
+    todo = [start]
+    while todo:
+        st = todo.pop()
+        v = dict(zip(names, st[0]))
+        succ = []
+        for gate in sys_.excited_gates(v):
+            w = dict(v)
+            w[gate] = 1 - v[gate]
+            succ.append(after(w, st[1], st[2], v))
+        for k in range(nr):
+            if st[1][k]:
+                w = dict(v)
+                w[sys_.rules[k]["net"]] = sys_.rules[k]["value"]
+                pend = list(st[1])
+                pend[k] -= 1
+                succ.append(after(w, pend, st[2], v))
+        for t in succ:
+            if t not in g:
+                todo.append(t)
+            g.add_edge(st, t)
+    reach = nx.descendants(g, start) | {start}
+    out = set()
+    for st in reach:
+        v = dict(zip(names, st[0]))
+        if not sys_.excited_gates(v) and not any(st[1]) and any(
+                st[2][k] < r["times"] for k, r in enumerate(sys_.rules)):
+            out.add(("".join(str(v[x]) for x in sys_.gates), tuple(v[i] for i in sys_.inputs)))
+    return out
+
+
 def sweep_statuses(binary, path, seed, what):
     """Per step, the set of statuses of a random sweep's outcomes."""
     p = subprocess.run([binary, "sweep", path, "--corners", "random:200", "--seed", str(seed), "--horizon", HORIZON,
@@ -164,7 +224,7 @@ def sweep_statuses(binary, path, seed, what):
 
 def random_systems(binary, tmp):
     rng = random.Random(SEED)
-    counts = dict(explored=0, incomplete=0, with_deadlock=0, feasible=0, replayed=0, swept_deadlock=0)
+    counts = dict(reference_deadlocks=0, explored=0, incomplete=0, with_deadlock=0, feasible=0, replayed=0, swept_deadlock=0)
     for n in range(SYSTEMS):
         s = System(rng, n)
         path = write_file(tmp, f"sys{n:03d}.settle", s.text())
@@ -202,6 +262,16 @@ def random_systems(binary, tmp):
             check(t.get("confirmed") is (got == "deadlock"),
                   f"{dw}: explore says confirmed={t.get('confirmed')}, the replay by run gives {got}")
             counts["replayed"] += got == "deadlock"
+        # The single-firing model's deadlock states against our own search of the same model.
+        rc1, one = explore(binary, path, what + " --model single", model="single")
+        if one is not None and all(st.get("complete", True) for st in one.get("steps") or []):
+            got = {("".join(d.get("state", "")[order.index(x)] for x in s.gates if x in order),
+                    tuple(d.get("inputs", {}).get(i) for i in s.inputs)) for _, d in findings(one, "deadlocks")}
+            want = reference_deadlocks(s)
+            counts["reference_deadlocks"] += len(want)
+            if len(got) < 64:  # the engine lists at most 64 findings of a kind per step
+                check(got == want, f"{what} --model single: deadlock states {sorted(got)}, our own search of "
+                      f"the model finds {sorted(want)}")
         statuses = sweep_statuses(binary, path, n + 1, what)
         if statuses is None:
             continue
