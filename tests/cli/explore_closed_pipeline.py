@@ -11,11 +11,14 @@
 #   copy it: p3 can be disabled before it fires (derived by hand from the gate equations: p1 falls
 #   once sample_req is withdrawn and e2 has fallen, and AND(p1, e3) follows p1 without waiting for
 #   p3), a non-persistent gate on a reported net.
+# - Under the single-firing model, the non-persistent gates and the deadlock states explore reports
+#   are those a search of our own finds (tests/support/closed_reference.py, networkx reachability).
 import os
 import sys
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
 from settle_test import check, run_cases  # noqa: E402
+from closed_reference import parsed_system, reference_deadlocks, reference_nonpersistent  # noqa: E402
 from explore_closed import (closed_data, explore, findings, has_closed_fields, path_is_well_formed,  # noqa: E402
                             timed_is_well_formed)
 
@@ -77,5 +80,32 @@ def and_gate_place(binary, tmp):
           "sensor_pipeline_and --model single: p3 not reported non-persistent")
 
 
+def against_reference(binary, tmp):
+    for name in ("sensor_pipeline.settle", "sensor_pipeline_and.settle"):
+        path = closed_data(SRC, name)
+        model = parsed_system(path)
+        want_np, want_dead = reference_nonpersistent(model), reference_deadlocks(model)
+        print(f"{name}: our own search finds non-persistent {sorted(want_np)}, deadlocks {sorted(want_dead)}")
+        rc, doc = explore(binary, path, f"{name} --model single", model="single")
+        if doc is None:
+            continue
+        got_np = {h.get("gate") for _, h in findings(doc, "nonpersistent")}
+        check(got_np == want_np, f"{name} --model single: non-persistent {sorted(got_np)}, our search {sorted(want_np)}")
+        order = doc.get("state_order") or []
+        got_dead = {("".join(d.get("state", "")[order.index(g)] for g in model.gates if g in order),
+                     tuple(d.get("inputs", {}).get(i) for i in model.inputs)) for _, d in findings(doc, "deadlocks")}
+        check(got_dead == want_dead, f"{name} --model single: deadlocks {sorted(got_dead)}, our search {sorted(want_dead)}")
+        # Every single-firing run is a gmw run (one gate per instant), so gmw finds at least these.
+        rc, gmw = explore(binary, path, f"{name} --model gmw")
+        got_gmw = {h.get("gate") for _, h in findings(gmw, "nonpersistent")}
+        check(want_np <= got_gmw, f"{name} --model gmw: non-persistent {sorted(got_gmw)} lacks some of {sorted(want_np)}")
+    # The reference itself, on the two files: none in the C-element pipeline (Muller and Bartky
+    # 1959), p3 among them with the AND gate (the hand derivation in the header).
+    check(not reference_nonpersistent(parsed_system(closed_data(SRC, "sensor_pipeline.settle"))),
+          "our own search finds a non-persistent gate in the C-element pipeline")
+    check("p3" in reference_nonpersistent(parsed_system(closed_data(SRC, "sensor_pipeline_and.settle"))),
+          "our own search does not find p3 non-persistent with the AND gate")
+
+
 if __name__ == "__main__":
-    sys.exit(run_cases([c_element_pipeline, and_gate_place], "settle-explore-closed-pipe-"))
+    sys.exit(run_cases([c_element_pipeline, and_gate_place, against_reference], "settle-explore-closed-pipe-"))

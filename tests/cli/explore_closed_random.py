@@ -26,6 +26,7 @@ import json
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
 from settle_test import check, fail, run_cases, write_file  # noqa: E402
+from closed_reference import evaluate, reference_deadlocks  # noqa: E402
 from explore_closed import explore, findings, path_is_well_formed, run_corner, step_status, timed_is_well_formed  # noqa: E402
 
 SYSTEMS = 240
@@ -35,18 +36,6 @@ REPLAYS_PER_SYSTEM = 3
 
 ONE_INPUT = ("not", "buf")
 TWO_INPUTS = ("and", "or", "nand", "nor", "xor", "c")
-
-
-def evaluate(kind, ins, present):
-    """The gate kinds' Boolean functions (common practice); the C-element follows its inputs when
-    they agree and holds otherwise (Muller and Bartky 1959)."""
-    if kind == "not":
-        return 1 - ins[0]
-    if kind == "buf":
-        return ins[0]
-    a, b = ins
-    return {"and": a & b, "or": a | b, "nand": 1 - (a & b), "nor": 1 - (a | b), "xor": a ^ b,
-            "c": a if a == b else present}[kind]
 
 
 class System:
@@ -150,64 +139,6 @@ def replay_path(sys_, d, order, what):
             check(fired_rules[k - 1] == r["times"], f"{what}: rule {k} not owed, but the path fires it "
                   f"{fired_rules[k - 1]} of {r['times']} times")
     check(owed, f"{what}: a deadlock with no owed rule")
-
-
-def reference_deadlocks(sys_):
-    """The deadlock states of the single-firing model, found by a breadth-first search of our own
-    over the states (gate outputs, inputs, and per rule its pending firings and the firings it has
-    scheduled), with the successor relation read off LANGUAGE.md's rule semantics: one excited
-    gate fires or one pending firing applies; then every rule whose condition turned from false to
-    true, and which has scheduled fewer than `times` firings, schedules one more. Reachability by
-    networkx (Debian python3-networkx, descendants). Returns {(gate state, inputs)}."""
-    import networkx as nx
-    names = sys_.gates + sys_.inputs
-    nr = len(sys_.rules)
-
-    def cond(r, v):
-        return all(v[n] == want for n, want in r["lits"])
-
-    def after(v, pend, sched, before):
-        pend, sched = list(pend), list(sched)
-        for k, r in enumerate(sys_.rules):
-            if not cond(r, before) and cond(r, v) and sched[k] < r["times"]:
-                pend[k] += 1
-                sched[k] += 1
-        return tuple(v[n] for n in names), tuple(pend), tuple(sched)
-
-    v0 = {**{i: 0 for i in sys_.inputs}, **sys_.init}
-    # At the rules' line a rule whose condition already holds triggers (LANGUAGE.md).
-    pend0 = tuple(1 if cond(r, v0) else 0 for r in sys_.rules)
-    start = (tuple(v0[n] for n in names), pend0, pend0)
-    g = nx.DiGraph()
-    g.add_node(start)
-    todo = [start]
-    while todo:
-        st = todo.pop()
-        v = dict(zip(names, st[0]))
-        succ = []
-        for gate in sys_.excited_gates(v):
-            w = dict(v)
-            w[gate] = 1 - v[gate]
-            succ.append(after(w, st[1], st[2], v))
-        for k in range(nr):
-            if st[1][k]:
-                w = dict(v)
-                w[sys_.rules[k]["net"]] = sys_.rules[k]["value"]
-                pend = list(st[1])
-                pend[k] -= 1
-                succ.append(after(w, pend, st[2], v))
-        for t in succ:
-            if t not in g:
-                todo.append(t)
-            g.add_edge(st, t)
-    reach = nx.descendants(g, start) | {start}
-    out = set()
-    for st in reach:
-        v = dict(zip(names, st[0]))
-        if not sys_.excited_gates(v) and not any(st[1]) and any(
-                st[2][k] < r["times"] for k, r in enumerate(sys_.rules)):
-            out.add(("".join(str(v[x]) for x in sys_.gates), tuple(v[i] for i in sys_.inputs)))
-    return out
 
 
 def sweep_statuses(binary, path, seed, what):
