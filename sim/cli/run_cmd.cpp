@@ -167,7 +167,10 @@ exit_status run_run(const run_cli_options& o) {
   if (!parse_horizon_option(o.horizon, ro.horizon)) return exit_status::error;
   auto d = load(o.design);
   if (!d || !fits_kernel(*d)) return exit_status::error;
-  if (const auto why = corner_range_error(*c, delay_variables(*d)); !why.empty()) {
+  // A numbered corner must exist; a fixed: one names gates and rules of this design.
+  std::string why = corner_range_error(*c, delay_variables(*d));
+  if (why.empty()) why = corner_design_error(*d, *c);
+  if (!why.empty()) {
     spdlog::error("--corner {}: {}", o.corner, why);
     return exit_status::error;
   }

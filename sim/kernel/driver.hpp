@@ -114,7 +114,14 @@ class driver {
       const auto& st = rules_[i];
       if (!st.active) continue;
       out.insert(out.end(), {i, static_cast<std::uint64_t>(st.last)});
-      if (d_.stim.rules[i].times || draws_) out.insert(out.end(), {st.scheduled, st.fired});
+      if (d_.stim.rules[i].times || draws_) {
+        out.insert(out.end(), {st.scheduled, st.fired});
+      } else if (delays_) {
+        // A fixed: corner's list of firing delays: the firing number matters
+        // until the last entry, which every later firing takes.
+        const auto listed = fixed_rule_firings(delays_->which, static_cast<std::uint32_t>(i));
+        if (listed > 1) out.push_back(std::min<std::uint64_t>(st.scheduled, listed - 1));
+      }
     }
   }
 

@@ -6,6 +6,8 @@
 #include <charconv>
 #include <cmath>
 
+#include "sim/model/fixed_corner.hpp"
+
 namespace settle {
 namespace {
 
@@ -117,6 +119,8 @@ std::string corner::name() const {
     case kind::exhaustive:
       base = fmt::format("exhaustive#{}", index);
       break;
+    case kind::fixed:
+      return detail::fixed_name(fixed ? *fixed : fixed_delays{});  // takes no spread
   }
   if (spread != 1.0) base += fmt::format("@{}", spread);
   return base;
@@ -129,6 +133,15 @@ std::optional<corner> parse_corner(std::string_view text, std::string* error) {
     return std::nullopt;
   };
   std::string_view s = text;
+  // Before the spread: a gate name may hold '@' (an ISCAS name can), and the
+  // delays are given, so there is nothing to scale.
+  if (s.starts_with("fixed:")) {
+    std::string why;
+    c.what = corner::kind::fixed;
+    c.fixed = detail::parse_fixed(s.substr(6), why);
+    if (!c.fixed) return fail(why);
+    return c;
+  }
   if (auto at = s.find('@'); at != std::string_view::npos) {
     std::string w(s.substr(at + 1));
     char* end = nullptr;
@@ -160,7 +173,8 @@ std::optional<corner> parse_corner(std::string_view text, std::string* error) {
       return fail("expected a corner number after '#'");
   } else {
     return fail(
-        "expected min, typ, max, random:SEED[#i], gauss:SEED[#i], extremes#k or exhaustive#k");
+        "expected min, typ, max, random:SEED[#i], gauss:SEED[#i], extremes#k, exhaustive#k or "
+        "fixed:NAME=T,...");
   }
   return c;
 }
@@ -200,6 +214,8 @@ time_fs rule_delay(const delay_table& t, const delay_range& range, std::uint32_t
       return uniform(mix(key ^ (firing << 1)), r.min, r.max);
     case corner::kind::gauss:
       return gaussian(mix(key ^ (firing << 1)), mix(key ^ (firing << 1 | 1)), r);
+    case corner::kind::fixed:
+      return c.fixed ? detail::fixed_rule_delay(*c.fixed, range, rule, firing) : range.typ;
     case corner::kind::extremes:
     case corner::kind::exhaustive: {
       if (fixed(r)) return r.min;
@@ -216,6 +232,11 @@ void fill_delays(const netlist& n, const corner& c, delay_table& out) {
   out.which = c;
   out.rule_var.clear();
   const std::uint64_t key = corner_key(c.seed, c.index);
+  out.gate_vars = 0;
+  if (c.what == corner::kind::fixed) {
+    detail::fill_fixed(n, c.fixed ? *c.fixed : fixed_delays{}, out);
+    return;
+  }
   out.rise.resize(gates);
   out.fall.resize(gates);
   const bool enumerating = c.what == corner::kind::extremes || c.what == corner::kind::exhaustive;

@@ -105,6 +105,8 @@ std::optional<time_fs> parse_time(std::string_view s, std::string* err) {
   return v;
 }
 
+std::string time_literal(time_fs t) { return t == 0 ? std::string("0fs") : format_time(t); }
+
 std::optional<delay_range> parse_delay_range(std::string_view s, std::string* err) {
   std::vector<std::string_view> parts;
   for (;;) {

@@ -26,6 +26,10 @@ bool time_to_fs(std::string_view number, int exponent, time_fs& out, std::string
 /// in 64 bits. On failure returns nullopt and sets *err (when err is not null).
 std::optional<time_fs> parse_time(std::string_view text, std::string* err = nullptr);
 
+/// The literal parse_time reads back to exactly `t`: format_time's text
+/// ("45ps", "45.25ps", "1.5ns", "1fs"), which never rounds, and "0fs" for 0.
+std::string time_literal(time_fs t);
+
 /// Parses "T" (fixed), "MIN..MAX" (typ = midpoint, rounded down) or
 /// "MIN..TYP..MAX"; requires min <= typ <= max.
 std::optional<delay_range> parse_delay_range(std::string_view text, std::string* err = nullptr);
