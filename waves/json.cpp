@@ -316,8 +316,81 @@ report_json tri(answer a) {
   return a == answer::yes;
 }
 
-report_json stable_json(const netlist& n, const explore_result& r, const explore_step& s,
+// A closed system's firing sequence: instants of gate and environment firings.
+report_json closed_path_json(const design& d, const closed_path& p) {
+  report_json out = report_json::array();
+  for (const auto& instant : p) {
+    auto& in = out.emplace_back(report_json::array());
+    for (const auto& e : instant)
+      if (e.what == closed_event::kind::gate)
+        in.push_back({{"gate", d.nets.gate_name(e.id)}, {"value", e.value}});
+      else
+        in.push_back({{"rule", e.id + 1}, {"text", d.stim.rules[e.id].text}});
+  }
+  return out;
+}
+
+report_json timed_json(const timed_check& t, const replay_words& replay) {
+  report_json j;
+  j["feasible"] = t.feasible;
+  if (t.feasible) {
+    j["corner"] = t.corner;
+    if (replay) j["replay"] = replay(t.corner);
+    j["confirmed"] = t.confirmed;
+  } else {
+    j["exact"] = t.exact;
+  }
+  if (!t.why.empty()) j["why"] = t.why;
+  return j;
+}
+
+// A finding's state: the gates as `state_order` spells them, and the inputs.
+void closed_state_json(const netlist& n, std::span<const std::uint8_t> gates,
+                       std::span<const logic> inputs, report_json& j) {
+  j["state"] = state_text(gates);
+  j["inputs"] = report_json::object();
+  for (std::size_t i = 0; i < inputs.size(); ++i)
+    j["inputs"][n.net_name[n.inputs[i]]] = inputs[i] == logic::one ? 1 : 0;
+}
+
+void closed_findings_json(const design& d, const explore_step& s, const replay_words& replay,
+                          report_json& js) {
+  const netlist& n = d.nets;
+  auto& dl = js["deadlocks"] = report_json::array();
+  for (const auto& f : s.deadlocks) {
+    report_json e;
+    closed_state_json(n, f.gates, f.inputs, e);
+    e["owed"] = report_json::array();
+    for (const auto& o : f.owed_rules)
+      e["owed"].push_back({{"rule", o.rule + 1},
+                           {"text", d.stim.rules[o.rule].text},
+                           {"fired", o.fired},
+                           {"times", o.times}});
+    e["path"] = closed_path_json(d, f.path);
+    e["timed"] = timed_json(f.timed, replay);
+    dl.push_back(std::move(e));
+  }
+  auto& props = js["properties"] = report_json::array();
+  for (const auto& p : s.properties) {
+    report_json e;
+    e["text"] = d.stim.properties[p.index].text;
+    e["holds"] = p.holds;
+    e["proved"] = p.holds && s.complete;  // holds on every reachable state and transition
+    e["path"] = closed_path_json(d, p.path);
+    e["timed"] = p.holds ? report_json() : timed_json(p.timed, replay);
+    props.push_back(std::move(e));
+  }
+  auto& np = js["nonpersistent"] = report_json::array();
+  for (const auto& h : s.nonpersistent)
+    np.push_back({{"gate", n.gate_name(h.gate)},
+                  {"output", h.output},
+                  {"path", closed_path_json(d, h.path)},
+                  {"timed", timed_json(h.timed, replay)}});
+}
+
+report_json stable_json(const design& d, const explore_result& r, const explore_step& s,
                         const stable_state& st) {
+  const netlist& n = d.nets;
   report_json e;
   for (net_id net : r.reported)
     e["values"][n.net_name[net]] = logic_text(stable_value(n, s, st, net));
@@ -327,10 +400,16 @@ report_json stable_json(const netlist& n, const explore_result& r, const explore
     auto& f = path.emplace_back(report_json::array());
     for (gate_id g : fired) f.push_back(n.gate_name(g));
   }
+  if (s.closed) {  // the environment's firings too, and where the inputs rest
+    e["firings"] = closed_path_json(d, st.events);
+    closed_state_json(n, st.gates, st.inputs, e);
+  }
   return e;
 }
 
-report_json explore_step_json(const netlist& n, const explore_result& r, const explore_step& s) {
+report_json explore_step_json(const design& d, const explore_result& r, const explore_step& s,
+                              const replay_words& replay) {
+  const netlist& n = d.nets;
   report_json js;
   js["index"] = s.index;
   js["label"] = s.label;
@@ -338,13 +417,14 @@ report_json explore_step_json(const netlist& n, const explore_result& r, const e
   js["edges"] = s.edges;
   js["start_states"] = s.start_states;
   auto& stable = js["stable"] = report_json::array();
-  for (const auto& st : s.stable) stable.push_back(stable_json(n, r, s, st));
+  for (const auto& st : s.stable) stable.push_back(stable_json(d, r, s, st));
   js["critical_race"] = tri(s.critical_race);
   js["noncritical_race"] = tri(s.noncritical_race);
   js["may_oscillate"] = tri(s.may_oscillate);
   js["must_oscillate"] = tri(s.must_oscillate);
   js["hazards"] = net_names_json(n, s.hazards);
-  js["hazards_from"] = s.complete ? "graph" : "ternary";  // ternary: possible static hazards only
+  // ternary: possible static hazards only; nonpersistent: a closed system's gates disabled unfired
+  js["hazards_from"] = s.closed ? "nonpersistent" : s.complete ? "graph" : "ternary";
   for (net_id net : r.reported) js["ternary"][n.net_name[net]] = logic_text(s.ternary[net]);
   if (!js.contains("ternary")) js["ternary"] = report_json::object();
   if (s.complete)
@@ -365,6 +445,7 @@ report_json explore_step_json(const netlist& n, const explore_result& r, const e
     if (!e.detail.empty()) je["detail"] = e.detail;
     ex.push_back(std::move(je));
   }
+  if (s.closed) closed_findings_json(d, s, replay, js);
   js["pass"] = s.pass();
   return js;
 }
@@ -543,7 +624,8 @@ report_json margin_json(const design& d, const margin_result& r, const margin_so
   return j;
 }
 
-report_json explore_json(const design& d, const explore_result& r, double wall_s) {
+report_json explore_json(const design& d, const explore_result& r, double wall_s,
+                         const replay_words& replay) {
   const netlist& n = d.nets;
   report_json j = report_head(d.path);
   j["model"] = model_name(r.model);
@@ -551,7 +633,7 @@ report_json explore_json(const design& d, const explore_result& r, double wall_s
   for (gate_id g = 0; g < n.gate_count(); ++g) order.push_back(n.gate_name(g));
   j["notes"] = r.notes;
   auto& steps = j["steps"] = report_json::array();
-  for (const auto& s : r.steps) steps.push_back(explore_step_json(n, r, s));
+  for (const auto& s : r.steps) steps.push_back(explore_step_json(d, r, s, replay));
   j["wall_s"] = wall_s;  // the one timing field: reports compare equal apart from wall_s (issue 7)
   j["result"] = r.pass() ? "pass" : "findings";
   return j;

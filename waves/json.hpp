@@ -102,7 +102,9 @@ struct margin_source {
 /// `settle margin`: the whole report.
 report_json margin_json(const design& d, const margin_result& r, const margin_source& src);
 
-/// `settle explore`: the whole report.
-report_json explore_json(const design& d, const explore_result& r, double wall_s);
+/// `settle explore`: the whole report; `replay` (may be empty) words the run
+/// command of a closed system's timed corners.
+report_json explore_json(const design& d, const explore_result& r, double wall_s,
+                         const replay_words& replay = {});
 
 }  // namespace settle

@@ -7,13 +7,12 @@
 #include <fstream>
 #include <sstream>
 
+#include "sim/analysis/closed_system.hpp"
+#include "sim/analysis/explore_steps.hpp"
 #include "sim/analysis/ternary.hpp"
 #include "sim/kernel/eval.hpp"
 
 namespace settle {
-namespace {
-
-using packed = std::vector<std::uint64_t>;
 
 std::vector<assignment> step_changes(const step_spec& s) {
   std::vector<assignment> out;
@@ -29,7 +28,7 @@ std::vector<assignment> step_changes(const step_spec& s) {
   return out;
 }
 
-std::string join_names(const netlist& n, const std::vector<gate_id>& gates, std::size_t most = 8) {
+std::string join_names(const netlist& n, const std::vector<gate_id>& gates, std::size_t most) {
   std::string s;
   for (std::size_t i = 0; i < gates.size() && i < most; ++i)
     s += (i ? ", " : "") + n.gate_name(gates[i]);
@@ -148,10 +147,9 @@ void check_expects(const netlist& n, const step_spec& spec, explore_step& st) {
   }
 }
 
-// Fills the step's answers from its complete state graph; returns the states
-// the circuit can rest in (stable states and terminal oscillations).
-std::vector<packed> analyse(const netlist& n, const state_graph& g,
-                            const std::vector<net_id>& reported, explore_step& st) {
+std::vector<packed> analyse_graph(const netlist& n, const state_graph& g,
+                                  const std::vector<net_id>& reported, explore_step& st,
+                                  std::vector<std::uint32_t>* rest_ids) {
   const scc_info s = strongly_connected(g);
   st.sccs = s.count;
   bool may = false, must = false;
@@ -170,6 +168,7 @@ std::vector<packed> analyse(const netlist& n, const state_graph& g,
   for (std::uint32_t v = 0; v < g.size(); ++v) {
     if (!s.terminal[s.comp[v]]) continue;
     rest.emplace_back(g.state(v), g.state(v) + g.words());
+    if (rest_ids) rest_ids->push_back(v);
     if (!g.is_stable(v)) continue;
     stable_state ss;
     ss.gates.resize(n.gate_count());
@@ -199,6 +198,8 @@ std::vector<packed> analyse(const netlist& n, const state_graph& g,
     if (hz[j]) st.hazards.push_back(nets[j]);
   return rest;
 }
+
+namespace {
 
 // Answers from ternary simulation alone. A binary outcome over every gate is
 // exact: all gmw stable states equal it and no cycle is reachable (every state
@@ -237,6 +238,9 @@ const char* model_name(explore_model m) {
 
 bool explore_step::pass() const {
   if (!std::all_of(expects.begin(), expects.end(), [](const explore_expect& e) { return e.pass; }))
+    return false;
+  if (!deadlocks.empty() || std::any_of(properties.begin(), properties.end(),
+                                        [](const closed_property& p) { return !p.holds; }))
     return false;
   // A step that expects to oscillate, and does, is not a finding.
   for (const auto& e : expects)
@@ -289,6 +293,8 @@ std::optional<explore_result> explore_design(const design& d, const explore_opti
   if (std::any_of(d.stim.steps.begin(), d.stim.steps.end(),
                   [](const step_spec& s) { return s.end == step_spec::end_kind::run; }))
     res.notes.push_back("run steps are explored like settle steps: explore has no time");
+  if (!d.stim.rules.empty() || !d.stim.properties.empty())
+    return explore_closed(d, o, std::move(res), error);
 
   graph_limits lim{o.max_states, o.max_bytes ? o.max_bytes : default_memory_guard(), 0,
                    o.max_excited};
@@ -352,7 +358,7 @@ std::optional<explore_result> explore_design(const design& d, const explore_opti
       st.edges = g->edge_to.size();
       if (done) {
         st.complete = st.exact = true;
-        rest = analyse(n, *g, res.reported, st);
+        rest = analyse_graph(n, *g, res.reported, st);
         have_rest = true;
       }
       if (o.keep_graphs) {
@@ -373,7 +379,12 @@ std::optional<explore_result> explore_design(const design& d, const explore_opti
 
 logic stable_value(const netlist& n, const explore_step& s, const stable_state& st, net_id net) {
   const gate_id g = n.driver[net];
-  return g == no_id ? s.inputs[net] : from_bool(st.gates[g]);
+  if (g != no_id) return from_bool(st.gates[g]);
+  if (!st.inputs.empty()) {  // a closed system's environment moves the inputs
+    const auto at = std::find(n.inputs.begin(), n.inputs.end(), net);
+    if (at != n.inputs.end()) return st.inputs[at - n.inputs.begin()];
+  }
+  return s.inputs[net];
 }
 
 }  // namespace settle

@@ -26,11 +26,68 @@ struct explore_options {
   bool keep_graphs = false;  ///< keep every step's graph (for --dot)
 };
 
+/// One firing of a closed system's path: a gate taking a value, or a
+/// reaction rule's pending firing applying its assignments.
+struct closed_event {
+  enum class kind : std::uint8_t { gate, rule } what = kind::gate;
+  std::uint32_t id = 0;    ///< gate id, or index in stimulus::rules
+  std::uint8_t value = 0;  ///< gate: the value it takes
+  friend bool operator==(const closed_event&, const closed_event&) = default;
+};
+/// Firings in instants: the events of one instant happen together.
+using closed_path = std::vector<std::vector<closed_event>>;
+
+/// Whether some delays within the written ranges make the timed kernel follow
+/// a path (difference constraints over its firing times, solved by
+/// Bellman-Ford), and the corner that does.
+struct timed_check {
+  bool feasible = false;
+  bool exact = true;       ///< infeasible: proved (false: the check did not decide)
+  bool confirmed = false;  ///< feasible: a run at `corner` followed the path to the finding
+  std::string corner;      ///< feasible: a `fixed:` corner name for `run --corner`
+  std::string why;         ///< infeasible or not decided: why
+};
+
 /// One reachable stable state: every gate output, and a shortest firing
 /// sequence from a start state of the step that reaches it.
 struct stable_state {
   std::vector<std::uint8_t> gates;         ///< per gate, 0 or 1
   std::vector<std::vector<gate_id>> path;  ///< gates fired together, step by step
+  /// Closed systems: the inputs' values (per netlist::inputs) and the path
+  /// with the environment's firings; empty otherwise.
+  std::vector<logic> inputs;
+  closed_path events;
+};
+
+/// A closed system's state with no excited gate and no pending firing while
+/// some `times N` rule has fired fewer than N times.
+struct closed_deadlock {
+  std::vector<std::uint8_t> gates;  ///< per gate
+  std::vector<logic> inputs;        ///< per netlist::inputs
+  struct owed {
+    std::uint32_t rule = 0;
+    std::uint64_t fired = 0, times = 0;
+  };
+  std::vector<owed> owed_rules;
+  closed_path path;
+  timed_check timed;
+};
+
+/// A property checked on every reachable state and transition of the step.
+struct closed_property {
+  std::uint32_t index = 0;  ///< in stimulus::properties
+  bool holds = true;
+  closed_path path;  ///< violated: to the first violating instant
+  timed_check timed;
+};
+
+/// A gate excited in one state and no longer excited in a successor without
+/// having fired (non-persistence; Muller and Bartky 1959).
+struct closed_hazard {
+  gate_id gate = 0;
+  bool output = false;  ///< the gate drives a reported net
+  closed_path path;     ///< its last instant disables the gate
+  timed_check timed;
 };
 
 /// A tri-state answer: unknown when the exploration did not finish.
@@ -63,6 +120,11 @@ struct explore_step {
   std::vector<logic> inputs;              ///< per net: input values during the step
   std::vector<explore_expect> expects;
   std::shared_ptr<const state_graph> graph;  ///< kept when explore_options::keep_graphs
+  /// Closed systems (reaction rules or properties): the findings below.
+  bool closed = false;
+  std::vector<closed_deadlock> deadlocks;
+  std::vector<closed_property> properties;  ///< the properties active in the step
+  std::vector<closed_hazard> nonpersistent;
   bool pass() const;
 };
 

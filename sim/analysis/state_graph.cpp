@@ -27,15 +27,15 @@ std::uint64_t hash_words(const std::uint64_t* s, std::size_t n) {
 }  // namespace
 
 state_graph::state_graph(std::size_t gates)
-    : gates_(gates), words_(std::max<std::size_t>(1, (gates + 63) / 64)) {
+    : gates_(gates), shown_(gates), words_(std::max<std::size_t>(1, (gates + 63) / 64)) {
   ids_.reserve(512, [&](std::uint32_t i) { return hash_of(i); });
 }
 
 std::size_t state_graph::hash_of(std::uint32_t i) const { return hash_words(state(i), words_); }
 
 std::string state_graph::bits_text(std::uint32_t i) const {
-  std::string s(gates_, '0');
-  for (std::size_t g = 0; g < gates_; ++g) s[g] = bit(i, static_cast<gate_id>(g)) ? '1' : '0';
+  std::string s(shown_, '0');
+  for (std::size_t g = 0; g < shown_; ++g) s[g] = bit(i, static_cast<gate_id>(g)) ? '1' : '0';
   return s;
 }
 

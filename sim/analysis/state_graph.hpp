@@ -41,6 +41,9 @@ class state_graph {
   bool bit(std::uint32_t i, gate_id g) const { return (state(i)[g >> 6] >> (g & 63)) & 1; }
   /// State i as text: one '0' or '1' per gate, in gate order (the reports' `state_order`).
   std::string bits_text(std::uint32_t i) const;
+  /// Only the first `bits` state bits are the gates (a closed system's state
+  /// holds its environment's after them): bits_text shows those.
+  void show_bits(std::size_t bits) { shown_ = bits; }
 
   /// Finds `s` or adds it; returns its index and whether it was added.
   std::pair<std::uint32_t, bool> intern(const std::uint64_t* s, std::uint32_t parent);
@@ -66,6 +69,7 @@ class state_graph {
  private:
   std::size_t hash_of(std::uint32_t i) const;
   std::size_t gates_;
+  std::size_t shown_;
   std::size_t words_;
   std::vector<std::uint64_t> arena_;
   id_table ids_;  ///< the interned states, keyed by their words in arena_

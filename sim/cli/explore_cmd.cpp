@@ -33,6 +33,57 @@ std::string yes_no(answer a, const char* yes) {
   return a == answer::unknown ? "?" : a == answer::yes ? yes : "no";
 }
 
+// A firing sequence in words: "reader_req=1, rule 3, (a=0 b=1)": one item per
+// instant, the firings of one instant in parentheses.
+std::string path_words(const design& d, const closed_path& p, std::size_t most = 12) {
+  std::string out;
+  for (std::size_t i = 0; i < p.size() && i < most; ++i) {
+    std::string in;
+    for (const auto& e : p[i])
+      in += (in.empty() ? "" : " ") + (e.what == closed_event::kind::gate
+                                           ? fmt::format("{}={}", d.nets.gate_name(e.id), e.value)
+                                           : fmt::format("rule {}", e.id + 1));
+    out += (i ? ", " : "") + (p[i].size() > 1 ? "(" + in + ")" : in);
+  }
+  if (p.size() > most) out += fmt::format(", ... ({} instants)", p.size());
+  return out.empty() ? "at the step's start" : out;
+}
+
+std::string timed_words(const timed_check& t) {
+  if (t.feasible)
+    return fmt::format("timed: corner {}{}", t.corner,
+                       t.confirmed ? " (replayed)" : " (not confirmed by a run: " + t.why + ")");
+  return fmt::format("timed: {} ({})", t.exact ? "no delays within the ranges" : "not decided",
+                     t.why);
+}
+
+std::string closed_findings(const design& d, const explore_step& s, bool colour) {
+  std::string t;
+  for (const auto& f : s.deadlocks) {
+    std::string owed;
+    for (const auto& o : f.owed_rules)
+      owed += fmt::format("{}rule {} ({} of {} firings)", owed.empty() ? "" : ", ", o.rule + 1,
+                          o.fired, o.times);
+    t += fmt::format("        {} with {} owed, after {}\n", mark("deadlock", false, colour), owed,
+                     path_words(d, f.path));
+    t += fmt::format("          {}\n", timed_words(f.timed));
+  }
+  for (const auto& p : s.properties) {
+    if (p.holds) continue;
+    t += fmt::format("        {} '{}' after {}\n", mark("violated", false, colour),
+                     d.stim.properties[p.index].text, path_words(d, p.path));
+    t += fmt::format("          {}\n", timed_words(p.timed));
+  }
+  if (!s.nonpersistent.empty()) {
+    std::string gates;
+    for (const auto& h : s.nonpersistent)
+      gates +=
+          (gates.empty() ? "" : ", ") + d.nets.gate_name(h.gate) + (h.output ? " (output)" : "");
+    t += fmt::format("        not persistent: {}\n", gates);
+  }
+  return t;
+}
+
 std::string table(const design& d, const explore_result& r, double wall, bool colour) {
   const netlist& n = d.nets;
   std::string t = fmt::format("settle explore {} (model {}, {} gates)\n", d.path,
@@ -73,6 +124,7 @@ std::string table(const design& d, const explore_result& r, double wall, bool co
       t += fmt::format("        ... and {} more stable states\n", s.stable.size() - shown);
     if (!s.stop.empty() && s.stop != "ternary model")
       t += fmt::format("        stopped: {}\n", s.stop);
+    if (s.closed) t += closed_findings(d, s, colour);
     for (const auto& e : s.expects) {
       if (e.pass && e.checked) continue;
       const std::string what =
@@ -144,14 +196,6 @@ exit_status run_explore(const explore_cli_options& o) {
   if (!check_paths(uses)) return exit_status::error;
   auto d = load(o.design);
   if (!d) return exit_status::error;
-  if (!d->stim.rules.empty()) {
-    // Exploration applies each step's inputs and explores what follows; an
-    // environment that answers the circuit is not part of its model.
-    spdlog::error(
-        "explore does not take reaction rules ('when'); use run or sweep for a closed-loop "
-        "stimulus");
-    return exit_status::error;
-  }
   const auto t0 = std::chrono::steady_clock::now();
   std::string err;
   auto r = explore_design(*d, eo, &err);
@@ -167,8 +211,11 @@ exit_status run_explore(const explore_cli_options& o) {
     return exit_status::error;
   }
   output_set outs;  // all or nothing
-  const report_json result =
-      o.json.empty() && o.html.empty() ? report_json() : explore_json(*d, *r, wall);
+  const report_json result = o.json.empty() && o.html.empty()
+                                 ? report_json()
+                                 : explore_json(*d, *r, wall, [&](const std::string& c) {
+                                     return replay_command(o.design, c);
+                                   });
   if (!o.json.empty() && !outs.put(o.json, json_text(result))) return exit_status::error;
   if (!o.dot.empty() && !outs.put(o.dot, state_graph_dot(d->nets, *r, d->path)))
     return exit_status::error;
