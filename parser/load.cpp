@@ -170,7 +170,9 @@ void read_imports(ir::file& f, const std::string& name, const load_options& opt,
     source_text src;
     if (!src.open(path, opened)) {
       const auto& why = opened.items.front().message;
-      rep.error(imp.loc, fmt::format("cannot import '{}' ({}): {}", imp.path, path, why));
+      rep.error(imp.loc, path == imp.path
+                             ? fmt::format("cannot import '{}': {}", imp.path, why)
+                             : fmt::format("cannot import '{}' ({}): {}", imp.path, path, why));
       continue;
     }
     if (id) seen.emplace_back(*id, imp.loc);
