@@ -221,9 +221,15 @@ struct expect_stmt {
   expect_body body;
 };
 
+/// `import "PATH"`: the modules of a Verilog file become blocks.
+struct import_stmt {
+  std::string keyword;
+  name path;  ///< quoted: the bytes between the quotes
+};
+
 struct statement : x3::variant<gate_stmt, decl, default_stmt, block_head, inst_stmt, init_stmt,
                                timed_stmt, clock_stmt, settle_stmt, run_stmt, expect_stmt,
-                               when_stmt, property_stmt, gauge_stmt> {
+                               when_stmt, property_stmt, gauge_stmt, import_stmt> {
   using base_type::base_type;
   using base_type::operator=;
 };

@@ -428,6 +428,13 @@ struct visitor {
     }
     stim->stmts.push_back(std::move(s));
   }
+  void operator()(const ast::import_stmt& i) {
+    if (!design_only("'import' is")) return;
+    if (at == where::block)
+      return rep.error(loc(), "'import' belongs at top level, not inside a block");
+    // The location is the opening quote's.
+    f.imports.push_back({i.path.text, rep.loc_of(i.path.pos - 1)});
+  }
 };
 
 bool blank(char c) { return c == ' ' || c == '\t' || c == '\r'; }

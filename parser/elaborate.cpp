@@ -57,18 +57,25 @@ class elaborator {
     // Blocks never placed are still checked, in a scratch netlist.
     for (std::size_t b = 0; b < f_.blocks.size(); ++b) {
       if (used_[b] || duplicate_[b]) continue;
-      rep_.warning(f_.blocks[b].id.loc,
-                   fmt::format("block '{}' is never instantiated", f_.blocks[b].id.name));
+      // An imported module library may hold many modules a design never places.
+      if (!f_.blocks[b].rep)
+        rep_.warning(f_.blocks[b].id.loc,
+                     fmt::format("block '{}' is never instantiated", f_.blocks[b].id.name));
       netlist scratch;
       scratch.begin();
       std::vector<bool> saved_input;
       saved_input.swap(is_input_);
       std::vector<source_loc> saved_decl;
       saved_decl.swap(decl_loc_);
+      std::vector<reporter*> saved_rep, saved_gate_rep;
+      saved_rep.swap(decl_rep_);
+      saved_gate_rep.swap(gate_rep_);
       work.push_back(frame{&f_.blocks[b], 0, cat(f_.blocks[b].id.name, "."), {}, true});
       drain(scratch, work);
       is_input_.swap(saved_input);
       decl_loc_.swap(saved_decl);
+      decl_rep_.swap(saved_rep);
+      gate_rep_.swap(saved_gate_rep);
     }
   }
 
@@ -80,8 +87,8 @@ class elaborator {
       auto& b = f_.blocks[i];
       auto [it, fresh] = block_.emplace(b.id.name, static_cast<std::uint32_t>(i));
       if (!fresh) {
-        rep_.error(b.id.loc, fmt::format("block '{}' is already defined at {}", b.id.name,
-                                         at_text(f_.blocks[it->second].id.loc)));
+        rep_of(b).error(b.id.loc, fmt::format("block '{}' is already defined at {}", b.id.name,
+                                              at_text(f_.blocks[it->second].id.loc)));
         duplicate_[i] = true;
       }
     }
@@ -118,7 +125,8 @@ class elaborator {
             on = on || p.block == it->second;
             if (on) cycle += cat(f_.blocks[p.block].id.name, " -> ");
           }
-          rep_.error(in.block.loc,
+          rep_of(f_.blocks[top.block])
+              .error(in.block.loc,
                      fmt::format("recursive instantiation: {}{}", cycle, in.block.name));
           recursive_.insert(&in);
         } else if (colour[it->second] == white) {
@@ -133,8 +141,8 @@ class elaborator {
   bool claim_net_top(const netlist& nl, const ref& r) {
     const net_id n = nl.find(r.name);
     if (n == no_id) return true;
-    rep_.error(r.loc,
-               fmt::format("name '{}' is already declared at {}", r.name, at_text(decl_loc_[n])));
+    cur_->error(r.loc, fmt::format("name '{}' is already declared at {}", r.name,
+                                   where_text(decl_rep(n), decl_loc_[n])));
     return false;
   }
 
@@ -161,6 +169,10 @@ class elaborator {
     decl_loc_.resize(nl.net_count());
     is_input_[id] = input;
     decl_loc_[id] = loc;
+    if (cur_ != &rep_) {
+      decl_rep_.resize(nl.net_count(), nullptr);
+      decl_rep_[id] = cur_;
+    }
     return id;
   }
 
@@ -175,6 +187,7 @@ class elaborator {
   /// Elaborates one scope: its names, gates, inits, and pushes its instances.
   void place(netlist& nl, const frame& fr, std::vector<frame>& work) {
     const scope_def& d = *fr.def;
+    cur_ = &rep_of(d);
     scope_names names;
     names.top = fr.def == &f_.top;
     declare_names(nl, fr, names);
@@ -197,8 +210,8 @@ class elaborator {
     if (names.top && !claim_net_top(nl, r)) return false;
     auto [it, fresh] = names.taken.emplace(r.name, r.loc);
     if (!fresh)
-      rep_.error(r.loc,
-                 fmt::format("name '{}' is already declared at {}", r.name, at_text(it->second)));
+      cur_->error(r.loc,
+                  fmt::format("name '{}' is already declared at {}", r.name, at_text(it->second)));
     return fresh;
   }
 
@@ -214,7 +227,7 @@ class elaborator {
       auto it = names.local.find(r.name);
       if (it != names.local.end()) return it->second;
     }
-    rep_.error(r.loc, fmt::format("unknown net '{}'", r.name));
+    cur_->error(r.loc, fmt::format("unknown net '{}'", r.name));
     return no_id;
   }
 
@@ -289,7 +302,12 @@ class elaborator {
     }
     const gate_delay delay = delay_of(g, d);
     program_.assign(pools.code_pool.begin() + g.code_begin, pools.code_pool.begin() + g.code_end);
-    if (ok) nl.add_gate(g.kind, out, fanin_, program_, delay, g.out.loc);
+    if (!ok) return;
+    nl.add_gate(g.kind, out, fanin_, program_, delay, g.out.loc);
+    if (cur_ != &rep_) {
+      gate_rep_.resize(nl.gate_count(), nullptr);
+      gate_rep_.back() = cur_;
+    }
   }
 
   /// False (after reporting) when a gate may not drive `out`, the net `r`
@@ -297,22 +315,24 @@ class elaborator {
   bool can_drive(const netlist& nl, const scope_def& d, const scope_names& names, const ref& r,
                  net_id out) {
     if (out <= netlist::const1) {
-      rep_.error(r.loc, "a gate cannot drive a constant");
+      cur_->error(r.loc, "a gate cannot drive a constant");
       return false;
     }
     if (names.in_ports.count(r.name)) {
-      rep_.error(r.loc, fmt::format("port '{}' is an input of block '{}'; a gate cannot drive it",
-                                    r.name, d.id.name));
+      cur_->error(r.loc, fmt::format("port '{}' is an input of block '{}'; a gate cannot drive it",
+                                     r.name, d.id.name));
       return false;
     }
     if (is_input_[out]) {
-      rep_.error(r.loc,
-                 fmt::format("net '{}' is an input; a gate cannot drive it", nl.net_name[out]));
+      cur_->error(r.loc,
+                  fmt::format("net '{}' is an input; a gate cannot drive it", nl.net_name[out]));
       return false;
     }
     if (nl.driver[out] != no_id) {
-      rep_.error(r.loc, fmt::format("net '{}' has two drivers (the other at {})", nl.net_name[out],
-                                    at_text(nl.gate_loc[nl.driver[out]])));
+      const gate_id other = nl.driver[out];
+      reporter& at = other < gate_rep_.size() && gate_rep_[other] ? *gate_rep_[other] : rep_;
+      cur_->error(r.loc, fmt::format("net '{}' has two drivers (the other at {})", nl.net_name[out],
+                                     where_text(at, nl.gate_loc[other])));
       return false;
     }
     return true;
@@ -325,8 +345,8 @@ class elaborator {
     if (g.has_delay) return delay;
     const auto& dflt = d.default_delay ? d.default_delay : f_.top.default_delay;
     if (!dflt) {
-      rep_.error(g.out.loc, fmt::format("gate '{}' has no delay and no default delay is in scope",
-                                        g.out.name));
+      cur_->error(g.out.loc, fmt::format("gate '{}' has no delay and no default delay is in scope",
+                                         g.out.name));
       return delay;
     }
     delay = *dflt;
@@ -339,7 +359,7 @@ class elaborator {
     if (recursive_.count(&in)) return;
     auto it = block_.find(in.block.name);
     if (it == block_.end()) {
-      rep_.error(in.block.loc, fmt::format("unknown block '{}'", in.block.name));
+      cur_->error(in.block.loc, fmt::format("unknown block '{}'", in.block.name));
       return;
     }
     const scope_def& b = f_.blocks[it->second];
@@ -351,21 +371,21 @@ class elaborator {
       for (auto& r : b.ins) is_in = is_in || r.name == bind.port.name;
       for (auto& r : b.outs) is_out = is_out || r.name == bind.port.name;
       if (!is_in && !is_out) {
-        rep_.error(bind.port.loc,
-                   fmt::format("block '{}' has no port '{}'", b.id.name, bind.port.name));
+        cur_->error(bind.port.loc,
+                    fmt::format("block '{}' has no port '{}'", b.id.name, bind.port.name));
         ok = false;
         continue;
       }
       bool twice = false;
       for (auto& [p, n] : child.bound) twice = twice || p == bind.port.name;
       if (twice) {
-        rep_.error(bind.port.loc, fmt::format("port '{}' is bound twice", bind.port.name));
+        cur_->error(bind.port.loc, fmt::format("port '{}' is bound twice", bind.port.name));
         ok = false;
         continue;
       }
       if (is_out && (bind.target.name == "0" || bind.target.name == "1")) {
-        rep_.error(bind.target.loc,
-                   fmt::format("output port '{}' cannot be bound to a constant", bind.port.name));
+        cur_->error(bind.target.loc,
+                    fmt::format("output port '{}' cannot be bound to a constant", bind.port.name));
         ok = false;
         continue;
       }
@@ -380,8 +400,8 @@ class elaborator {
       bool found = false;
       for (auto& bind : in.binds) found = found || bind.port.name == r.name;
       if (!found) {
-        rep_.error(in.id.loc,
-                   fmt::format("input port '{}' of block '{}' is not bound", r.name, b.id.name));
+        cur_->error(in.id.loc,
+                    fmt::format("input port '{}' of block '{}' is not bound", r.name, b.id.name));
         ok = false;
       }
     }
@@ -429,7 +449,7 @@ class elaborator {
     for (auto& in : f_.top.inits) {
       net_id n = nl.find(in.net.name);
       if (n == no_id || n <= netlist::const1)
-        rep_.error(in.net.loc, fmt::format("unknown net '{}'", in.net.name));
+        rep_of(f_.top).error(in.net.loc, fmt::format("unknown net '{}'", in.net.name));
       else
         nl.init[n] = in.value;
     }
@@ -443,27 +463,41 @@ class elaborator {
       const bool read = nl.fanout_begin[n + 1] > nl.fanout_begin[n];
       const auto& name = nl.net_name[n];
       if (!driven && is_output[n])
-        rep_.error(decl_loc_[n], fmt::format("output '{}' is never driven", name));
+        decl_rep(n).error(decl_loc_[n], fmt::format("output '{}' is never driven", name));
       else if (!driven && read)
-        rep_.error(decl_loc_[n], fmt::format("net '{}' is read but never driven", name));
+        decl_rep(n).error(decl_loc_[n], fmt::format("net '{}' is read but never driven", name));
       else if (!driven)
-        rep_.warning(decl_loc_[n], fmt::format("net '{}' is declared but never used", name));
+        decl_rep(n).warning(decl_loc_[n], fmt::format("net '{}' is declared but never used", name));
       else if (!read && !is_output[n])
-        rep_.warning(decl_loc_[n], is_input_[n]
-                                       ? fmt::format("input '{}' is never read", name)
-                                       : fmt::format("net '{}' is driven but never read", name));
+        decl_rep(n).warning(decl_loc_[n],
+                            is_input_[n] ? fmt::format("input '{}' is never read", name)
+                                         : fmt::format("net '{}' is driven but never read", name));
     }
+  }
+
+  /// The reporter of the file a scope is written in.
+  reporter& rep_of(const scope_def& d) { return d.rep ? *d.rep : rep_; }
+  /// The reporter of the file where net `n` is declared.
+  reporter& decl_rep(net_id n) {
+    return n < decl_rep_.size() && decl_rep_[n] ? *decl_rep_[n] : rep_;
+  }
+  /// "L:C", or "FILE:L:C" when the place is in another file than the one reported on.
+  std::string where_text(const reporter& at, source_loc l) const {
+    return &at == cur_ ? at_text(l) : fmt::format("{}:{}", at.file(), at_text(l));
   }
 
   file& f_;
   reporter& rep_;
+  reporter* cur_ = &rep_;  // the reporter of the scope being placed
   bool aborted_ = false;
   std::unordered_map<std::string_view, std::uint32_t> block_;
   std::vector<bool> used_, duplicate_;
   std::unordered_set<const inst*> recursive_;
   std::vector<bool> is_input_;
   std::vector<source_loc> decl_loc_;
-  std::vector<net_id> fanin_;  // the gate being placed
+  std::vector<reporter*> decl_rep_;  // per net, when declared in another file (else empty)
+  std::vector<reporter*> gate_rep_;  // per gate, likewise
+  std::vector<net_id> fanin_;        // the gate being placed
   std::vector<std::uint32_t> program_;
 };
 

@@ -42,6 +42,7 @@ inline std::string describe(const std::string& which) {
       {"cond_unary", "a net, 0, 1 or '('"},
       {"cond_primary", "a net, 0, 1 or '('"},
       {"count_", "a count"},
+      {"import_path", "a quoted file name such as \"ctrl.v\""},
       {"gauge_body",
        "period of NET, pulse of NET high|low, or latency from NET rises|falls to NET rises|falls"},
   };

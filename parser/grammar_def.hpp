@@ -26,7 +26,7 @@ inline bool is_reserved(std::string_view w) {
   return lexical::one_of(
       w, {"input", "output", "wire",  "default",  "delay",  "rise",  "fall",  "transport",
           "block", "inst",   "init",  "stimulus", "at",     "after", "clock", "settle",
-          "run",   "expect", "watch", "when",     "always", "never", "gauge"});
+          "run",   "expect", "watch", "when",     "always", "never", "gauge", "import"});
 }
 
 namespace detail {
@@ -146,6 +146,9 @@ SETTLE_X3_RULES((ref_list, std::vector<ast::name>, "ref_list"),
                 (port_groups, std::vector<ast::port_group>, "port_groups"),
                 (bindings, std::vector<ast::binding>, "bindings"),
                 (args, std::vector<ast::arg>, "args"))
+
+// Imports of Verilog files.
+SETTLE_X3_RULES((import_path, ast::name, "import_path"), (import_, ast::import_stmt, "import_"))
 statement_type const statement_rule = "statement";
 auto const ref_list_def = list(ref_);
 auto const name_list_def = list(name_);
@@ -236,9 +239,11 @@ auto const gauge_latency_def = kw("latency") > kw("from") > ref_
 auto const gauge_body_def = gauge_period | gauge_pulse | gauge_latency;
 auto const gauge_def = kw("gauge") > name_ > '=' > gauge_body;
 auto const expect_def = x3::raw[kw("expect")] > expect_body;
+auto const import_path_def = quoted_raw[detail::set_quoted_name];
+auto const import__def = x3::raw[kw("import")] > import_path;
 
 auto const statement_rule_def = decl | default_ | block_head | inst | init | timed | clock |
-                                settle_ | run | expect | when_ | property | gauge | gate;
+                                settle_ | run | expect | when_ | property | gauge | import_ | gate;
 
 BOOST_SPIRIT_DEFINE(ident_raw, ref_raw, quoted_raw, const_raw, number_raw, const_name, name_, ref_,
                     target_, time_unit, time_, range_, rise_fall, delay_body, or_expr, xor_expr,
@@ -251,6 +256,7 @@ BOOST_SPIRIT_DEFINE(ident_raw, ref_raw, quoted_raw, const_raw, number_raw, const
 BOOST_SPIRIT_DEFINE(cond_or, cond_xor, cond_and, cond_unary, cond_primary, cond_atom, count_raw,
                     count_, when_, edge_part, property, gauge_period, gauge_pulse, gauge_latency,
                     gauge_body, gauge, expect_gauge)
+BOOST_SPIRIT_DEFINE(import_path, import_)
 
 }  // namespace settle::grammar
 

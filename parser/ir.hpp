@@ -46,9 +46,14 @@ struct init {
   logic value = logic::x;
 };
 
+class reporter;
+
 /// A block definition, or the top level (then ins/outs are inputs/outputs).
 struct scope_def {
   ref id;
+  /// The reporter of the file the scope is written in, when that is not the
+  /// elaborated file's own (a module of an imported or included Verilog file).
+  reporter* rep = nullptr;
   std::vector<ref> ins, outs, wires;
   std::vector<gate> gates;
   std::vector<ref> read_pool;            ///< every gate's reads, back to back
@@ -113,9 +118,16 @@ struct piece {
   std::uint32_t begin = 0, size = 0;
 };
 
+/// `import "PATH"`: the path as written, and where its opening quote stands.
+struct import_stmt {
+  std::string path;
+  source_loc loc;
+};
+
 struct file {
   std::string_view text;  ///< the source text the pieces and refs point into
-  scope_def top;          ///< top-level gates are in top_gates, not top.gates
+  std::vector<import_stmt> imports;
+  scope_def top;  ///< top-level gates are in top_gates, not top.gates
   std::vector<piece> top_gates;
   std::size_t top_reads = 0;  ///< an upper bound of the top-level gates' reads
   std::vector<scope_def> blocks;

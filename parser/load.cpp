@@ -10,6 +10,8 @@
 #include <algorithm>
 #include <cerrno>
 #include <cstring>
+#include <memory>
+#include <vector>
 
 #include "parser/ir.hpp"
 #include "parser/verilog.hpp"
@@ -119,10 +121,82 @@ bool apply_stim_file(design& d, const std::string& path, diagnostics& diags) {
   return rep.errors() == 0;
 }
 
+/// The file a path names (device and inode), when it exists.
+struct file_id {
+  dev_t dev = 0;
+  ino_t ino = 0;
+  bool operator==(const file_id&) const = default;
+};
+std::optional<file_id> identify(const std::string& path) {
+  struct stat st {};
+  if (::stat(path.c_str(), &st) != 0) return std::nullopt;
+  return file_id{st.st_dev, st.st_ino};
+}
+
+/// Reads the Verilog files a .settle file imports and appends their modules
+/// to its blocks. Each path is relative to the importing file's folder.
+void read_imports(ir::file& f, const std::string& name, const load_options& opt, ir::reporter& rep,
+                  diagnostics& diags, std::vector<std::unique_ptr<verilog_library>>& libs) {
+  const auto self = identify(name);
+  std::vector<std::pair<file_id, source_loc>> seen;
+  // Block names so far: the .settle file's own, then each import's modules.
+  std::vector<std::pair<std::string, std::string>> names;  // name, where
+  for (auto& b : f.blocks)
+    names.emplace_back(std::string(b.id.name), fmt::format("{}:{}", b.id.loc.line, b.id.loc.col));
+  const auto slash = name.rfind('/');
+  for (auto& imp : f.imports) {
+    std::string path = imp.path;
+    if (path.front() != '/' && slash != std::string::npos) path = name.substr(0, slash + 1) + path;
+    const auto id = identify(path);
+    if (id && self && *id == *self) {
+      rep.error(imp.loc, fmt::format("import cycle: '{}' imports itself", name));
+      continue;
+    }
+    bool twice = false;
+    for (auto& [other, at] : seen)
+      if (id && other == *id) {
+        rep.error(imp.loc,
+                  fmt::format("'{}' is already imported at {}:{}", imp.path, at.line, at.col));
+        twice = true;
+      }
+    if (twice) continue;
+    if (ends_with(path, ".settle")) {
+      rep.error(imp.loc, fmt::format("'{}' is a .settle file; 'import' reads structural "
+                                     "Verilog (.v) files",
+                                     imp.path));
+      continue;
+    }
+    diagnostics opened;
+    source_text src;
+    if (!src.open(path, opened)) {
+      const auto& why = opened.items.front().message;
+      rep.error(imp.loc, path == imp.path
+                             ? fmt::format("cannot import '{}': {}", imp.path, why)
+                             : fmt::format("cannot import '{}' ({}): {}", imp.path, path, why));
+      continue;
+    }
+    if (id) seen.emplace_back(*id, imp.loc);
+    auto lib = read_verilog_library(std::string(src.view()), path, opt, diags);
+    for (std::size_t m = 0; m < lib->modules.size(); ++m) {
+      const std::string mod(lib->modules[m].id.name);
+      for (auto& [other, at] : names)
+        if (other == mod)
+          rep.error(imp.loc, fmt::format("module '{}' of '{}' (at {}) has the name of the block "
+                                         "defined at {}",
+                                         mod, imp.path, lib->module_where[m], at));
+      names.emplace_back(mod, lib->module_where[m]);
+    }
+    libs.push_back(std::move(lib));
+  }
+  if (rep.errors()) return;
+  for (auto& lib : libs)
+    for (auto& m : lib->modules) f.blocks.push_back(std::move(m));
+}
+
 /// Parses and elaborates a .settle text; `src`, when given, is the mapped file
 /// the text views, whose pages are dropped once read.
 std::optional<design> load_settle(std::string_view text, const std::string& name,
-                                  diagnostics& diags, source_text* src) {
+                                  const load_options& opt, diagnostics& diags, source_text* src) {
   const auto first = diags.items.size();
   ir::reporter rep(text, name, diags);
   ir::file f;
@@ -131,16 +205,24 @@ std::optional<design> load_settle(std::string_view text, const std::string& name
     src->release(text.size());
     f.release_text = [src](std::size_t upto) { src->release(upto); };
   }
+  // The imported modules' names and reporters live until the netlist is built.
+  std::vector<std::unique_ptr<verilog_library>> libs;
+  auto errors = [&] {
+    std::size_t n = rep.errors();
+    for (auto& lib : libs) n += lib->errors();
+    return n;
+  };
+  if (!rep.errors() && !f.imports.empty()) read_imports(f, name, opt, rep, diags, libs);
   design d;
   d.path = name;
-  if (!rep.errors()) {
+  if (!errors()) {
     ir::elaborate(f, d.nets, rep);
-    if (!rep.errors()) ir::build_stimulus(f.stim, d.nets, d.stim, rep);
+    if (!errors()) ir::build_stimulus(f.stim, d.nets, d.stim, rep);
   } else {
     ir::check_top_gates(f, rep);
   }
   sort_from(diags, first);
-  if (rep.errors()) return std::nullopt;
+  if (errors()) return std::nullopt;
   d.source.format = "settle";
   d.source.inputs = static_cast<std::uint32_t>(d.nets.inputs.size());
   d.source.outputs = static_cast<std::uint32_t>(d.nets.outputs.size());
@@ -155,7 +237,7 @@ std::optional<design> load_design_text(std::string_view text, const std::string&
                                        const load_options& opt, diagnostics& diags) {
   if (opt.format == "bench") return load_bench_text(text, name, opt, diags);
   if (opt.format == "verilog") return load_verilog_text(text, name, opt, diags);
-  return load_settle(text, name, diags, nullptr);
+  return load_settle(text, name, opt, diags, nullptr);
 }
 
 std::optional<design> load_design(const std::string& path, const load_options& opt,
@@ -176,7 +258,7 @@ std::optional<design> load_design(const std::string& path, const load_options& o
     o.format = ends_with(path, ".bench") ? "bench" : ends_with(path, ".v") ? "verilog" : "settle";
   auto d = o.format == "bench"     ? load_bench_text(text, path, o, diags)
            : o.format == "verilog" ? load_verilog_text(text, path, o, diags)
-                                   : load_settle(text, path, diags, &src);
+                                   : load_settle(text, path, o, diags, &src);
   if (!d) return d;
   d->path = path;
   if (!opt.stim_path.empty() && !apply_stim_file(*d, opt.stim_path, diags)) return std::nullopt;

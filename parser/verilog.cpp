@@ -3,12 +3,17 @@
 #include "parser/verilog.hpp"
 
 #include <fmt/format.h>
+#include <sys/stat.h>
 
 #include <algorithm>
 #include <cctype>
+#include <cerrno>
 #include <cmath>
 #include <cstring>
 #include <deque>
+#include <fstream>
+#include <memory>
+#include <sstream>
 #include <unordered_map>
 #include <unordered_set>
 #include <vector>
@@ -79,12 +84,71 @@ const char* unsupported_word(std::string_view w) {
   return it == words.end() ? nullptr : it->second;
 }
 
+/// A place in one of the files read: the file (0: the one given, others
+/// included) and the line and column within it.
+struct vloc : source_loc {
+  std::uint32_t file = 0;
+};
+
+/// The files one read takes text from: the one given and those it includes,
+/// each with its own reporter, so that a diagnostic names the file it is in.
+class file_set {
+ public:
+  struct source {
+    std::string owned;  // an included file's text
+    std::string_view text;
+    std::string name;
+    std::unique_ptr<ir::reporter> rep;
+    std::int32_t parent = -1;  // the including file
+    dev_t dev = 0;
+    ino_t ino = 0;
+    bool identified = false;
+  };
+
+  file_set(std::string_view text, const std::string& name, diagnostics& diags) : diags_(diags) {
+    auto& f = files_.emplace_back();
+    f.text = text;
+    f.name = name;
+    f.rep = std::make_unique<ir::reporter>(text, name, diags);
+    struct stat st {};
+    if (::stat(name.c_str(), &st) == 0) f.dev = st.st_dev, f.ino = st.st_ino, f.identified = true;
+  }
+  std::uint32_t add(std::string text, std::string name, std::uint32_t parent, dev_t dev,
+                    ino_t ino) {
+    auto& f = files_.emplace_back();
+    f.owned = std::move(text);
+    f.text = f.owned;
+    f.name = std::move(name);
+    f.rep = std::make_unique<ir::reporter>(f.text, f.name, diags_);
+    f.parent = static_cast<std::int32_t>(parent);
+    f.dev = dev, f.ino = ino, f.identified = true;
+    return static_cast<std::uint32_t>(files_.size() - 1);
+  }
+  const source& operator[](std::uint32_t i) const { return files_[i]; }
+  ir::reporter& reporter(std::uint32_t i) { return *files_[i].rep; }
+  void error(const vloc& at, const std::string& msg) { files_[at.file].rep->error(at, msg); }
+  std::size_t errors() const {
+    std::size_t n = 0;
+    for (auto& f : files_) n += f.rep->errors();
+    return n;
+  }
+  /// "L:C" for a place in file `here`, "FILE:L:C" for one in another file.
+  std::string where(const vloc& at, std::uint32_t here) const {
+    return at.file == here ? fmt::format("{}:{}", at.line, at.col)
+                           : fmt::format("{}:{}:{}", files_[at.file].name, at.line, at.col);
+  }
+
+ private:
+  diagnostics& diags_;
+  std::deque<source> files_;
+};
+
 struct vsignal {
   std::string_view name;
   std::string dir;  // "input", "output" or "" (a wire)
   bool vector = false, has_dir_decl = false, has_wire_decl = false;
   int msb = 0, lsb = 0;
-  source_loc loc;
+  vloc loc;
 };
 
 template <typename T>
@@ -95,7 +159,8 @@ struct timed {
 
 struct vmodule {
   std::string_view name;
-  source_loc loc;
+  vloc loc;
+  std::size_t begin = 0;  // where its header starts in the text read
   bool ansi = false;
   std::vector<vast::raw> header;  // non-ANSI port names, in order
   std::vector<std::string_view> port_order;
@@ -109,7 +174,7 @@ struct vmodule {
 /// A user-defined primitive: its ports, state and table (level-sensitive rows).
 struct udp_def {
   std::string_view name;
-  source_loc loc;
+  vloc loc;
   std::vector<std::string> ports;  // the output first
   bool sequential = false;
   logic initial = logic::x;
@@ -118,7 +183,7 @@ struct udp_def {
     std::string ins;  // one symbol per input
     char state = 0;   // sequential tables: the present-state symbol
     char out = 0;
-    source_loc loc;
+    vloc loc;
   };
   std::vector<row> rows;
   // The lowering: a C-element (sequential) or, for combinational tables, the
@@ -136,13 +201,32 @@ class reader {
          diagnostics& diags)
       : text_(text), name_(name), opt_(opt), rep_(text, name, diags) {}
 
-  std::optional<design> run() {
+  /// Reads every module of the text (and of the files it includes).
+  bool read() {
     clean_ = std::string(text_);
+    segs_.push_back({0, 0, 0});
     preprocess();
-    if (rep_.errors()) return std::nullopt;
+    if (rep_.errors()) return false;
     find_udp_names();
     statements();
-    if (rep_.errors()) return std::nullopt;
+    return rep_.errors() == 0;
+  }
+
+  /// The modules as blocks for a .settle file that imports this one: each
+  /// scope reports through the reporter of its own file.
+  std::vector<ir::scope_def> library(std::vector<std::string>& where) {
+    std::vector<ir::scope_def> out;
+    for (auto& m : modules_) {
+      out.push_back(lower(m));
+      out.back().rep = &rep_.reporter(m.loc.file);
+      where.push_back(fmt::format("{}:{}:{}", rep_[m.loc.file].name, m.loc.line, m.loc.col));
+    }
+    return out;
+  }
+  std::size_t errors() const { return rep_.errors(); }
+
+  std::optional<design> run() {
+    if (!read()) return std::nullopt;
     if (modules_.empty()) {
       rep_.error(loc(clean_.data() + clean_.size()), "the file holds no module");
       return std::nullopt;
@@ -153,6 +237,7 @@ class reader {
     f.text = text_;
     for (auto& m : modules_) {
       ir::scope_def s = lower(m);
+      if (m.loc.file != 0) s.rep = &rep_.reporter(m.loc.file);
       if (&m == top)
         f.top = std::move(s);
       else
@@ -161,7 +246,7 @@ class reader {
     if (rep_.errors()) return std::nullopt;
     design d;
     d.path = name_;
-    ir::elaborate(f, d.nets, rep_);
+    ir::elaborate(f, d.nets, rep_.reporter(0));
     if (rep_.errors()) return std::nullopt;
     d.source.format = "verilog";
     d.source.inputs = static_cast<std::uint32_t>(d.nets.inputs.size());
@@ -179,8 +264,25 @@ class reader {
   }
 
  private:
-  source_loc loc(const char* p) const { return rep_.loc_of(text_.data() + (p - clean_.data())); }
-  source_loc loc_at(std::size_t off) const { return rep_.loc_of(text_.data() + off); }
+  vloc loc(const char* p) { return loc_at(static_cast<std::size_t>(p - clean_.data())); }
+  /// The file, line and column of an offset of the text read (includes spliced in).
+  vloc loc_at(std::size_t off) {
+    auto it = std::upper_bound(segs_.begin(), segs_.end(), off,
+                               [](std::size_t o, const segment& g) { return o < g.begin; });
+    const segment& g = *(it - 1);
+    const auto& f = rep_[g.file];
+    const std::size_t foff = std::min(g.file_off + (off - g.begin), f.text.size());
+    vloc v;
+    static_cast<source_loc&>(v) = rep_.reporter(g.file).loc_of(f.text.data() + foff);
+    v.file = g.file;
+    return v;
+  }
+  /// The file an offset of the text read belongs to.
+  std::uint32_t file_at(std::size_t off) const {
+    auto it = std::upper_bound(segs_.begin(), segs_.end(), off,
+                               [](std::size_t o, const segment& g) { return o < g.begin; });
+    return (it - 1)->file;
+  }
   std::string_view intern(std::string s) { return pool_.emplace_back(std::move(s)); }
 
   // ---- Comments, attributes and compiler directives -----------------------
@@ -245,6 +347,7 @@ class reader {
       blank(at, line_end);
       return line_end;
     }
+    if (word == "include") return include(at, e, line_end);
     rep_.error(
         loc_at(at),
         fmt::format("the directive '`{}' is not supported by settle's structural reader", word));
@@ -307,6 +410,81 @@ class reader {
     scales_.push_back(m);
   }
 
+  /// `include "PATH" at `at`: PATH (relative to the including file) is read
+  /// and spliced in after the directive's line, which must hold nothing else
+  /// but a comment. Returns where scanning goes on: the included text.
+  std::size_t include(std::size_t at, std::size_t from, std::size_t line_end) {
+    std::string& s = clean_;
+    std::size_t q = from;
+    while (q < line_end && space(s[q])) ++q;
+    if (q >= line_end || s[q] != '"') {
+      rep_.error(loc_at(q), "expected a quoted file name after `include");
+      blank(at, line_end);
+      return line_end;
+    }
+    const std::size_t close = s.find('"', q + 1);
+    if (close == std::string::npos || close >= line_end || close == q + 1) {
+      rep_.error(loc_at(q), "expected a quoted file name after `include");
+      blank(at, line_end);
+      return line_end;
+    }
+    std::size_t rest = close + 1;
+    while (rest < line_end && space(s[rest])) ++rest;
+    if (rest < line_end && s.compare(rest, 2, "//") != 0) {
+      rep_.error(loc_at(rest), "unexpected text after `include \"FILE\" on its line");
+      blank(at, line_end);
+      return line_end;
+    }
+    const vloc where = loc_at(q);
+    const std::string path = s.substr(q + 1, close - q - 1);
+    blank(at, close + 1);
+    const std::uint32_t parent = file_at(at);
+    std::string full = path;
+    if (path.front() != '/') {
+      const std::string& outer = rep_[parent].name;
+      const auto slash = outer.rfind('/');
+      if (slash != std::string::npos) full = outer.substr(0, slash + 1) + path;
+    }
+    struct stat st {};
+    const int err = ::stat(full.c_str(), &st) != 0 ? errno : S_ISDIR(st.st_mode) ? EISDIR : 0;
+    std::ifstream in(full, std::ios::binary);
+    if (err || !in) {
+      rep_.error(where, fmt::format("cannot read the included file '{}': {}", full,
+                                    std::strerror(err ? err : EIO)));
+      return line_end;
+    }
+    // A file that includes itself, directly or through others, never ends.
+    std::vector<std::uint32_t> chain;
+    for (auto f = static_cast<std::int32_t>(parent); f >= 0; f = rep_[f].parent)
+      chain.push_back(static_cast<std::uint32_t>(f));
+    for (std::size_t k = 0; k < chain.size(); ++k) {
+      const auto& f = rep_[chain[k]];
+      if (!f.identified || f.dev != st.st_dev || f.ino != st.st_ino) continue;
+      std::string cycle;
+      for (std::size_t j = k + 1; j-- > 0;) cycle += rep_[chain[j]].name + " -> ";
+      rep_.error(where, fmt::format("`include cycle: {}{}", cycle, full));
+      return line_end;
+    }
+    std::ostringstream body;
+    body << in.rdbuf();
+    std::string text = body.str();
+    const std::uint32_t g = rep_.add(text, full, parent, st.st_dev, st.st_ino);
+    if (text.empty() || text.back() != '\n') text.push_back('\n');
+    if (line_end == s.size()) s.push_back('\n');
+    const std::size_t p = line_end + 1, n = text.size();
+    s.insert(p, text);
+    includes_.push_back({at, where});
+    // Split the segment the directive is in around the spliced text.
+    auto it = std::upper_bound(segs_.begin(), segs_.end(), at,
+                               [](std::size_t o, const segment& x) { return o < x.begin; });
+    const segment cur = *(it - 1);
+    for (auto j = it; j != segs_.end(); ++j) j->begin += n;
+    const segment after{p + n, cur.file, cur.file_off + (p - cur.begin)};
+    it = segs_.insert(it, after);
+    segs_.insert(it, segment{p, g, 0});
+    return line_end;
+  }
+
   const timescale_mark* scale_at(const char* p) const {
     const auto off = static_cast<std::size_t>(p - clean_.data());
     const timescale_mark* best = nullptr;
@@ -333,6 +511,13 @@ class reader {
       const std::string_view first = id_start(s[i]) ? word_at(i) : std::string_view{};
       if (first == "endmodule") {
         if (!cur) rep_.error(loc_at(i), "'endmodule' without a module");
+        for (auto& inc : includes_)
+          if (cur && inc.first > cur->begin && inc.first < i) {
+            rep_.error(inc.second, fmt::format("`include inside module '{}' is not supported; "
+                                               "include files between modules",
+                                               cur->name));
+            return;
+          }
         cur = nullptr;
         i += first.size();
         continue;
@@ -436,11 +621,13 @@ class reader {
       }
       for (auto& m : modules_)
         if (m.name == h->name.text) {
-          rep_.error(loc(h->name.pos), fmt::format("module '{}' is already defined at {}:{}",
-                                                   h->name.text, m.loc.line, m.loc.col));
+          const vloc here = loc(h->name.pos);
+          rep_.error(here, fmt::format("module '{}' is already defined at {}", h->name.text,
+                                       rep_.where(m.loc, here.file)));
           return;
         }
       cur = &modules_.emplace_back();
+      cur->begin = static_cast<std::size_t>(text.data() - clean_.data());
       module_header(*cur, *h);
       return;
     }
@@ -845,7 +1032,7 @@ class reader {
 
   /// One instance of a primitive: terms[0] the output, the rest its inputs.
   void lower_udp(const udp_def& u, const std::vector<std::string_view>& term,
-                 const std::vector<source_loc>& at, const gate_delay& delay, source_loc where,
+                 const std::vector<vloc>& at, const gate_delay& delay, vloc where,
                  ir::scope_def& s) {
     if (term.size() != u.ports.size()) {
       rep_.error(where, fmt::format("primitive '{}' has {} ports; this instance connects {}",
@@ -1142,7 +1329,7 @@ class reader {
     const bool multi_out = kind == gate_kind::buf || kind == gate_kind::inv;
     for (auto& inst : g.insts) {
       std::vector<std::string_view> term;
-      std::vector<source_loc> at;
+      std::vector<vloc> at;
       bool ok = true;
       for (auto& c : inst.terms) {
         bits b;
@@ -1164,7 +1351,7 @@ class reader {
         at.push_back(loc(c.front().pos));
       }
       if (!ok) continue;
-      const source_loc where = inst.name ? loc(inst.name->pos) : loc(g.kind.pos);
+      const vloc where = inst.name ? loc(inst.name->pos) : loc(g.kind.pos);
       if (u) {
         lower_udp(*u, term, at, delay, where, s);
         continue;
@@ -1416,7 +1603,7 @@ class reader {
       expr_parser p(*this, m, item.rhs, nodes);
       const int root = p.parse();
       if (root < 0 || !check_widths(nodes, root, lhs.size())) continue;
-      const source_loc at = loc(item.lhs.front().pos);
+      const vloc at = loc(item.lhs.front().pos);
       for (std::size_t k = 0; k < lhs.size(); ++k) {
         ir::gate gt;
         gt.out = ref_of(lhs[k], at);
@@ -1457,7 +1644,7 @@ class reader {
     if (const udp_def* u = sub ? nullptr : udp_named(st.module.text)) {
       for (auto& in : st.insts) {
         std::vector<std::string_view> term;
-        std::vector<source_loc> at;
+        std::vector<vloc> at;
         bool ok = true;
         for (auto& c : in.conns) {
           bits b;
@@ -1510,7 +1697,7 @@ class reader {
           break;
         }
         std::string_view port = named ? std::string_view(c.port->text) : sub->port_order[k];
-        const source_loc port_at = loc(named ? c.port->pos : c.value.front().pos);
+        const vloc port_at = loc(named ? c.port->pos : c.value.front().pos);
         auto pit = sub->index.find(port);
         if (pit == sub->index.end() ||
             (named && std::find(sub->port_order.begin(), sub->port_order.end(), port) ==
@@ -1529,7 +1716,7 @@ class reader {
                                  port, sub->name, pb.size(), pb.size() == 1 ? "" : "s", vb.size()));
           continue;
         }
-        const source_loc val_at = loc(c.value.front().pos);
+        const vloc val_at = loc(c.value.front().pos);
         for (std::size_t b = 0; b < pb.size(); ++b)
           out.binds.push_back({ref_of(pb[b], port_at), ref_of(vb[b], val_at)});
       }
@@ -1541,7 +1728,14 @@ class reader {
   std::string clean_;
   const std::string& name_;
   const load_options& opt_;
-  ir::reporter rep_;
+  file_set rep_;
+  struct segment {
+    std::size_t begin;  // in the text read
+    std::uint32_t file;
+    std::size_t file_off;  // where it starts in its file
+  };
+  std::vector<segment> segs_;                           // in order of `begin`
+  std::vector<std::pair<std::size_t, vloc>> includes_;  // each `include: offset, its file name
   std::vector<timescale_mark> scales_;
   std::deque<vmodule> modules_;
   std::deque<std::string> pool_;
@@ -1555,6 +1749,32 @@ std::optional<design> load_verilog_text(std::string_view text, const std::string
                                         const load_options& opt, diagnostics& diags) {
   reader r(text, name, opt, diags);
   return r.run();
+}
+
+namespace {
+class library_impl final : public verilog_library {
+ public:
+  library_impl(std::string text, const std::string& name, const load_options& opt,
+               diagnostics& diags)
+      : text_(std::move(text)), name_(name), opt_(opt), reader_(text_, name_, opt_, diags) {}
+  void read() {
+    if (reader_.read()) modules = reader_.library(module_where);
+  }
+  std::size_t errors() const override { return reader_.errors(); }
+
+ private:
+  std::string text_;
+  std::string name_;
+  load_options opt_;
+  reader reader_;
+};
+}  // namespace
+
+std::unique_ptr<verilog_library> read_verilog_library(std::string text, const std::string& name,
+                                                      const load_options& opt, diagnostics& diags) {
+  auto lib = std::make_unique<library_impl>(std::move(text), name, opt, diags);
+  lib->read();
+  return lib;
 }
 
 }  // namespace settle
