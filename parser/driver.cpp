@@ -168,15 +168,18 @@ struct visitor {
     rep.error(loc(), fmt::format("'{}' is only allowed inside stimulus {{ }}", kw));
     return false;
   }
-  // Quoted names only refer to existing nets, from a stimulus.
+  // Quoted names name nets at top level and in gates; a block's wires, ports
+  // and inits and an instance's bindings take plain names.
   bool unquoted(const ast::name& n) {
-    if (!n.quoted) return true;
-    rep.error(rep.loc_of(n.pos), "a quoted name can only refer to a net inside stimulus { }");
+    if (!n.quoted || at == where::top) return true;
+    rep.error(
+        rep.loc_of(n.pos),
+        "a quoted name can only refer to a net at top level, in a gate or inside stimulus { }");
     return false;
   }
   bool plain(const ast::name& n) {
     if (!unquoted(n)) return false;
-    if (n.text.find('.') == std::string::npos) return true;
+    if (n.quoted || n.text.find('.') == std::string::npos) return true;
     rep.error(rep.loc_of(n.pos), fmt::format("'{}': declared names cannot contain '.'", n.text));
     return false;
   }
@@ -446,6 +449,12 @@ bool blank(char c) { return c == ' ' || c == '\t' || c == '\r'; }
 bool looks_like_gate(std::string_view piece) {
   std::size_t i = 0;
   const std::size_t n = piece.size();
+  if (n > 2 && piece[0] == '"' && piece.back() != '{') {  // a quoted net: "22" = nand(...)
+    i = piece.find('"', 1);
+    if (i == std::string_view::npos || i == 1) return false;
+    for (++i; i < n && blank(piece[i]);) ++i;
+    return i < n && piece[i] == '=';
+  }
   if (n == 0 || piece.back() == '{' || !lexical::ident_start(piece[0])) return false;
   while (i < n && lexical::ident_char(piece[i])) ++i;
   if (grammar::is_reserved_word(piece.substr(0, i))) return false;

@@ -218,8 +218,8 @@ class elaborator {
   /// The net a name in the scope refers to (0 and 1 are the constants), or
   /// no_id after reporting.
   net_id lookup(const netlist& nl, const scope_names& names, const ref& r) {
-    if (r.name == "0") return netlist::const0;
-    if (r.name == "1") return netlist::const1;
+    if (r.name == "0" && !r.quoted) return netlist::const0;
+    if (r.name == "1" && !r.quoted) return netlist::const1;
     if (names.top) {
       const net_id n = nl.find(r.name);
       if (n != no_id) return n;

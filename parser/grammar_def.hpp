@@ -88,7 +88,7 @@ SETTLE_X3_RULES((ident_raw, raw_range, "name_"), (ref_raw, raw_range, "ref_"),
                 (number_raw, raw_range, "time_"))
 
 // ... and their values.
-SETTLE_X3_RULES((name_, ast::name, "name_"), (ref_, ast::name, "ref_"),
+SETTLE_X3_RULES((name_, ast::name, "name_"), (ref_, ast::name, "ref_"), (net_, ast::name, "name_"),
                 (const_name, ast::name, "target_"), (target_, ast::name, "target_"),
                 (time_unit, int, "time_unit"), (time_, ast::time_lit, "time_"))
 
@@ -166,6 +166,8 @@ auto const const_raw_def = x3::raw[x3::lexeme[x3::char_("01") >> word_end]];
 auto const number_raw_def = x3::raw[x3::lexeme[+x3::digit >> -('.' >> +x3::digit)]];
 auto const name__def = ident_raw[detail::set_name];
 auto const ref__def = ref_raw[detail::set_name] | quoted_raw[detail::set_quoted_name];
+// A net in a gate: a plain name, or a quoted one (any net's full name as it stands).
+auto const net__def = ident_raw[detail::set_name] | quoted_raw[detail::set_quoted_name];
 auto const const_name_def = const_raw[detail::set_const_name];
 // No semantic action at this level, so the alternative's attribute propagates.
 auto const target__def = ref_ | const_name;
@@ -181,14 +183,14 @@ auto const or_expr_def = xor_expr >> *('|' > xor_expr);
 auto const xor_expr_def = and_expr >> *('^' > and_expr);
 auto const and_expr_def = unary >> *('&' > unary);
 auto const unary_def = *x3::char_('~') > primary;
-auto const primary_def = name_ | x3::lexeme[x3::char_("01") >> word_end] | ('(' > or_expr > ')');
+auto const primary_def = net_ | x3::lexeme[x3::char_("01") >> word_end] | ('(' > or_expr > ')');
 
 // ---- gates
 // The lookahead keeps a plain net argument from being taken for a label.
 auto const arg_def = -(&(x3::lexeme[ident_chars] >> ':') >> name_ >> ':') >> or_expr;
 auto const call_def = name_ >> '(' > -(!x3::lit(')') >> args) > ')';
 auto const rhs_def = call | or_expr;
-auto const gate_def = name_ >> '=' > rhs >>
+auto const gate_def = net_ >> '=' > rhs >>
                       -((kw("delay") > delay_body) | rise_fall) >> x3::matches[kw("transport")];
 
 // ---- declarations and structure
@@ -246,10 +248,10 @@ auto const statement_rule_def = decl | default_ | block_head | inst | init | tim
                                 settle_ | run | expect | when_ | property | gauge | import_ | gate;
 
 BOOST_SPIRIT_DEFINE(ident_raw, ref_raw, quoted_raw, const_raw, number_raw, const_name, name_, ref_,
-                    target_, time_unit, time_, range_, rise_fall, delay_body, or_expr, xor_expr,
-                    and_expr, unary, primary, arg, call, rhs, gate, decl, default_, port_group,
-                    block_head, binding, inst, value_, assign, assigns, init, timed, clock,
-                    cycles_count, settle_, run, expect_within, expect_glitch, expect_word,
+                    net_, target_, time_unit, time_, range_, rise_fall, delay_body, or_expr,
+                    xor_expr, and_expr, unary, primary, arg, call, rhs, gate, decl, default_,
+                    port_group, block_head, binding, inst, value_, assign, assigns, init, timed,
+                    clock, cycles_count, settle_, run, expect_within, expect_glitch, expect_word,
                     expect_body, expect, ref_list, name_list, port_groups, bindings, args,
                     statement_rule)
 // The closed-loop statements (a second DEFINE: one takes a bounded number of rules).

@@ -20,6 +20,7 @@ namespace settle::ir {
 struct ref {
   std::string_view name;
   source_loc loc;
+  bool quoted = false;  ///< written in double quotes: a net's full name, never a constant
 };
 
 /// A gate. Its reads (the fan-in: arguments in order for primitives, distinct

@@ -203,7 +203,7 @@ bool lower_range(const ast::range& r, delay_range& out, reporter& rep) {
 // The name's characters are the source's own (the grammar takes them raw), so
 // the ref views the source text, which outlives the IR.
 ref lower_ref(const ast::name& n, const reporter& rep) {
-  return ref{std::string_view(n.pos, n.text.size()), rep.loc_of(n.pos)};
+  return ref{std::string_view(n.pos, n.text.size()), rep.loc_of(n.pos), n.quoted};
 }
 
 logic lower_value(char c) { return c == '0' ? logic::zero : c == '1' ? logic::one : logic::x; }

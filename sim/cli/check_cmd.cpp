@@ -11,6 +11,7 @@
 #include "sim/analysis/graph.hpp"
 #include "sim/cli/command.hpp"
 #include "sim/cli/report_common.hpp"
+#include "waves/emit.hpp"
 
 namespace settle::cli {
 namespace {
@@ -18,6 +19,7 @@ namespace {
 struct check_options {
   design_options design;
   std::string json;
+  std::string emit;  // the design written back as .settle
 };
 
 struct loop_info {
@@ -51,9 +53,25 @@ constexpr std::size_t shown_members = 4;
 exit_status run_check(const check_options& o) {
   auto uses = design_inputs(o.design);
   uses.push_back({path_use::kind::output, "--json", o.json, ""});
+  uses.push_back({path_use::kind::output, "--emit", o.emit, ""});
   if (!check_paths(uses)) return exit_status::error;
+  if (o.json == "-" && o.emit == "-") {
+    spdlog::error("--json and --emit cannot both write to stdout");
+    return exit_status::error;
+  }
   auto d = load(o.design, true);
   if (!d) return exit_status::error;
+  output_set outputs;
+  if (!o.emit.empty()) {
+    const auto e = settle_text(*d, version_text());
+    if (!e.error.empty()) {
+      spdlog::error("{}: cannot write it as .settle: {}", d->path, e.error);
+      return exit_status::error;
+    }
+    if (e.flat)
+      spdlog::warn("{}: --emit writes the flat netlist: its blocks could not be rebuilt", d->path);
+    if (!outputs.put(o.emit, e.text)) return exit_status::error;
+  }
   const netlist& n = d->nets;
   std::array<std::size_t, gate_kind_count> by_kind{};
   for (auto k : n.kind) ++by_kind[static_cast<int>(k)];
@@ -97,9 +115,11 @@ exit_status run_check(const check_options& o) {
                      {"dffs", s.dffs},     {"inverters", s.inverters}, {"buffers", s.buffers},
                      {"gates", s.gates}};
     }
-    if (!write_output(o.json, json_text(j))) return exit_status::error;
-    if (o.json == "-") return exit_status::ok;  // stdout carries the JSON alone
+    if (!outputs.put(o.json, json_text(j))) return exit_status::error;
   }
+  if (!outputs.commit()) return exit_status::error;
+  // stdout carries the JSON or the design alone
+  if (o.json == "-" || o.emit == "-") return exit_status::ok;
 
   std::string out = fmt::format("design     {}\n", d->path);
   out += fmt::format("blocks     {}\ninstances  {}\n", n.blocks, n.instances);
@@ -141,6 +161,8 @@ void add_check(CLI::App& app, exit_status& status) {
   add_design_options(*cmd, o->design);
   check_output_path(
       cmd->add_option("--json", o->json, "write the counts as JSON to PATH ('-' for stdout)"));
+  check_output_path(cmd->add_option(
+      "--emit", o->emit, "write the elaborated design as a .settle file to PATH ('-' for stdout)"));
   cmd->callback([o, &status] { status = run_check(*o); });
 }
 

@@ -155,8 +155,9 @@ CASES = [
      ["run", "n.bench", "--stim", "n.stim"], 0, ["result  pass", "22"], None),
     ("quoted name that is no net", {"n.bench": BENCH, "n.stim": 'stimulus {\n  at 0ns "7" = 1\n  settle\n}\n'},
      ["run", "n.bench", "--stim", "n.stim"], 2, ["n.stim:2:11: error: unknown net '7'"], None),
-    ("quoted name in a declaration", {"d.settle": 'input "a"\noutput q\nq = buf(a) delay 1ps\n'},
-     ["check", "d.settle"], 2, ["d.settle:1:8:", "a quoted name can only refer to a net inside stimulus"], None),
+    ("quoted name in a block's declaration",
+     {"d.settle": 'block p(in a; out q) {\n  wire "n"\n  q = buf(a) delay 1ps\n}\ninput i\noutput o\ninst u p(a: i, q: o)\n'},
+     ["check", "d.settle"], 2, ["d.settle:2:9:", "a quoted name can only refer to a net at top level"], None),
     ("VCD names stay distinct after sanitising", {"c.bench": CLASH, "c.stim":
                                                    'stimulus {\n  at 0ns "a.b" = 1, "a_b" = 1\n  settle\n}\n'},
      ["run", "c.bench", "--stim", "c.stim", "--vcd", "c.vcd"], 0, ["result  pass"],
