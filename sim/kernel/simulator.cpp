@@ -57,6 +57,7 @@ simulator::simulator(const netlist& n)
       if (gate_[g].op < lut_rows) gate_[g].op = gate_rec::general;
     }
   arcs_ = !n.arcs.empty();
+  set_watchers();
   for (gate_id g = 0; g < gates && arcs_; ++g)  // off the table paths, whose delay is the gate's
     if (n.has_arcs(g) && gate_[g].op < lut_rows) gate_[g].op = gate_rec::general;
 }
@@ -193,6 +194,7 @@ void simulator::reset(const delay_table& delays) {
       gate_[g].delay[1] = static_cast<std::uint32_t>(delays.fall[g]);
       gate_[g].shorter = delays.fall[g] < delays.rise[g];
     }
+    if (arcs_ && n_.has_arcs(g)) gate_[g].shorter |= arc_bit;  // delay_of asks arc_delay_of
   }
   if (arcs_) {
     SETTLE_CHECK(delays.arc_rise.size() == n_.arcs.size(), "the delay table has every arc's delay");
@@ -214,6 +216,7 @@ void simulator::reset(const delay_table& delays) {
 
 void simulator::track_state(bool on) {
   tracking_ = on;
+  set_watchers();
   hash_ = 0;
   if (on)
     for (net_id i = 0; i < val_.size(); ++i) hash_ ^= value_key(i, val_[i]);
@@ -241,10 +244,12 @@ time_fs simulator::arc_delay_of(gate_id g, logic from, logic to) const {
   return (static_cast<unsigned>(from) | static_cast<unsigned>(to)) & 2u ? shorter : edge;
 }
 
+// Plain: the loop a design with arcs never takes (run_quiet), so no test.
+template <bool Plain>
 SETTLE_HOT time_fs simulator::delay_of(gate_id g, logic from, logic to) const {
-  if (arcs_ && n_.has_arcs(g)) [[unlikely]]
-    return arc_delay_of(g, from, to);
   const gate_rec& d = gate_[g];
+  if (!Plain && (d.shorter & arc_bit)) [[unlikely]]
+    return arc_delay_of(g, from, to);
   const time_fs r = wide_ ? wide_delay_[g].rise : d.delay[0],
                 f = wide_ ? wide_delay_[g].fall : d.delay[1];
   // A rise takes the rise delay, a fall the fall delay, anything through x
@@ -289,15 +294,18 @@ SETTLE_HOT void simulator::schedule(gate_id g, logic v, time_fs t) {
 // transition count (the driver's record, or toggles_ for a stimulus change).
 template <bool Plain>
 SETTLE_HOT void simulator::change_value(net_id net, logic v, time_fs t) {
-  if (!Plain && tracking_) hash_ ^= value_key(net, val_[net]) ^ value_key(net, v);
-  if (!Plain && arcs_) changed_at_[net] = t;
+  // One test for the three things a change may have to tell (set_watchers).
+  if (!Plain && watched_) [[unlikely]] {
+    if (tracking_) hash_ ^= value_key(net, val_[net]) ^ value_key(net, v);
+    if (arcs_) changed_at_[net] = t;
+    if (sink_) {
+      trace_.push_back({t, net, v});
+      if (trace_.size() >= trace_batch) flush_trace();
+    }
+  }
   val_[net] = v;
   ++events_;
   last_change_ = t;
-  if (!Plain && sink_) {
-    trace_.push_back({t, net, v});
-    if (trace_.size() >= trace_batch) flush_trace();
-  }
 }
 
 // The copy of a net's new value in the record of a gate that reads it.
@@ -419,12 +427,12 @@ SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
       if (p != none) r.pend = none, ++r.gen, --live_;
       return;
     }
-    schedule<Plain>(g, v, t + delay_of(g, present, v));
+    schedule<Plain>(g, v, t + delay_of<Plain>(g, present, v));
     return;
   }
   auto& q = tq_[slot_[g]];
   const logic projected = q.empty() ? present : q.back().value;
-  if (v != projected) schedule<false>(g, v, t + delay_of(g, projected, v));
+  if (v != projected) schedule<false>(g, v, t + delay_of<false>(g, projected, v));
 }
 
 // The gate events of one instant, taken from the queue: each live one

@@ -39,7 +39,10 @@ class simulator {
   /// every gate due for evaluation at the first instant.
   void reset(const delay_table& delays);
   /// Value changes go to `sink` (may be null) in batches.
-  void set_trace(change_sink* sink) { sink_ = sink; }
+  void set_trace(change_sink* sink) {
+    sink_ = sink;
+    set_watchers();
+  }
 
   /// The time of the next live gate event; UINT64_MAX when none.
   time_fs next_event_time();
@@ -105,6 +108,7 @@ class simulator {
   void apply_output(gate_id g, gate_rec& r, logic v, time_fs t);
   void apply_front(std::span<const queued_event> front, time_fs t);
   void prefetch_ahead();
+  template <bool Plain>
   time_fs delay_of(gate_id g, logic from, logic to) const;
   time_fs arc_delay_of(gate_id g, logic from, logic to) const;
   void gather_pending(std::vector<std::pair<std::uint64_t, std::uint64_t>>& out) const;
@@ -141,8 +145,9 @@ class simulator {
     bool transport = false;
     logic pend = none;  // inertial: the pending value, or none
     logic v0 = logic::x, v1 = logic::x, vout = logic::x;
-    std::uint8_t shorter = 0;  // the index in delay of the shorter
+    std::uint8_t shorter = 0;  // the index in delay of the shorter; arc_bit: the gate has arcs
   };
+  static constexpr std::uint8_t arc_bit = 2;  // in gate_rec::shorter, read only off the table paths
   static_assert(sizeof(gate_rec) == 32);
   // The first two inputs of each gate (a one-input gate's input twice).
   struct input_pair {
@@ -162,11 +167,6 @@ class simulator {
   // A delay of 2^32 fs (4.3 us) or more anywhere puts every delay here instead.
   std::vector<edge_delays> wide_delay_;
   bool wide_ = false;
-  // Pin-to-pin delays: when the netlist has arcs, every net's last change
-  // time (kept off the plain path, which such a design never takes) and this
-  // run's delay of each arc.
-  bool arcs_ = false;
-  std::vector<time_fs> changed_at_, arc_rise_, arc_fall_;
   bool within_reach_ = false;
   time_fs largest_delay_ =
       0;  // of this run's delay table  // every delay of this run shorter than queue_.reach()
@@ -206,6 +206,14 @@ class simulator {
   // 10^6 (8 no better), once an event took fewer cycles.
   static constexpr std::size_t prefetch_depth = 6;
   gate_id near_ = 0, mid_ = 0, far_ = 0;  // the last three the look-ahead passed, oldest first
+  // Pin-to-pin delays: when the netlist has arcs, every net's last change
+  // time (kept off the plain path, which such a design never takes) and this
+  // run's delay of each arc.
+  bool arcs_ = false;
+  // Whether a change must be hashed, timed for arcs or traced (change_value).
+  bool watched_ = false;
+  void set_watchers() { watched_ = tracking_ || arcs_ || sink_; }
+  std::vector<time_fs> changed_at_, arc_rise_, arc_fall_;
 };
 
 constexpr std::size_t simulator::gate_limit() { return reader(~fan_entry{0}); }
