@@ -9,10 +9,10 @@ from settle_test import fail
 from vcd_rules import changes_of
 
 
-def report(binary, args, what, want_rc=None):
+def report(binary, args, what, want_rc=None, timeout=600):
     """Runs `binary args... --json -`; returns (exit status, the parsed JSON or None). Records a
     failure when the exit status is not `want_rc` (if given) or stdout holds no JSON."""
-    p = subprocess.run([binary, *args, "--json", "-"], capture_output=True, text=True, timeout=600)
+    p = subprocess.run([binary, *args, "--json", "-"], capture_output=True, text=True, timeout=timeout)
     if want_rc is not None and p.returncode != want_rc:
         fail(f"{what}: exit {p.returncode}, want {want_rc}; stderr: {p.stderr.strip()[:400]}")
     try:

@@ -12,6 +12,7 @@ import subprocess
 import sys
 
 from settle_test import check, fail
+from closed_loop import report
 
 
 def closed_data(src, name):
@@ -27,15 +28,8 @@ def closed_data(src, name):
 def explore(binary, path, what, model=None, want_rc=None, extra=(), timeout=300):
     """Runs `settle explore PATH [--model M] --json -`; returns (exit status, JSON or None),
     recording a failure when the status is not `want_rc` (if given) or there is no JSON."""
-    args = [binary, "explore", path, *(["--model", model] if model else []), *extra, "--json", "-"]
-    p = subprocess.run(args, capture_output=True, text=True, timeout=timeout)
-    if want_rc is not None and p.returncode != want_rc:
-        fail(f"{what}: explore exit {p.returncode}, want {want_rc}; stderr: {p.stderr.strip()[:400]}")
-    try:
-        return p.returncode, json.loads(p.stdout)
-    except json.JSONDecodeError:
-        fail(f"{what}: explore wrote no JSON (rc={p.returncode}): {p.stderr.strip()[:400]}")
-        return p.returncode, None
+    return report(binary, ["explore", path, *(["--model", model] if model else []), *extra], what,
+                  want_rc, timeout)
 
 
 def findings(doc, key):
