@@ -337,6 +337,7 @@ report_json timed_json(const timed_check& t, const replay_words& replay) {
     j["corner"] = t.corner;
     if (replay) j["replay"] = replay(t.corner);
     j["confirmed"] = t.confirmed;
+    j["found_by"] = t.sampled ? "sampling" : "constraints";
   } else {
     j["exact"] = t.exact;
   }

@@ -22,6 +22,10 @@ constexpr std::size_t most_listed = 64;
 // Paths kept per property and per gate: when the shortest is not feasible in
 // time, the next ones are tried.
 constexpr std::size_t candidates_kept = 16;
+// The search for a path feasible in time (closed_explorer::timed_search).
+constexpr std::size_t search_frontier = 512, search_depth = 64, search_checks = 8000;
+// Corners run for a deadlock or a violation the search did not reach.
+constexpr std::uint64_t sampled_corners = 1000;
 
 // Where each part of a state lies among its bits: the gate outputs first (so
 // the open explorer's analyses read them as they are), then the inputs, then
@@ -366,16 +370,7 @@ class closed_explorer {
       const std::uint32_t i = g.explored;
       if (!within_limits(g, i, st.stop)) break;
       m_.decode(g.state(i), cur);
-      events.clear();
-      excited.clear();
-      for (gate_id k = 0; k < n_.gate_count(); ++k)
-        if (m_.excited(cur, k)) {
-          excited.push_back(k);
-          events.push_back({closed_event::kind::gate, k,
-                            static_cast<std::uint8_t>(cur.v[n_.gate_out[k]] != logic::one)});
-        }
-      for (std::uint32_t r = 0; r < d_.stim.rules.size(); ++r)
-        if (cur.pending[r]) events.push_back({closed_event::kind::rule, r, 0});
+      events_of(cur, events, excited);
       g.edge_begin.push_back(static_cast<std::uint32_t>(g.edge_to.size()));
       if (events.size() >= 2) g.any_race = true;
       if (events.empty()) {
@@ -392,15 +387,9 @@ class closed_explorer {
             lim_.max_excited);
         break;
       }
-      const std::uint64_t count =
-          one_at_a_time ? events.size() : (std::uint64_t{1} << events.size()) - 1;
+      const std::uint64_t count = subset_count(events);
       for (std::uint64_t j = 0; j < count; ++j) {
-        subset.clear();
-        if (one_at_a_time)
-          subset.push_back(events[j]);
-        else
-          for (std::size_t b = 0; b < events.size(); ++b)
-            if (((j + 1) >> b) & 1) subset.push_back(events[b]);
+        subset_of(events, j, subset);
         const auto t = m_.fire(cur, subset, sk.active, next);
         if (t.overflow) overflow_ = true;
         m_.encode(next, w);
@@ -421,6 +410,39 @@ class closed_explorer {
           "keeps at most {} pending firings of a rule and dropped the others",
           pending_most, pending_most));
     return g.explored == g.size();
+  }
+
+  // What may happen in state `c`: its excited gates (also listed in
+  // `excited`), then its rules with a pending firing.
+  void events_of(const closed_state& c, std::vector<closed_event>& events,
+                 std::vector<gate_id>& excited) const {
+    events.clear();
+    excited.clear();
+    for (gate_id k = 0; k < n_.gate_count(); ++k)
+      if (m_.excited(c, k)) {
+        excited.push_back(k);
+        events.push_back({closed_event::kind::gate, k,
+                          static_cast<std::uint8_t>(c.v[n_.gate_out[k]] != logic::one)});
+      }
+    for (std::uint32_t r = 0; r < d_.stim.rules.size(); ++r)
+      if (c.pending[r]) events.push_back({closed_event::kind::rule, r, 0});
+  }
+
+  // The successors of a state with these events, in the order of its edges:
+  // each event alone (single, or one event), else every non-empty subset.
+  std::uint64_t subset_count(const std::vector<closed_event>& events) const {
+    if (single_ || events.size() <= 1) return events.size();
+    return (std::uint64_t{1} << events.size()) - 1;
+  }
+  void subset_of(const std::vector<closed_event>& events, std::uint64_t j,
+                 std::vector<closed_event>& subset) const {
+    subset.clear();
+    if (single_ || events.size() <= 1) {
+      subset.push_back(events[j]);
+      return;
+    }
+    for (std::size_t b = 0; b < events.size(); ++b)
+      if (((j + 1) >> b) & 1) subset.push_back(events[b]);
   }
 
   bool within_limits(const state_graph& g, std::uint32_t i, std::string& stop) const {
@@ -505,31 +527,36 @@ class closed_explorer {
     }
   }
 
+  std::uint32_t root_of(std::size_t k, std::uint32_t v) const {
+    while (steps_[k].g->parent[v] != no_id) v = steps_[k].g->parent[v];
+    return v;
+  }
+
   // The instants from the start of the run to `f` of step k (and its last instant).
   timed_problem problem(std::size_t k, const finding_at& f) const {
+    return problem_along(k, root_of(k, f.at), full_path(k, f));
+  }
+
+  // The instants from the start of the run: earlier steps along their
+  // breadth-first paths to the state step k starts from at `root`, then
+  // step k's firings `own`.
+  timed_problem problem_along(std::size_t k, std::uint32_t root, const closed_path& own) const {
     timed_problem p;
     p.step = k;
     p.approximate_start = approximate_start_ || steps_[0].g->starts > 1;
-    // The states the path passes, back to step 1's start.
     std::vector<std::pair<std::size_t, std::uint32_t>> chain;  // (step, state at its end)
-    std::uint32_t v = f.at;
-    for (std::size_t j = k + 1; j-- > 0;) {
+    for (std::uint32_t v = steps_[k].origin[root], j = static_cast<std::uint32_t>(k); j-- > 0;) {
       chain.emplace_back(j, v);
-      std::uint32_t root = v;
-      while (steps_[j].g->parent[root] != no_id) root = steps_[j].g->parent[root];
-      v = steps_[j].origin[root];
-      if (j > 0 && v == no_id) return p;  // cannot happen: every later start has an origin
+      v = steps_[j].origin[root_of(j, v)];
     }
     std::reverse(chain.begin(), chain.end());
     closed_state cur, next;
     bool first = true;
-    for (const auto& [j, end] : chain) {
+    auto enter = [&](std::size_t j, std::uint32_t start) {
       const step_store& sk = steps_[j];
-      std::uint32_t root = end;
-      while (sk.g->parent[root] != no_id) root = sk.g->parent[root];
       closed_state before;
       if (first) {
-        m_.decode(sk.g->state(root), before);
+        m_.decode(sk.g->state(start), before);
         for (net_id i : n_.inputs) before.v[i] = n_.init[i];
         std::fill(before.pending.begin(), before.pending.end(), 0);
         std::fill(before.scheduled.begin(), before.scheduled.end(), 0);
@@ -540,16 +567,20 @@ class closed_explorer {
       push_instant(p, j, true, before, next, {}, t.triggered);
       cur = next;
       first = false;
-      for (const auto& events : path_to(sk, end)) {
-        const auto tr = m_.fire(cur, events, sk.active, next);
+    };
+    auto walk = [&](std::size_t j, const closed_path& path) {
+      for (const auto& events : path) {
+        const auto tr = m_.fire(cur, events, steps_[j].active, next);
         push_instant(p, j, false, cur, next, events, tr.triggered);
         cur = next;
       }
+    };
+    for (const auto& [j, end] : chain) {
+      enter(j, root_of(j, end));
+      walk(j, path_to(steps_[j], end));
     }
-    if (!f.last.empty()) {
-      const auto tr = m_.fire(cur, f.last, steps_[k].active, next);
-      push_instant(p, k, false, cur, next, f.last, tr.triggered);
-    }
+    enter(k, root);
+    walk(k, own);
     return p;
   }
 
@@ -592,18 +623,20 @@ class closed_explorer {
         if (sk.active[r] && rule.times && c.scheduled[r] < rule.times)
           dl.owed_rules.push_back({r, c.scheduled[r], rule.times});
       }
-      dl.path = full_path(k, f);
-      timed_problem p = problem(k, f);
-      p.what = timed_problem::kind::deadlock;
-      dl.timed = check_timed(d_, p);
+      const std::uint32_t target = f.at;
+      dl.path = choose(k, {f}, timed_problem::kind::deadlock, 0, dl.timed,
+                       [&](const closed_state&, const std::vector<closed_event>&,
+                           const closed_state&, std::uint32_t to) { return to == target; });
       st.deadlocks.push_back(std::move(dl));
     }
     for (auto& cp : st.properties) {
       if (sk.property_at.size() <= cp.index || sk.property_at[cp.index].empty()) continue;
       cp.holds = false;
-      const finding_at& f =
-          choose(k, sk.property_at[cp.index], timed_problem::kind::property, cp.index, cp.timed);
-      cp.path = full_path(k, f);
+      const property& prop = d_.stim.properties[cp.index];
+      cp.path =
+          choose(k, sk.property_at[cp.index], timed_problem::kind::property, cp.index, cp.timed,
+                 [&](const closed_state& a, const std::vector<closed_event>&, const closed_state& b,
+                     std::uint32_t) { return m_.violates(prop, a, b); });
     }
     std::vector<std::uint8_t> reported_gate(n_.gate_count(), 0);
     for (net_id r : res_.reported)
@@ -617,35 +650,155 @@ class closed_explorer {
       h.gate = g;
       h.output = reported_gate[g];
       if (h.output) st.hazards.push_back(n_.gate_out[g]);
-      h.path = full_path(k, choose(k, sk.hazard_at[g], timed_problem::kind::hazard, 0, h.timed));
+      h.path = choose(k, sk.hazard_at[g], timed_problem::kind::hazard, 0, h.timed,
+                      [&](const closed_state& a, const std::vector<closed_event>& fired,
+                          const closed_state& b, std::uint32_t) {
+                        return m_.excited(a, g) && !m_.excited(b, g) &&
+                               std::none_of(fired.begin(), fired.end(), [&](const closed_event& e) {
+                                 return e.what == closed_event::kind::gate && e.id == g;
+                               });
+                      });
       st.nonpersistent.push_back(std::move(h));
     }
   }
 
-  // The first candidate, shortest first, whose path is feasible in time; the
-  // shortest when none is, its check saying how many were tried.
-  const finding_at& choose(std::size_t k, const std::vector<finding_at>& candidates,
-                           timed_problem::kind what, std::uint32_t property,
-                           timed_check& out) const {
+  // The path to report and its timed check: the first candidate, shortest
+  // first, whose path is feasible in time; else the first path timed_search
+  // finds to an instant `hit` accepts; else the shortest, its check saying
+  // how many were tried.
+  template <class Hit>
+  closed_path choose(std::size_t k, const std::vector<finding_at>& candidates,
+                     timed_problem::kind what, std::uint32_t property, timed_check& out,
+                     const Hit& hit) const {
     bool exact = true;
     for (const auto& f : candidates) {
       timed_problem p = problem(k, f);
       p.what = what;
       p.property = property;
-      timed_check t = check_timed(d_, p);
+      timed_check t = replayed_check(p);
       if (t.feasible) {
         out = std::move(t);
-        return f;
+        return full_path(k, f);
       }
       exact = exact && t.exact;
       if (&f == &candidates.front()) out = std::move(t);
     }
-    if (candidates.size() > 1) {
-      out.exact = exact;
-      out.why += fmt::format("; {} other paths to it were tried, none {}", candidates.size() - 1,
-                             exact ? "feasible" : "found feasible");
+    bool complete = false;
+    if (auto found = timed_search(k, what, property, hit, complete)) {
+      out = std::move(found->second);
+      return std::move(found->first);
     }
-    return candidates.front();
+    const closed_path shortest = full_path(k, candidates.front());
+    if (what != timed_problem::kind::hazard) {
+      // Where the constraints' search stopped at its budget, runs may still
+      // find a corner (a run cannot show a disabled gate, so not for hazards).
+      const std::string c =
+          complete ? std::string() : sample(k, candidates.front(), what, property);
+      if (!c.empty()) {
+        out = timed_check{};
+        out.feasible = out.confirmed = out.sampled = true;
+        out.corner = c;
+        out.why =
+            "found by running sampled corners (extremes, then random:1#i): a run at it "
+            "shows the finding, along a path other than the one shown";
+        return shortest;
+      }
+    }
+    out.exact = exact && out.exact && complete;
+    out.why = complete ? "no path to it is feasible: every path that some delays within the "
+                         "ranges may give was followed until it could go no further"
+                       : fmt::format(
+                             "{}; {} path{} to it tried, a search of paths that may be timed "
+                             "stopped at its budget, and {} sampled corners did not show it",
+                             out.why, candidates.size(), candidates.size() == 1 ? "" : "s",
+                             what == timed_problem::kind::hazard ? 0 : sampled_corners);
+    return shortest;
+  }
+
+  // check_timed, where a solution the kernel does not follow is no answer: a
+  // corner that does not replay the finding helps no one.
+  timed_check replayed_check(const timed_problem& p) const {
+    timed_check t = check_timed(d_, p);
+    if (t.feasible && !t.confirmed) {
+      t.feasible = t.exact = false;
+      t.why = fmt::format("the constraints give {}, but {}", t.corner, t.why);
+      t.corner.clear();
+    }
+    return t;
+  }
+
+  // A sampled corner that shows the finding, or empty (timed_path's sample_corners).
+  std::string sample(std::size_t k, const finding_at& f, timed_problem::kind what,
+                     std::uint32_t property) const {
+    timed_problem p = problem(k, f);
+    p.what = what;
+    p.property = property;
+    closed_state c;
+    m_.decode(steps_[k].g->state(f.at), c);
+    std::vector<std::uint8_t> gates;
+    for (gate_id g = 0; g < n_.gate_count(); ++g)
+      gates.push_back(c.v[n_.gate_out[g]] == logic::one);
+    return sample_corners(d_, p, gates, inputs_of(c), sampled_corners);
+  }
+
+  // Breadth-first over paths of step k (not states: one state reached along
+  // other firings has other times), keeping a path only while some delays
+  // within the ranges may still give it (may_be_timed prunes every extension
+  // of a path it rejects), for the first one ending in an instant `hit`
+  // accepts that passes the whole timed check. At most search_frontier
+  // paths per length, search_depth instants and search_checks checks.
+  template <class Hit>
+  std::optional<std::pair<closed_path, timed_check>> timed_search(std::size_t k,
+                                                                  timed_problem::kind what,
+                                                                  std::uint32_t property,
+                                                                  const Hit& hit,
+                                                                  bool& complete) const {
+    complete = false;
+    const state_graph& g = *steps_[k].g;
+    struct prefix {
+      std::uint32_t root, at;
+      closed_path path;
+    };
+    std::vector<prefix> level, next_level;
+    for (std::uint32_t r = 0; r < g.starts; ++r) level.push_back({r, r, {}});
+    std::size_t checks = 0;
+    bool truncated = false, undecided = false;
+    closed_state cur, next;
+    std::vector<closed_event> events, subset;
+    std::vector<gate_id> excited;
+    for (std::size_t depth = 0; depth < search_depth && !level.empty(); ++depth) {
+      next_level.clear();
+      for (const auto& pf : level) {
+        if (pf.at >= g.explored) continue;
+        m_.decode(g.state(pf.at), cur);
+        events_of(cur, events, excited);
+        const std::uint64_t count = subset_count(events);
+        for (std::uint64_t j = 0; j < count; ++j) {
+          if (++checks > search_checks) return std::nullopt;  // not complete
+          subset_of(events, j, subset);
+          const std::uint32_t to = g.edge_to[g.edge_begin[pf.at] + j];
+          closed_path path = pf.path;
+          path.push_back(subset);
+          timed_problem p = problem_along(k, pf.root, path);
+          p.what = what;
+          p.property = property;
+          if (!may_be_timed(d_, p)) continue;
+          m_.decode(g.state(to), next);
+          if (hit(cur, subset, next, to)) {
+            timed_check t = replayed_check(p);
+            if (t.feasible) return std::pair{std::move(path), std::move(t)};
+            if (!t.exact) undecided = true;
+          }
+          if (next_level.size() < search_frontier)
+            next_level.push_back({pf.root, to, std::move(path)});
+          else
+            truncated = true;
+        }
+      }
+      std::swap(level, next_level);
+    }
+    complete = level.empty() && !truncated && !undecided;
+    return std::nullopt;
   }
 
   const design& d_;

@@ -44,6 +44,7 @@ struct timed_check {
   bool feasible = false;
   bool exact = true;       ///< infeasible: proved (false: the check did not decide)
   bool confirmed = false;  ///< feasible: a run at `corner` followed the path to the finding
+  bool sampled = false;    ///< feasible: found by running sampled corners, not by the constraints
   std::string corner;      ///< feasible: a `fixed:` corner name for `run --corner`
   std::string why;         ///< infeasible or not decided: why
 };

@@ -122,6 +122,14 @@ class path_timer {
  public:
   path_timer(const design& d, const timed_problem& p) : d_(d), n_(d.nets), p_(p) {}
 
+  /// Whether the system with every firing's delay free has a solution
+  /// (false too when the path is outside the check's model).
+  bool loosely_feasible() {
+    std::string why;
+    if (p_.instants.empty() || !lay_out(why)) return false;
+    return relaxed().solve().has_value();
+  }
+
   timed_check decide() {
     timed_check out;
     if (p_.instants.empty()) return undecided("the path is empty");
@@ -129,10 +137,7 @@ class path_timer {
       out.exact = false;
       return out;
     }
-    difference_system relaxed = base_;
-    for (const auto& e : excitations_) bound(relaxed, e, nullptr);
-    for (const auto& f : firings_) bound(relaxed, f);
-    const auto loose = relaxed.solve();
+    const auto loose = relaxed().solve();
     if (!loose) {
       out.exact = !approximate_;
       out.why = approximate_ ? "no delays within the written ranges give this order of firings "
@@ -169,6 +174,13 @@ class path_timer {
   }
 
   static node node_of(std::size_t instant) { return instant + 1; }  // node 0 is time 0
+
+  difference_system relaxed() const {
+    difference_system s = base_;
+    for (const auto& e : excitations_) bound(s, e, nullptr);
+    for (const auto& f : firings_) bound(s, f);
+    return s;
+  }
 
   // The constraints every corner must meet to follow the path, and the
   // excitations and firings whose delays the corner chooses.
@@ -372,6 +384,75 @@ class path_timer {
 
 timed_check check_timed(const design& d, const timed_problem& p) {
   return path_timer(d, p).decide();
+}
+
+bool may_be_timed(const design& d, const timed_problem& p) {
+  return path_timer(d, p).loosely_feasible();
+}
+
+namespace {
+
+// Every net's value as the run goes, and what it was at a chosen time.
+class value_log : public change_sink {
+ public:
+  void on_start(std::span<const logic> initial) override {
+    start_.assign(initial.begin(), initial.end());
+    changes_.clear();
+  }
+  void on_changes(std::span<const change> batch) override {
+    changes_.insert(changes_.end(), batch.begin(), batch.end());
+  }
+  void on_finish(time_fs) override {}
+  std::vector<logic> at(time_fs t) const {
+    std::vector<logic> v = start_;
+    for (const auto& c : changes_) {
+      if (c.time > t) break;
+      v[c.net] = c.value;
+    }
+    return v;
+  }
+
+ private:
+  std::vector<logic> start_;
+  std::vector<change> changes_;
+};
+
+}  // namespace
+
+std::string sample_corners(const design& d, const timed_problem& p,
+                           std::span<const std::uint8_t> gates, std::span<const logic> inputs,
+                           std::uint64_t corners) {
+  const netlist& n = d.nets;
+  const std::uint64_t extremes = 3 + 2 * delay_variables(d);
+  delay_table table;
+  value_log log;
+  run_context ctx(n);
+  for (std::uint64_t i = 0; i < corners; ++i) {
+    corner c;
+    if (i < extremes) {
+      c.what = corner::kind::extremes, c.index = i;
+    } else {
+      c.what = corner::kind::random, c.seed = 1, c.index = i - extremes;
+    }
+    fill_delays(d, c, table);
+    const run_result r = run_stimulus(ctx, d, table, run_options{}, &log);
+    if (r.steps.size() <= p.step) continue;
+    const step_result& s = r.steps[p.step];
+    if (p.what == timed_problem::kind::property) {
+      if (p.property < r.properties.size() && !r.properties[p.property].holds &&
+          r.properties[p.property].step == p.step + 1)
+        return c.name();
+      continue;
+    }
+    if (s.status != step_status::deadlock) continue;
+    const std::vector<logic> v = log.at(s.end);
+    bool same = true;
+    for (gate_id g = 0; g < n.gate_count() && same; ++g)
+      same = v[n.gate_out[g]] == from_bool(gates[g]);
+    for (std::size_t i = 0; i < n.inputs.size() && same; ++i) same = v[n.inputs[i]] == inputs[i];
+    if (same) return c.name();
+  }
+  return "";
 }
 
 }  // namespace settle

@@ -3,6 +3,8 @@
 #pragma once
 
 #include <cstdint>
+#include <span>
+#include <string>
 #include <vector>
 
 #include "sim/analysis/explore.hpp"
@@ -43,5 +45,19 @@ struct timed_problem {
 /// fixed enforces (not deciding when it fails). A feasible answer names a
 /// `fixed:` corner, replayed in the timed kernel to confirm it.
 timed_check check_timed(const design& d, const timed_problem& p);
+
+/// The first half of check_timed alone: false when no delays within the
+/// ranges give the path even with every firing's delay free. A path's
+/// constraints include its prefix's, so a false prunes every extension.
+bool may_be_timed(const design& d, const timed_problem& p);
+
+/// The first of `corners` sampled corners (extremes, then random:1#i) whose
+/// run shows the finding of p.step: a deadlock in state `gates` (per gate)
+/// with `inputs` (per netlist::inputs), or property p.property violated in
+/// that step. Its name, or empty. For findings the constraints cannot reach
+/// within their budget; a run is no path, so it proves nothing when it fails.
+std::string sample_corners(const design& d, const timed_problem& p,
+                           std::span<const std::uint8_t> gates, std::span<const logic> inputs,
+                           std::uint64_t corners);
 
 }  // namespace settle

@@ -5,7 +5,8 @@ the shape of a finding's path and timed answer, and replaying a timed answer's c
 
 A finding (a deadlock, a violated property, a non-persistent gate) carries "path", the firings
 from its step's start, and "timed": either {"feasible": true, "corner": "fixed:...", "replay":
-"...", "confirmed": bool} or {"feasible": false, "exact": bool, "why": "..."}."""
+"...", "confirmed": bool, "found_by": "constraints"} (or "found_by": "sampling" with the sampled
+corner that showed it) or {"feasible": false, "exact": bool, "why": "..."}."""
 import json
 import os
 import subprocess
@@ -75,8 +76,13 @@ def timed_is_well_formed(timed, what):
         fail(f"{what}: timed {timed!r} has no boolean 'feasible'")
         return False
     if timed["feasible"]:
-        good = (str(timed.get("corner", "")).startswith("fixed:") and isinstance(timed.get("confirmed"), bool)
-                and timed["corner"] in str(timed.get("replay", "")) and "--corner" in str(timed.get("replay", "")))
+        # Found by the difference constraints: a fixed: corner built from the path's solution; found by
+        # running sampled corners: the name of the corner that showed the finding (extremes#k, random:S#i).
+        by = timed.get("found_by")
+        corner = str(timed.get("corner", ""))
+        named = corner.startswith("fixed:") if by == "constraints" else by == "sampling" and corner != ""
+        good = (named and isinstance(timed.get("confirmed"), bool)
+                and corner in str(timed.get("replay", "")) and "--corner" in str(timed.get("replay", "")))
     else:
         good = isinstance(timed.get("exact"), bool) and isinstance(timed.get("why"), str) and timed["why"]
     check(good, f"{what}: timed answer {timed!r} lacks the fields of its form")
