@@ -59,12 +59,19 @@ struct rhs : x3::variant<call, or_expr> {
   using base_type::operator=;
 };
 
-/// `net = KIND(...)|EXPR [delay ...] [transport]`; one range = both edges,
-/// two = rise then fall.
+/// `from NET DELAY`: the delay of the output changes a change of NET causes.
+struct arc {
+  name from;
+  std::vector<range> delay;
+};
+
+/// `net = KIND(...)|EXPR [delay ...] [from NET DELAY, ...] [transport]`; one
+/// range = both edges, two = rise then fall.
 struct gate_stmt {
   name out;
   rhs value;
   boost::optional<std::vector<range>> delay;
+  std::vector<arc> arcs;
   bool transport = false;
 };
 

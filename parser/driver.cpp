@@ -634,6 +634,7 @@ void check_top_gates(const file& f, reporter& rep) {
     gate g;
     pools.read_pool.clear();
     pools.code_pool.clear();
+    pools.arc_pool.clear();
     parse_top_gate(f, p, g, pools, rep);
   }
 }

@@ -2,6 +2,7 @@
 // hierarchy).
 #include <fmt/format.h>
 
+#include <span>
 #include <unordered_map>
 #include <unordered_set>
 
@@ -51,6 +52,13 @@ class elaborator {
     work.push_back(frame{&f_.top, 0, "", {}, false});
     drain(nl, work);
     if (aborted_) return;
+    // Arcs go in once every gate is placed (the netlist sizes its arc index
+    // by the gates it has when the first arc arrives).
+    for (const auto& [g, at] : pending_arcs_)
+      nl.set_arcs(g, std::span<const gate_delay>(arc_delays_.data() + at,
+                                                 nl.fanin_begin[g + 1] - nl.fanin_begin[g]));
+    // Unused blocks are checked in scratch netlists whose arcs are not kept.
+    pending_arcs_.clear();
     nl.finish();
     top_inits(nl);
     final_checks(nl);
@@ -300,10 +308,15 @@ class elaborator {
       net_id n = lookup(nl, names, pools.read_pool[i]);
       fanin_.push_back(n == no_id ? netlist::const0 : n);
     }
-    const gate_delay delay = delay_of(g, d);
+    const bool with_arcs = g.arcs_end > g.arcs_begin;
+    const gate_delay delay = with_arcs ? arcs_of(nl, names, g, d, pools) : delay_of(g, d);
     program_.assign(pools.code_pool.begin() + g.code_begin, pools.code_pool.begin() + g.code_end);
     if (!ok) return;
     nl.add_gate(g.kind, out, fanin_, program_, delay, g.out.loc);
+    if (with_arcs) {
+      pending_arcs_.emplace_back(static_cast<gate_id>(nl.gate_count() - 1), arc_delays_.size());
+      arc_delays_.insert(arc_delays_.end(), gate_arcs_.begin(), gate_arcs_.end());
+    }
     if (cur_ != &rep_) {
       gate_rep_.resize(nl.gate_count(), nullptr);
       gate_rep_.back() = cur_;
@@ -336,6 +349,51 @@ class elaborator {
       return false;
     }
     return true;
+  }
+
+  /// The arcs of gate `g` (fan-in in fanin_) into gate_arcs_, one per fan-in:
+  /// each `from` names a distinct fan-in net; the others take the delay the
+  /// gate has without arcs. Returns that delay (the netlist replaces it by the
+  /// arcs' envelope).
+  gate_delay arcs_of(const netlist& nl, const scope_names& names, const gate& g, const scope_def& d,
+                     const scope_def& pools) {
+    gate_arcs_.assign(fanin_.size(), gate_delay{});
+    std::vector<const arc*> given(fanin_.size(), nullptr);
+    for (auto i = g.arcs_begin; i < g.arcs_end; ++i) {
+      const arc& a = pools.arc_pool[i];
+      const net_id n = lookup(nl, names, a.from);
+      if (n == no_id) continue;
+      bool found = false;
+      for (std::size_t k = 0; k < fanin_.size(); ++k) {
+        if (fanin_[k] != n) continue;
+        found = true;
+        if (given[k]) {
+          cur_->error(a.from.loc,
+                      fmt::format("gate '{}' already has an arc from '{}' (at {})", g.out.name,
+                                  a.from.name, at_text(given[k]->from.loc)));
+          break;
+        }
+        given[k] = &a;
+        gate_arcs_[k] = a.delay;
+      }
+      if (!found)
+        cur_->error(a.from.loc, fmt::format("'{}' is not an input of gate '{}'; an arc starts at "
+                                            "one of the nets the gate reads",
+                                            a.from.name, g.out.name));
+    }
+    // Only a net fan-in left without an arc needs the gate's own delay; a
+    // constant never changes, so any delay serves it.
+    bool need_own = false;
+    const arc* first = nullptr;
+    for (std::size_t k = 0; k < fanin_.size(); ++k) {
+      if (given[k] && !first) first = given[k];
+      need_own = need_own || (!given[k] && fanin_[k] > netlist::const1);
+    }
+    gate_delay own = need_own || !first ? delay_of(g, d) : first->delay;
+    own.transport = need_own || !first ? own.transport : g.delay.transport;
+    for (std::size_t k = 0; k < fanin_.size(); ++k)
+      if (!given[k]) gate_arcs_[k] = own;
+    return own;
   }
 
   /// A gate's delay: its own, or else the default of its scope (of the top
@@ -428,6 +486,7 @@ class elaborator {
         f_.release_text(released = p.begin);
       pools.read_pool.clear();
       pools.code_pool.clear();
+      pools.arc_pool.clear();
       g = gate{};
       const bool parsed = parse_top_gate(f_, p, g, pools, rep_);
       if (!parsed || rep_.errors() != before) continue;
@@ -495,9 +554,12 @@ class elaborator {
   std::unordered_set<const inst*> recursive_;
   std::vector<bool> is_input_;
   std::vector<source_loc> decl_loc_;
-  std::vector<reporter*> decl_rep_;  // per net, when declared in another file (else empty)
-  std::vector<reporter*> gate_rep_;  // per gate, likewise
-  std::vector<net_id> fanin_;        // the gate being placed
+  std::vector<reporter*> decl_rep_;    // per net, when declared in another file (else empty)
+  std::vector<reporter*> gate_rep_;    // per gate, likewise
+  std::vector<net_id> fanin_;          // the gate being placed
+  std::vector<gate_delay> gate_arcs_;  // its arcs, one per fan-in
+  std::vector<std::pair<gate_id, std::size_t>> pending_arcs_;  // gate, first of its arc_delays_
+  std::vector<gate_delay> arc_delays_;
   std::vector<std::uint32_t> program_;
 };
 

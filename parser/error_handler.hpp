@@ -27,6 +27,7 @@ inline std::string describe(const std::string& which) {
       {"or_expr", "an expression"},
       {"rhs", "a gate such as nand(a, b) or an expression"},
       {"arg", "a gate argument"},
+      {"arc", "an arc: from NET DELAY"},
       {"value_", "a value 0, 1 or x"},
       {"assign", "NET = VALUE"},
       {"assigns", "NET = VALUE"},

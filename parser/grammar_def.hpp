@@ -100,7 +100,8 @@ SETTLE_X3_RULES((range_, ast::range, "range_"), (rise_fall, std::vector<ast::ran
 SETTLE_X3_RULES((or_expr, ast::or_expr, "or_expr"), (xor_expr, ast::xor_expr, "xor_expr"),
                 (and_expr, ast::and_expr, "and_expr"), (unary, ast::unary, "unary"),
                 (primary, ast::primary, "primary"), (arg, ast::arg, "arg"),
-                (call, ast::call, "call"), (rhs, ast::rhs, "rhs"), (gate, ast::gate_stmt, "gate"))
+                (call, ast::call, "call"), (rhs, ast::rhs, "rhs"), (gate, ast::gate_stmt, "gate"),
+                (arc, ast::arc, "arc"), (arcs, std::vector<ast::arc>, "arcs"))
 
 // Declarations, blocks and instances.
 SETTLE_X3_RULES((decl, ast::decl, "decl"), (default_, ast::default_stmt, "default_"),
@@ -190,8 +191,11 @@ auto const primary_def = net_ | x3::lexeme[x3::char_("01") >> word_end] | ('(' >
 auto const arg_def = -(&(x3::lexeme[ident_chars] >> ':') >> name_ >> ':') >> or_expr;
 auto const call_def = name_ >> '(' > -(!x3::lit(')') >> args) > ')';
 auto const rhs_def = call | or_expr;
-auto const gate_def = net_ >> '=' > rhs >>
-                      -((kw("delay") > delay_body) | rise_fall) >> x3::matches[kw("transport")];
+// `from NET DELAY, ...`: one delay per fan-in named (pin-to-pin arcs).
+auto const arc_def = kw("from") > net_ > delay_body;
+auto const arcs_def = -(arc >> *(',' > arc));
+auto const gate_def = net_ >> '=' > rhs >> -((kw("delay") > delay_body) | rise_fall) >> arcs
+                      >> x3::matches[kw("transport")];
 
 // ---- declarations and structure
 auto const decl_def = x3::raw[kw("input") | kw("output") | kw("wire") | kw("watch")] > ref_list;
@@ -258,7 +262,7 @@ BOOST_SPIRIT_DEFINE(ident_raw, ref_raw, quoted_raw, const_raw, number_raw, const
 BOOST_SPIRIT_DEFINE(cond_or, cond_xor, cond_and, cond_unary, cond_primary, cond_atom, count_raw,
                     count_, when_, edge_part, property, gauge_period, gauge_pulse, gauge_latency,
                     gauge_body, gauge, expect_gauge)
-BOOST_SPIRIT_DEFINE(import_path, import_)
+BOOST_SPIRIT_DEFINE(import_path, import_, arc, arcs)
 
 }  // namespace settle::grammar
 

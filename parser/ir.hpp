@@ -23,6 +23,12 @@ struct ref {
   bool quoted = false;  ///< written in double quotes: a net's full name, never a constant
 };
 
+/// A pin-to-pin delay: `from NET DELAY` times the output changes a change of NET causes.
+struct arc {
+  ref from;
+  gate_delay delay;
+};
+
 /// A gate. Its reads (the fan-in: arguments in order for primitives, distinct
 /// nets for expr/gc; the names "0" and "1" are the constants) and its program
 /// are ranges of its scope's pools, so a gate costs no heap block of its own.
@@ -31,6 +37,7 @@ struct gate {
   gate_kind kind = gate_kind::buf;
   std::uint32_t reads_begin = 0, reads_end = 0;
   std::uint32_t code_begin = 0, code_end = 0;
+  std::uint32_t arcs_begin = 0, arcs_end = 0;  ///< its arcs, a range of the scope's arc pool
   bool has_delay = false;
   gate_delay delay;
 };
@@ -59,6 +66,7 @@ struct scope_def {
   std::vector<gate> gates;
   std::vector<ref> read_pool;            ///< every gate's reads, back to back
   std::vector<std::uint32_t> code_pool;  ///< every gate's program, back to back
+  std::vector<arc> arc_pool;             ///< every gate's arcs, back to back
   std::vector<inst> insts;
   std::vector<init> inits;
   std::optional<gate_delay> default_delay;

@@ -246,9 +246,17 @@ bool lower_gate(const ast::gate_stmt& g, gate& out, scope_def& pools, reporter& 
   } else {
     out.delay.transport = g.transport;
   }
+  out.arcs_begin = static_cast<std::uint32_t>(pools.arc_pool.size());
+  for (const auto& a : g.arcs) {
+    arc lowered{lower_ref(a.from, rep), {}};
+    ok = lower_delay(a.delay, g.transport, lowered.delay, rep) && ok;
+    pools.arc_pool.push_back(lowered);
+  }
+  out.arcs_end = static_cast<std::uint32_t>(pools.arc_pool.size());
   if (!ok) {
     pools.read_pool.resize(out.reads_begin);
     pools.code_pool.resize(out.code_begin);
+    pools.arc_pool.resize(out.arcs_begin);
   }
   return ok;
 }
@@ -325,6 +333,7 @@ bool lower_simple_gate(std::string_view text, source_loc at, gate& out, scope_de
   out.reads_begin = static_cast<std::uint32_t>(reads);
   out.reads_end = static_cast<std::uint32_t>(pools.read_pool.size());
   out.code_begin = out.code_end = static_cast<std::uint32_t>(pools.code_pool.size());
+  out.arcs_begin = out.arcs_end = static_cast<std::uint32_t>(pools.arc_pool.size());
   out.has_delay = false;
   out.delay = gate_delay{};
   return true;

@@ -67,7 +67,6 @@ const char* unsupported_word(std::string_view w) {
       {"tri", "'tri'"},
       {"wand", "'wand'"},
       {"wor", "'wor'"},
-      {"specify", "a 'specify' block"},
       {"bufif0", "the 'bufif0' gate"},
       {"bufif1", "the 'bufif1' gate"},
       {"notif0", "the 'notif0' gate"},
@@ -169,6 +168,16 @@ struct vmodule {
   std::vector<timed<vast::gate_stmt>> gates;
   std::vector<timed<vast::assign_stmt>> assigns;
   std::vector<vast::inst_stmt> insts;
+  /// Simple module paths of its specify blocks: `(SRC => DST) = DELAY;`
+  /// (parallel, bit by bit) or `(SRC, ... *> DST, ...) = DELAY;` (full).
+  struct path {
+    std::vector<vast::raw> from, to;
+    bool full = false;
+    vast::raw delay;  ///< from the '=' to the ';'
+    long double unit = 0, precision = 0;
+    vloc loc;  ///< its opening parenthesis
+  };
+  std::vector<path> paths;
 };
 
 /// A user-defined primitive: its ports, state and table (level-sensitive rows).
@@ -533,6 +542,15 @@ class reader {
         if (rep_.errors()) return;
         continue;
       }
+      if (first == "specify") {
+        if (!cur) {
+          rep_.error(loc_at(i), "'specify' outside a module");
+          return;
+        }
+        i = specify(i, *cur);
+        if (rep_.errors()) return;
+        continue;
+      }
       if (first == "endprimitive" || first == "endspecify") {
         rep_.error(loc_at(i), fmt::format("'{}' without its opening keyword", first));
         return;
@@ -580,6 +598,109 @@ class reader {
       i = e + 1;
     }
     if (cur) rep_.error(cur->loc, fmt::format("module '{}' has no 'endmodule'", cur->name));
+  }
+
+  /// Reads `specify ... endspecify` at offset i into m.paths; returns the
+  /// offset after `endspecify`.
+  std::size_t specify(std::size_t i, vmodule& m) {
+    const std::string& s = clean_;
+    const std::size_t open = i;
+    i += std::string_view("specify").size();
+    auto refuse = [&](std::size_t at, const std::string& what) {
+      rep_.error(loc_at(at),
+                 fmt::format("{} is not supported by settle's structural reader", what));
+      return s.size();
+    };
+    while (true) {
+      while (i < s.size() && space(s[i])) ++i;
+      if (i >= s.size() || word_at(i) == "endmodule") {
+        rep_.error(loc_at(open), "'specify' has no 'endspecify'");
+        return s.size();
+      }
+      const auto w = id_start(s[i]) ? word_at(i) : std::string_view{};
+      if (w == "endspecify") return i + w.size();
+      if (w == "specparam") return refuse(i, "'specparam'");
+      if (w == "if" || w == "ifnone") return refuse(i, "a state-dependent module path");
+      if (w == "showcancelled" || w == "noshowcancelled" || w == "pulsestyle_onevent" ||
+          w == "pulsestyle_ondetect")
+        return refuse(i, fmt::format("'{}'", w));
+      if (s[i] == '$') return refuse(i, "a timing check");
+      if (s[i] != '(') {
+        rep_.error(loc_at(i), "expected a module path such as (a => y) = 10; or 'endspecify'");
+        return s.size();
+      }
+      const std::size_t close = s.find(')', i);
+      const std::size_t semi = s.find(';', i);
+      if (close == std::string::npos || semi == std::string::npos || semi < close) {
+        rep_.error(loc_at(i), "expected a module path such as (a => y) = 10;");
+        return s.size();
+      }
+      vmodule::path p;
+      p.loc = loc_at(i);
+      const std::string_view inside = std::string_view(s).substr(i + 1, close - i - 1);
+      auto arrow = inside.find("=>");
+      if (arrow == std::string_view::npos) {
+        arrow = inside.find("*>");
+        p.full = true;
+      }
+      if (arrow == std::string_view::npos) {
+        rep_.error(p.loc, "expected '=>' or '*>' in a module path");
+        return s.size();
+      }
+      if (arrow > 0 && (inside[arrow - 1] == '+' || inside[arrow - 1] == '-'))
+        return refuse(i + 1 + arrow - 1, "a module path polarity (+=> -=> +*> -*>)");
+      // The terminals: names or bit- and part-selects, separated by commas.
+      auto terms = [&](std::size_t b, std::size_t e, std::vector<vast::raw>& out) {
+        std::size_t k = b;
+        while (k < e) {
+          while (k < e && (space(s[k]) || s[k] == ',')) ++k;
+          if (k >= e) break;
+          if (!id_start(s[k])) {
+            rep_.error(loc_at(k), "expected a net in a module path");
+            return false;
+          }
+          const auto name = word_at(k);
+          if (name == "posedge" || name == "negedge") {
+            refuse(k, "an edge-sensitive module path");
+            return false;
+          }
+          std::size_t t = k + name.size();
+          while (t < e && space(s[t])) ++t;
+          if (t < e && s[t] == '[') {
+            const auto rb = s.find(']', t);
+            if (rb == std::string::npos || rb >= e) {
+              rep_.error(loc_at(t), "expected ']'");
+              return false;
+            }
+            t = rb + 1;
+          }
+          std::string text;
+          for (std::size_t c = k; c < t; ++c)
+            if (!space(s[c])) text += s[c];
+          out.push_back(vast::raw{text, s.data() + k});
+          k = t;
+        }
+        if (out.empty()) {
+          rep_.error(loc_at(b), "expected a net in a module path");
+          return false;
+        }
+        return true;
+      };
+      const std::size_t a = i + 1 + arrow;
+      if (!terms(i + 1, a, p.from) || !terms(a + 2, close, p.to)) return s.size();
+      std::size_t q = close + 1;
+      while (q < semi && space(s[q])) ++q;
+      if (q >= semi || s[q] != '=') {
+        rep_.error(loc_at(q), "expected '=' and the path delay");
+        return s.size();
+      }
+      p.delay = vast::raw{s.substr(q, semi - q), s.data() + q};
+      const timescale_mark* ts = scale_at(s.data() + q);
+      p.unit = ts ? ts->unit : 0;
+      p.precision = ts ? ts->precision : 0;
+      m.paths.push_back(std::move(p));
+      i = semi + 1;
+    }
   }
 
   void statement(std::string_view text, vmodule*& cur) {
@@ -1306,7 +1427,81 @@ class reader {
     for (auto& g : m.gates) lower_gates(m, g, s);
     for (auto& a : m.assigns) lower_assigns(m, a, s);
     for (auto& st : m.insts) lower_insts(m, st, s);
+    lower_paths(m, s);
     return s;
+  }
+
+  /// Each module path times the arc, from the path's source, of the one gate
+  /// that drives its destination and reads its source.
+  void lower_paths(const vmodule& m, ir::scope_def& s) {
+    if (m.paths.empty()) return;
+    std::vector<std::vector<ir::arc>> per_gate(s.gates.size());
+    auto is_dir = [&](std::string_view bit, const std::string& dir) {
+      for (auto& sig : m.sigs) {
+        if (sig.dir != dir) continue;
+        bits b;
+        all_bits(sig, b);
+        for (auto n : b)
+          if (n == bit) return true;
+      }
+      return false;
+    };
+    for (auto& p : m.paths) {
+      gate_delay d;
+      if (!decode_delay(p.delay, p.unit, p.precision, d)) continue;
+      bits from, to;
+      bool ok = true;
+      for (auto& t : p.from) ok = ok && term_bits(m, t, from);
+      for (auto& t : p.to) ok = ok && term_bits(m, t, to);
+      if (!ok) continue;
+      if (!p.full && from.size() != to.size()) {
+        rep_.error(p.loc, fmt::format("a parallel module path (=>) joins equal widths; this one "
+                                      "has {} source bits and {} destination bits",
+                                      from.size(), to.size()));
+        continue;
+      }
+      for (std::size_t i = 0; i < from.size(); ++i)
+        for (std::size_t j = 0; j < to.size(); ++j) {
+          if (!p.full && i != j) continue;
+          if (!is_dir(from[i], "input")) {
+            rep_.error(p.loc, fmt::format("module path source '{}' is not an input of module '{}'",
+                                          from[i], m.name));
+            continue;
+          }
+          if (!is_dir(to[j], "output")) {
+            rep_.error(p.loc,
+                       fmt::format("module path destination '{}' is not an output of module '{}'",
+                                   to[j], m.name));
+            continue;
+          }
+          std::size_t g = 0;
+          while (g < s.gates.size() && s.gates[g].out.name != to[j]) ++g;
+          if (g == s.gates.size()) {
+            rep_.error(p.loc,
+                       fmt::format("module path {} to {}: no gate of module '{}' drives '{}' (a "
+                                   "path times one gate, from an input it reads to its output)",
+                                   from[i], to[j], m.name, to[j]));
+            continue;
+          }
+          bool reads = false;
+          for (auto k = s.gates[g].reads_begin; k < s.gates[g].reads_end; ++k)
+            reads = reads || s.read_pool[k].name == from[i];
+          if (!reads) {
+            rep_.error(p.loc,
+                       fmt::format("module path {} to {}: the gate driving '{}' does not read "
+                                   "'{}' (a path times one gate, from an input it reads to its "
+                                   "output)",
+                                   from[i], to[j], to[j], from[i]));
+            continue;
+          }
+          per_gate[g].push_back(ir::arc{ref_of(from[i], p.loc), d});
+        }
+    }
+    for (std::size_t g = 0; g < s.gates.size(); ++g) {
+      s.gates[g].arcs_begin = static_cast<std::uint32_t>(s.arc_pool.size());
+      s.arc_pool.insert(s.arc_pool.end(), per_gate[g].begin(), per_gate[g].end());
+      s.gates[g].arcs_end = static_cast<std::uint32_t>(s.arc_pool.size());
+    }
   }
 
   void lower_gates(const vmodule& m, const timed<vast::gate_stmt>& t, ir::scope_def& s) {

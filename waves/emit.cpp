@@ -44,9 +44,14 @@ std::string range_text(const delay_range& r) {
   return time_literal(r.min) + ".." + time_literal(r.typ) + ".." + time_literal(r.max);
 }
 
+/// A delay body: one range, or `rise R fall F`.
+std::string body_text(const gate_delay& d) {
+  return d.rise == d.fall ? range_text(d.rise)
+                          : "rise " + range_text(d.rise) + " fall " + range_text(d.fall);
+}
+
 std::string delay_text(const gate_delay& d) {
-  std::string s = d.rise == d.fall ? "delay " + range_text(d.rise)
-                                   : "rise " + range_text(d.rise) + " fall " + range_text(d.fall);
+  std::string s = d.rise == d.fall ? "delay " + body_text(d) : body_text(d);
   if (d.transport) s += " transport";
   return s;
 }
@@ -73,7 +78,8 @@ class writer {
     r.text = fmt::format("# {} of {}{}\n", version, printable(d_.path),
                          d_.source.format.empty() ? "" : " (" + d_.source.format + ")");
     r.text +=
-        "# The elaborated design, one delay per gate, written back in the .settle language.\n";
+        "# The elaborated design, one delay per gate or per arc, written back in the .settle "
+        "language.\n";
     if (r.flat && n_.blocks)
       r.text +=
           "# Its blocks could not be rebuilt from what the netlist keeps: every net is written\n"
@@ -144,7 +150,25 @@ class writer {
         rhs += (i == n_.fanin_begin[g] ? "" : ", ") + name(n_.fanin[i]);
       rhs += ")";
     }
-    return fmt::format("{} = {} {}\n", name(n_.gate_out[g]), rhs, delay_text(n_.delay[g]));
+    if (!n_.has_arcs(g))
+      return fmt::format("{} = {} {}\n", name(n_.gate_out[g]), rhs, delay_text(n_.delay[g]));
+    // One `from NET DELAY` per distinct net read (a constant never changes,
+    // so its arc is not written).
+    const auto arcs = n_.arcs_of(g);
+    std::string text;
+    for (auto i = n_.fanin_begin[g]; i < n_.fanin_begin[g + 1]; ++i) {
+      const net_id in = n_.fanin[i];
+      if (in <= netlist::const1) continue;
+      bool seen = false;
+      for (auto j = n_.fanin_begin[g]; j < i; ++j) seen = seen || n_.fanin[j] == in;
+      if (seen) continue;
+      text += fmt::format("{}from {} {}", text.empty() ? "" : ", ", name(in),
+                          body_text(arcs[i - n_.fanin_begin[g]]));
+    }
+    if (text.empty())
+      return fmt::format("{} = {} {}\n", name(n_.gate_out[g]), rhs, delay_text(n_.delay[g]));
+    if (n_.delay[g].transport) text += " transport";
+    return fmt::format("{} = {} {}\n", name(n_.gate_out[g]), rhs, text);
   }
 
   // ---- declarations

@@ -61,7 +61,13 @@ std::string render(const ir::gate& g, const ir::scope_def& pools, std::string_vi
   for (auto i = g.code_begin; i < g.code_end; ++i) s += fmt::format("{} ", pools.code_pool.at(i));
   s += fmt::format("] delay {} rise {} fall {} transport {}", g.has_delay, range(g.delay.rise),
                    range(g.delay.fall), g.delay.transport);
-  return s;
+  s += fmt::format(" arcs {}..{} [", g.arcs_begin, g.arcs_end);
+  for (auto i = g.arcs_begin; i < g.arcs_end; ++i) {
+    const auto& a = pools.arc_pool.at(i);
+    s += fmt::format("from {} rise {} fall {} transport {}; ", name(a.from), range(a.delay.rise),
+                     range(a.delay.fall), a.delay.transport);
+  }
+  return s + "]";
 }
 
 /// Pools that already hold another gate's entries, so that the lowered ranges
@@ -70,6 +76,7 @@ ir::scope_def seeded_pools() {
   ir::scope_def pools;
   pools.read_pool.push_back(ir::ref{"earlier", {1, 1}});
   pools.code_pool.push_back(0);
+  pools.arc_pool.push_back(ir::arc{ir::ref{"earlier", {1, 1}}, {}});
   return pools;
 }
 

@@ -1,0 +1,11 @@
+// expect: 9:5: the gate driving 'y' does not read 'b'
+`timescale 1ps/1ps
+module pair(input a, input b, output y, output z);
+  wire w;
+  not g0 (y, a);
+  not g1 (z, b);
+  specify
+    (a => y) = 10;
+    (b => y) = 20;
+  endspecify
+endmodule
