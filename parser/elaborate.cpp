@@ -188,6 +188,7 @@ class elaborator {
   void place(netlist& nl, const frame& fr, std::vector<frame>& work) {
     const scope_def& d = *fr.def;
     cur_ = &rep_of(d);
+    cur_scope_ = fr.scope;
     scope_names names;
     names.top = fr.def == &f_.top;
     declare_names(nl, fr, names);
@@ -304,6 +305,10 @@ class elaborator {
     program_.assign(pools.code_pool.begin() + g.code_begin, pools.code_pool.begin() + g.code_end);
     if (!ok) return;
     nl.add_gate(g.kind, out, fanin_, program_, delay, g.out.loc);
+    if (cur_scope_ != 0 || !nl.gate_scope.empty()) {
+      nl.gate_scope.resize(nl.gate_count(), 0);
+      nl.gate_scope.back() = cur_scope_;
+    }
     if (cur_ != &rep_) {
       gate_rep_.resize(nl.gate_count(), nullptr);
       gate_rep_.back() = cur_;
@@ -488,7 +493,8 @@ class elaborator {
 
   file& f_;
   reporter& rep_;
-  reporter* cur_ = &rep_;  // the reporter of the scope being placed
+  reporter* cur_ = &rep_;        // the reporter of the scope being placed
+  std::uint32_t cur_scope_ = 0;  // the scope being placed
   bool aborted_ = false;
   std::unordered_map<std::string_view, std::uint32_t> block_;
   std::vector<bool> used_, duplicate_;
