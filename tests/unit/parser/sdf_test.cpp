@@ -112,7 +112,7 @@ TEST_CASE("SDF errors carry line and column", "[parser]") {
       {"(DELAYFILE\n (CELL (CELLTYPE \"x\")\n", 2, 2, "not closed"},
       {"(DELAYFILE (TIMESCALE 1ps)\n (CELL (CELLTYPE \"x\") (INSTANCE u) (DELAY (ABSOLUTE "
        "(IOPATH a y (0.0001))))))",
-       2, 62, "whole number of femtoseconds"},
+       2, 66, "whole number of femtoseconds"},
       {"(DELAYFILE (TIMESCALE 1ns) (FOO))", 1, 29, "unknown SDF construct 'FOO'"},
       {"(DELAYFILE (CELL (CELLTYPE \"x\") (INSTANCE u) (DELAY (ABSOLUTE (IOPATH a y (1..2))))))", 1,
        76, "not a number"},
