@@ -196,6 +196,7 @@ class elaborator {
   void place(netlist& nl, const frame& fr, std::vector<frame>& work) {
     const scope_def& d = *fr.def;
     cur_ = &rep_of(d);
+    cur_scope_ = fr.scope;
     scope_names names;
     names.top = fr.def == &f_.top;
     declare_names(nl, fr, names);
@@ -316,6 +317,10 @@ class elaborator {
     if (with_arcs) {
       pending_arcs_.emplace_back(static_cast<gate_id>(nl.gate_count() - 1), arc_delays_.size());
       arc_delays_.insert(arc_delays_.end(), gate_arcs_.begin(), gate_arcs_.end());
+    }
+    if (cur_scope_ != 0 || !nl.gate_scope.empty()) {
+      nl.gate_scope.resize(nl.gate_count(), 0);
+      nl.gate_scope.back() = cur_scope_;
     }
     if (cur_ != &rep_) {
       gate_rep_.resize(nl.gate_count(), nullptr);
@@ -547,7 +552,8 @@ class elaborator {
 
   file& f_;
   reporter& rep_;
-  reporter* cur_ = &rep_;  // the reporter of the scope being placed
+  reporter* cur_ = &rep_;        // the reporter of the scope being placed
+  std::uint32_t cur_scope_ = 0;  // the scope being placed
   bool aborted_ = false;
   std::unordered_map<std::string_view, std::uint32_t> block_;
   std::vector<bool> used_, duplicate_;

@@ -8,6 +8,7 @@
 #include <array>
 #include <memory>
 
+#include "parser/sdf.hpp"
 #include "sim/analysis/graph.hpp"
 #include "sim/cli/command.hpp"
 #include "sim/cli/report_common.hpp"
@@ -59,7 +60,8 @@ exit_status run_check(const check_options& o) {
     spdlog::error("--json and --emit cannot both write to stdout");
     return exit_status::error;
   }
-  auto d = load(o.design, true);
+  sdf_report sdf;
+  auto d = load(o.design, true, &sdf);
   if (!d) return exit_status::error;
   output_set outputs;
   if (!o.emit.empty()) {
@@ -115,6 +117,11 @@ exit_status run_check(const check_options& o) {
                      {"dffs", s.dffs},     {"inverters", s.inverters}, {"buffers", s.buffers},
                      {"gates", s.gates}};
     }
+    if (!o.design.sdf.empty())
+      j["sdf"] = {{"files", sdf.files},
+                  {"arcs_annotated", sdf.arcs_annotated},
+                  {"gates_kept", sdf.gates_kept},
+                  {"unmatched_instances", sdf.unmatched_instances}};
     if (!outputs.put(o.json, json_text(j))) return exit_status::error;
   }
   if (!outputs.commit()) return exit_status::error;
@@ -149,6 +156,14 @@ exit_status run_check(const check_options& o) {
     out += fmt::format(
         "source     {}: inputs {}, outputs {}, dffs {}, inverters {}, buffers {}, gates {}\n",
         s.format, s.inputs, s.outputs, s.dffs, s.inverters, s.buffers, s.gates);
+  }
+  if (!o.design.sdf.empty()) {
+    out += fmt::format("sdf        {} file{}: {} arc{} annotated, {} gate{} kept netlist delays\n",
+                       sdf.files, sdf.files == 1 ? "" : "s", sdf.arcs_annotated,
+                       sdf.arcs_annotated == 1 ? "" : "s", sdf.gates_kept,
+                       sdf.gates_kept == 1 ? "" : "s");
+    if (!sdf.unmatched_instances.empty())
+      out += fmt::format("  unmatched instances: {}\n", fmt::join(sdf.unmatched_instances, ", "));
   }
   std::fputs(out.c_str(), stdout);
   return exit_status::ok;

@@ -13,6 +13,7 @@
 #include <cstdlib>
 #include <cstring>
 
+#include "parser/sdf.hpp"
 #include "sim/kernel/run.hpp"
 #include "sim/model/time_parse.hpp"
 
@@ -101,15 +102,20 @@ void add_design_options(CLI::App& cmd, design_options& o) {
   cmd.add_option("--dff", o.dff, "imported flip-flops: gates (six NAND gates) or primitive")
       ->check(one_of({"gates", "primitive"}));
   cmd.add_option("--delay", o.delay, "delay of imported gates: MIN..MAX (e.g. 40ps..60ps)");
+  cmd.add_option(
+         "--sdf", o.sdf,
+         "SDF (IEEE 1497) file of delays to back-annotate; repeat to apply several in order")
+      ->check(file_name("--sdf file"));
 }
 
 std::vector<path_use> design_inputs(const design_options& o) {
   std::vector<path_use> uses{{path_use::kind::input, "design file", o.path, ""}};
   if (!o.stim.empty()) uses.push_back({path_use::kind::input, "--stim file", o.stim, ""});
+  for (const auto& f : o.sdf) uses.push_back({path_use::kind::input, "--sdf file", f, ""});
   return uses;
 }
 
-std::optional<design> load(const design_options& o, bool empty_ok) {
+std::optional<design> load(const design_options& o, bool empty_ok, sdf_report* sdf) {
   load_options lo;
   lo.stim_path = o.stim;
   lo.format = o.format;
@@ -126,11 +132,18 @@ std::optional<design> load(const design_options& o, bool empty_ok) {
   }
   diagnostics diags;
   auto d = load_design(o.path, lo, diags);
+  sdf_report report;
+  if (d && !diags.has_errors())
+    for (const auto& path : o.sdf) {
+      auto f = read_sdf(path, diags);
+      if (!f || !annotate_sdf(d->nets, *f, diags, report)) break;
+    }
   print_diagnostics(diags);
   if (!d || diags.has_errors()) {
     if (diags.items.empty()) spdlog::error("cannot load '{}'", o.path);
     return std::nullopt;
   }
+  if (sdf) *sdf = std::move(report);
   if (d->nets.gate_count() == 0 && d->nets.inputs.empty()) {
     if (!empty_ok) {
       spdlog::error(
@@ -166,6 +179,7 @@ std::string replay_command(const design_options& o, const std::string& corner,
   if (o.dff != "gates") cmd += " --dff " + o.dff;
   if (!o.top.empty()) cmd += " --top " + word(o.top);
   if (!o.delay.empty()) cmd += " --delay " + word(o.delay);
+  for (const auto& f : o.sdf) cmd += " --sdf " + word(f);
   cmd += " --corner " + word(corner);
   if (!horizon.empty()) cmd += " --horizon " + word(horizon);
   if (max_events) cmd += fmt::format(" --max-events {}", max_events);

@@ -15,6 +15,10 @@ class App;
 class Validator;
 }  // namespace CLI
 
+namespace settle {
+struct sdf_report;
+}
+
 namespace settle::cli {
 
 /// Process exit statuses (a public contract).
@@ -45,6 +49,7 @@ struct design_options {
   std::string dff = "gates";
   std::string delay;  ///< MIN..MAX for imported gates; empty: the default
   std::string top;    ///< Verilog: the top module; empty: the one no other module instantiates
+  std::vector<std::string> sdf;  ///< --sdf FILE...: SDF back-annotation, applied in order
 };
 void add_design_options(CLI::App& cmd, design_options& o);
 
@@ -68,14 +73,16 @@ void print_diagnostics(const diagnostics& diags, std::size_t max_errors = 50,
                        std::size_t max_warnings = 20);
 
 /// The files a design's options read, for check_paths: the design file and
-/// the --stim file when there is one.
+/// the --stim file when there is one, and every --sdf file.
 std::vector<path_use> design_inputs(const design_options& o);
 
 /// Loads the design; prints diagnostics (file:line:col, caret) on stderr.
 /// A design with no gates and no inputs is an error unless `empty_ok`, when
 /// it is a warning (`settle check`).
-/// Returns nullopt when there was an error (the command then exits 2).
-std::optional<design> load(const design_options& o, bool empty_ok = false);
+/// The --sdf files are applied in order; `sdf`, when given, receives what
+/// they did. Returns nullopt when there was an error (the command then exits 2).
+std::optional<design> load(const design_options& o, bool empty_ok = false,
+                           sdf_report* sdf = nullptr);
 
 /// True when the timed kernel takes the design; otherwise says why on stderr
 /// (the command then exits 2). The commands that run it ask before they do.

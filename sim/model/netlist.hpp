@@ -139,6 +139,9 @@ struct netlist {
   std::vector<std::uint32_t> arc_at;
   std::vector<gate_delay> arcs;
   std::vector<source_loc> gate_loc;  ///< where each gate was written
+  /// The scope (instance) each gate was written in; empty when every gate is
+  /// at the top level (the .bench importer). Read by SDF back-annotation.
+  std::vector<std::uint32_t> gate_scope;
   /// Set by finish(): gates whose exact ternary value needs enumeration of
   /// their x inputs (complex gates, and primitives that read a net twice or
   /// read their own output where that matters).
