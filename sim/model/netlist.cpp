@@ -45,7 +45,7 @@ std::uint32_t gate_delays::record_for(const gate_delay& d) {
 void netlist::set_arcs(gate_id g, std::span<const gate_delay> a) {
   SETTLE_CHECK(a.size() == fanin_begin[g + 1] - fanin_begin[g] && !a.empty(),
                "set_arcs takes one delay per fan-in");
-  if (arc_at.empty()) arc_at.assign(gate_count(), no_id);
+  arc_at.resize(gate_count(), no_id);  // gates added since the last call have none
   arc_at[g] = static_cast<std::uint32_t>(arcs.size());
   arcs.insert(arcs.end(), a.begin(), a.end());
   gate_delay env = a.front();

@@ -133,8 +133,8 @@ struct netlist {
   gate_delays delay;  ///< delay[g]: gate g's delays
   /// Pin-to-pin delays: a gate with arcs has one delay per fan-in, arc k
   /// timing the output changes that a change of fan-in k causes. Gate g's
-  /// arcs are arcs[arc_at[g] ..] when arc_at is not empty and arc_at[g] is
-  /// not no_id; its `delay` is then their envelope (each edge from the
+  /// arcs are arcs[arc_at[g] ..] when arc_at reaches g and arc_at[g] is not
+  /// no_id; its `delay` is then their envelope (each edge from the
   /// smallest min to the largest max), for whatever needs one range.
   std::vector<std::uint32_t> arc_at;
   std::vector<gate_delay> arcs;
@@ -164,7 +164,7 @@ struct netlist {
   bool add_name(std::string full_name, net_id id);
   /// Sizes the name index (and the net arrays) for `nets` nets.
   void reserve_nets(std::size_t nets);
-  bool has_arcs(gate_id g) const { return !arc_at.empty() && arc_at[g] != no_id; }
+  bool has_arcs(gate_id g) const { return g < arc_at.size() && arc_at[g] != no_id; }
   /// Gate g's arcs, in fan-in order (empty when it has none).
   std::span<const gate_delay> arcs_of(gate_id g) const {
     if (!has_arcs(g)) return {};
