@@ -231,27 +231,13 @@ class reader {
     f_.cells.push_back(std::move(c));
   }
 
-  /// Splits a path at the divider (a backslash escapes the next byte).
-  std::vector<std::string> split(std::string_view p) const {
-    std::vector<std::string> out(1);
-    for (std::size_t i = 0; i < p.size(); ++i) {
-      if (p[i] == '\\' && i + 1 < p.size())
-        out.back() += p[++i];
-      else if (p[i] == f_.divider)
-        out.emplace_back();
-      else
-        out.back() += p[i];
-    }
-    return out;
-  }
-
   void instance(const node& k, sdf_cell& c) {
     if (k.kids.size() == 1) return;  // (INSTANCE): the top
     if (k.kids.size() != 2 || k.kids[1].is_list || k.kids[1].quoted)
       return error(k.kids.size() > 2 ? k.kids[2].pos : k.kids[1].pos,
                    "INSTANCE takes one path (or '*', or nothing for the top)");
     c.instance = k.kids[1].text;
-    c.segments = split(c.instance);
+    c.segments = split_sdf_path(c.instance, f_.divider);
     for (auto& s : c.segments) {
       if (s.empty())
         return error(k.kids[1].pos,
@@ -527,6 +513,19 @@ std::optional<sdf_file> read_sdf(const std::string& path, diagnostics& diags) {
     return std::nullopt;
   }
   return read_sdf_text(ss.str(), path, diags);
+}
+
+std::vector<std::string> split_sdf_path(std::string_view p, char divider) {
+  std::vector<std::string> out(1);
+  for (std::size_t i = 0; i < p.size(); ++i) {
+    if (p[i] == '\\' && i + 1 < p.size())
+      out.back() += p[++i];
+    else if (p[i] == divider)
+      out.emplace_back();
+    else
+      out.back() += p[i];
+  }
+  return out;
 }
 
 }  // namespace settle

@@ -87,4 +87,7 @@ struct sdf_report {
 /// the SDF file's line:col; returns false on an error.
 bool annotate_sdf(netlist& n, const sdf_file& f, diagnostics& diags, sdf_report& report);
 
+/// An INSTANCE or port path split at `divider`; a backslash escapes the next byte.
+std::vector<std::string> split_sdf_path(std::string_view p, char divider);
+
 }  // namespace settle

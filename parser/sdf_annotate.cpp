@@ -102,15 +102,7 @@ class annotator {
   /// Resolves a port path (instances joined by the DIVIDER, then the port)
   /// below scope `s`: its scope and net, or no_id.
   std::pair<std::uint32_t, net_id> port_at(std::uint32_t s, const std::string& path) const {
-    std::vector<std::string> seg(1);
-    for (std::size_t i = 0; i < path.size(); ++i) {
-      if (path[i] == '\\' && i + 1 < path.size())
-        seg.back() += path[++i];
-      else if (path[i] == f_.divider)
-        seg.emplace_back();
-      else
-        seg.back() += path[i];
-    }
+    const std::vector<std::string> seg = split_sdf_path(path, f_.divider);
     for (std::size_t i = 0; i + 1 < seg.size(); ++i) {
       std::uint32_t found = no_id;
       for (auto ch : children_[s])
