@@ -1,11 +1,14 @@
-// libFuzzer target: the .settle parser and elaborator, the .bench importer, diagnostics and a
-// bounded run.
+// libFuzzer target: the .settle parser and elaborator, the .bench importer, the structural
+// Verilog reader, the SDF reader (and its annotation onto a small Verilog design), diagnostics and
+// a bounded run.
 #include <cstddef>
 #include <cstdint>
 #include <string>
 #include <string_view>
 
 #include "parser/load.hpp"
+#include "parser/sdf.hpp"
+#include "parser/verilog.hpp"
 #include "sim/kernel/run.hpp"
 #include "sim/model/corner.hpp"
 
@@ -48,6 +51,34 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     auto d = settle::load_bench_text(text, "fuzz.bench", opt, diags);
     format_all(diags);
     if (d) run_small(*d);
+  }
+  {
+    settle::diagnostics diags;
+    settle::load_options opt;
+    opt.format = "verilog";
+    auto d = settle::load_verilog_text(text, "fuzz.v", opt, diags);
+    format_all(diags);
+    if (d) run_small(*d);
+  }
+  {
+    // The text as an SDF file, annotated onto a two-cell design whose names it may hit.
+    settle::diagnostics diags;
+    auto sdf = settle::read_sdf_text(std::string(text), "fuzz.sdf", diags);
+    format_all(diags);
+    if (sdf) {
+      static constexpr std::string_view cells =
+          "module inv(input a, output y); not (y, a); endmodule\n"
+          "module top(input a, output y); wire m; inv u1(.a(a), .y(m)); inv u2(.a(m), .y(y));\n"
+          "endmodule\n";
+      settle::diagnostics dd;
+      settle::load_options opt;
+      opt.format = "verilog";
+      if (auto d = settle::load_verilog_text(cells, "cells.v", opt, dd)) {
+        settle::sdf_report report;
+        if (settle::annotate_sdf(d->nets, *sdf, dd, report)) run_small(*d);
+        format_all(dd);
+      }
+    }
   }
   return 0;
 }
