@@ -66,20 +66,7 @@ class reader {
     return r;
   }
   void report(diagnostic::level lv, const char* p, std::string msg) {
-    diagnostic d;
-    d.severity = lv;
-    d.file = f_.path;
-    const auto at = pos_of(p);
-    d.line = at.line;
-    d.col = at.col;
-    d.message = std::move(msg);
-    std::string_view t = f_.text;
-    std::size_t b = 0;
-    for (std::uint32_t l = 1; l < at.line; ++l) b = t.find('\n', b) + 1;
-    auto e = t.find('\n', b);
-    if (e == std::string_view::npos) e = t.size();
-    set_source_line(d, t.substr(b, e - b));
-    diags_.add(std::move(d));
+    diags_.add(sdf_diagnostic(f_, lv, pos_of(p), std::move(msg)));
   }
   void error(const char* p, std::string msg) {
     if (failed_) return;
@@ -526,6 +513,23 @@ std::vector<std::string> split_sdf_path(std::string_view p, char divider) {
       out.back() += p[i];
   }
   return out;
+}
+
+diagnostic sdf_diagnostic(const sdf_file& f, diagnostic::level lv, sdf_pos at, std::string msg) {
+  diagnostic d;
+  d.severity = lv;
+  d.file = f.path;
+  d.line = at.line;
+  d.col = at.col;
+  d.message = std::move(msg);
+  const std::string_view t = f.text;
+  std::size_t b = 0;
+  for (std::uint32_t l = 1; l < at.line && b <= t.size(); ++l) b = t.find('\n', b) + 1;
+  if (b <= t.size()) {
+    const auto e = t.find('\n', b);
+    set_source_line(d, t.substr(b, e == std::string_view::npos ? t.size() - b : e - b));
+  }
+  return d;
 }
 
 }  // namespace settle

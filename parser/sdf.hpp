@@ -90,4 +90,7 @@ bool annotate_sdf(netlist& n, const sdf_file& f, diagnostics& diags, sdf_report&
 /// An INSTANCE or port path split at `divider`; a backslash escapes the next byte.
 std::vector<std::string> split_sdf_path(std::string_view p, char divider);
 
+/// A diagnostic at `at` of SDF file `f`, with its source line for the caret.
+diagnostic sdf_diagnostic(const sdf_file& f, diagnostic::level lv, sdf_pos at, std::string msg);
+
 }  // namespace settle

@@ -26,20 +26,7 @@ class annotator {
 
  private:
   void warn(sdf_pos at, std::string msg) {
-    diagnostic d;
-    d.severity = diagnostic::level::warning;
-    d.file = f_.path;
-    d.line = at.line;
-    d.col = at.col;
-    d.message = std::move(msg);
-    std::string_view t = f_.text;
-    std::size_t b = 0;
-    for (std::uint32_t l = 1; l < at.line; ++l) b = t.find('\n', b) + 1;
-    if (b <= t.size()) {
-      auto e = t.find('\n', b);
-      set_source_line(d, t.substr(b, e == std::string_view::npos ? t.size() - b : e - b));
-    }
-    diags_.add(std::move(d));
+    diags_.add(sdf_diagnostic(f_, diagnostic::level::warning, at, std::move(msg)));
   }
 
   std::uint32_t scope_of_gate(gate_id g) const {

@@ -36,30 +36,18 @@ void run_small(const settle::design& d) {
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
   const std::string_view text(reinterpret_cast<const char*>(data), size);
-  {
+  // The text as each design format: parsed, its diagnostics formatted, and a small design run.
+  auto as_design = [&](const char* format, const char* name, auto load) {
     settle::diagnostics diags;
     settle::load_options opt;
-    opt.format = "settle";
-    auto d = settle::load_design_text(text, "fuzz.settle", opt, diags);
+    opt.format = format;
+    auto d = load(text, name, opt, diags);
     format_all(diags);
     if (d) run_small(*d);
-  }
-  {
-    settle::diagnostics diags;
-    settle::load_options opt;
-    opt.format = "bench";
-    auto d = settle::load_bench_text(text, "fuzz.bench", opt, diags);
-    format_all(diags);
-    if (d) run_small(*d);
-  }
-  {
-    settle::diagnostics diags;
-    settle::load_options opt;
-    opt.format = "verilog";
-    auto d = settle::load_verilog_text(text, "fuzz.v", opt, diags);
-    format_all(diags);
-    if (d) run_small(*d);
-  }
+  };
+  as_design("settle", "fuzz.settle", settle::load_design_text);
+  as_design("bench", "fuzz.bench", settle::load_bench_text);
+  as_design("verilog", "fuzz.v", settle::load_verilog_text);
   {
     // The text as an SDF file, annotated onto a two-cell design whose names it may hit.
     settle::diagnostics diags;
