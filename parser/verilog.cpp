@@ -201,8 +201,12 @@ struct udp_def {
   std::vector<bool> truth;
 };
 
-/// A bit of a connection: a net's full name in its scope, "0" or "1".
+/// A bit of a connection: a net's full name in its scope, "0", "1" or x_bit.
 using bits = std::vector<std::string_view>;
+
+/// The net an x or z constant bit reads: one per module that uses one, a
+/// buffer of itself, which holds x for ever.
+constexpr std::string_view x_bit = "1'bx";
 
 class reader {
  public:
@@ -1254,35 +1258,73 @@ class reader {
     }
   }
 
+  /// The bits of a based constant (IEEE 1364-2005 3.5.1), MSB first: "0",
+  /// "1", or x_bit for an x or z digit (settle has no high impedance: z
+  /// reads as x). Sized constants are cut or extended to their width, with
+  /// x when the leftmost digit is x or z and 0 otherwise.
+  bool constant_bits(const vast::raw& t, std::size_t q, bits& out) {
+    const std::string& x = t.text;
+    const char base = static_cast<char>(std::tolower(static_cast<unsigned char>(x[q + 1])));
+    const int per = base == 'b' ? 1 : base == 'o' ? 3 : base == 'h' ? 4 : 0;
+    std::string digits;
+    for (auto k = q + 2; k < x.size(); ++k)
+      if (x[k] != '_' && !space(x[k]))
+        digits += static_cast<char>(std::tolower(static_cast<unsigned char>(x[k])));
+    auto bad = [&](const std::string& why) {
+      rep_.error(loc(t.pos), fmt::format("the constant '{}' {}", x, why));
+      return false;
+    };
+    auto unknown = [](char c) { return c == 'x' || c == 'z'; };
+    std::string b;  // '0', '1' or 'x', MSB first
+    if (per == 0) {
+      if (digits.size() == 1 && unknown(digits[0])) {
+        b = "x";
+      } else {
+        unsigned long long v = 0;
+        for (char c : digits) {
+          if (c < '0' || c > '9') return bad("holds a digit that is not decimal");
+          if (v > (~0ULL - 9) / 10) return bad("is wider than 64 bits");
+          v = v * 10 + static_cast<unsigned>(c - '0');
+        }
+        for (; v; v >>= 1) b.insert(b.begin(), (v & 1) ? '1' : '0');
+        if (b.empty()) b = "0";
+      }
+    } else {
+      for (char c : digits) {
+        int v = 0;
+        if (unknown(c)) {
+          b.append(static_cast<std::size_t>(per), 'x');
+          continue;
+        }
+        if (c >= '0' && c <= '9')
+          v = c - '0';
+        else if (c >= 'a' && c <= 'f')
+          v = c - 'a' + 10;
+        if (!std::isxdigit(static_cast<unsigned char>(c)) || v >= (1 << per))
+          return bad(
+              fmt::format("holds the digit '{}', which base '{}' does not have", c, x[q + 1]));
+        for (int k = per - 1; k >= 0; --k) b += ((v >> k) & 1) ? '1' : '0';
+      }
+    }
+    std::size_t width = b.size();
+    if (q > 0) {
+      const int w = std::atoi(x.substr(0, q).c_str());
+      if (w <= 0) return bad("has a width below 1");
+      if (w > 4096) return bad("is wider than 4096 bits");
+      width = static_cast<std::size_t>(w);
+    }
+    if (b.size() > width) b.erase(0, b.size() - width);
+    const char fill = b[0] == 'x' ? 'x' : '0';
+    b.insert(0, width - b.size(), fill);
+    for (char c : b) out.push_back(c == '1' ? "1" : c == '0' ? "0" : x_bit);
+    return true;
+  }
+
   /// The bits of one term (MSB first); false after reporting.
   bool term_bits(const vmodule& m, const vast::raw& t, bits& out) {
     const std::string& x = t.text;
     const auto q = x.find('\'');
-    if (q != std::string::npos) {
-      std::string digits;
-      for (auto k = q + 2; k < x.size(); ++k)
-        if (x[k] != '_' && !space(x[k])) digits += x[k];
-      int width = static_cast<int>(digits.size());
-      if (q > 0) width = std::atoi(x.substr(0, q).c_str());
-      if (width <= 0) {
-        rep_.error(loc(t.pos), "a constant's width must be at least 1");
-        return false;
-      }
-      for (char c : digits)
-        if (c != '0' && c != '1') {
-          rep_.error(
-              loc(t.pos),
-              fmt::format("the constant '{}' holds x or z, which cannot drive a connection here",
-                          x));
-          return false;
-        }
-      std::string b =
-          digits.size() >= static_cast<std::size_t>(width)
-              ? digits.substr(digits.size() - static_cast<std::size_t>(width))
-              : std::string(static_cast<std::size_t>(width) - digits.size(), '0') + digits;
-      for (char c : b) out.push_back(c == '1' ? "1" : "0");
-      return true;
-    }
+    if (q != std::string::npos) return constant_bits(t, q, out);
     std::size_t e = 0;
     while (e < x.size() && id_char(x[e])) ++e;
     const std::string base = x.substr(0, e);
@@ -1428,7 +1470,29 @@ class reader {
     for (auto& a : m.assigns) lower_assigns(m, a, s);
     for (auto& st : m.insts) lower_insts(m, st, s);
     lower_paths(m, s);
+    add_x_source(m, s);
     return s;
+  }
+
+  /// Declares x_bit and its gate in a module that reads it.
+  void add_x_source(const vmodule& m, ir::scope_def& s) {
+    bool used = std::any_of(s.read_pool.begin(), s.read_pool.end(),
+                            [](const ir::ref& r) { return r.name == x_bit; });
+    for (auto& in : s.insts)
+      for (auto& b : in.binds) used = used || b.target.name == x_bit;
+    if (!used) return;
+    s.wires.push_back(ref_of(x_bit, m.loc));
+    ir::gate g;
+    g.out = ref_of(x_bit, m.loc);
+    g.kind = gate_kind::buf;
+    g.reads_begin = static_cast<std::uint32_t>(s.read_pool.size());
+    s.read_pool.push_back(ref_of(x_bit, m.loc));
+    g.reads_end = static_cast<std::uint32_t>(s.read_pool.size());
+    g.code_begin = g.code_end = static_cast<std::uint32_t>(s.code_pool.size());
+    g.arcs_begin = g.arcs_end = static_cast<std::uint32_t>(s.arc_pool.size());
+    g.has_delay = true;
+    g.delay = default_delay();  // never used: x in, x out, no event ever
+    s.gates.push_back(g);
   }
 
   /// Each module path times the arc, from the path's source, of the one gate
@@ -1678,7 +1742,22 @@ class reader {
         eat(")");
         return n;
       }
-      // A term: a based constant, or a name with an optional select.
+      if (eat("{")) {  // a concatenation of terms: one leaf of their bits
+        node n;
+        n.pos = base_ + i_ - 1;
+        do {
+          node part = term();
+          n.leaf_bits.insert(n.leaf_bits.end(), part.leaf_bits.begin(), part.leaf_bits.end());
+        } while (ok_ && eat(","));
+        eat("}");
+        return add(std::move(n));
+      }
+      return add(term());
+    }
+
+    /// A term: a based constant, or a name with an optional select.
+    node term() {
+      skip();
       const auto start = i_;
       if (i_ < s_.size() && (std::isdigit(static_cast<unsigned char>(s_[i_])) || s_[i_] == '\'')) {
         while (i_ < s_.size() && (std::isalnum(static_cast<unsigned char>(s_[i_])) ||
@@ -1699,7 +1778,7 @@ class reader {
       node n;
       n.pos = t.pos;
       if (!r_.term_bits(m_, t, n.leaf_bits)) ok_ = false;
-      return add(std::move(n));
+      return n;
     }
 
     reader& r_;
@@ -1790,7 +1869,7 @@ class reader {
       bits lhs;
       if (!conn_bits(m, item.lhs, lhs)) continue;
       for (std::size_t k = 0; k < lhs.size(); ++k)
-        if (lhs[k] == "0" || lhs[k] == "1") {
+        if (lhs[k] == "0" || lhs[k] == "1" || lhs[k] == x_bit) {
           rep_.error(loc(item.lhs.front().pos), "an assignment cannot drive a constant");
           return;
         }

@@ -230,28 +230,22 @@ class writer {
     if (n_.blocks == 0) return false;
     by_net_.assign(n_.net_count(), {});
     for (std::uint32_t a = 0; a < n_.aliases.size(); ++a) by_net_[n_.aliases[a].net].push_back(a);
-    std::vector<std::uint32_t> depth(scopes, 0);
-    for (std::uint32_t s = 1; s < scopes; ++s) {
+    for (std::uint32_t s = 1; s < scopes; ++s)
       if (n_.scopes[s].parent >= s) return false;
-      depth[s] = depth[n_.scopes[s].parent] + 1;
-    }
     for (net_id k = 2; k < n_.net_count(); ++k)
       if (!local(k, n_.net_scope[k])) return false;
     // An instance name must differ from every name of its parent scope.
     for (std::uint32_t s = 1; s < scopes; ++s)
       for (auto& a : n_.aliases)
         if (a.scope == n_.scopes[s].parent && a.local == n_.scopes[s].name) return false;
-    // A gate belongs to the deepest scope in which its output and inputs all have names.
-    place_.assign(n_.gate_count(), no_id);
+    // A gate belongs to the scope that placed it, where its output and inputs all have names.
+    place_.assign(n_.gate_count(), 0);
     for (gate_id g = 0; g < n_.gate_count(); ++g) {
-      for (auto a : by_net_[n_.gate_out[g]]) {
-        const auto s = n_.aliases[a].scope;
-        bool all = true;
-        for (auto i = n_.fanin_begin[g]; all && i < n_.fanin_begin[g + 1]; ++i)
-          all = n_.fanin[i] <= netlist::const1 || local(n_.fanin[i], s);
-        if (all && (place_[g] == no_id || depth[s] > depth[place_[g]])) place_[g] = s;
-      }
-      if (place_[g] == no_id) return false;
+      const auto s = g < n_.gate_scope.size() ? n_.gate_scope[g] : 0;
+      if (s >= scopes || !local(n_.gate_out[g], s)) return false;
+      for (auto i = n_.fanin_begin[g]; i < n_.fanin_begin[g + 1]; ++i)
+        if (n_.fanin[i] > netlist::const1 && !local(n_.fanin[i], s)) return false;
+      place_[g] = s;
     }
     std::vector<std::vector<gate_id>> gates(scopes);
     for (gate_id g = 0; g < n_.gate_count(); ++g) gates[place_[g]].push_back(g);

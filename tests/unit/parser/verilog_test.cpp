@@ -1,5 +1,7 @@
 // The structural Verilog reader: names, selects, concatenations and delays as IEEE 1364-2005
 // defines them.
+#include <fmt/format.h>
+
 #include <catch2/catch.hpp>
 #include <string>
 
@@ -116,4 +118,48 @@ TEST_CASE("Verilog: --top chooses among several root modules", "[parser]") {
   opt.top = "c";
   diagnostics diags2;
   CHECK_FALSE(load_design_text(text, "t.v", opt, diags2));
+}
+
+TEST_CASE("Verilog: based constants in four bases, sized and extended; x and z read as x",
+          "[parser]") {
+  // IEEE 1364-2005 3.5.1: a based constant's digits give 1 (b), 3 (o) or 4 (h)
+  // bits each, a decimal one its binary value; a sized constant is cut from the
+  // left or padded with 0, or with x when its leftmost digit is x or z. settle
+  // has no high impedance, so z reads as x (parser/VERILOG.md says so).
+  auto d = read(R"(module top (input a, output [7:0] h, output [5:0] o, output [4:0] dd,
+            output [3:0] xs, output [1:0] cut, output w, output [2:0] c);
+  assign h = 8'hA5;
+  assign o = 6'o57;
+  assign dd = 5'd19;
+  assign xs = 4'bz1;
+  assign cut = 2'b1101;
+  and (w, a, 1'bZ);
+  assign c = {1'b1, a, 1'b0};
+endmodule
+)");
+  const auto& n = d.nets;
+  auto bits = [&](const std::string& v, int w) {
+    std::string s;
+    for (int i = w - 1; i >= 0; --i) {
+      const net_id k = n.find(fmt::format("{}[{}]", v, i));
+      REQUIRE(k != no_id);
+      const gate_id g = n.driver[k];
+      REQUIRE(g != no_id);
+      REQUIRE(n.fanin_begin[g + 1] - n.fanin_begin[g] == 1);  // a buffer of the bit
+      const net_id in = n.fanin[n.fanin_begin[g]];
+      s += in == netlist::const0   ? '0'
+           : in == netlist::const1 ? '1'
+           : in == n.find("1'bx")  ? 'x'
+                                   : '?';
+    }
+    return s;
+  };
+  CHECK(bits("h", 8) == "10100101");
+  CHECK(bits("o", 6) == "101111");
+  CHECK(bits("dd", 5) == "10011");
+  CHECK(bits("xs", 4) == "xxx1");  // padded with x: the leftmost digit is z
+  CHECK(bits("cut", 2) == "01");   // cut from the left
+  CHECK(reads(n, "w") == std::vector<std::string>{"a", "1'bx"});
+  CHECK(reads(n, "1'bx") == std::vector<std::string>{"1'bx"});  // holds x: x in, x out
+  CHECK(reads(n, "c[1]") == std::vector<std::string>{"a"});
 }
