@@ -81,10 +81,10 @@ struct sdf_report {
   std::vector<delay_range> wire_rise, wire_fall;  ///< INTERCONNECT/PORT added on each arc
 };
 
-/// Applies `f` to `n`: IOPATH entries set arcs of single-gate cell
-/// instances, INTERCONNECT and PORT entries add to the load gate's arc from
-/// that net. Files applied one after the other share `report`. Warnings name
-/// the SDF file's line:col; returns false on an error.
+/// Applies `f` to `n`: IOPATH entries set arcs of the gate driving the
+/// cell's output (the gates between, in a cell of several, take zero);
+/// INTERCONNECT and PORT entries add to the load gate's arc from that net. Files applied one after
+/// the other share `report`. Warnings name the SDF file's line:col; returns false on an error.
 bool annotate_sdf(netlist& n, const sdf_file& f, diagnostics& diags, sdf_report& report);
 
 /// An INSTANCE or port path split at `divider`; a backslash escapes the next byte.

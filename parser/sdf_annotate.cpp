@@ -1,5 +1,6 @@
 // SDF back-annotation onto the flat netlist: IOPATH entries become arcs of
-// single-gate cell instances; INTERCONNECT and PORT entries an added delay on
+// the gate driving the cell's output (the gates between, in a cell of
+// several, take zero delay); INTERCONNECT and PORT entries an added delay on
 // the load gate's arc from that net (an approximation: the netlist has no
 // element for a wire of its own, so the delay joins the load's arc).
 #include <fmt/format.h>
@@ -146,27 +147,32 @@ class annotator {
                               in == no_id ? e.from : e.to));
       return;
     }
-    if (gates_in_[s] != 1) {
-      warn(e.pos, fmt::format("IOPATH {}: {} holds {} gates; settle times the paths of "
-                              "single-gate cells only: skipped",
-                              words(e), shown(s), gates_in_[s]));
-      return;
-    }
     const gate_id g = n_.driver[out];
     if (g == no_id || !within(scope_of_gate(g), s)) {
       warn(e.pos, fmt::format("IOPATH {}: port '{}' of {} is not driven by its gate: skipped",
                               words(e), e.to, shown(s)));
       return;
     }
-    std::vector<std::uint32_t> at;
-    for (auto i = n_.fanin_begin[g]; i < n_.fanin_begin[g + 1]; ++i)
-      if (n_.fanin[i] == in) at.push_back(i);
+    std::vector<std::uint32_t> at, between;
+    if (gates_in_[s] == 1) {
+      for (auto i = n_.fanin_begin[g]; i < n_.fanin_begin[g + 1]; ++i)
+        if (n_.fanin[i] == in) at.push_back(i);
+    } else {
+      cone(s, in, g, at, between);
+    }
     if (at.empty()) {
-      warn(e.pos, fmt::format("IOPATH {}: '{}' is not an input of the gate driving '{}' in {}: "
-                              "skipped",
-                              words(e), e.from, e.to, shown(s)));
+      warn(e.pos, fmt::format("IOPATH {}: '{}' {} the gate driving '{}' in {}: skipped", words(e),
+                              e.from, gates_in_[s] == 1 ? "is not an input of" : "does not reach",
+                              e.to, shown(s)));
       return;
     }
+    // Inside a cell of several gates the path's delay is the output gate's:
+    // the gates between take none (a cell's module path is its whole delay).
+    if (!e.increment)
+      for (auto i : between) {
+        r_.path[i].rise = r_.path[i].fall = delay_range{};
+        r_.touched[i] = 1;
+      }
     const bool qualified = !e.cond.empty() || e.condelse || !e.edge.empty();
     if (qualified)
       warn(e.pos, fmt::format("IOPATH {}{}: settle takes the widest range over the conditions "
@@ -177,15 +183,57 @@ class annotator {
     for (auto i : at) {
       bool merge = false;
       if (!e.increment) {
-        // a further condition or edge of an arc set in this file widens it
-        auto [it, fresh] = set_here_.emplace(i, qualified);
-        merge = !fresh && (qualified || it->second);
-        it->second = it->second || qualified;
+        // a further condition or edge of an arc set in this file widens it,
+        // and so does a second source meeting the first inside a cell
+        auto [it, fresh] = set_here_.emplace(i, set_by{qualified, in});
+        const bool met = !fresh && it->second.from != in;
+        merge = !fresh && (qualified || it->second.qualified || met);
+        it->second.qualified = it->second.qualified || qualified;
+        if (met && !met_at_) met_at_ = e.pos;
+        met_ += met;
       }
       set(r_.path[i].rise, e.values[0], e.increment, merge);
       set(r_.path[i].fall, e.values.size() > 1 ? e.values[1] : e.values[0], e.increment, merge);
       r_.touched[i] = 1;
     }
+  }
+
+  /// The arcs of gate `g` (driving a port of cell `s`) from `in` or from a net
+  /// between `in` and g, and the arcs of the gates between from `in` or such
+  /// a net: every path of gates of the cell from `in` to g.
+  void cone(std::uint32_t s, net_id in, gate_id g, std::vector<std::uint32_t>& at,
+            std::vector<std::uint32_t>& between) {
+    auto inside = [&](gate_id h) { return within(scope_of_gate(h), s); };
+    // forward from `in` through the cell's gates (not past g), backward from g
+    std::unordered_map<net_id, bool> ahead{{in, true}};
+    std::vector<net_id> work{in};
+    while (!work.empty()) {
+      const net_id k = work.back();
+      work.pop_back();
+      for (auto i = n_.fanout_begin[k]; i < n_.fanout_begin[k + 1]; ++i) {
+        const gate_id h = n_.fanout[i];
+        if (h == g || !inside(h)) continue;
+        if (ahead.emplace(n_.gate_out[h], true).second) work.push_back(n_.gate_out[h]);
+      }
+    }
+    std::unordered_map<gate_id, bool> behind{{g, true}};
+    std::vector<gate_id> gates{g};
+    while (!gates.empty()) {
+      const gate_id h = gates.back();
+      gates.pop_back();
+      for (auto i = n_.fanin_begin[h]; i < n_.fanin_begin[h + 1]; ++i) {
+        const net_id k = n_.fanin[i];
+        if (!ahead.count(k)) continue;
+        if (h == g)
+          at.push_back(i);
+        else
+          between.push_back(i);
+        const gate_id d = k > netlist::const1 ? n_.driver[k] : no_id;
+        if (d != no_id && inside(d) && behind.emplace(d, true).second) gates.push_back(d);
+      }
+    }
+    std::sort(at.begin(), at.end());
+    std::sort(between.begin(), between.end());
   }
 
   void wire(std::uint32_t s, const sdf_entry& e) {
@@ -253,6 +301,11 @@ class annotator {
   }
 
   void finish() {
+    if (met_)
+      warn(*met_at_, fmt::format("{} arc{} inside cells of several gates {} timed by more than one "
+                                 "IOPATH (inputs meeting before the output gate); each takes the "
+                                 "widest range of them",
+                                 met_, met_ == 1 ? "" : "s", met_ == 1 ? "is" : "are"));
     std::vector<gate_delay> arcs;
     std::uint64_t annotated = 0, kept = 0;
     for (gate_id g = 0; g < n_.gate_count(); ++g) {
@@ -288,8 +341,14 @@ class annotator {
   std::vector<std::string> full_;
   std::vector<std::vector<std::uint32_t>> children_;
   std::vector<std::uint32_t> gates_in_;
-  /// Arcs an ABSOLUTE IOPATH of this file set, and whether a qualified one did.
-  std::unordered_map<std::uint32_t, bool> set_here_;
+  /// Arcs an ABSOLUTE IOPATH of this file set: whether a qualified one did, and from where.
+  struct set_by {
+    bool qualified;
+    net_id from;
+  };
+  std::unordered_map<std::uint32_t, set_by> set_here_;
+  std::uint64_t met_ = 0;  ///< arcs a second IOPATH source widened
+  std::optional<sdf_pos> met_at_;
 };
 
 }  // namespace

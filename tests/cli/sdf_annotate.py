@@ -121,4 +121,4 @@ for name, text, at, words in BAD:
     check(rc == 2, f"{name}: exit {rc}, want 2")
     want = f"{path}:{at}: error: "
     check(want in err and words in err, f"{name}: want '{want}... {words}', got: {err[-400:]}")
-summary()
+sys.exit(summary())
