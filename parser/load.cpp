@@ -176,7 +176,18 @@ void read_imports(ir::file& f, const std::string& name, const load_options& opt,
       continue;
     }
     if (id) seen.emplace_back(*id, imp.loc);
+    const auto before = diags.items.size();
     auto lib = read_verilog_library(std::string(src.view()), path, opt, diags);
+    if (diags.items.size() > before) {  // say once where the file came in
+      diagnostic here;
+      here.severity = diagnostic::level::note;
+      here.file = name;
+      here.line = imp.loc.line;
+      here.col = imp.loc.col;
+      here.message = fmt::format("'{}' is imported here", imp.path);
+      set_source_line(here, rep.line_text(imp.loc.line));
+      diags.items[before].notes.push_back(std::move(here));
+    }
     for (std::size_t m = 0; m < lib->modules.size(); ++m) {
       const std::string mod(lib->modules[m].id.name);
       for (auto& [other, at] : names)

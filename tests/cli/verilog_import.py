@@ -125,6 +125,10 @@ def case_errors(settle, tmp):
                                    "  buf #(40:50:60) drv (lamp, on)\n  wire w;\nendmodule\n")
     d = write_file(tmp, "badv.settle", 'import "bad.v"\n' + top)
     expect_error(settle, d, f"{bad}:4:3", "expected ';'", "syntax error in the Verilog file")
+    # ... followed by a note pointing back at the import statement (the way compilers point
+    # back at an include, common practice)
+    rc, _, err = run_settle(settle, "check", d)
+    check(f"{d}:1:8: note: 'bad.v' is imported here" in err, f"import note: {err!r}")
     two = write_file(tmp, "two.v", "`timescale 1ps / 1ps\nmodule lamp_drive (input on, output lamp);\n"
                                    "  buf #1 d1 (lamp, on);\n  not #1 d2 (lamp, on);\nendmodule\n")
     d = write_file(tmp, "two.settle", 'import "two.v"\n' + top)
