@@ -97,7 +97,7 @@ struct block_head {
 
 struct binding {
   name port;
-  name target;  ///< a net name, or "0"/"1"
+  std::vector<name> targets;  ///< a net name or "0"/"1"; a list {a, b} for a vector port
 };
 struct inst_stmt {
   name id;

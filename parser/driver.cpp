@@ -241,9 +241,13 @@ struct visitor {
   void operator()(const ast::inst_stmt& i) {
     if (!design_only("'inst' is")) return;
     inst out{lower_ref(i.id, rep), lower_ref(i.block, rep), {}};
-    for (auto& b : i.binds)
-      if (unquoted(b.target))
-        out.binds.push_back({lower_ref(b.port, rep), lower_ref(b.target, rep)});
+    for (auto& b : i.binds) {
+      const auto parts = static_cast<std::uint32_t>(b.targets.size());
+      for (std::uint32_t k = 0; k < parts; ++k)
+        if (unquoted(b.targets[k]))
+          out.binds.push_back(
+              {lower_ref(b.port, rep), lower_ref(b.targets[k], rep), k, parts > 1 ? parts : 0});
+    }
     scope->insts.push_back(std::move(out));
   }
   void operator()(const ast::init_stmt& i) {

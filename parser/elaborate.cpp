@@ -417,6 +417,49 @@ class elaborator {
     return delay;
   }
 
+  /// binds_: the bindings of `in`, a list `d: {a, b}` replaced by one binding
+  /// per bit of the vector port d (its ports d[i], MSB first as declared);
+  /// false after reporting a list that does not fit.
+  bool bits_of_lists(const scope_def& b, const inst& in) {
+    binds_.clear();
+    bool ok = true;
+    for (std::size_t i = 0; i < in.binds.size(); ++i) {
+      const auto& bind = in.binds[i];
+      std::vector<const ref*> bits;
+      for (auto* list : {&b.ins, &b.outs})
+        for (auto& r : *list)
+          if (r.name.size() > bind.port.name.size() + 2 && r.name.starts_with(bind.port.name) &&
+              r.name[bind.port.name.size()] == '[' && r.name.back() == ']')
+            bits.push_back(&r);
+      const bool scalar = std::any_of(b.ins.begin(), b.ins.end(),
+                                      [&](const ref& r) { return r.name == bind.port.name; }) ||
+                          std::any_of(b.outs.begin(), b.outs.end(),
+                                      [&](const ref& r) { return r.name == bind.port.name; });
+      if (bind.parts == 0 && (scalar || bits.empty())) {
+        binds_.push_back(bind);
+        continue;
+      }
+      const std::uint32_t parts = bind.parts ? bind.parts : 1;
+      if (bind.part == 0 && (scalar || bits.size() != parts)) {
+        cur_->error(bind.port.loc,
+                    scalar
+                        ? fmt::format("port '{}' of block '{}' is one net; bind it to one net, "
+                                      "not a list",
+                                      bind.port.name, b.id.name)
+                        : fmt::format("port '{}' of block '{}' is {} bits wide: bind it to a "
+                                      "list {{...}} of {} nets, most significant first{}",
+                                      bind.port.name, b.id.name, bits.size(), bits.size(),
+                                      bind.parts ? fmt::format(" (this list has {})", parts) : ""));
+        ok = false;
+      }
+      if (scalar || bits.size() != parts) continue;
+      binding bit = bind;
+      bit.port.name = bits[bind.part]->name;
+      binds_.push_back(bit);
+    }
+    return ok;
+  }
+
   void place_instance(netlist& nl, const frame& fr, const scope_names& names, const inst& in,
                       std::vector<frame>& work) {
     if (recursive_.count(&in)) return;
@@ -428,8 +471,9 @@ class elaborator {
     const scope_def& b = f_.blocks[it->second];
     used_[it->second] = true;
     frame child{&b, 0, cat(fr.prefix, in.id.name, "."), {}, fr.dry};
+    if (!bits_of_lists(b, in)) return;
     bool ok = true;
-    for (auto& bind : in.binds) {
+    for (auto& bind : binds_) {
       bool is_in = false, is_out = false;
       for (auto& r : b.ins) is_in = is_in || r.name == bind.port.name;
       for (auto& r : b.outs) is_out = is_out || r.name == bind.port.name;
@@ -461,7 +505,7 @@ class elaborator {
     }
     for (auto& r : b.ins) {
       bool found = false;
-      for (auto& bind : in.binds) found = found || bind.port.name == r.name;
+      for (auto& bind : binds_) found = found || bind.port.name == r.name;
       if (!found) {
         cur_->error(in.id.loc,
                     fmt::format("input port '{}' of block '{}' is not bound", r.name, b.id.name));
@@ -563,6 +607,7 @@ class elaborator {
   std::vector<reporter*> decl_rep_;    // per net, when declared in another file (else empty)
   std::vector<reporter*> gate_rep_;    // per gate, likewise
   std::vector<net_id> fanin_;          // the gate being placed
+  std::vector<binding> binds_;         // the bindings of the instance being placed, bit by bit
   std::vector<gate_delay> gate_arcs_;  // its arcs, one per fan-in
   std::vector<std::pair<gate_id, std::size_t>> pending_arcs_;  // gate, first of its arc_delays_
   std::vector<gate_delay> arc_delays_;

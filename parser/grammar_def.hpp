@@ -202,7 +202,7 @@ auto const decl_def = x3::raw[kw("input") | kw("output") | kw("wire") | kw("watc
 auto const default__def = kw("default") > kw("delay") > delay_body >> x3::matches[kw("transport")];
 auto const port_group_def = x3::raw[kw("in") | kw("out")] > name_list;
 auto const block_head_def = kw("block") > name_ > '(' > -port_groups > ')' > '{';
-auto const binding_def = name_ > ':' > target_;
+auto const binding_def = name_ > ':' > (('{' > (target_ % ',') > '}') | x3::repeat(1)[target_]);
 auto const inst_def = kw("inst") > name_ > name_ > '(' > -bindings > ')';
 auto const value__def = x3::lexeme[x3::char_("01xX") >> word_end];
 auto const assign_def = ref_ >> '=' > value_;

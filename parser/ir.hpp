@@ -44,6 +44,9 @@ struct gate {
 
 struct binding {
   ref port, target;
+  /// Bit `part` of a list `port: {a, b, ...}` of `parts` nets (MSB first) for
+  /// a vector port, whose bits are ports `port[i]`; parts is 0 for one net.
+  std::uint32_t part = 0, parts = 0;
 };
 struct inst {
   ref id, block;

@@ -143,6 +143,31 @@ def case_errors(settle, tmp):
     expect_error(settle, v, f"{bad}:4:3", "expected ';'", "error in an included file")
 
 
+def case_vector_ports(settle, tmp):
+    """(e) A vector port of an imported module binds to a list of nets, most significant bit
+    first, as a Verilog concatenation does (IEEE 1364-2005 5.1.14 and 12.3.9); a list of the
+    wrong width, or one net for a vector port, is refused at the binding."""
+    write_file(tmp, "sel.v", "`timescale 1ps / 1ps\nmodule lamp_sel (input [1:0] d, output [1:0] y);\n"
+                             "  wire nd;\n  not #1 i0 (nd, d[0]);\n  and #1 a0 (y[1], d[1], nd);\n"
+                             "  buf #1 b0 (y[0], d[0]);\nendmodule\n")
+    top = 'import "sel.v"\ninput hi, lo\noutput q1, q0\n'
+    d = write_file(tmp, "vec.settle", top + "inst u lamp_sel(d: {hi, lo}, y: {q1, q0})\n")
+    rc, out, err = run_settle(settle, "check", d, "--emit", "-")
+    check(rc == 0, f"vector ports: exit {rc}: {err[-300:]}")
+    # d[1] is hi and d[0] is lo; y[1] is q1 and y[0] is q0
+    for want in ('"u.nd" = not(lo)', 'q1 = and(hi, "u.nd")', "q0 = buf(lo)"):
+        check(want in out, f"vector ports: want '{want}' in {out}")
+    d = write_file(tmp, "vec3.settle", top + "inst u lamp_sel(d: {hi, lo, 0}, y: {q1, q0})\n")
+    expect_error(settle, d, f"{d}:4:17", "port 'd' of block 'lamp_sel' is 2 bits wide: bind it to "
+                 "a list {...} of 2 nets, most significant first (this list has 3)", "list of 3")
+    d = write_file(tmp, "vec1.settle", top + "inst u lamp_sel(d: hi, y: {q1, q0})\n")
+    expect_error(settle, d, f"{d}:4:17", "port 'd' of block 'lamp_sel' is 2 bits wide", "one net")
+    d = write_file(tmp, "scalar.settle", "block b(in a; out y) {\n    y = buf(a) delay 1ps\n}\n"
+                                         "input a, c\noutput y\ninst u b(a: {a, c}, y: y)\n")
+    expect_error(settle, d, f"{d}:6:10", "port 'a' of block 'b' is one net; bind it to one net, "
+                 "not a list", "list for a scalar port")
+
+
 def case_include_same(settle, tmp):
     """(d) `include of a cell file reads the same netlist as the concatenated file."""
     inc, flat = need("panel_switch.v", "panel_switch_flat.v")
@@ -161,4 +186,4 @@ def case_include_same(settle, tmp):
 
 
 if __name__ == "__main__":
-    sys.exit(run_cases([case_latch_same, case_hier_init, case_errors, case_include_same], "settle-import-"))
+    sys.exit(run_cases([case_latch_same, case_hier_init, case_errors, case_include_same, case_vector_ports], "settle-import-"))
