@@ -126,6 +126,7 @@ class file_set {
   const source& operator[](std::uint32_t i) const { return files_[i]; }
   ir::reporter& reporter(std::uint32_t i) { return *files_[i].rep; }
   void error(const vloc& at, const std::string& msg) { files_[at.file].rep->error(at, msg); }
+  void warning(const vloc& at, const std::string& msg) { files_[at.file].rep->warning(at, msg); }
   std::size_t errors() const {
     std::size_t n = 0;
     for (auto& f : files_) n += f.rep->errors();
@@ -1495,11 +1496,63 @@ class reader {
     s.gates.push_back(g);
   }
 
-  /// Each module path times the arc, from the path's source, of the one gate
-  /// that drives its destination and reads its source.
+  /// The gates of one module by the nets they read, for the paths of its specify blocks.
+  class gate_graph {
+   public:
+    explicit gate_graph(const ir::scope_def& s) : s_(s) {
+      for (std::size_t h = 0; h < s.gates.size(); ++h) {
+        driver_.emplace(s.gates[h].out.name, h);
+        for (auto k = s.gates[h].reads_begin; k < s.gates[h].reads_end; ++k)
+          readers_[s.read_pool[k].name].push_back(h);
+      }
+    }
+    /// Every path of gates from net `in` to gate g: g's reads of `in` or of a
+    /// net between (at), and the reads of such nets by the gates between.
+    void cone(std::string_view in, std::size_t g,
+              std::vector<std::pair<std::size_t, std::string_view>>& at,
+              std::vector<std::pair<std::size_t, std::string_view>>& between) const {
+      std::unordered_set<std::string_view> ahead{in};
+      std::vector<std::string_view> work{in};
+      while (!work.empty()) {
+        const auto k = work.back();
+        work.pop_back();
+        auto it = readers_.find(k);
+        if (it == readers_.end()) continue;
+        for (auto h : it->second)
+          if (h != g && ahead.insert(s_.gates[h].out.name).second)
+            work.push_back(s_.gates[h].out.name);
+      }
+      std::unordered_set<std::size_t> behind{g};
+      std::vector<std::size_t> gates{g};
+      while (!gates.empty()) {
+        const auto h = gates.back();
+        gates.pop_back();
+        for (auto k = s_.gates[h].reads_begin; k < s_.gates[h].reads_end; ++k) {
+          const auto net = s_.read_pool[k].name;
+          if (!ahead.count(net)) continue;
+          auto& list = h == g ? at : between;
+          if (std::find(list.begin(), list.end(), std::pair{h, net}) == list.end())
+            list.emplace_back(h, net);
+          auto d = driver_.find(net);
+          if (d != driver_.end() && behind.insert(d->second).second) gates.push_back(d->second);
+        }
+      }
+    }
+
+   private:
+    const ir::scope_def& s_;
+    std::unordered_map<std::string_view, std::vector<std::size_t>> readers_;
+    std::unordered_map<std::string_view, std::size_t> driver_;
+  };
+
+  /// Each module path times the arcs of the gate that drives its destination,
+  /// from its source or the nets between (whose gates take zero delay).
   void lower_paths(const vmodule& m, ir::scope_def& s) {
     if (m.paths.empty()) return;
-    std::vector<std::vector<ir::arc>> per_gate(s.gates.size());
+    // per gate: its arcs, and the path source each output-gate arc came from
+    std::vector<std::vector<std::pair<ir::arc, std::string_view>>> per_gate(s.gates.size());
+    const gate_graph paths(s);
+    std::optional<vloc> met;
     auto is_dir = [&](std::string_view bit, const std::string& dir) {
       for (auto& sig : m.sigs) {
         if (sig.dir != dir) continue;
@@ -1547,23 +1600,47 @@ class reader {
                                    from[i], to[j], m.name, to[j]));
             continue;
           }
-          bool reads = false;
-          for (auto k = s.gates[g].reads_begin; k < s.gates[g].reads_end; ++k)
-            reads = reads || s.read_pool[k].name == from[i];
-          if (!reads) {
+          std::vector<std::pair<std::size_t, std::string_view>> at, between;
+          paths.cone(from[i], g, at, between);
+          if (at.empty()) {
             rep_.error(p.loc,
-                       fmt::format("module path {} to {}: the gate driving '{}' does not read "
-                                   "'{}' (a path times one gate, from an input it reads to its "
-                                   "output)",
-                                   from[i], to[j], to[j], from[i]));
+                       fmt::format("module path {} to {}: '{}' reaches the gate driving '{}' "
+                                   "through no gate of module '{}'",
+                                   from[i], to[j], from[i], to[j], m.name));
             continue;
           }
-          per_gate[g].push_back(ir::arc{ref_of(from[i], p.loc), d});
+          // The path's delay is the output gate's, on its arcs from the nets
+          // the path runs through; the gates between take none.
+          for (auto [h, net] : between) {
+            auto& arcs = per_gate[h];
+            if (std::none_of(arcs.begin(), arcs.end(),
+                             [&](auto& a) { return a.first.from.name == net; }))
+              arcs.push_back({ir::arc{ref_of(net, p.loc), gate_delay{}}, {}});
+          }
+          for (auto [h, net] : at) {
+            auto& arcs = per_gate[h];
+            auto it = std::find_if(arcs.begin(), arcs.end(),
+                                   [&](auto& a) { return a.first.from.name == net; });
+            if (it == arcs.end() || it->second == from[i]) {
+              // a path written twice is an error of the elaboration (two arcs from one net)
+              arcs.push_back({ir::arc{ref_of(net, p.loc), d}, from[i]});
+              continue;
+            }
+            auto& w = it->first.delay;
+            for (auto [x, y] : {std::pair{&w.rise, &d.rise}, std::pair{&w.fall, &d.fall}})
+              *x = {std::min(x->min, y->min), std::max(x->typ, y->typ), std::max(x->max, y->max)};
+            if (!met) met = p.loc;
+          }
         }
     }
+    if (met)
+      rep_.warning(*met, fmt::format("module paths of module '{}' meet before the gate driving "
+                                     "their output; the arc they share takes the widest range "
+                                     "of them",
+                                     m.name));
     for (std::size_t g = 0; g < s.gates.size(); ++g) {
       s.gates[g].arcs_begin = static_cast<std::uint32_t>(s.arc_pool.size());
-      s.arc_pool.insert(s.arc_pool.end(), per_gate[g].begin(), per_gate[g].end());
+      for (auto& a : per_gate[g]) s.arc_pool.push_back(a.first);
       s.gates[g].arcs_end = static_cast<std::uint32_t>(s.arc_pool.size());
     }
   }

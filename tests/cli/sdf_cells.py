@@ -75,4 +75,25 @@ if rc == 0:
         got = period(emitted, corner)
         check(got == want, f"emitted aoi ring {corner}: period {got} fs, want {want} fs")
 
+# The same cell timed by a specify block (IEEE 1364-2005 14.2, simple module paths) in place
+# of the SDF file: the same rule, so the same cell delays (the inverters keep their #(0.040)).
+specify = ("  specify\n"
+           "    (a => y) = (0.030:0.040:0.050, 0.020:0.030:0.040);\n"
+           "    (b => y) = (0.025:0.045:0.048, 0.022:0.028:0.044);\n"
+           "    (c => y) = (0.010:0.015:0.020, 0.012:0.016:0.022);\n"
+           "  endspecify\n")
+text = open(ring).read()
+body_end = text.index("endmodule")  # the first module is the cell
+timed = os.path.join(tmp, "aoi_ring_specify.v")
+with open(timed, "w") as f:
+    f.write(text[:body_end] + specify + text[body_end:])
+rc, out, err = run_settle(settle, "check", timed)
+check(rc == 0 and re.search(r"aoi_ring_specify\.v:\d+:\d+: warning: module paths of module "
+                            r"'mon_aoi21' meet before the gate driving their output", err)
+      is not None, f"specify check: exit {rc}: {err[-400:]}")
+for corner, (r, f) in cell.items():
+    want = (r + f + 2 * (40 + 40)) * 1000
+    got = period(timed, corner)
+    check(got == want, f"specify aoi ring {corner}: period {got} fs, want {want} fs")
+
 sys.exit(summary())

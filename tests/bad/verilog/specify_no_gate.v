@@ -1,4 +1,4 @@
-// expect: 9:5: the gate driving 'y' does not read 'b'
+// expect: 9:5: 'b' reaches the gate driving 'y' through no gate of module 'pair'
 `timescale 1ps/1ps
 module pair(input a, input b, output y, output z);
   wire w;
