@@ -69,8 +69,10 @@ struct arc {
 /// range = both edges, two = rise then fall.
 struct gate_stmt {
   name out;
+  std::vector<name> more_outs;  ///< `ga, gb = mutex(...)`: the outputs after the first
   rhs value;
   boost::optional<std::vector<range>> delay;
+  boost::optional<range> tau, window;  ///< metastable elements: `tau RANGE window RANGE`
   std::vector<arc> arcs;
   bool transport = false;
 };

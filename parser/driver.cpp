@@ -186,6 +186,10 @@ struct visitor {
 
   void operator()(const ast::gate_stmt& g) {
     if (!design_only("gates are")) return;
+    if (is_element(g)) {
+      lower_element(g, *scope, rep);
+      return;
+    }
     gate out;
     if (lower_gate(g, out, *scope, rep)) scope->gates.push_back(std::move(out));
   }
@@ -467,7 +471,12 @@ bool looks_like_gate(std::string_view piece) {
     while (i < n && lexical::ident_char(piece[i])) ++i;
   }
   while (i < n && blank(piece[i])) ++i;
-  return i < n && piece[i] == '=';
+  if (i == n || piece[i] != '=') return false;
+  // A metastable element goes through the visitor, which lowers its gates together.
+  for (++i; i < n && blank(piece[i]);) ++i;
+  const auto kind = piece.substr(i, piece.find('(', i) - i);
+  return kind.substr(0, kind.find_last_not_of(" \t") + 1) != "mutex" &&
+         kind.substr(0, kind.find_last_not_of(" \t") + 1) != "syncff";
 }
 
 /// Calls `each(piece)` for every statement of `text`, in order: each line up

@@ -313,7 +313,21 @@ class elaborator {
     const gate_delay delay = with_arcs ? arcs_of(nl, names, g, d, pools) : delay_of(g, d);
     program_.assign(pools.code_pool.begin() + g.code_begin, pools.code_pool.begin() + g.code_end);
     if (!ok) return;
-    nl.add_gate(g.kind, out, fanin_, program_, delay, g.out.loc);
+    const gate_id placed = nl.add_gate(g.kind, out, fanin_, program_, delay, g.out.loc);
+    switch (g.meta) {
+      case gate::meta_role::none:
+        break;
+      case gate::meta_role::first_grant:
+        first_grant_ = placed;  // its partner is placed next
+        break;
+      case gate::meta_role::second_grant:
+        if (first_grant_ != no_id) nl.add_meta({{first_grant_, placed}, g.tau, g.window});
+        first_grant_ = no_id;
+        break;
+      case gate::meta_role::syncff:
+        nl.add_meta({{placed, no_id}, g.tau, g.window});
+        break;
+    }
     if (with_arcs) {
       pending_arcs_.emplace_back(static_cast<gate_id>(nl.gate_count() - 1), arc_delays_.size());
       arc_delays_.insert(arc_delays_.end(), gate_arcs_.begin(), gate_arcs_.end());
@@ -608,6 +622,7 @@ class elaborator {
   std::vector<reporter*> gate_rep_;    // per gate, likewise
   std::vector<net_id> fanin_;          // the gate being placed
   std::vector<binding> binds_;         // the bindings of the instance being placed, bit by bit
+  gate_id first_grant_ = no_id;        // a mutex's first grant, until its second is placed
   std::vector<gate_delay> gate_arcs_;  // its arcs, one per fan-in
   std::vector<std::pair<gate_id, std::size_t>> pending_arcs_;  // gate, first of its arc_delays_
   std::vector<gate_delay> arc_delays_;

@@ -194,8 +194,9 @@ auto const rhs_def = call | or_expr;
 // `from NET DELAY, ...`: one delay per fan-in named (pin-to-pin arcs).
 auto const arc_def = kw("from") > net_ > delay_body;
 auto const arcs_def = -(arc >> *(',' > arc));
-auto const gate_def = net_ >> '=' > rhs >> -((kw("delay") > delay_body) | rise_fall) >> arcs
-                      >> x3::matches[kw("transport")];
+auto const gate_def = net_ >> *(',' > net_) >> '=' > rhs >>
+                      -((kw("delay") > delay_body) | rise_fall) >> -(kw("tau") > range_) >>
+                      -(kw("window") > range_) >> arcs >> x3::matches[kw("transport")];
 
 // ---- declarations and structure
 auto const decl_def = x3::raw[kw("input") | kw("output") | kw("wire") | kw("watch")] > ref_list;

@@ -40,6 +40,11 @@ struct gate {
   std::uint32_t arcs_begin = 0, arcs_end = 0;  ///< its arcs, a range of the scope's arc pool
   bool has_delay = false;
   gate_delay delay;
+  /// A metastable element (netlist::meta): the first or second grant of a
+  /// mutex (the two stand next to each other) or a syncff, with its tau and window.
+  enum class meta_role : std::uint8_t { none, first_grant, second_grant, syncff } meta =
+      meta_role::none;
+  delay_range tau, window;
 };
 
 struct binding {

@@ -227,6 +227,18 @@ bool lower_delay(const std::vector<ast::range>& ranges, bool transport, gate_del
 }
 
 bool lower_gate(const ast::gate_stmt& g, gate& out, scope_def& pools, reporter& rep) {
+  const auto* c = boost::get<ast::call>(&g.value);
+  const bool meta = c && (c->kind.text == "mutex" || c->kind.text == "syncff");
+  if (!meta && !g.more_outs.empty()) {
+    rep.error(rep.loc_of(g.more_outs.front().pos),
+              "only a mutex has two outputs (ga, gb = mutex(ra, rb) ...)");
+    return false;
+  }
+  if (!meta && (g.tau || g.window)) {
+    rep.error(rep.loc_of((g.tau ? *g.tau : *g.window).a.pos),
+              "'tau' and 'window' belong to the metastable elements mutex and syncff");
+    return false;
+  }
   out.out = lower_ref(g.out, rep);
   out.reads_begin = static_cast<std::uint32_t>(pools.read_pool.size());
   out.code_begin = static_cast<std::uint32_t>(pools.code_pool.size());
@@ -259,6 +271,84 @@ bool lower_gate(const ast::gate_stmt& g, gate& out, scope_def& pools, reporter& 
     pools.arc_pool.resize(out.arcs_begin);
   }
   return ok;
+}
+
+bool is_element(const ast::gate_stmt& g) {
+  const auto* c = boost::get<ast::call>(&g.value);
+  return c && (c->kind.text == "mutex" || c->kind.text == "syncff");
+}
+
+bool lower_element(const ast::gate_stmt& g, scope_def& scope, reporter& rep) {
+  const auto& c = boost::get<ast::call>(g.value);
+  const bool mutex = c.kind.text == "mutex";
+  const auto at = rep.loc_of(c.kind.pos);
+  const char* form = mutex ? "ga, gb = mutex(ra, rb) delay D tau T window W"
+                           : "q = syncff(d, ck) delay D tau T window W";
+  const std::size_t outs = 1 + g.more_outs.size();
+  if (outs != (mutex ? 2u : 1u)) {
+    rep.error(rep.loc_of(g.out.pos),
+              fmt::format("'{}' has {} output{}, found {}: {}", c.kind.text, mutex ? 2 : 1,
+                          mutex ? "s" : "", outs, form));
+    return false;
+  }
+  std::vector<ref> args;
+  for (auto& a : c.args) {
+    ref r;
+    if (!simple_arg(a, r, rep)) {
+      const char* p = a.label ? a.label->pos : first_pos(a.value);
+      rep.error(p ? rep.loc_of(p) : at,
+                fmt::format("arguments of '{}' must be nets or the constants 0 and 1", c.kind.text));
+      return false;
+    }
+    args.push_back(r);
+  }
+  if (args.size() != 2) {
+    rep.error(at, fmt::format("'{}' takes exactly 2 inputs ({}), found {}", c.kind.text,
+                              mutex ? "ra, rb" : "d, ck", args.size()));
+    return false;
+  }
+  if (!g.tau || !g.window) {
+    rep.error(at, fmt::format("'{}' needs its resolution time constant and window: {}",
+                              c.kind.text, form));
+    return false;
+  }
+  if (!g.arcs.empty() || g.transport) {
+    rep.error(at, fmt::format("'{}' takes one delay, neither arcs ('from') nor 'transport'",
+                              c.kind.text));
+    return false;
+  }
+  gate proto;
+  if (g.delay) {
+    proto.has_delay = true;
+    if (!lower_delay(*g.delay, false, proto.delay, rep)) return false;
+  }
+  if (!lower_range(*g.tau, proto.tau, rep) || !lower_range(*g.window, proto.window, rep))
+    return false;
+  if (proto.window.min == 0) {
+    rep.error(rep.loc_of(g.window->a.pos), "a window must be longer than 0fs");
+    return false;
+  }
+  auto add = [&](const ast::name& out, std::vector<ref> reads, gate::meta_role role) {
+    gate x = proto;
+    x.out = lower_ref(out, rep);
+    x.kind = mutex ? gate_kind::mutex : gate_kind::syncff;
+    x.meta = role;
+    x.reads_begin = static_cast<std::uint32_t>(scope.read_pool.size());
+    scope.read_pool.insert(scope.read_pool.end(), reads.begin(), reads.end());
+    x.reads_end = static_cast<std::uint32_t>(scope.read_pool.size());
+    x.code_begin = x.code_end = static_cast<std::uint32_t>(scope.code_pool.size());
+    x.arcs_begin = x.arcs_end = static_cast<std::uint32_t>(scope.arc_pool.size());
+    scope.gates.push_back(x);
+  };
+  if (!mutex) {
+    add(g.out, args, gate::meta_role::syncff);
+    return true;
+  }
+  // Each grant reads its own request, the other request and the other grant.
+  const ref ga = lower_ref(g.out, rep), gb = lower_ref(g.more_outs[0], rep);
+  add(g.out, {args[0], args[1], gb}, gate::meta_role::first_grant);
+  add(g.more_outs[0], {args[1], args[0], ga}, gate::meta_role::second_grant);
+  return true;
 }
 
 }  // namespace settle::ir

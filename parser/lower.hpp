@@ -15,6 +15,13 @@ inline constexpr int max_expr_depth = 256;
 /// Lowers one gate statement, appending its reads and program to the scope's
 /// pools; false (after reporting, pools restored) when it is malformed.
 bool lower_gate(const ast::gate_stmt& g, gate& out, scope_def& pools, reporter& rep);
+/// True for a gate statement of a metastable element (mutex, syncff), which
+/// lower_element lowers instead of lower_gate.
+bool is_element(const ast::gate_stmt& g);
+/// Lowers `ga, gb = mutex(ra, rb) ...` into its two grant gates and
+/// `q = syncff(d, ck) ...` into one gate, appended to the scope; false
+/// (after reporting) when it is malformed.
+bool lower_element(const ast::gate_stmt& g, scope_def& scope, reporter& rep);
 /// Converts a delay written as one range (both edges) or two (rise, fall).
 bool lower_delay(const std::vector<ast::range>& ranges, bool transport, gate_delay& out,
                  reporter& rep);

@@ -80,6 +80,21 @@ logic eval_direct(const netlist& n, gate_id g, Value&& input, logic present) {
       const logic ck = input(1);
       return ck == logic::zero ? present : lub(present, input(0));
     }
+    case gate_kind::mutex: {
+      // Untimed, a grant can only be bounded: it falls without its request or
+      // while the other grant is high, rises for a request alone, and while
+      // both requests stand it is decided (held) or undecided (x). The timed
+      // kernel resolves it (simulator::evaluate_meta).
+      const logic own = input(0), other = input(1), other_grant = input(2);
+      if (own == logic::zero || other_grant == logic::one) return logic::zero;
+      if (own == logic::x || other_grant == logic::x) return logic::x;
+      if (other == logic::zero) return logic::one;
+      return present == logic::one ? present : logic::x;
+    }
+    case gate_kind::syncff: {
+      const logic ck = input(1);  // as a flip-flop primitive, without the clock's history
+      return ck == logic::zero ? present : lub(present, input(0));
+    }
     case gate_kind::gc:
     case gate_kind::expr: {
       std::array<logic, max_stack> stack;

@@ -33,6 +33,23 @@ class change_sink {
   virtual void on_finish(time_fs end) = 0;
 };
 
+/// How a metastable element resolved one event (netlist::meta): a mutex's
+/// grant, or what a synchronizing flip-flop took at a clock edge.
+struct resolution {
+  gate_id gate = 0;   ///< the grant, or the flip-flop's output
+  time_fs first = 0;  ///< mutex: its request (or the release letting it through); syncff: the edge
+  time_fs at = 0;     ///< when the output resolved: first + D, plus tau x ln(window / gap) inside it
+  /// mutex: how long after `first` the other request came (Δ, >= 0); syncff:
+  /// how long before the edge D last changed (δ, < 0 after it). Meaningful
+  /// when `near`: within reach of the element (a competing request, or a D
+  /// change inside the window or at the edge).
+  std::int64_t gap = 0;
+  bool near = false;
+  bool drawn = false;  ///< a tie (gap 0): the winner and gap came from the corner's stream
+  logic value = logic::x;  ///< the grant (1) or the value captured
+  time_fs time() const { return at - first; }
+};
+
 enum class step_status : std::uint8_t {
   settled,      ///< no pending event
   oscillating,  ///< a repeated full state proved periodic behaviour

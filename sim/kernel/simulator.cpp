@@ -57,6 +57,7 @@ simulator::simulator(const netlist& n)
       if (gate_[g].op < lut_rows) gate_[g].op = gate_rec::general;
     }
   arcs_ = !n.arcs.empty();
+  meta_ = !n.meta.empty();
   set_watchers();
   for (gate_id g = 0; g < gates && arcs_; ++g)  // off the table paths, whose delay is the gate's
     if (n.has_arcs(g) && gate_[g].op < lut_rows) gate_[g].op = gate_rec::general;
@@ -125,7 +126,8 @@ void simulator::build_fast_paths() {
     ins_[g].in0 = fan > 0 ? n_.fanin[n_.fanin_begin[g]] : 0;
     ins_[g].in1 = fan > 1 ? n_.fanin[n_.fanin_begin[g] + 1] : ins_[g].in0;
     const bool simple = k != gate_kind::mux && k != gate_kind::maj && k != gate_kind::gc &&
-                        k != gate_kind::expr && k != gate_kind::dff && !n_.enumerate[g];
+                        k != gate_kind::expr && k != gate_kind::dff && !is_metastable(k) &&
+                        !n_.enumerate[g];
     f.op = gate_rec::general;
     if (k == gate_kind::dff) {
       f.op = gate_rec::edge;
@@ -196,11 +198,22 @@ void simulator::reset(const delay_table& delays) {
     }
     if (arcs_ && n_.has_arcs(g)) gate_[g].shorter |= arc_bit;  // delay_of asks arc_delay_of
   }
+  if (arcs_ || meta_) changed_at_.assign(n_.net_count(), std::numeric_limits<time_fs>::max());
   if (arcs_) {
     SETTLE_CHECK(delays.arc_rise.size() == n_.arcs.size(), "the delay table has every arc's delay");
-    changed_at_.assign(n_.net_count(), std::numeric_limits<time_fs>::max());
     arc_rise_ = delays.arc_rise;
     arc_fall_ = delays.arc_fall;
+  }
+  if (meta_) {
+    SETTLE_CHECK(delays.tau.size() == n_.meta.size() && delays.window.size() == n_.meta.size(),
+                 "the delay table has every metastable element's tau and window");
+    meta_gate_.assign(n_.gate_count(), meta_gate{});
+    for (gate_id g = 0; g < n_.gate_count(); ++g)
+      if (n_.kind[g] == gate_kind::syncff) meta_gate_[g].d_seen = val_[ins_[g].in0];
+    meta_tau_ = delays.tau;
+    meta_window_ = delays.window;
+    run_key_ = delays.run_key;
+    resolutions_.clear();
   }
   std::fill(toggles_.begin(), toggles_.end(), 0);
   for (auto& q : tq_) q.clear();
@@ -297,7 +310,7 @@ SETTLE_HOT void simulator::change_value(net_id net, logic v, time_fs t) {
   // One test for the three things a change may have to tell (set_watchers).
   if (!Plain && watched_) [[unlikely]] {
     if (tracking_) hash_ ^= value_key(net, val_[net]) ^ value_key(net, v);
-    if (arcs_) changed_at_[net] = t;
+    if (arcs_ || meta_) changed_at_[net] = t;
     if (sink_) {
       trace_.push_back({t, net, v});
       if (trace_.size() >= trace_batch) flush_trace();
@@ -417,6 +430,8 @@ SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
       return;
     }
   }
+  if (!Plain && meta_) [[unlikely]]
+    if (is_metastable(n_.kind[g])) return evaluate_meta(g, t);
   const logic present = r.vout;
   const logic v = eval_fast(g, present);
   if (!r.transport) {
@@ -435,6 +450,31 @@ SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
   if (v != projected) schedule<false>(g, v, t + delay_of<false>(g, projected, v));
 }
 
+time_fs simulator::edge_delay(gate_id g, logic from, logic to) const {
+  return delay_of<false>(g, from, to);
+}
+
+// A metastable element's gate (netlist::meta): the decision gives the value
+// and the absolute time it is due (sim/kernel/metastable.cpp). Inertial, one
+// pending change: the same value pending stays at its time unless the
+// decision puts it later (a competitor found inside the window).
+void simulator::evaluate_meta(gate_id g, time_fs t) {
+  gate_rec& r = gate_[g];
+  time_fs due = t;
+  resolution why;
+  const logic v = n_.kind[g] == gate_kind::mutex ? decide_mutex(g, t, due, why)
+                                                 : decide_syncff(g, t, due);
+  auto& m = meta_gate_[g];
+  if (v == r.pend && due <= m.due) return;
+  if (v == r.vout) {
+    if (r.pend != none) r.pend = none, ++r.gen, --live_;
+    return;
+  }
+  m.due = std::max(due, t);
+  if (n_.kind[g] == gate_kind::mutex) m.why = why;
+  schedule<false>(g, v, m.due);
+}
+
 // The gate events of one instant, taken from the queue: each live one
 // changes its output and marks the gates it feeds. Nothing is pushed while
 // the front is walked (apply only marks gates), so the span stays valid;
@@ -449,6 +489,11 @@ SETTLE_HOT void simulator::apply_front(std::span<const queued_event> front, time
       const logic v = r.pend;
       r.pend = none;
       --live_;
+      if (meta_ && v == logic::one && n_.kind[g] == gate_kind::mutex && r.vout != v) [[unlikely]] {
+        resolution why = meta_gate_[g].why;
+        why.at = t;
+        resolutions_.push_back(why);
+      }
       apply_output(g, r, v, t);
     } else {
       auto& q = tq_[slot_[g]];
@@ -522,7 +567,7 @@ std::uint64_t simulator::run_quiet(time_fs last, std::uint64_t max_instants,
   }
   // Without trace or hash, and with every delay within the queue's reach,
   // the loop skips their tests and the queue's checks on each push.
-  if (!sink_ && !tracking_ && within_reach_ && !wide_ && !arcs_)
+  if (!sink_ && !tracking_ && within_reach_ && !wide_ && !arcs_ && !meta_)
     return run_loop<true>(last, n, instant_cap, event_cap);
   return run_loop<false>(last, n, instant_cap, event_cap);
 }

@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <array>
 #include <cstdint>
+#include <limits>
 #include <memory>
 #include <span>
 #include <utility>
@@ -78,6 +79,10 @@ class simulator {
 
   /// Sends buffered changes to the sink and tells it the run ended at `end`.
   void finish(time_fs end);
+
+  /// The resolutions of metastable elements since reset(), in the order they
+  /// were decided (a mutex's when its grant rose).
+  const std::vector<resolution>& resolutions() const { return resolutions_; }
 
  private:
   static constexpr logic none = static_cast<logic>(3);
@@ -212,8 +217,34 @@ class simulator {
   bool arcs_ = false;
   // Whether a change must be hashed, timed for arcs or traced (change_value).
   bool watched_ = false;
-  void set_watchers() { watched_ = tracking_ || arcs_ || sink_; }
+  void set_watchers() { watched_ = tracking_ || arcs_ || meta_ || sink_; }
   std::vector<time_fs> changed_at_, arc_rise_, arc_fall_;
+  time_fs stamp(net_id net) const {  // the last change of net; 0 when it never changed
+    const time_fs t = changed_at_[net];
+    return t == std::numeric_limits<time_fs>::max() ? 0 : t;
+  }
+
+  // Metastable elements (netlist::meta, the model of meta_element): changes
+  // are timed as for arcs; per gate what evaluate_meta decided last.
+  bool meta_ = false;
+  struct meta_gate {
+    time_fs due = 0;            // the absolute time of the pending change
+    resolution why;             // mutex: how the pending grant was decided
+    time_fs edge = 0;           // syncff: the last rising edge of CK
+    std::uint32_t logged = 0;   // syncff: index in resolutions_ of that edge's entry, + 1
+    logic d_seen = logic::x;    // syncff: D at the last evaluation
+    bool revisable = false;     // syncff: a D change just after the edge may still count
+  };
+  std::vector<meta_gate> meta_gate_;
+  std::vector<time_fs> meta_tau_, meta_window_;
+  std::uint64_t run_key_ = 0;
+  std::vector<resolution> resolutions_;
+  void evaluate_meta(gate_id g, time_fs t);
+  time_fs edge_delay(gate_id g, logic from, logic to) const;  // delay_of, out of line
+  logic decide_mutex(gate_id g, time_fs t, time_fs& due, resolution& why);
+  logic decide_syncff(gate_id g, time_fs t, time_fs& due);
+  time_fs resolve_extra(std::uint32_t element, double half_or_window, double gap) const;
+  bool draw_bit(std::uint32_t element, time_fs t, double& unit) const;
 };
 
 constexpr std::size_t simulator::gate_limit() { return reader(~fan_entry{0}); }

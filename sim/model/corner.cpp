@@ -79,8 +79,10 @@ gate_variables variables_of(const gate_delay& d) {
 }
 
 std::uint32_t gate_variable_count(const netlist& n, gate_id g) {
-  if (!n.has_arcs(g)) return variables_of(n.delay[g]).count();
   std::uint32_t count = 0;
+  if (const auto* m = n.meta_of(g); m && m->gates[0] == g)
+    count += unsigned(!fixed(m->tau)) + unsigned(!fixed(m->window));
+  if (!n.has_arcs(g)) return count + variables_of(n.delay[g]).count();
   for (const auto& a : n.arcs_of(g)) count += variables_of(a).count();
   return count;
 }
@@ -242,7 +244,12 @@ void fill_delays(const netlist& n, const corner& c, delay_table& out) {
   out.gate_vars = 0;
   out.arc_rise.resize(n.arcs.size());
   out.arc_fall.resize(n.arcs.size());
+  out.run_key = mix(key ^ 0x6d657461ull);
+  out.tau.resize(n.meta.size());
+  out.window.resize(n.meta.size());
   if (c.what == corner::kind::fixed) {
+    for (std::size_t e = 0; e < n.meta.size(); ++e)
+      out.tau[e] = n.meta[e].tau.typ, out.window[e] = n.meta[e].window.typ;
     detail::fill_fixed(n, c.fixed ? *c.fixed : fixed_delays{}, out);
     // A fixed: corner names gates: every arc of a gate takes the gate's delays.
     for (gate_id g = 0; g < gates; ++g)
@@ -288,7 +295,28 @@ void fill_delays(const netlist& n, const corner& c, delay_table& out) {
     rise_out = pick(rise, 0);
     fall_out = pick(fall, 1);
   };
+  // A metastable element's tau and window: corner variables of its first
+  // gate, before its delays, each drawn from a stream of its own.
+  auto meta_of = [&](gate_id g) {
+    const auto* m = n.meta_of(g);
+    if (!m || m->gates[0] != g) return;
+    const auto e = n.meta_at[g];
+    auto one = [&](const delay_range& range, std::uint64_t salt, time_fs& v) {
+      const delay_range r = scaled(range, c.spread);
+      if (enumerating) {
+        v = fixed(r) ? r.min : enumerated(c, var++, r);
+        return;
+      }
+      gate_delay d;  // delays_of scales it
+      d.rise = d.fall = range;
+      time_fs unused = 0;
+      delays_of(d, mix(key ^ salt), g, v, unused);
+    };
+    one(m->tau, 0x746175ull, out.tau[e]);
+    one(m->window, 0x77696e64ull, out.window[e]);
+  };
   for (gate_id g = 0; g < gates; ++g) {
+    meta_of(g);
     if (!n.has_arcs(g)) {
       delays_of(n.delay[g], key, g, out.rise[g], out.fall[g]);
       continue;

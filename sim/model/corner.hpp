@@ -30,7 +30,8 @@ gate_variables variables_of(const gate_delay& d);
 /// (variables_of), then each reaction rule whose delay is a range (a fixed
 /// `after` is no variable). What `extremes` and `exhaustive` enumerate.
 std::size_t delay_variables(const design& d);
-/// Gate g's corner variables: its delay's, or with arcs the sum of its arcs'.
+/// Gate g's corner variables: its delay's, or with arcs the sum of its arcs',
+/// and for the first gate of a metastable element its tau and window ranges.
 std::uint32_t gate_variable_count(const netlist& n, gate_id g);
 
 struct fixed_delays;
@@ -125,6 +126,11 @@ struct delay_table {
   /// then has in rise/fall the largest of its arcs' delays, which the kernel
   /// takes where no input change can be named (the first evaluation).
   std::vector<time_fs> arc_rise, arc_fall;
+  /// Per metastable element (netlist::meta): this corner's tau and window.
+  std::vector<time_fs> tau, window;
+  /// The corner's counter-based stream for draws made during the run (the
+  /// winner of a tie): mixed with what is drawn for, it replays exactly.
+  std::uint64_t run_key = 0;
   corner which;
   std::uint64_t gate_vars = 0;          ///< corner variables of the gates
   std::vector<std::uint64_t> rule_var;  ///< per rule; none_var for a fixed delay

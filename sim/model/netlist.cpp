@@ -11,7 +11,8 @@ namespace settle {
 const char* kind_name(gate_kind k) {
   static constexpr const char* names[gate_kind_count] = {"buf", "not", "and",  "nand", "or",
                                                          "nor", "xor", "xnor", "mux",  "maj",
-                                                         "c",   "gc",  "expr", "dff"};
+                                                         "c",   "gc",  "expr", "dff",
+                                                         "mutex", "syncff"};
   return names[static_cast<int>(k)];
 }
 
@@ -40,6 +41,15 @@ std::uint32_t gate_delays::record_for(const gate_delay& d) {
     lookup_.insert(h, r, [&](std::uint32_t i) { return hash(records_[i]); });
   }
   return r;
+}
+
+std::uint32_t netlist::add_meta(const meta_element& e) {
+  const auto at = static_cast<std::uint32_t>(meta.size());
+  meta.push_back(e);
+  meta_at.resize(gate_count(), no_id);
+  for (gate_id g : e.gates)
+    if (g != no_id) meta_at[g] = at;
+  return at;
 }
 
 void netlist::set_arcs(gate_id g, std::span<const gate_delay> a) {

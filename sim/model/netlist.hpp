@@ -23,7 +23,11 @@ using gate_id = std::uint32_t;
 /// `celem` is the Muller C-element; `gc` the generalised C-element whose set
 /// and reset functions are programs; `dff` an edge-triggered flip-flop
 /// primitive (fan-in D, CK: Q takes D at each rising edge of CK), made only by
-/// the .bench importer with `--dff primitive`.
+/// the .bench importer with `--dff primitive`. `mutex` and `syncff` are the
+/// metastable elements (netlist::meta): a mutual-exclusion element is two
+/// mutex gates, each granting its own request (fan-in: own request, the
+/// other request, the other grant); a synchronizing flip-flop is one syncff
+/// gate (fan-in D, CK).
 enum class gate_kind : std::uint8_t {
   buf,
   inv,
@@ -39,21 +43,37 @@ enum class gate_kind : std::uint8_t {
   gc,
   expr,
   dff,
+  mutex,
+  syncff,
 };
-inline constexpr int gate_kind_count = 14;
+inline constexpr int gate_kind_count = 16;
 
 /// The name users write for a kind: "buf", "not", "and", ... "gc", "expr".
 const char* kind_name(gate_kind k);
 
 /// True for kinds whose next output depends on their present output.
 constexpr bool holds_state(gate_kind k) {
-  return k == gate_kind::celem || k == gate_kind::gc || k == gate_kind::dff;
+  return k == gate_kind::celem || k == gate_kind::gc || k == gate_kind::dff ||
+         k == gate_kind::mutex || k == gate_kind::syncff;
 }
+
+/// The kinds whose timing follows the metastability model (netlist::meta).
+constexpr bool is_metastable(gate_kind k) { return k == gate_kind::mutex || k == gate_kind::syncff; }
 
 /// A delay range; typ lies in [min, max].
 struct delay_range {
   time_fs min = 0, typ = 0, max = 0;
   friend bool operator==(const delay_range&, const delay_range&) = default;
+};
+
+/// A metastable element's parameters (from memory of Veendrick 1980, IEEE
+/// JSSC 15(2), and Kleeman and Cantoni 1987, IEEE Trans. Computers 36(10)):
+/// two events closer than the window W resolve tau x ln(W / gap) later than
+/// the normal delay. A mutex's gates are `gates[0]` (the first grant
+/// written) and `gates[1]`; a syncff has gates[1] = no_id.
+struct meta_element {
+  gate_id gates[2] = {no_id, no_id};
+  delay_range tau, window;
 };
 
 /// A gate's delays: 0->1 output changes use `rise`, 1->0 use `fall`, any change
@@ -138,6 +158,10 @@ struct netlist {
   /// smallest min to the largest max), for whatever needs one range.
   std::vector<std::uint32_t> arc_at;
   std::vector<gate_delay> arcs;
+  /// Metastable elements; gate g belongs to meta[meta_at[g]] when meta_at
+  /// reaches g and is not no_id.
+  std::vector<meta_element> meta;
+  std::vector<std::uint32_t> meta_at;
   std::vector<source_loc> gate_loc;  ///< where each gate was written
   /// The scope (instance) each gate was written in; empty when every gate is
   /// at the top level (the .bench importer). Read by SDF back-annotation.
@@ -170,6 +194,12 @@ struct netlist {
     if (!has_arcs(g)) return {};
     return {arcs.data() + arc_at[g], fanin_begin[g + 1] - fanin_begin[g]};
   }
+  /// The element gate g belongs to, or null.
+  const meta_element* meta_of(gate_id g) const {
+    return g < meta_at.size() && meta_at[g] != no_id ? &meta[meta_at[g]] : nullptr;
+  }
+  /// Records element `e` (its gates added already); returns its index.
+  std::uint32_t add_meta(const meta_element& e);
   /// Gives gate g one delay per fan-in (`a` has its fan-in count of them) and
   /// sets its delay to their envelope; transport follows the gate's own.
   void set_arcs(gate_id g, std::span<const gate_delay> a);
