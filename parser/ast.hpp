@@ -220,8 +220,14 @@ struct expect_gauge {
   name gauge;
   range within;
 };
-struct expect_body
-    : x3::variant<std::vector<assign>, expect_within, expect_glitch, expect_gauge, expect_word> {
+/// `expect resolves NET within T` (a metastable element, by one of its outputs).
+struct expect_resolves {
+  std::string word;
+  name net;
+  time_lit time;
+};
+struct expect_body : x3::variant<std::vector<assign>, expect_within, expect_glitch, expect_resolves,
+                                 expect_gauge, expect_word> {
   using base_type::base_type;
   using base_type::operator=;
 };

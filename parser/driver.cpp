@@ -406,6 +406,11 @@ struct visitor {
       s.what = stim_stmt::kind::expect_within;
       if (!lower_time(w->time, s.time, rep)) return;
       s.has_time = true;
+    } else if (auto rs = boost::get<ast::expect_resolves>(&e.body)) {
+      s.what = stim_stmt::kind::expect_resolves;
+      s.nets.push_back(lower_ref(rs->net, rep));
+      if (!lower_time(rs->time, s.time, rep)) return;
+      s.has_time = true;
     } else if (auto g = boost::get<ast::expect_glitch>(&e.body)) {
       s.what = stim_stmt::kind::expect_no_glitch;
       for (auto& n : g->nets) s.nets.push_back(lower_ref(n, rep));

@@ -139,7 +139,8 @@ SETTLE_X3_RULES((gauge_period, ast::gauge_period, "gauge_period"),
                 (gauge_pulse, ast::gauge_pulse, "gauge_pulse"),
                 (gauge_latency, ast::gauge_latency, "gauge_latency"),
                 (gauge_body, ast::gauge_body, "gauge_body"), (gauge, ast::gauge_stmt, "gauge"),
-                (expect_gauge, ast::expect_gauge, "expect_gauge"))
+                (expect_gauge, ast::expect_gauge, "expect_gauge"),
+                (expect_resolves, ast::expect_resolves, "expect_resolves"))
 
 // Comma-separated lists.
 SETTLE_X3_RULES((ref_list, std::vector<ast::name>, "ref_list"),
@@ -222,7 +223,9 @@ auto const expect_glitch_def = x3::raw[kw("no")] > kw("glitch") > kw("on") > ref
 auto const expect_word_def = x3::raw[kw("stable") | kw("oscillating") | kw("deterministic")] >>
                              -(kw("period") > range_);
 auto const expect_gauge_def = name_ >> kw("within") > range_;
-auto const expect_body_def = assigns | expect_within | expect_glitch | expect_gauge | expect_word;
+auto const expect_resolves_def = x3::raw[kw("resolves")] > ref_ > kw("within") > time_;
+auto const expect_body_def =
+    assigns | expect_within | expect_glitch | expect_resolves | expect_gauge | expect_word;
 
 // ---- closed-loop environments: conditions, reaction rules, properties, gauges
 auto const cond_or_def = cond_xor >> *('|' > cond_xor);
@@ -262,7 +265,7 @@ BOOST_SPIRIT_DEFINE(ident_raw, ref_raw, quoted_raw, const_raw, number_raw, const
 // The closed-loop statements (a second DEFINE: one takes a bounded number of rules).
 BOOST_SPIRIT_DEFINE(cond_or, cond_xor, cond_and, cond_unary, cond_primary, cond_atom, count_raw,
                     count_, when_, edge_part, property, gauge_period, gauge_pulse, gauge_latency,
-                    gauge_body, gauge, expect_gauge)
+                    gauge_body, gauge, expect_gauge, expect_resolves)
 BOOST_SPIRIT_DEFINE(import_path, import_, arc, arcs)
 
 }  // namespace settle::grammar

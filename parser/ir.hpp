@@ -99,6 +99,7 @@ struct stim_stmt {
     property,
     gauge,
     expect_gauge,
+    expect_resolves,
   } what = kind::settle;
   time_fs time = 0, time2 = 0;  ///< at/after/run/within time; clock period+high; oscillating lo+hi
   bool has_time = false, has_time2 = false;

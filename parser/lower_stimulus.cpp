@@ -100,7 +100,7 @@ class time_reached {
 class stimulus_builder {
  public:
   stimulus_builder(const netlist& nl, stimulus& out, reporter& rep)
-      : names_(nl, rep), out_(out), rep_(rep) {}
+      : names_(nl, rep), nl_(nl), out_(out), rep_(rep) {}
 
   void add(const stim_stmt& s) {
     using k = stim_stmt::kind;
@@ -123,8 +123,9 @@ class stimulus_builder {
         {k::property, &b::property_of},
         {k::gauge, &b::gauge_of},
         {k::expect_gauge, &b::expect_gauge},
+        {k::expect_resolves, &b::expect_resolves},
     };
-    static_assert(std::size(adders) == static_cast<std::size_t>(k::expect_gauge) + 1);
+    static_assert(std::size(adders) == static_cast<std::size_t>(k::expect_resolves) + 1);
     static_assert([] {
       for (std::size_t i = 0; i < std::size(adders); ++i)
         if (static_cast<std::size_t>(adders[i].first) != i) return false;
@@ -346,6 +347,25 @@ class stimulus_builder {
     st->expects.push_back(e);
   }
 
+  /// `expect resolves NET within T`: NET is an output of a metastable element.
+  void expect_resolves(const stim_stmt& s) {
+    auto* st = expect_target(s);
+    const net_id n = names_.net(s.nets[0]);
+    if (n == no_id) return;
+    const gate_id g = nl_.driver[n];
+    if (g == no_id || !nl_.meta_of(g)) {
+      rep_.error(s.nets[0].loc, fmt::format("'{}' is no output of a mutex or syncff; 'expect "
+                                            "resolves' names a metastable element by an output",
+                                            s.nets[0].name));
+      return;
+    }
+    if (!st) return;
+    expectation e =
+        make_expect(expectation::kind::resolves, n, std::string(s.nets[0].name), s.nets[0].loc);
+    e.hi = s.time;
+    st->expects.push_back(e);
+  }
+
   void watch(const stim_stmt& s) {
     for (auto& r : s.nets)
       if (net_id n = names_.net(r); n != no_id) out_.watch.push_back(n);
@@ -390,6 +410,7 @@ class stimulus_builder {
   }
 
   net_names names_;
+  const netlist& nl_;
   time_reached time_;
   stimulus& out_;
   reporter& rep_;

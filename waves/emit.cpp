@@ -397,6 +397,9 @@ class writer {
       case expectation::kind::gauge:
         return fmt::format("expect {} within {}..{}", d_.stim.gauges.at(e.gauge).name,
                            time_literal(e.lo), time_literal(e.hi));
+      case expectation::kind::resolves:
+        return fmt::format("expect resolves {} within {}", ref_name(n_.net_name[e.net]),
+                           time_literal(e.hi));
       default:
         return expectation_words(n_, e);
     }

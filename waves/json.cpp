@@ -26,18 +26,18 @@ std::string logic_text(logic v) { return std::string(1, to_char(v)); }
 
 const char* expect_kind_word(expectation::kind k) {
   static constexpr const char* names[] = {"value",     "stable",        "oscillating", "within",
-                                          "no_glitch", "deterministic", "gauge"};
-  return enum_name<expectation::kind::gauge>(k, names);
+                                          "no_glitch", "deterministic", "gauge",       "resolves"};
+  return enum_name<expectation::kind::resolves>(k, names);
 }
 
 report_json expectation_json(const netlist& n, const expectation& spec) {
   using k = expectation::kind;
   report_json e;
   e["kind"] = expect_kind_word(spec.what);
-  if (spec.what == k::value || spec.what == k::no_glitch)
+  if (spec.what == k::value || spec.what == k::no_glitch || spec.what == k::resolves)
     e["net"] = spec.ref.empty() ? n.net_name[spec.net] : spec.ref;
   if (spec.what == k::value) e["want"] = logic_text(spec.want);
-  if (spec.what == k::within) e["budget_fs"] = spec.hi;
+  if (spec.what == k::within || spec.what == k::resolves) e["budget_fs"] = spec.hi;
   if (spec.what == k::gauge)
     e["gauge"] = spec.ref, e["want"] = format_time(spec.lo) + ".." + format_time(spec.hi);
   return e;
@@ -195,6 +195,7 @@ report_json run_step_json(const design& d, const run_result& r, const step_resul
   }
   st["expect"] = report_json::array();
   for (const auto& x : s.expects) st["expect"].push_back(run_expect_json(n, s, x));
+  if (!s.resolutions.empty()) st["resolutions"] = resolutions_json(n, s.resolutions);
   return st;
 }
 
@@ -637,6 +638,27 @@ report_json explore_json(const design& d, const explore_result& r, double wall_s
   for (const auto& s : r.steps) steps.push_back(explore_step_json(d, r, s, replay));
   j["wall_s"] = wall_s;  // the one timing field: reports compare equal apart from wall_s (issue 7)
   j["result"] = r.pass() ? "pass" : "findings";
+  return j;
+}
+
+report_json resolutions_json(const netlist& n, const std::vector<resolution>& list) {
+  auto j = report_json::array();
+  for (const auto& res : list) {
+    const auto* m = n.meta_of(res.gate);
+    report_json e;
+    e["element"] = n.gate_name(m->gates[0]);
+    e["kind"] = kind_name(n.kind[res.gate]);
+    e["output"] = n.gate_name(res.gate);
+    e["first_fs"] = res.first;
+    e["resolved_fs"] = res.at;
+    e["resolution_fs"] = res.time();
+    // mutex: the other request's lag (Δ); syncff: D's lead on the edge (δ)
+    e[n.kind[res.gate] == gate_kind::mutex ? "delta_fs" : "lead_fs"] =
+        res.near ? report_json(res.gap) : report_json(nullptr);
+    e["drawn"] = res.drawn;
+    e["value"] = logic_text(res.value);
+    j.push_back(std::move(e));
+  }
   return j;
 }
 

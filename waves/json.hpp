@@ -44,6 +44,10 @@ report_json expectation_json(const netlist& n, const expectation& spec);
 
 /// The JSON array of the names of `nets`.
 report_json net_names_json(const netlist& n, const std::vector<net_id>& nets);
+/// The resolutions of metastable elements: element, output, first and
+/// resolved times, the resolution time, Δ (delta_fs) or δ (lead_fs) when inside
+/// the window (else null), whether a tie was drawn, and the value.
+report_json resolutions_json(const netlist& n, const std::vector<resolution>& list);
 
 /// Why a timeout step stopped, in words, from its step_result figures: how
 /// far it got ("stopped 10ns after its start, 123 events") and, when its net

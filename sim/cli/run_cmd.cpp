@@ -96,6 +96,19 @@ std::string table(const design& d, const run_result& r, const std::string& corne
                            to_char(s.start_values[i]), to_char(s.values[i]), s.transitions[i],
                            glitches(d.nets, r, s, i));
     }
+    for (const auto& res : s.resolutions) {
+      const bool mutex = n.kind[res.gate] == gate_kind::mutex;
+      std::string how =
+          !res.near ? (mutex ? "uncontested" : "outside the window")
+                    : fmt::format("{} {}{}", mutex ? "delta" : "lead",
+                                  res.gap < 0 ? "-" + format_time(static_cast<time_fs>(-res.gap))
+                                              : format_time(static_cast<time_fs>(res.gap)),
+                                  res.drawn ? " (a tie, drawn)" : "");
+      out += fmt::format("  resolve {} {} at {}: {}, {} {}, resolved after {}\n",
+                         kind_name(n.kind[res.gate]), n.gate_name(res.gate),
+                         format_time(res.first), how, mutex ? "granted" : "took",
+                         to_char(res.value), format_time(res.time()));
+    }
     for (const auto& x : s.expects) {
       std::string line = expect_text(n, s, x);
       if (!x.pass && !x.detail.empty()) line += " (" + x.detail + ")";

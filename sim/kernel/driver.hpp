@@ -391,6 +391,11 @@ class driver {
       r.values.push_back(sim_.values()[result_.reported[i]]);
       r.transitions.push_back(sim_.toggle_count(result_.reported[i]) - tog_start[i]);
     }
+    if constexpr (requires { sim_.resolutions(); }) {
+      const auto& all = sim_.resolutions();
+      r.resolutions.assign(all.begin() + static_cast<std::ptrdiff_t>(resolved_before_), all.end());
+      resolved_before_ = all.size();
+    }
     check_expectations(spec, r, glitch_tog, glitch_start);
     if (!opt_.allow_x && r.status != step_status::oscillating)
       r.unknown = unknown_at_end(&spec, result_.reported, r.values);
@@ -641,6 +646,22 @@ class driver {
           // One corner cannot diverge from itself; sweeps judge this across corners.
           x.pass = true;
           break;
+        case expectation::kind::resolves: {
+          // Every resolution of the element this step decided within T of
+          // its first event; a step with none fails (nothing was shown).
+          const auto* m = d_.nets.meta_of(d_.nets.driver[e.net]);
+          std::size_t count = 0;
+          time_fs longest = 0;
+          for (const auto& res : r.resolutions)
+            if (d_.nets.meta_of(res.gate) == m) ++count, longest = std::max(longest, res.time());
+          x.pass = count && longest <= e.hi;
+          if (!count)
+            x.detail = fmt::format("{}'s element resolved nothing in this step", e.ref);
+          else if (!x.pass)
+            x.detail = fmt::format("{}'s element took {} to resolve (longest of {}), budget {}",
+                                   e.ref, format_time(longest), count, format_time(e.hi));
+          break;
+        }
         case expectation::kind::gauge: {
           // Every sample the gauge took in this step lies inside; a step
           // with none fails (a gauge that never ticks proves nothing).
@@ -683,6 +704,7 @@ class driver {
   std::uint64_t firing_seq_ = 0;
   std::vector<net_id> observed_;
   std::vector<logic> observed_last_;
+  std::size_t resolved_before_ = 0;  // resolutions the kernel reported before this step
 };
 
 }  // namespace settle::detail

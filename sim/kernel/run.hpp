@@ -90,6 +90,8 @@ struct step_result {
   std::vector<std::uint32_t> transitions;  ///< per reported net, within the step
   std::vector<expect_result> expects;
   std::vector<owed_rule> owed;  ///< deadlock only
+  /// Resolutions of metastable elements decided within the step, in order.
+  std::vector<resolution> resolutions;
   /// Reported nets at x at the end of the step that the step does not expect
   /// at x (`expect NET = x`); empty for an oscillating step and under
   /// run_options::allow_x. A finding.

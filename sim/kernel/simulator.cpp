@@ -336,6 +336,13 @@ template <bool Plain>
 SETTLE_HOT std::span<const simulator::fan_entry> simulator::change_output(gate_id g, gate_rec& r,
                                                                           logic v, time_fs t) {
   change_value<Plain>(r.out, v, t);
+  // A mutex's grant rising is a resolution of its element (a syncff's are
+  // logged where decided, since the value taken may equal the one held).
+  if (!Plain && meta_ && v == logic::one && n_.kind[g] == gate_kind::mutex) [[unlikely]] {
+    resolution why = meta_gate_[g].why;
+    why.at = t;
+    resolutions_.push_back(why);
+  }
   r.vout = v;
   ++r.toggles;
   return fanout_of(g, r);
@@ -489,11 +496,6 @@ SETTLE_HOT void simulator::apply_front(std::span<const queued_event> front, time
       const logic v = r.pend;
       r.pend = none;
       --live_;
-      if (meta_ && v == logic::one && n_.kind[g] == gate_kind::mutex && r.vout != v) [[unlikely]] {
-        resolution why = meta_gate_[g].why;
-        why.at = t;
-        resolutions_.push_back(why);
-      }
       apply_output(g, r, v, t);
     } else {
       auto& q = tq_[slot_[g]];

@@ -42,6 +42,8 @@ std::string expectation_words(const netlist& n, const expectation& e) {
       return "expect deterministic";
     case expectation::kind::gauge:
       return fmt::format("expect {} within {}..{}", ref, format_time(e.lo), format_time(e.hi));
+    case expectation::kind::resolves:
+      return fmt::format("expect resolves {} within {}", ref, format_time(e.hi));
   }
   return "expect";
 }

@@ -106,8 +106,9 @@ struct expectation {
     no_glitch,      ///< expect no glitch on NET
     deterministic,  ///< expect deterministic (checked across corners)
     gauge,          ///< expect NAME within A..B: every sample of the gauge in the step inside
+    resolves,       ///< expect resolves NET within T: every resolution of NET's element in the step
   } what = kind::value;
-  net_id net = 0;           ///< value, no_glitch
+  net_id net = 0;           ///< value, no_glitch, resolves (an output of the element)
   std::uint32_t gauge = 0;  ///< gauge: index in stimulus::gauges
   std::string ref;          ///< the name as written (the gauge's name for `gauge`)
   logic want = logic::x;    ///< value
