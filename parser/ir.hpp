@@ -42,8 +42,12 @@ struct gate {
   gate_delay delay;
   /// A metastable element (netlist::meta): the first or second grant of a
   /// mutex (the two stand next to each other) or a syncff, with its tau and window.
-  enum class meta_role : std::uint8_t { none, first_grant, second_grant, syncff } meta =
-      meta_role::none;
+  enum class meta_role : std::uint8_t {
+    none,
+    first_grant,
+    second_grant,
+    syncff
+  } meta = meta_role::none;
   delay_range tau, window;
 };
 

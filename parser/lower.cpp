@@ -286,9 +286,8 @@ bool lower_element(const ast::gate_stmt& g, scope_def& scope, reporter& rep) {
                            : "q = syncff(d, ck) delay D tau T window W";
   const std::size_t outs = 1 + g.more_outs.size();
   if (outs != (mutex ? 2u : 1u)) {
-    rep.error(rep.loc_of(g.out.pos),
-              fmt::format("'{}' has {} output{}, found {}: {}", c.kind.text, mutex ? 2 : 1,
-                          mutex ? "s" : "", outs, form));
+    rep.error(rep.loc_of(g.out.pos), fmt::format("'{}' has {} output{}, found {}: {}", c.kind.text,
+                                                 mutex ? 2 : 1, mutex ? "s" : "", outs, form));
     return false;
   }
   std::vector<ref> args;
@@ -296,8 +295,9 @@ bool lower_element(const ast::gate_stmt& g, scope_def& scope, reporter& rep) {
     ref r;
     if (!simple_arg(a, r, rep)) {
       const char* p = a.label ? a.label->pos : first_pos(a.value);
-      rep.error(p ? rep.loc_of(p) : at,
-                fmt::format("arguments of '{}' must be nets or the constants 0 and 1", c.kind.text));
+      rep.error(
+          p ? rep.loc_of(p) : at,
+          fmt::format("arguments of '{}' must be nets or the constants 0 and 1", c.kind.text));
       return false;
     }
     args.push_back(r);
@@ -308,8 +308,8 @@ bool lower_element(const ast::gate_stmt& g, scope_def& scope, reporter& rep) {
     return false;
   }
   if (!g.tau || !g.window) {
-    rep.error(at, fmt::format("'{}' needs its resolution time constant and window: {}",
-                              c.kind.text, form));
+    rep.error(at, fmt::format("'{}' needs its resolution time constant and window: {}", c.kind.text,
+                              form));
     return false;
   }
   if (!g.arcs.empty() || g.transport) {

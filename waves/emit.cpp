@@ -136,6 +136,19 @@ class writer {
   template <class Name>
   std::string gate_text(gate_id g, Name&& name) const {
     const auto k = n_.kind[g];
+    if (const auto* m = n_.meta_of(g)) {
+      // One statement per element: a mutex's second grant is written with its first.
+      if (m->gates[0] != g) return "";
+      const auto b = n_.fanin_begin[g];
+      const std::string params =
+          fmt::format(" tau {} window {}", range_text(m->tau), range_text(m->window));
+      if (k == gate_kind::syncff)
+        return fmt::format("{} = syncff({}, {}) {}{}\n", name(n_.gate_out[g]), name(n_.fanin[b]),
+                           name(n_.fanin[b + 1]), delay_text(n_.delay[g]), params);
+      return fmt::format("{}, {} = mutex({}, {}) {}{}\n", name(n_.gate_out[g]),
+                         name(n_.gate_out[m->gates[1]]), name(n_.fanin[b]), name(n_.fanin[b + 1]),
+                         delay_text(n_.delay[g]), params);
+    }
     std::string rhs;
     const std::span<const std::uint32_t> code(n_.code.data() + n_.code_begin[g],
                                               n_.code_begin[g + 1] - n_.code_begin[g]);

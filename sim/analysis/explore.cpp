@@ -280,9 +280,10 @@ std::optional<explore_result> explore_design(const design& d, const explore_opti
     // Their timing (who wins, how long resolution takes) is the point of
     // them; the untimed state graph could only call every contest undecided.
     if (error)
-      *error = fmt::format("explore does not take metastable elements (mutex, syncff: '{}'); "
-                           "run and sweep time them",
-                           n.gate_name(n.meta.front().gates[0]));
+      *error = fmt::format(
+          "explore does not take metastable elements (mutex, syncff: '{}'); "
+          "run and sweep time them",
+          n.gate_name(n.meta.front().gates[0]));
     return std::nullopt;
   }
   explore_result res;

@@ -70,7 +70,7 @@ exit_status run_check(const check_options& o) {
       spdlog::error("{}: cannot write it as .settle: {}", d->path, e.error);
       return exit_status::error;
     }
-    if (e.flat)
+    if (e.flat && d->nets.blocks > 0)
       spdlog::warn("{}: --emit writes the flat netlist: its blocks could not be rebuilt", d->path);
     if (!outputs.put(o.emit, e.text)) return exit_status::error;
   }

@@ -104,10 +104,10 @@ std::string table(const design& d, const run_result& r, const std::string& corne
                                   res.gap < 0 ? "-" + format_time(static_cast<time_fs>(-res.gap))
                                               : format_time(static_cast<time_fs>(res.gap)),
                                   res.drawn ? " (a tie, drawn)" : "");
-      out += fmt::format("  resolve {} {} at {}: {}, {} {}, resolved after {}\n",
-                         kind_name(n.kind[res.gate]), n.gate_name(res.gate),
-                         format_time(res.first), how, mutex ? "granted" : "took",
-                         to_char(res.value), format_time(res.time()));
+      out +=
+          fmt::format("  resolve {} {} at {}: {}, {} {}, resolved after {}\n",
+                      kind_name(n.kind[res.gate]), n.gate_name(res.gate), format_time(res.first),
+                      how, mutex ? "granted" : "took", to_char(res.value), format_time(res.time()));
     }
     for (const auto& x : s.expects) {
       std::string line = expect_text(n, s, x);

@@ -38,14 +38,14 @@ class change_sink {
 struct resolution {
   gate_id gate = 0;   ///< the grant, or the flip-flop's output
   time_fs first = 0;  ///< mutex: its request (or the release letting it through); syncff: the edge
-  time_fs at = 0;     ///< when the output resolved: first + D, plus tau x ln(window / gap) inside it
+  time_fs at = 0;  ///< when the output resolved: first + D, plus tau x ln(window / gap) inside it
   /// mutex: how long after `first` the other request came (Δ, >= 0); syncff:
   /// how long before the edge D last changed (δ, < 0 after it). Meaningful
   /// when `near`: within reach of the element (a competing request, or a D
   /// change inside the window or at the edge).
   std::int64_t gap = 0;
   bool near = false;
-  bool drawn = false;  ///< a tie (gap 0): the winner and gap came from the corner's stream
+  bool drawn = false;      ///< a tie (gap 0): the winner and gap came from the corner's stream
   logic value = logic::x;  ///< the grant (1) or the value captured
   time_fs time() const { return at - first; }
 };

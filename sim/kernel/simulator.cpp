@@ -469,8 +469,8 @@ void simulator::evaluate_meta(gate_id g, time_fs t) {
   gate_rec& r = gate_[g];
   time_fs due = t;
   resolution why;
-  const logic v = n_.kind[g] == gate_kind::mutex ? decide_mutex(g, t, due, why)
-                                                 : decide_syncff(g, t, due);
+  const logic v =
+      n_.kind[g] == gate_kind::mutex ? decide_mutex(g, t, due, why) : decide_syncff(g, t, due);
   auto& m = meta_gate_[g];
   if (v == r.pend && due <= m.due) return;
   if (v == r.vout) {

@@ -9,10 +9,9 @@
 namespace settle {
 
 const char* kind_name(gate_kind k) {
-  static constexpr const char* names[gate_kind_count] = {"buf", "not", "and",  "nand", "or",
-                                                         "nor", "xor", "xnor", "mux",  "maj",
-                                                         "c",   "gc",  "expr", "dff",
-                                                         "mutex", "syncff"};
+  static constexpr const char* names[gate_kind_count] = {
+      "buf", "not", "and", "nand", "or",   "nor", "xor",   "xnor",
+      "mux", "maj", "c",   "gc",   "expr", "dff", "mutex", "syncff"};
   return names[static_cast<int>(k)];
 }
 

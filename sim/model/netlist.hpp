@@ -58,7 +58,9 @@ constexpr bool holds_state(gate_kind k) {
 }
 
 /// The kinds whose timing follows the metastability model (netlist::meta).
-constexpr bool is_metastable(gate_kind k) { return k == gate_kind::mutex || k == gate_kind::syncff; }
+constexpr bool is_metastable(gate_kind k) {
+  return k == gate_kind::mutex || k == gate_kind::syncff;
+}
 
 /// A delay range; typ lies in [min, max].
 struct delay_range {
