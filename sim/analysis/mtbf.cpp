@@ -1,0 +1,196 @@
+// `settle mtbf`: the first-order MTBF formula of a metastable element, and
+// its check by simulation under independent random event streams.
+#include "sim/analysis/mtbf.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <boost/math/distributions/chi_squared.hpp>
+#include <cmath>
+
+#include "sim/kernel/simulator.hpp"
+#include "sim/model/time.hpp"
+
+namespace settle {
+namespace {
+
+// splitmix64's finaliser (Steele, Lea and Flood 2014): the event streams are
+// counter-based, so a seed replays the same events.
+constexpr std::uint64_t mix(std::uint64_t z) {
+  z += 0x9e3779b97f4a7c15ull;
+  z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ull;
+  z = (z ^ (z >> 27)) * 0x94d049bb133111ebull;
+  return z ^ (z >> 31);
+}
+
+// An exponential gap of mean 1/rate seconds, in fs, at least 1 fs: draw i of stream s.
+time_fs exponential_gap(std::uint64_t seed, std::uint64_t s, std::uint64_t i, double rate_hz) {
+  const std::uint64_t h = mix(mix(seed ^ mix(s)) ^ i);
+  const double u = (static_cast<double>(h >> 11) + 0.5) * 0x1.0p-53;
+  const double fs = -std::log(u) / rate_hz * 1e15;
+  return static_cast<time_fs>(std::max(1.0, std::llround(fs) * 1.0));
+}
+
+struct input_event {
+  time_fs time;
+  net_id net;
+  logic value;
+};
+
+// The exact (Garwood) 95% interval of a Poisson count k, as rates over `duration_s`.
+void poisson_interval(std::uint64_t k, double duration_s, double& low, double& high) {
+  using boost::math::chi_squared_distribution;
+  const double n = static_cast<double>(k);
+  low = k == 0 ? 0.0 : quantile(chi_squared_distribution<double>(2 * n), 0.025) / 2 / duration_s;
+  high = quantile(chi_squared_distribution<double>(2 * n + 2), 0.975) / 2 / duration_s;
+}
+
+}  // namespace
+
+double failure_rate(bool mutex, double f1, double f2, double tau_s, double window_s,
+                    double budget_s) {
+  return (mutex ? 2.0 : 1.0) * f1 * f2 * window_s * std::exp(-budget_s / tau_s);
+}
+
+std::optional<mtbf_result> mtbf(const design& d, const mtbf_options& o, std::string& error) {
+  const netlist& n = d.nets;
+  const net_id out = n.find(o.element);
+  const gate_id g = out == no_id ? no_id : n.driver[out];
+  const meta_element* m = g == no_id ? nullptr : n.meta_of(g);
+  if (!m) {
+    error = fmt::format("'{}' is no output of a mutex or syncff of this design", o.element);
+    return std::nullopt;
+  }
+  mtbf_result r;
+  r.first_gate = m->gates[0];
+  r.mutex = n.kind[r.first_gate] == gate_kind::mutex;
+  const auto b = n.fanin_begin[r.first_gate];
+  r.inputs[0] = n.fanin[b];
+  r.inputs[1] = n.fanin[b + 1];
+  const char* roles[2] = {r.mutex ? "the first request" : "the data input",
+                          r.mutex ? "the second request" : "the clock"};
+  for (int k = 0; k < 2; ++k) {
+    const net_id in = r.inputs[k];
+    auto it =
+        std::find_if(o.rates.begin(), o.rates.end(), [&](const auto& p) { return p.first == in; });
+    if (it == o.rates.end()) {
+      error = fmt::format("--rate {}=FREQ is missing ({} of '{}')", n.net_name[in], roles[k],
+                          o.element);
+      return std::nullopt;
+    }
+    if (in <= netlist::const1 || n.driver[in] != no_id) {
+      error = fmt::format(
+          "--rate {}: '{}' is driven by a gate; the check drives inputs of the "
+          "design with its random events",
+          n.net_name[in], n.net_name[in]);
+      return std::nullopt;
+    }
+    r.rate_hz[k] = it->second;
+  }
+  for (const auto& [net, hz] : o.rates)
+    if (net != r.inputs[0] && net != r.inputs[1]) {
+      error = fmt::format("--rate {}: '{}' is no input of '{}'", n.net_name[net], n.net_name[net],
+                          o.element);
+      return std::nullopt;
+    }
+  r.tau = m->tau;
+  r.window = m->window;
+  const double t = static_cast<double>(o.budget) * 1e-15;
+  const double f1 = r.rate_hz[0], f2 = r.rate_hz[1];
+  auto mtbf_at = [&](time_fs tau, time_fs window) {
+    if (tau == 0) return static_cast<double>(INFINITY);  // no metastability: nothing lasts past D
+    return 1.0 / failure_rate(r.mutex, f1, f2, static_cast<double>(tau) * 1e-15,
+                              static_cast<double>(window) * 1e-15, t);
+  };
+  r.mtbf_typ_s = mtbf_at(r.tau.typ, r.window.typ);
+  r.mtbf_worst_s = mtbf_at(r.tau.max, r.window.max);
+
+  // The simulation at the chosen corner.
+  delay_table delays;
+  fill_delays(d, o.at, delays);
+  const std::uint32_t e = n.meta_at[r.first_gate];
+  r.corner = o.at.name();
+  r.sim_tau = delays.tau[e];
+  r.sim_window = delays.window[e];
+  r.delay = delays.rise[r.first_gate];
+  const double tau_s = static_cast<double>(r.sim_tau) * 1e-15;
+  const double window_s = static_cast<double>(r.sim_window) * 1e-15;
+  // The longest resolution the model gives (a gap of 1 fs), so that a
+  // request pulse outlasts its grant's resolution.
+  const time_fs longest =
+      r.delay + static_cast<time_fs>(
+                    std::llround(static_cast<double>(r.sim_tau) *
+                                 std::log(std::max(2.0, static_cast<double>(r.sim_window)))));
+  std::vector<input_event> events;
+  double counted[2] = {0, 0};  // mutex: the requests actually made, per stream
+  if (r.mutex) {
+    // Independent random request streams; a request holds until its grant
+    // must have come and gone, and an arrival while its request still stands
+    // (or just after) joins it.
+    const time_fs hold = 2 * longest + r.delay;
+    const time_fs end = static_cast<time_fs>(static_cast<double>(o.events) / (f1 + f2) * 1e15);
+    for (int k = 0; k < 2; ++k) {
+      time_fs at = 0, free = 0;
+      for (std::uint64_t i = 0;; ++i) {
+        at += exponential_gap(o.seed, static_cast<std::uint64_t>(k), i, r.rate_hz[k]);
+        if (at >= end) break;
+        if (at < free) continue;
+        events.push_back({at, r.inputs[k], logic::one});
+        events.push_back({at + hold, r.inputs[k], logic::zero});
+        free = at + hold + 2 * r.delay;
+        counted[k] += 1;
+      }
+    }
+    r.events = static_cast<std::uint64_t>(counted[0] + counted[1]);
+    r.duration_s = static_cast<double>(end) * 1e-15;
+  } else {
+    // A periodic clock (half high) and data toggling at random times.
+    const time_fs period = static_cast<time_fs>(std::llround(1e15 / f2));
+    const time_fs end = period * o.events;
+    for (std::uint64_t k = 0; k < o.events; ++k) {
+      events.push_back({k * period + period / 2, r.inputs[1], logic::one});
+      events.push_back({(k + 1) * period, r.inputs[1], logic::zero});
+    }
+    time_fs at = 0;
+    logic v = logic::zero;
+    for (std::uint64_t i = 0;; ++i) {
+      at += exponential_gap(o.seed, 7, i, f1);
+      if (at >= end) break;
+      v = v == logic::zero ? logic::one : logic::zero;
+      events.push_back({at, r.inputs[0], v});
+    }
+    r.events = o.events;
+    r.duration_s = static_cast<double>(period * o.events) * 1e-15;
+  }
+  std::stable_sort(events.begin(), events.end(),
+                   [](const input_event& a, const input_event& b) { return a.time < b.time; });
+
+  simulator sim(n);
+  sim.reset(delays);
+  std::vector<assignment> now;
+  for (net_id in : n.inputs) now.push_back({in, logic::zero});
+  sim.process_instant(0, now);
+  for (std::size_t i = 0; i < events.size();) {
+    const time_fs at = std::max<time_fs>(events[i].time, 1);
+    sim.run_quiet(at - 1, 0, 0);
+    now.clear();
+    for (; i < events.size() && std::max<time_fs>(events[i].time, 1) == at; ++i)
+      now.push_back({events[i].net, events[i].value});
+    sim.process_instant(at, now);
+  }
+  sim.run_quiet(time_last, 0, 0);
+  const time_fs limit = r.delay + o.budget;
+  for (const auto& res : sim.resolutions()) {
+    if (n.meta_of(res.gate) != m) continue;
+    ++r.resolutions;
+    if (res.time() > limit) ++r.failures;
+  }
+  r.observed_hz = static_cast<double>(r.failures) / r.duration_s;
+  poisson_interval(r.failures, r.duration_s, r.low_hz, r.high_hz);
+  const double g1 = r.mutex ? counted[0] / r.duration_s : f1;
+  const double g2 = r.mutex ? counted[1] / r.duration_s : f2;
+  r.formula_hz = tau_s == 0 ? 0.0 : failure_rate(r.mutex, g1, g2, tau_s, window_s, t);
+  return r;
+}
+
+}  // namespace settle
