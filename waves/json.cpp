@@ -529,6 +529,27 @@ void sweep_figures_json(const design& d, const sweep_result& r,
     }
     j["gauges"].push_back(std::move(e));
   }
+  // Metastable elements, only when the design has any.
+  if (r.elements.empty()) return;
+  j["elements"] = report_json::array();
+  for (const auto& el : r.elements) {
+    const auto& m = d.nets.meta[el.index];
+    report_json e;
+    e["element"] = d.nets.gate_name(m.gates[0]);
+    e["kind"] = kind_name(d.nets.kind[m.gates[0]]);
+    e["resolutions"] = el.resolutions;
+    e["inside_window"] = el.inside;
+    e["drawn"] = el.drawn;
+    if (el.resolutions) e["longest_fs"] = el.longest, e["witness"] = el.witness_name;
+    e["budgets"] = report_json::array();
+    for (const auto& b : el.budgets)
+      e["budgets"].push_back({{"within_fs", b.within},
+                              {"exceeded", b.exceeded},
+                              {"share", b.share},
+                              {"share_ci95", {b.share_ci95.lo, b.share_ci95.hi}},
+                              {"model_share", b.model_share}});
+    j["elements"].push_back(std::move(e));
+  }
 }
 
 report_json sweep_json(const design& d, const sweep_result& r, const sweep_source& src) {

@@ -197,6 +197,41 @@ void gather_closed_loop(const design& d, const sweep_plan& plan,
     }
     res.gauges.push_back(std::move(sg));
   }
+  const auto budgets = detail::element_budgets(d);
+  for (std::uint32_t e = 0; e < d.nets.meta.size(); ++e) {
+    sweep_element se;
+    se.index = e;
+    detail::element_acc all;
+    all.exceeded.assign(budgets[e].size(), 0);
+    all.model.assign(budgets[e].size(), 0);
+    for (const auto& w : workers) {
+      if (e >= w.elements.size()) continue;
+      const auto& a = w.elements[e];
+      all.resolutions += a.resolutions, all.inside += a.inside, all.drawn += a.drawn;
+      if (a.longest_at != UINT64_MAX) all.add_longest(a.longest, a.longest_at);
+      for (std::size_t b = 0; b < a.exceeded.size(); ++b)
+        all.exceeded[b] += a.exceeded[b], all.model[b] += a.model[b];
+    }
+    se.resolutions = all.resolutions, se.inside = all.inside, se.drawn = all.drawn;
+    if (all.longest_at != UINT64_MAX) {
+      se.longest = all.longest, se.witness = all.longest_at;
+      se.witness_name = plan.corner_at(all.longest_at).name();
+    }
+    for (std::size_t b = 0; b < budgets[e].size(); ++b) {
+      sweep_element::budget sb;
+      sb.within = budgets[e][b];
+      sb.exceeded = all.exceeded[b];
+      sb.share =
+          res.corners ? static_cast<double>(sb.exceeded) / static_cast<double>(res.corners) : 0;
+      sb.share_ci95 = wilson_interval(sb.exceeded, res.corners, 0.95);
+      sb.model_share = res.corners
+                           ? static_cast<double>(all.model[b]) / detail::element_acc::model_unit /
+                                 static_cast<double>(res.corners)
+                           : 0;
+      se.budgets.push_back(sb);
+    }
+    res.elements.push_back(std::move(se));
+  }
 }
 
 // The rules owed at each deadlocked outcome's witness, and how far each timed-out

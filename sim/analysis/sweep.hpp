@@ -195,6 +195,27 @@ struct sweep_gauge {
 /// Why a sweep stopped before running every corner.
 enum class sweep_stop : std::uint8_t { none, interrupted, timeout };
 
+/// A metastable element over the corners: how its resolutions went, and for
+/// each `expect resolves` budget of it the share of corners in which one took
+/// longer, beside the model's expected share (a drawn tie exceeds a budget T
+/// with probability e^(-(T - D)/tau); any other resolution is as it ran).
+struct sweep_element {
+  std::uint32_t index = 0;                    ///< into netlist::meta
+  std::uint64_t resolutions = 0, inside = 0;  ///< over all corners; inside the window
+  std::uint64_t drawn = 0;                    ///< ties drawn from the corners' streams
+  time_fs longest = 0;                        ///< the longest resolution of any corner
+  std::uint64_t witness = 0;                  ///< the lowest-numbered corner showing it
+  std::string witness_name;
+  struct budget {
+    time_fs within = 0;
+    std::uint64_t exceeded = 0;  ///< corners with a resolution longer than `within`
+    double share = 0;
+    proportion_interval share_ci95;
+    double model_share = 0;
+  };
+  std::vector<budget> budgets;  ///< in increasing order
+};
+
 struct sweep_result {
   std::uint64_t corners = 0;  ///< corners run to the end (all of the plan unless stopped)
   std::uint64_t planned = 0;  ///< corners in the plan
@@ -211,6 +232,7 @@ struct sweep_result {
   std::uint64_t error_corner = UINT64_MAX;
   std::vector<sweep_property> properties;  ///< one per stimulus property, in order
   std::vector<sweep_gauge> gauges;         ///< one per stimulus gauge, in order
+  std::vector<sweep_element> elements;     ///< one per metastable element, in netlist order
   /// Every step passes and every property holds in every corner, and the sweep ran to the end.
   bool pass() const;
 };

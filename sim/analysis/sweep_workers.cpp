@@ -2,6 +2,7 @@
 #include "sim/analysis/sweep_workers.hpp"
 
 #include <algorithm>
+#include <cmath>
 #include <cstring>
 #include <thread>
 
@@ -32,6 +33,52 @@ void prepare(const design& d, std::size_t steps, worker_state& w) {
   }
   w.properties.resize(d.stim.properties.size());
   w.gauges.resize(d.stim.gauges.size());
+  const auto budgets = element_budgets(d);
+  w.elements.resize(d.nets.meta.size());
+  for (std::size_t e = 0; e < budgets.size(); ++e) {
+    w.elements[e].exceeded.assign(budgets[e].size(), 0);
+    w.elements[e].model.assign(budgets[e].size(), 0);
+  }
+}
+
+// Corner i's resolutions of each metastable element: counts, the longest, and
+// per budget whether one exceeded it and the model's chance that one would.
+void record_elements(const design& d, const std::vector<std::vector<time_fs>>& budgets,
+                     worker_state& w, std::uint64_t i, const run_result& r,
+                     const delay_table& table) {
+  const netlist& n = d.nets;
+  for (const auto& st : r.steps)
+    for (const auto& res : st.resolutions) {
+      auto& acc = w.elements[n.meta_at[res.gate]];
+      ++acc.resolutions;
+      acc.inside += res.near;
+      acc.drawn += res.drawn;
+      acc.add_longest(res.time(), i);
+    }
+  for (std::size_t e = 0; e < budgets.size(); ++e) {
+    auto& acc = w.elements[e];
+    const double tau = static_cast<double>(table.tau[e]);
+    for (std::size_t b = 0; b < budgets[e].size(); ++b) {
+      const time_fs within = budgets[e][b];
+      bool over = false;
+      double none = 1;  // the model's chance that no resolution exceeds the budget
+      for (const auto& st : r.steps)
+        for (const auto& res : st.resolutions) {
+          if (n.meta_at[res.gate] != e) continue;
+          over = over || res.time() > within;
+          if (!res.drawn) {
+            if (res.time() > within) none = 0;
+          } else if (within < res.delay || tau == 0) {
+            if (within < res.delay) none = 0;
+          } else {
+            none *= 1 - std::min(1.0, std::exp(-static_cast<double>(within - res.delay) / tau));
+          }
+        }
+      acc.exceeded[b] += over;
+      acc.model[b] +=
+          static_cast<std::uint64_t>(std::llround((1 - none) * element_acc::model_unit));
+    }
+  }
 }
 
 // Corner i's steps: each one's outcome id and settle time in the table, and
@@ -100,6 +147,7 @@ void work(shared_run& s, worker_state& w) {
     run_context ctx(s.d.nets);
     delay_table table;
     prepare(s.d, s.table.steps, w);
+    const auto budgets = element_budgets(s.d);
     std::vector<logic> unknown;
     for (;;) {
       const std::uint64_t i = s.next.fetch_add(1, std::memory_order_relaxed);
@@ -112,6 +160,7 @@ void work(shared_run& s, worker_state& w) {
       if (!w.have_reported) w.reported = r.reported, w.have_reported = true;
       record_steps(s, w, i, r, unknown);
       record_closed_loop(s, w, i, r);
+      if (!s.d.nets.meta.empty()) record_elements(s.d, budgets, w, i, r, table);
       s.table.finished[i] = 1;
       s.done.fetch_add(1, std::memory_order_relaxed);
     }
@@ -121,6 +170,19 @@ void work(shared_run& s, worker_state& w) {
 }
 
 }  // namespace
+
+std::vector<std::vector<time_fs>> element_budgets(const design& d) {
+  const netlist& n = d.nets;
+  std::vector<std::vector<time_fs>> out(n.meta.size());
+  for (const auto& step : d.stim.steps)
+    for (const auto& e : step.expects)
+      if (e.what == expectation::kind::resolves) out[n.meta_at[n.driver[e.net]]].push_back(e.hi);
+  for (auto& b : out) {
+    std::sort(b.begin(), b.end());
+    b.erase(std::unique(b.begin(), b.end()), b.end());
+  }
+  return out;
+}
 
 void decode_key(const std::string& k, sweep_outcome& o) {
   o.status = static_cast<step_status>(k[0] & ~end_of_time_bit);

@@ -65,11 +65,29 @@ struct gauge_acc {
   }
 };
 
+/// What one worker learns about one metastable element. The model's shares
+/// add up in fixed point, so the sum does not depend on the order of corners.
+struct element_acc {
+  std::uint64_t resolutions = 0, inside = 0, drawn = 0;
+  time_fs longest = 0;
+  std::uint64_t longest_at = UINT64_MAX;
+  std::vector<std::uint64_t> exceeded, model;  // [budget]
+  static constexpr double model_unit = 0x1.0p30;
+  void add_longest(time_fs t, std::uint64_t at) {
+    if (longest_at == UINT64_MAX || t > longest || (t == longest && at < longest_at))
+      longest = t, longest_at = at;
+  }
+};
+
+/// The `expect resolves` budgets of each metastable element, sorted, distinct.
+std::vector<std::vector<time_fs>> element_budgets(const design& d);
+
 /// What one worker learns over all its corners.
 struct worker_state {
   std::uint64_t events = 0;
   std::vector<property_acc> properties;  // [property]
   std::vector<gauge_acc> gauges;         // [gauge]
+  std::vector<element_acc> elements;     // [netlist::meta]
   std::vector<net_id> reported;
   bool have_reported = false;
   std::vector<std::vector<expect_acc>> expects;                       // [step][expectation]

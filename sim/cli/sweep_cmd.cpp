@@ -152,6 +152,22 @@ std::string closed_loop_text(const design& d, const sweep_cli_options& o, const 
                         g.corners, g.witness_min_name, g.witness_max_name);
     out += line;
   }
+  if (!r.elements.empty()) out += "\nmetastable elements\n";
+  for (const auto& el : r.elements) {
+    const auto& m = d.nets.meta[el.index];
+    out += fmt::format("  {} ({})  {} resolutions, {} inside the window ({} ties drawn)",
+                       d.nets.gate_name(m.gates[0]), kind_name(d.nets.kind[m.gates[0]]),
+                       el.resolutions, el.inside, el.drawn);
+    if (el.resolutions)
+      out += fmt::format("; longest {} at {}", format_time(el.longest), el.witness_name);
+    out += "\n";
+    for (const auto& b : el.budgets)
+      out += fmt::format(
+          "    longer than {}: {} of {} corners, {:.4g}% (95% {:.4g}% .. {:.4g}%), "
+          "model {:.4g}%\n",
+          format_time(b.within), b.exceeded, r.corners, 100 * b.share, 100 * b.share_ci95.lo,
+          100 * b.share_ci95.hi, 100 * b.model_share);
+  }
   return out;
 }
 

@@ -71,6 +71,7 @@ logic simulator::decide_mutex(gate_id g, time_fs t, time_fs& due, resolution& wh
   why.gate = g;
   why.first = mine;
   why.value = logic::one;
+  why.delay = rise;
   if (other == logic::zero) {
     due = mine + rise;
     return logic::one;
@@ -132,7 +133,8 @@ logic simulator::decide_syncff(gate_id g, time_fs t, time_fs& due) {
     res.near = std::fabs(gap) < half;
     res.gap = res.near ? static_cast<std::int64_t>(std::llround(gap)) : 0;
     res.value = v;
-    due = t + edge_delay(g, r.vout, v) + resolve_extra(e, half, std::fabs(gap));
+    res.delay = edge_delay(g, r.vout, v);
+    due = t + res.delay + resolve_extra(e, half, std::fabs(gap));
     res.at = due;
     resolutions_.push_back(res);
     m.edge = t;

@@ -45,6 +45,7 @@ struct resolution {
   /// change inside the window or at the edge).
   std::int64_t gap = 0;
   bool near = false;
+  time_fs delay = 0;       ///< D of this resolution (the time is delay plus tau x ln(...))
   bool drawn = false;      ///< a tie (gap 0): the winner and gap came from the corner's stream
   logic value = logic::x;  ///< the grant (1) or the value captured
   time_fs time() const { return at - first; }

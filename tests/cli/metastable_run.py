@@ -139,6 +139,29 @@ check("resolve mutex wr_gnt at 1ns: delta 1ps, granted 1, resolved after 96.052p
       f"fifo_arbiter.settle: text report {out[-800:]!r}")
 
 
+# Separate rise and fall delays: the winner's grant falls after the fall delay, and the loser's
+# rises the rise delay after that release (the model: a released grant lets the waiting
+# request through D after the release; D of a grant rising is its rise delay).
+rise_fall = write_file(tmp, "arb_rise_fall.settle", open(arbiter).read().replace(
+    "delay 50ps tau", "delay rise 50ps fall 30ps tau"))
+r = run_json(rise_fall, want=0, what="rise 50ps fall 30ps")
+if r:
+    x = r["steps"][2].get("resolutions", [{}])[0]
+    check(x.get("output") == "rd_gnt" and x.get("first_fs") == 2_000_000 + 30 * PS
+          and x.get("resolved_fs") == 2_000_000 + 80 * PS, f"rise 50ps fall 30ps: loser {x}")
+    check(r["steps"][1]["resolutions"][0]["resolution_fs"] == want_1ps,
+          f"rise 50ps fall 30ps: winner {r['steps'][1]['resolutions']}")
+
+# A range of tau: the min and max corners take its ends, so 50 + 10 ln 10 and 50 + 30 ln 10 ps.
+tau_range = write_file(tmp, "arb_tau_range.settle", open(arbiter).read().replace(
+    "tau 20ps", "tau 10ps..30ps").replace("within 100ps", "within 200ps"))
+for corner, tau in (("min", 10 * PS), ("typ", 20 * PS), ("max", 30 * PS)):
+    r = run_json(tau_range, "--corner", corner, want=0, what=f"tau 10ps..30ps at {corner}")
+    if r:
+        got = r["steps"][1]["resolutions"][0]["resolution_fs"]
+        want = D + round(tau * math.log(W / PS))
+        check(got == want, f"tau 10ps..30ps at {corner}: {got} fs, want {want} fs")
+
 # --- expect resolves ... within T: a finding is exit 1 (README, exit codes) ---------------------
 
 def budget_design(budget):
