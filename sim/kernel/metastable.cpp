@@ -105,7 +105,10 @@ logic simulator::decide_syncff(gate_id g, time_fs t, time_fs& due) {
   meta_gate& m = meta_gate_[g];
   const net_id d_net = ins_[g].in0, ck_net = ins_[g].in1;
   const logic d = val_[d_net], ck = val_[ck_net], before = clock_seen_[g];
-  const logic d_before = m.d_seen;
+  // D as it was before this instant: an instant may evaluate the gate more
+  // than once (a change reaching D or CK through a gate of zero delay).
+  if (m.instant != t) m.d_before_instant = m.d_seen, m.instant = t;
+  const logic d_before = m.d_before_instant;
   clock_seen_[g] = ck;
   m.d_seen = d;
   const std::uint32_t e = n_.meta_at[g];
@@ -144,15 +147,24 @@ logic simulator::decide_syncff(gate_id g, time_fs t, time_fs& due) {
   }
   if (before == logic::zero && ck == logic::x) return normal(lub(present, d));
   if (before == logic::x && ck == logic::one) return normal(lub(present, d));
-  // D changed just after the edge: the value taken stays, its resolution moves later.
-  if (m.revisable && changed_at_[d_net] == t && t > m.edge && d != d_before &&
+  // D changed just after the edge: the value taken stays, its resolution
+  // moves later. At the edge's own instant (D reached later in the instant)
+  // it is a tie, drawn as at the edge.
+  if (m.revisable && changed_at_[d_net] == t && t >= m.edge && d != d_before &&
       static_cast<double>(t - m.edge) < half && m.logged) {
     m.revisable = false;
     resolution& res = resolutions_[m.logged - 1];
-    const double gap = static_cast<double>(t - m.edge);
+    double gap = -static_cast<double>(t - m.edge);
+    if (t == m.edge) {
+      double unit = 0;
+      const bool after = draw_bit(e, t, unit);
+      gap = half * unit * (after ? -1 : 1);
+      if (!after) res.value = d;  // the change counts as just before the edge
+      res.drawn = true;
+    }
     res.near = true;
-    res.gap = -static_cast<std::int64_t>(t - m.edge);
-    res.at += resolve_extra(e, half, gap);
+    res.gap = static_cast<std::int64_t>(std::llround(gap));
+    res.at = m.edge + res.delay + resolve_extra(e, half, std::fabs(gap));
     due = res.at;
     return res.value;
   }

@@ -209,7 +209,8 @@ void simulator::reset(const delay_table& delays) {
                  "the delay table has every metastable element's tau and window");
     meta_gate_.assign(n_.gate_count(), meta_gate{});
     for (gate_id g = 0; g < n_.gate_count(); ++g)
-      if (n_.kind[g] == gate_kind::syncff) meta_gate_[g].d_seen = val_[ins_[g].in0];
+      if (n_.kind[g] == gate_kind::syncff)
+        meta_gate_[g].d_seen = meta_gate_[g].d_before_instant = val_[ins_[g].in0];
     meta_tau_ = delays.tau;
     meta_window_ = delays.window;
     run_key_ = delays.run_key;

@@ -228,12 +228,14 @@ class simulator {
   // are timed as for arcs; per gate what evaluate_meta decided last.
   bool meta_ = false;
   struct meta_gate {
-    time_fs due = 0;           // the absolute time of the pending change
-    resolution why;            // mutex: how the pending grant was decided
-    time_fs edge = 0;          // syncff: the last rising edge of CK
-    std::uint32_t logged = 0;  // syncff: index in resolutions_ of that edge's entry, + 1
-    logic d_seen = logic::x;   // syncff: D at the last evaluation
-    bool revisable = false;    // syncff: a D change just after the edge may still count
+    time_fs due = 0;                    // the absolute time of the pending change
+    resolution why;                     // mutex: how the pending grant was decided
+    time_fs edge = 0;                   // syncff: the last rising edge of CK
+    std::uint32_t logged = 0;           // syncff: index in resolutions_ of that edge's entry, + 1
+    logic d_seen = logic::x;            // syncff: D at the last evaluation
+    logic d_before_instant = logic::x;  // syncff: D before the instant `instant`
+    time_fs instant = std::numeric_limits<time_fs>::max();
+    bool revisable = false;  // syncff: a D change just after the edge may still count
   };
   std::vector<meta_gate> meta_gate_;
   std::vector<time_fs> meta_tau_, meta_window_;

@@ -424,4 +424,48 @@ for name, text, at, message in bad:
         check(f"bad_{name}.settle:{at}: error: {message}" in err,
               f"{name}: {cmd} says {err.strip()[:300]!r}, want {at}: {message}")
 
+
+# --- syncff, a change at the edge's instant reaching D or CK through a gate of zero delay -------
+# An instant may evaluate the flip-flop twice: the change is still at the edge, so a tie drawn
+# from the corner's stream, the same whichever of D and CK arrives later in the instant.
+late_clock = write_file(tmp, "late_clock.settle", """input d, ck0
+output q
+wire clk
+clk = buf(ck0) delay 0ps
+q = syncff(d, clk) delay 50ps tau 20ps window 10ps
+init q = 0
+stimulus {
+  at 0ns d = 0, ck0 = 0
+  settle
+  at 1ns d = 1, ck0 = 1
+  settle
+}
+""")
+late_data = write_file(tmp, "late_data.settle", """input x, clk
+output q
+wire d
+d = buf(x) delay 0ps
+q = syncff(d, clk) delay 50ps tau 20ps window 10ps
+init q = 0
+stimulus {
+  at 0ns x = 0, clk = 0
+  settle
+  at 1ns x = 1, clk = 1
+  settle
+}
+""")
+for i in range(20):
+    got = []
+    for design in (late_clock, late_data):
+        rep = run_json(design, "--corner", f"random:5#{i}", what=f"{design} random:5#{i}")
+        edge = [r for r in resolutions(rep) if r["first_fs"] == 1_000_000] if rep else []
+        check(len(edge) == 1 and edge[0]["drawn"], f"{design} random:5#{i}: {edge}")
+        if len(edge) == 1:
+            r = edge[0]
+            # a drawn lead > 0 takes the new value, < 0 keeps the old (the model above)
+            check(r["value"] == ("1" if r["lead_fs"] > 0 else "0"), f"{design}: {r}")
+            check(r["resolution_fs"] > 50000, f"{design}: {r}")
+            got.append((r["lead_fs"], r["value"], r["resolution_fs"]))
+    check(len(got) == 2 and got[0] == got[1], f"random:5#{i}: late clock and late data differ: {got}")
+
 sys.exit(summary())
