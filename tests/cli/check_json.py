@@ -22,7 +22,7 @@ def check_json(path, *extra):
 
 
 KINDS = {"not", "buf", "and", "or", "nand", "nor", "xor", "xnor", "mux", "maj", "c", "gc"}
-WORDS = KINDS | {"delay", "rise", "fall", "transport", "set", "reset"}
+WORDS = KINDS | {"delay", "rise", "fall", "transport", "set", "reset", "syncff", "tau", "window"}
 
 
 def settle_gates(path):
@@ -55,6 +55,13 @@ def settle_gates(path):
                 b = dict(re.findall(r"(\w+)\s*:\s*([\w.]+)", binds))
                 inner = lambda n, inst=inst, b=b: rename(b[n]) if n in b else f"{rename(inst)}.{n}"
                 elaborate(blocks[blk]["lines"], inner)
+                continue
+            # `ga, gb = mutex(ra, rb) ...`: each grant reads both requests and the other grant
+            # (parser/LANGUAGE.md, metastable elements)
+            m = re.match(r"([\w.]+)\s*,\s*([\w.]+)\s*=\s*mutex\s*\(\s*([\w.]+)\s*,\s*([\w.]+)\s*\)", line)
+            if m:
+                ga, gb, ra, rb = (rename(w) for w in m.groups())
+                gates[ga], gates[gb] = [ra, rb, gb], [rb, ra, ga]
                 continue
             m = re.match(r"([\w.]+)\s*=\s*(.*)", line)
             if m and not re.match(r"(input|output|wire|init|default)\b", line):

@@ -81,14 +81,21 @@ ir::scope_def seeded_pools() {
 }
 
 /// The gate statements parse_file and elaboration lower in a file: block
-/// gates at once, top-level ones when parse_top_gate accepts them.
+/// gates at once, top-level ones when parse_top_gate accepts them. A
+/// metastable element's gates (lowered together, never by the fast path or
+/// parse_gate_by_grammar) are not counted.
 std::size_t lowered_gates(const std::string& text, const std::string& file) {
   diagnostics diags;
   ir::reporter rep(text, file, diags);
   ir::file f;
   ir::parse_file(text, ir::file_mode::design, f, rep);
-  std::size_t n = f.top.gates.size();
-  for (const auto& b : f.blocks) n += b.gates.size();
+  auto plain = [](const std::vector<ir::gate>& gates) {
+    return static_cast<std::size_t>(
+        std::count_if(gates.begin(), gates.end(),
+                      [](const ir::gate& g) { return g.meta == ir::gate::meta_role::none; }));
+  };
+  std::size_t n = plain(f.top.gates);
+  for (const auto& b : f.blocks) n += plain(b.gates);
   for (auto p : f.top_gates) {
     ir::scope_def pools;
     ir::gate g;
