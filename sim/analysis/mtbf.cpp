@@ -86,6 +86,20 @@ std::optional<mtbf_result> mtbf(const design& d, const mtbf_options& o, std::str
       return std::nullopt;
     }
     r.rate_hz[k] = it->second;
+    if (!(r.rate_hz[k] >= 1.0 && r.rate_hz[k] <= 1e13)) {
+      error = fmt::format("--rate {}: {:g} Hz is outside 1 Hz .. 10 THz", n.net_name[in],
+                          r.rate_hz[k]);
+      return std::nullopt;
+    }
+  }
+  // The simulated span must stay well inside representable time (2^64 fs).
+  const double span_fs = static_cast<double>(o.events) /
+                         (r.mutex ? r.rate_hz[0] + r.rate_hz[1] : r.rate_hz[1]) * 1e15;
+  if (!(span_fs < 1e18)) {
+    error = fmt::format("{} {} at these rates span {:.3g} s of simulated time, past what settle "
+                        "represents (about 1000 s here); lower --events or raise the rates",
+                        o.events, r.mutex ? "requests" : "clock edges", span_fs * 1e-15);
+    return std::nullopt;
   }
   for (const auto& [net, hz] : o.rates)
     if (net != r.inputs[0] && net != r.inputs[1]) {

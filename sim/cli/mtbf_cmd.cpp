@@ -17,6 +17,8 @@
 namespace settle::cli {
 namespace {
 
+constexpr std::uint64_t max_events = 10'000'000;
+
 struct mtbf_cli {
   design_options design;
   std::string element, budget, corner = "typ", json, min_mtbf;
@@ -83,8 +85,10 @@ exit_status run_mtbf(const mtbf_cli& o) {
                   o.min_mtbf);
     return exit_status::error;
   }
-  if (o.events == 0) {
-    spdlog::error("--events must be at least 1");
+  // The events and the resolutions are held in memory: about 200 bytes an event.
+  if (o.events == 0 || o.events > max_events) {
+    spdlog::error("--events {}: from 1 to {} (the events are held in memory)", o.events,
+                  max_events);
     return exit_status::error;
   }
   auto d = load(o.design);
