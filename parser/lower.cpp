@@ -115,6 +115,23 @@ bool simple_arg(const ast::arg& a, ref& out, const reporter& rep) {
   return false;
 }
 
+/// Appends the arguments of `c` to `out`, each a net or a constant; false
+/// (after reporting the first that is not) otherwise.
+bool simple_args(const ast::call& c, std::vector<ref>& out, reporter& rep) {
+  for (auto& a : c.args) {
+    ref r;
+    if (!simple_arg(a, r, rep)) {
+      const char* p = a.label ? a.label->pos : first_pos(a.value);
+      rep.error(
+          p ? rep.loc_of(p) : rep.loc_of(c.kind.pos),
+          fmt::format("arguments of '{}' must be nets or the constants 0 and 1", c.kind.text));
+      return false;
+    }
+    out.push_back(std::move(r));
+  }
+  return true;
+}
+
 bool lower_call(const ast::call& c, gate& out, scope_def& pools, reporter& rep) {
   const auto at = rep.loc_of(c.kind.pos);
   auto k = std::find_if(std::begin(kinds), std::end(kinds),
@@ -146,17 +163,7 @@ bool lower_call(const ast::call& c, gate& out, scope_def& pools, reporter& rep) 
     comp.expr(reset->value);
     return true;
   }
-  for (auto& a : c.args) {
-    ref r;
-    if (!simple_arg(a, r, rep)) {
-      const char* p = a.label ? a.label->pos : first_pos(a.value);
-      rep.error(
-          p ? rep.loc_of(p) : at,
-          fmt::format("arguments of '{}' must be nets or the constants 0 and 1", c.kind.text));
-      return false;
-    }
-    pools.read_pool.push_back(std::move(r));
-  }
+  if (!simple_args(c, pools.read_pool, rep)) return false;
   const char* want = arity_problem(out.kind, n);
   if (want) {
     rep.error(at, fmt::format("'{}' takes {}, found {}", c.kind.text, want, n));
@@ -291,17 +298,7 @@ bool lower_element(const ast::gate_stmt& g, scope_def& scope, reporter& rep) {
     return false;
   }
   std::vector<ref> args;
-  for (auto& a : c.args) {
-    ref r;
-    if (!simple_arg(a, r, rep)) {
-      const char* p = a.label ? a.label->pos : first_pos(a.value);
-      rep.error(
-          p ? rep.loc_of(p) : at,
-          fmt::format("arguments of '{}' must be nets or the constants 0 and 1", c.kind.text));
-      return false;
-    }
-    args.push_back(r);
-  }
+  if (!simple_args(c, args, rep)) return false;
   if (args.size() != 2) {
     rep.error(at, fmt::format("'{}' takes exactly 2 inputs ({}), found {}", c.kind.text,
                               mutex ? "ra, rb" : "d, ck", args.size()));

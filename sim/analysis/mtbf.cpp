@@ -9,24 +9,17 @@
 #include <cmath>
 
 #include "sim/kernel/simulator.hpp"
+#include "sim/model/mix.hpp"
 #include "sim/model/time.hpp"
 
 namespace settle {
 namespace {
 
-// splitmix64's finaliser (Steele, Lea and Flood 2014): the event streams are
-// counter-based, so a seed replays the same events.
-constexpr std::uint64_t mix(std::uint64_t z) {
-  z += 0x9e3779b97f4a7c15ull;
-  z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ull;
-  z = (z ^ (z >> 27)) * 0x94d049bb133111ebull;
-  return z ^ (z >> 31);
-}
-
+// The event streams are counter-based, so a seed replays the same events.
 // An exponential gap of mean 1/rate seconds, in fs, at least 1 fs: draw i of stream s.
 time_fs exponential_gap(std::uint64_t seed, std::uint64_t s, std::uint64_t i, double rate_hz) {
   const std::uint64_t h = mix(mix(seed ^ mix(s)) ^ i);
-  const double u = (static_cast<double>(h >> 11) + 0.5) * 0x1.0p-53;
+  const double u = open_unit(h);
   const double fs = -std::log(u) / rate_hz * 1e15;
   return static_cast<time_fs>(std::max(1.0, std::llround(fs) * 1.0));
 }
@@ -87,18 +80,19 @@ std::optional<mtbf_result> mtbf(const design& d, const mtbf_options& o, std::str
     }
     r.rate_hz[k] = it->second;
     if (!(r.rate_hz[k] >= 1.0 && r.rate_hz[k] <= 1e13)) {
-      error = fmt::format("--rate {}: {:g} Hz is outside 1 Hz .. 10 THz", n.net_name[in],
-                          r.rate_hz[k]);
+      error =
+          fmt::format("--rate {}: {:g} Hz is outside 1 Hz .. 10 THz", n.net_name[in], r.rate_hz[k]);
       return std::nullopt;
     }
   }
   // The simulated span must stay well inside representable time (2^64 fs).
-  const double span_fs = static_cast<double>(o.events) /
-                         (r.mutex ? r.rate_hz[0] + r.rate_hz[1] : r.rate_hz[1]) * 1e15;
+  const double span_fs =
+      static_cast<double>(o.events) / (r.mutex ? r.rate_hz[0] + r.rate_hz[1] : r.rate_hz[1]) * 1e15;
   if (!(span_fs < 1e18)) {
-    error = fmt::format("{} {} at these rates span {:.3g} s of simulated time, past what settle "
-                        "represents (about 1000 s here); lower --events or raise the rates",
-                        o.events, r.mutex ? "requests" : "clock edges", span_fs * 1e-15);
+    error = fmt::format(
+        "{} {} at these rates span {:.3g} s of simulated time, past what settle "
+        "represents (about 1000 s here); lower --events or raise the rates",
+        o.events, r.mutex ? "requests" : "clock edges", span_fs * 1e-15);
     return std::nullopt;
   }
   for (const auto& [net, hz] : o.rates)

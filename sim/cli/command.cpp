@@ -155,6 +155,21 @@ std::optional<design> load(const design_options& o, bool empty_ok, sdf_report* s
   return d;
 }
 
+std::optional<corner> corner_option(const std::string& text) {
+  std::string err;
+  auto c = parse_corner(text, &err);
+  if (!c) spdlog::error("--corner {}: {}", text, err);
+  return c;
+}
+
+bool corner_fits(const design& d, corner& c, const std::string& text) {
+  // A numbered corner must exist; a fixed: one names gates and rules of this design.
+  std::string why = corner_range_error(c, delay_variables(d));
+  if (why.empty()) why = corner_design_error(d, c);
+  if (!why.empty()) spdlog::error("--corner {}: {}", text, why);
+  return why.empty();
+}
+
 bool fits_kernel(const design& d) {
   const auto why = kernel_size_error(d.nets);
   if (why) spdlog::error("{}: {}", d.path, *why);

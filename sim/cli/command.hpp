@@ -9,6 +9,7 @@
 
 #include "parser/load.hpp"
 #include "sim/cli/outputs.hpp"
+#include "sim/model/corner.hpp"
 
 namespace CLI {
 class App;
@@ -88,6 +89,11 @@ std::optional<design> load(const design_options& o, bool empty_ok = false,
 /// (the command then exits 2). The commands that run it ask before they do.
 bool fits_kernel(const design& d);
 
+/// --corner TEXT parsed; nullopt after saying why on stderr (exit 2).
+std::optional<corner> corner_option(const std::string& text);
+/// True when corner `c` (from --corner TEXT) exists for design `d` (its
+/// numbered corners, a fixed: one's names and ranges); otherwise says why.
+bool corner_fits(const design& d, corner& c, const std::string& text);
 /// True when colour may be used on this stream (a terminal, NO_COLOR unset).
 bool use_colour(int fd);
 

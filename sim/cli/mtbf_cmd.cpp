@@ -74,11 +74,8 @@ exit_status run_mtbf(const mtbf_cli& o) {
     spdlog::error("--budget {}: {}", o.budget, err);
     return exit_status::error;
   }
-  auto c = parse_corner(o.corner, &err);
-  if (!c) {
-    spdlog::error("--corner {}: {}", o.corner, err);
-    return exit_status::error;
-  }
+  auto c = corner_option(o.corner);
+  if (!c) return exit_status::error;
   std::optional<double> floor;
   if (!o.min_mtbf.empty() && !(floor = parse_seconds(o.min_mtbf))) {
     spdlog::error("--min-mtbf {}: expected seconds, or a number with s, h, d or y (years)",
@@ -93,12 +90,7 @@ exit_status run_mtbf(const mtbf_cli& o) {
   }
   auto d = load(o.design);
   if (!d || !fits_kernel(*d)) return exit_status::error;
-  std::string why = corner_range_error(*c, delay_variables(*d));
-  if (why.empty()) why = corner_design_error(*d, *c);
-  if (!why.empty()) {
-    spdlog::error("--corner {}: {}", o.corner, why);
-    return exit_status::error;
-  }
+  if (!corner_fits(*d, *c, o.corner)) return exit_status::error;
   mtbf_options mo;
   mo.element = o.element;
   mo.budget = *budget;

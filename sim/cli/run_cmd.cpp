@@ -169,24 +169,15 @@ exit_status run_run(const run_cli_options& o) {
     uses.push_back({path_use::kind::output, opt, *path, ""});
   if (!check_paths(uses)) return exit_status::error;
   std::string err;
-  auto c = parse_corner(o.corner, &err);
-  if (!c) {
-    spdlog::error("--corner {}: {}", o.corner, err);
-    return exit_status::error;
-  }
+  auto c = corner_option(o.corner);
+  if (!c) return exit_status::error;
   run_options ro;
   ro.max_events = o.max_events;
   ro.allow_x = o.allow_x;
   if (!parse_horizon_option(o.horizon, ro.horizon)) return exit_status::error;
   auto d = load(o.design);
   if (!d || !fits_kernel(*d)) return exit_status::error;
-  // A numbered corner must exist; a fixed: one names gates and rules of this design.
-  std::string why = corner_range_error(*c, delay_variables(*d));
-  if (why.empty()) why = corner_design_error(*d, *c);
-  if (!why.empty()) {
-    spdlog::error("--corner {}: {}", o.corner, why);
-    return exit_status::error;
-  }
+  if (!corner_fits(*d, *c, o.corner)) return exit_status::error;
 
   delay_table delays;
   fill_delays(*d, *c, delays);

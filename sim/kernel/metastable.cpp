@@ -8,22 +8,10 @@
 #include <cmath>
 
 #include "sim/kernel/simulator.hpp"
+#include "sim/model/mix.hpp"
 
 namespace settle {
-namespace {
-
-// splitmix64's finaliser (Steele, Lea and Flood 2014).
-constexpr std::uint64_t mix(std::uint64_t z) {
-  z += 0x9e3779b97f4a7c15ull;
-  z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ull;
-  z = (z ^ (z >> 27)) * 0x94d049bb133111ebull;
-  return z ^ (z >> 31);
-}
-
-// A double strictly inside (0, 1) from 53 bits of h.
-double open_unit(std::uint64_t h) { return (static_cast<double>(h >> 11) + 0.5) * 0x1.0p-53; }
-
-}  // namespace
+namespace {}  // namespace
 
 // tau x ln(reach / gap) in fs, for 0 < gap < reach; 0 otherwise.
 time_fs simulator::resolve_extra(std::uint32_t element, double reach, double gap) const {

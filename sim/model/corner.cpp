@@ -7,17 +7,10 @@
 #include <cmath>
 
 #include "sim/model/fixed_corner.hpp"
+#include "sim/model/mix.hpp"
 
 namespace settle {
 namespace {
-
-// splitmix64's finaliser: a strong 64-bit mixer (Steele, Lea and Flood 2014).
-constexpr std::uint64_t mix(std::uint64_t z) {
-  z += 0x9e3779b97f4a7c15ull;
-  z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ull;
-  z = (z ^ (z >> 27)) * 0x94d049bb133111ebull;
-  return z ^ (z >> 31);
-}
 
 // A draw that depends on (seed, corner index, gate, edge, stream) alone: the
 // corner's key, mix(mix(seed) ^ index), is worked out once per corner.
@@ -34,12 +27,10 @@ time_fs uniform(std::uint64_t h, time_fs lo, time_fs hi) {
   return lo + static_cast<time_fs>((static_cast<unsigned __int128>(h) * span) >> 64);
 }
 
-double unit(std::uint64_t h) { return (static_cast<double>(h >> 11) + 0.5) * 0x1.0p-53; }
-
 // Truncated normal: mean typ, sigma (max - min) / 6, clipped to the range.
 time_fs gaussian(std::uint64_t h1, std::uint64_t h2, const delay_range& r) {
   if (r.max == r.min) return r.min;
-  const double z = std::sqrt(-2.0 * std::log(unit(h1))) * std::cos(2 * M_PI * unit(h2));
+  const double z = std::sqrt(-2.0 * std::log(open_unit(h1))) * std::cos(2 * M_PI * open_unit(h2));
   const double v = static_cast<double>(r.typ) + z * static_cast<double>(r.max - r.min) / 6.0;
   if (v <= static_cast<double>(r.min)) return r.min;
   if (v >= static_cast<double>(r.max)) return r.max;

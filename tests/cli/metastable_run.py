@@ -428,32 +428,25 @@ for name, text, at, message in bad:
 # --- syncff, a change at the edge's instant reaching D or CK through a gate of zero delay -------
 # An instant may evaluate the flip-flop twice: the change is still at the edge, so a tie drawn
 # from the corner's stream, the same whichever of D and CK arrives later in the instant.
-late_clock = write_file(tmp, "late_clock.settle", """input d, ck0
+def late_design(name, late):
+    """A syncff whose `late` input (d or clk) comes through a buffer of zero delay."""
+    other = "clk" if late == "d" else "d"
+    return write_file(tmp, name, f"""input x, {other}
 output q
-wire clk
-clk = buf(ck0) delay 0ps
+wire {late}
+{late} = buf(x) delay 0ps
 q = syncff(d, clk) delay 50ps tau 20ps window 10ps
 init q = 0
-stimulus {
-  at 0ns d = 0, ck0 = 0
+stimulus {{
+  at 0ns x = 0, {other} = 0
   settle
-  at 1ns d = 1, ck0 = 1
+  at 1ns x = 1, {other} = 1
   settle
-}
+}}
 """)
-late_data = write_file(tmp, "late_data.settle", """input x, clk
-output q
-wire d
-d = buf(x) delay 0ps
-q = syncff(d, clk) delay 50ps tau 20ps window 10ps
-init q = 0
-stimulus {
-  at 0ns x = 0, clk = 0
-  settle
-  at 1ns x = 1, clk = 1
-  settle
-}
-""")
+
+
+late_clock, late_data = late_design("late_clock.settle", "clk"), late_design("late_data.settle", "d")
 for i in range(20):
     got = []
     for design in (late_clock, late_data):
