@@ -479,9 +479,11 @@ bool looks_like_gate(std::string_view piece) {
   if (i == n || piece[i] != '=') return false;
   // A metastable element goes through the visitor, which lowers its gates together.
   for (++i; i < n && blank(piece[i]);) ++i;
-  const auto kind = piece.substr(i, piece.find('(', i) - i);
-  return kind.substr(0, kind.find_last_not_of(" \t") + 1) != "mutex" &&
-         kind.substr(0, kind.find_last_not_of(" \t") + 1) != "syncff";
+  if (i == n || (piece[i] != 'm' && piece[i] != 's')) return true;  // the common case, at once
+  std::size_t e = i;
+  while (e < n && lexical::ident_char(piece[e])) ++e;
+  const auto kind = piece.substr(i, e - i);
+  return kind != "mutex" && kind != "syncff";
 }
 
 /// Calls `each(piece)` for every statement of `text`, in order: each line up

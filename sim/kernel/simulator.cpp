@@ -58,6 +58,7 @@ simulator::simulator(const netlist& n)
     }
   arcs_ = !n.arcs.empty();
   meta_ = !n.meta.empty();
+  stamped_ = arcs_ || meta_;
   set_watchers();
   for (gate_id g = 0; g < gates && arcs_; ++g)  // off the table paths, whose delay is the gate's
     if (n.has_arcs(g) && gate_[g].op < lut_rows) gate_[g].op = gate_rec::general;
@@ -198,7 +199,7 @@ void simulator::reset(const delay_table& delays) {
     }
     if (arcs_ && n_.has_arcs(g)) gate_[g].shorter |= arc_bit;  // delay_of asks arc_delay_of
   }
-  if (arcs_ || meta_) changed_at_.assign(n_.net_count(), std::numeric_limits<time_fs>::max());
+  if (stamped_) changed_at_.assign(n_.net_count(), std::numeric_limits<time_fs>::max());
   if (arcs_) {
     SETTLE_CHECK(delays.arc_rise.size() == n_.arcs.size(), "the delay table has every arc's delay");
     arc_rise_ = delays.arc_rise;
@@ -311,7 +312,12 @@ SETTLE_HOT void simulator::change_value(net_id net, logic v, time_fs t) {
   // One test for the three things a change may have to tell (set_watchers).
   if (!Plain && watched_) [[unlikely]] {
     if (tracking_) hash_ ^= value_key(net, val_[net]) ^ value_key(net, v);
-    if (arcs_ || meta_) changed_at_[net] = t;
+    if (stamped_) {
+      changed_at_[net] = t;
+      // A mutex's grant rising is a resolution of its element (a syncff's
+      // are logged where decided: the value taken may equal the one held).
+      if (meta_ && v == logic::one) note_grant(net, t);
+    }
     if (sink_) {
       trace_.push_back({t, net, v});
       if (trace_.size() >= trace_batch) flush_trace();
@@ -337,13 +343,6 @@ template <bool Plain>
 SETTLE_HOT std::span<const simulator::fan_entry> simulator::change_output(gate_id g, gate_rec& r,
                                                                           logic v, time_fs t) {
   change_value<Plain>(r.out, v, t);
-  // A mutex's grant rising is a resolution of its element (a syncff's are
-  // logged where decided, since the value taken may equal the one held).
-  if (!Plain && meta_ && v == logic::one && n_.kind[g] == gate_kind::mutex) [[unlikely]] {
-    resolution why = meta_gate_[g].why;
-    why.at = t;
-    resolutions_.push_back(why);
-  }
   r.vout = v;
   ++r.toggles;
   return fanout_of(g, r);
@@ -438,7 +437,8 @@ SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
       return;
     }
   }
-  if (!Plain && meta_) [[unlikely]]
+  // Metastable elements are off the table rows (build_fast_paths).
+  if (!Plain && r.op == gate_rec::general && meta_) [[unlikely]]
     if (is_metastable(n_.kind[g])) return evaluate_meta(g, t);
   const logic present = r.vout;
   const logic v = eval_fast(g, present);
@@ -456,6 +456,14 @@ SETTLE_HOT void simulator::evaluate(gate_id g, time_fs t) {
   auto& q = tq_[slot_[g]];
   const logic projected = q.empty() ? present : q.back().value;
   if (v != projected) schedule<false>(g, v, t + delay_of<false>(g, projected, v));
+}
+
+void simulator::note_grant(net_id net, time_fs t) {
+  const gate_id g = n_.driver[net];
+  if (g == no_id || n_.kind[g] != gate_kind::mutex || val_[net] == logic::one) return;
+  resolution why = meta_gate_[g].why;
+  why.at = t;
+  resolutions_.push_back(why);
 }
 
 time_fs simulator::edge_delay(gate_id g, logic from, logic to) const {

@@ -227,6 +227,8 @@ class simulator {
   // Metastable elements (netlist::meta, the model of meta_element): changes
   // are timed as for arcs; per gate what evaluate_meta decided last.
   bool meta_ = false;
+  bool stamped_ = false;                   // arcs_ || meta_: changes are timed (changed_at_)
+  void note_grant(net_id net, time_fs t);  // a mutex grant about to rise: its resolution
   struct meta_gate {
     time_fs due = 0;                    // the absolute time of the pending change
     resolution why;                     // mutex: how the pending grant was decided
