@@ -1611,13 +1611,15 @@ class reader {
           }
           // The path's delay is the output gate's, on its arcs from the nets
           // the path runs through; the gates between take none.
-          for (auto [h, net] : between) {
+          for (const auto& [h, read] : between) {
+            const std::string_view net = read;  // a lambda cannot capture a binding (C++17)
             auto& arcs = per_gate[h];
             if (std::none_of(arcs.begin(), arcs.end(),
                              [&](auto& a) { return a.first.from.name == net; }))
               arcs.push_back({ir::arc{ref_of(net, p.loc), gate_delay{}}, {}});
           }
-          for (auto [h, net] : at) {
+          for (const auto& [h, read] : at) {
+            const std::string_view net = read;
             auto& arcs = per_gate[h];
             auto it = std::find_if(arcs.begin(), arcs.end(),
                                    [&](auto& a) { return a.first.from.name == net; });
