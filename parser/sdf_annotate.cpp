@@ -7,6 +7,7 @@
 
 #include <algorithm>
 #include <unordered_map>
+#include <unordered_set>
 
 #include "parser/sdf.hpp"
 #include "sim/model/time.hpp"
@@ -205,7 +206,7 @@ class annotator {
             std::vector<std::uint32_t>& between) {
     auto inside = [&](gate_id h) { return within(scope_of_gate(h), s); };
     // forward from `in` through the cell's gates (not past g), backward from g
-    std::unordered_map<net_id, bool> ahead{{in, true}};
+    std::unordered_set<net_id> ahead{in};
     std::vector<net_id> work{in};
     while (!work.empty()) {
       const net_id k = work.back();
@@ -213,10 +214,10 @@ class annotator {
       for (auto i = n_.fanout_begin[k]; i < n_.fanout_begin[k + 1]; ++i) {
         const gate_id h = n_.fanout[i];
         if (h == g || !inside(h)) continue;
-        if (ahead.emplace(n_.gate_out[h], true).second) work.push_back(n_.gate_out[h]);
+        if (ahead.insert(n_.gate_out[h]).second) work.push_back(n_.gate_out[h]);
       }
     }
-    std::unordered_map<gate_id, bool> behind{{g, true}};
+    std::unordered_set<gate_id> behind{g};
     std::vector<gate_id> gates{g};
     while (!gates.empty()) {
       const gate_id h = gates.back();
@@ -229,7 +230,7 @@ class annotator {
         else
           between.push_back(i);
         const gate_id d = k > netlist::const1 ? n_.driver[k] : no_id;
-        if (d != no_id && inside(d) && behind.emplace(d, true).second) gates.push_back(d);
+        if (d != no_id && inside(d) && behind.insert(d).second) gates.push_back(d);
       }
     }
     std::sort(at.begin(), at.end());
