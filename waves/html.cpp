@@ -316,6 +316,11 @@ std::string html_report_margin(const design& d, const margin_result& r, const ru
   return page(p);
 }
 
+std::string html_report_mtbf(const design& d, const html_source& src) {
+  auto p = start(d, {}, src);
+  return page(p);
+}
+
 std::string html_report_explore(const design& d, const explore_result& r, const html_source& src) {
   auto p = start(d, r.reported, src);
   p.root["state_order"] =

@@ -25,7 +25,7 @@ inline constexpr std::uint64_t html_graph_limit = 60;
 
 /// What every report states about where it came from.
 struct html_source {
-  std::string command;        ///< "run", "sweep", "margin" or "explore"
+  std::string command;        ///< "run", "sweep", "margin", "explore" or "mtbf"
   const report_json& result;  ///< the command's JSON report (json.hpp), embedded as it is
   std::string invocation;     ///< the command line; empty: read from /proc/self/cmdline
 };
@@ -48,6 +48,10 @@ std::string html_report_margin(const design& d, const margin_result& r, const ru
 /// `settle explore`: reachable stable states per step and, for graphs of at
 /// most html_graph_limit states kept in `r`, the state graph in layers.
 std::string html_report_explore(const design& d, const explore_result& r, const html_source& src);
+
+/// `settle mtbf`: the MTBF figures of the JSON report `src.result` (typ and
+/// worst, a plot of MTBF against the budget) and their check by simulation.
+std::string html_report_mtbf(const design& d, const html_source& src);
 
 /// The command line of this process, shell-quoted ("settle sweep a.settle ...").
 std::string html_invocation();

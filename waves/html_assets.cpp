@@ -488,6 +488,10 @@ const char* const html_script = R"SETTLE((function () {
         })));
       var ob = owedBlock(st.owed);
       if (ob) body.appendChild(ob);
+      if (st.resolutions && st.resolutions.length) {
+        body.appendChild(el('h3', { text: 'metastable resolutions' }));
+        body.appendChild(resolutionTable(st.resolutions));
+      }
       var w = (D.waves || []).filter(function (x) { return x.step === st.index; })[0];
       if (w) body.appendChild(wavePanel(w, D.nets));
       sec.appendChild(body);
@@ -641,6 +645,111 @@ const char* const html_script = R"SETTLE((function () {
     });
   }
 
+  // ---- metastable elements: resolutions of a run, per-element figures of a sweep, the MTBF page
+  function resolutionTable(list) {
+    return table(['element', 'output', 'first event', 'gap (\u0394 or \u03b4)', 'drawn', 'value', 'resolution'], list.map(function (r) {
+      var gap = r.delta_fs !== undefined ? r.delta_fs : r.lead_fs;
+      return [el('code', { text: r.element }), el('code', { text: r.output }), fmtTime(r.first_fs),
+        gap === null || gap === undefined ? 'outside the window' : (gap < 0 ? '-' + fmtTime(-gap) : fmtTime(gap)),
+        r.drawn ? 'yes' : '', r.value, fmtTime(r.resolution_fs)];
+    }));
+  }
+  function elementsPart(target, R) {
+    var els = R.elements || [];
+    if (!els.length) return;
+    var sec = el('section', { cls: 'step meta-elements', 'data-elements': els.length });
+    var over = 0;
+    els.forEach(function (e) { (e.budgets || []).forEach(function (b) { over += b.exceeded; }); });
+    sec.appendChild(banner(over ? 'v-nondeterministic' : 's-settled', over ? 'slow' : 'within', 'metastable elements',
+      els.length + ' element' + (els.length === 1 ? '' : 's') + ' \u00b7 ' + R.corners + ' corners'));
+    var body = el('div', { cls: 'body' });
+    body.appendChild(table(['element', 'kind', 'resolutions', 'inside the window', 'drawn ties', 'longest (witness)'], els.map(function (e) {
+      return [el('code', { text: e.element }), e.kind, e.resolutions, e.inside_window, e.drawn,
+        e.resolutions ? fmtTime(e.longest_fs) + ' (' + e.witness + ')' : '-'];
+    })));
+    var rows = [];
+    els.forEach(function (e) {
+      (e.budgets || []).forEach(function (b) {
+        rows.push([el('code', { text: e.element }), fmtTime(b.within_fs), b.exceeded,
+          (100 * b.share).toPrecision(3) + '% (' + (100 * b.share_ci95[0]).toPrecision(3) + ' \u2026 ' + (100 * b.share_ci95[1]).toPrecision(3) + '%)',
+          (100 * b.model_share).toPrecision(3) + '%']);
+      });
+    });
+    if (rows.length) {
+      body.appendChild(el('h3', { text: 'resolves within: corners over the budget, against the model' }));
+      body.appendChild(table(['element', 'budget', 'corners over it', 'share (95% Wilson interval)', 'model share'], rows));
+    }
+    sec.appendChild(body);
+    target.appendChild(sec);
+  }
+  function secondsText(s) {
+    if (s === null || s === undefined) return 'unbounded';
+    return s.toPrecision(3) + ' s (' + (s / 31557600).toPrecision(3) + ' years)';
+  }
+  // log10 of the MTBF against the budget is a straight line: t / (tau ln 10) - log10(k W f1 f2).
+  function mtbfPlot(R) {
+    var f = Object.keys(R.rates_hz).map(function (k) { return R.rates_hz[k]; });
+    var k = R.kind === 'mutex' ? 2 : 1, T = Math.max(R.budget_fs * 2, 1);
+    function line(tau, w) {
+      return function (t) { return tau ? t / (tau * Math.LN10) - Math.log10(k * w * 1e-15 * f[0] * f[1]) : Infinity; };
+    }
+    var typ = line(R.tau_fs[1], R.window_fs[1]), worst = line(R.mtbf.worst_tau_fs, R.mtbf.worst_window_fs);
+    var S = R.simulation, ys = [typ(0), typ(T), worst(0), worst(T)].filter(isFinite);
+    if (S.failures) ys.push(-Math.log10(S.interval_hz[1]), -Math.log10(S.interval_hz[0]));
+    if (!ys.length) return null;
+    var lo = Math.floor(Math.min.apply(null, ys)), hi = Math.ceil(Math.max.apply(null, ys));
+    if (hi === lo) hi = lo + 1;
+    var W = 560, H = 220, L = 56, B = 30;
+    var x = function (t) { return L + t / T * (W - L - 12); }, y = function (v) { return H - B - (v - lo) / (hi - lo) * (H - B - 12); };
+    var svg = sv('svg', { 'class': 'mtbf-plot', width: W, height: H, viewBox: '0 0 ' + W + ' ' + H });
+    sv('line', { x1: L, y1: H - B, x2: W - 12, y2: H - B, stroke: '#22313f' }, svg);
+    sv('line', { x1: L, y1: 12, x2: L, y2: H - B, stroke: '#22313f' }, svg);
+    for (var v = lo; v <= hi; v += Math.max(1, Math.round((hi - lo) / 6)))
+      sv('text', { x: L - 6, y: y(v) + 4, 'text-anchor': 'end', text: '1e' + v + ' s' }, svg);
+    sv('text', { x: L, y: H - 8, text: '0' }, svg);
+    sv('text', { x: W - 12, y: H - 8, 'text-anchor': 'end', text: fmtTime(T) }, svg);
+    sv('text', { x: (L + W) / 2, y: H - 8, 'text-anchor': 'middle', text: 'budget beyond D' }, svg);
+    [[typ, '#0f7b6c', 'typ'], [worst, '#c8553d', 'worst']].forEach(function (c) {
+      if (!isFinite(c[0](0))) return;
+      var p = sv('line', { x1: x(0), y1: y(c[0](0)), x2: x(T), y2: y(c[0](T)), stroke: c[1], 'stroke-width': 2, 'class': 'mtbf-' + c[2] }, svg);
+      p.appendChild(sv('title', { text: c[2] + ': MTBF from the formula' }));
+    });
+    sv('line', { x1: x(R.budget_fs), y1: 12, x2: x(R.budget_fs), y2: H - B, stroke: '#888', 'stroke-dasharray': '4 3' }, svg);
+    if (S.failures) {
+      var bx = x(R.budget_fs);
+      sv('line', { x1: bx, y1: y(-Math.log10(S.interval_hz[1])), x2: bx, y2: y(-Math.log10(S.interval_hz[0])), stroke: '#22313f', 'stroke-width': 3 }, svg);
+      var c = sv('circle', { cx: bx, cy: y(-Math.log10(S.observed_rate_hz)), r: 5, fill: '#22313f', 'class': 'mtbf-simulated' }, svg);
+      c.appendChild(sv('title', { text: 'simulated: ' + S.failures + ' failures, 95% interval' }));
+    }
+    return svg;
+  }
+  function mtbfPart(target, R) {
+    var S = R.simulation || {};
+    var sec = el('section', { cls: 'step mtbf', 'data-agrees': S.agrees ? '1' : '0' });
+    var word = R.min_mtbf_s !== undefined ? (R.pass ? 'pass' : 'fail') : (S.agrees ? 'agree' : 'disagree');
+    sec.appendChild(banner(R.pass && S.agrees ? 's-settled' : 'v-nondeterministic', word, R.element + ' (' + R.kind + ')',
+      'budget ' + fmtTime(R.budget_fs) + ' beyond the element\'s delay'));
+    var body = el('div', { cls: 'body' });
+    body.appendChild(el('div', { cls: 'figure', 'data-mtbf-worst': R.mtbf.worst_s === null ? 'inf' : R.mtbf.worst_s },
+      [secondsText(R.mtbf.worst_s), el('small', { text: 'worst MTBF (tau ' + fmtTime(R.mtbf.worst_tau_fs) + ', window ' + fmtTime(R.mtbf.worst_window_fs) + ')' })]));
+    body.appendChild(el('p', { text: 'typ MTBF ' + secondsText(R.mtbf.typ_s) + (R.min_mtbf_s !== undefined ? ' \u00b7 required at least ' + secondsText(R.min_mtbf_s) : '') }));
+    var plot = mtbfPlot(R);
+    if (plot) body.appendChild(plot);
+    body.appendChild(el('h3', { text: 'parameters' }));
+    body.appendChild(table(['', 'min', 'typ', 'max'], [['tau'].concat(R.tau_fs.map(fmtTime)), ['window'].concat(R.window_fs.map(fmtTime))]));
+    body.appendChild(table(['input', 'rate'], Object.keys(R.rates_hz).map(function (n) {
+      return [el('code', { text: n }), (R.rates_hz[n] / 1e6).toPrecision(4) + ' MHz'];
+    })));
+    body.appendChild(el('h3', { text: 'check by simulation (corner ' + S.corner + ', seed ' + S.seed + ')' }));
+    body.appendChild(table(['D', 'tau', 'window', 'events', 'simulated time', 'resolutions', 'longer than D + budget'], [[
+      fmtTime(S.delay_fs), fmtTime(S.tau_fs), fmtTime(S.window_fs), S.events, S.duration_s.toPrecision(4) + ' s', S.resolutions, S.failures]]));
+    body.appendChild(table(['failure rate observed', '95% interval', 'formula', ''], [[
+      S.observed_rate_hz.toPrecision(4) + '/s', S.interval_hz[0].toPrecision(4) + ' \u2026 ' + S.interval_hz[1].toPrecision(4) + '/s',
+      S.formula_rate_hz.toPrecision(4) + '/s', el('span', { cls: S.agrees ? 'pass' : 'fail', text: S.agrees ? 'agree' : 'DISAGREE' })]]));
+    sec.appendChild(body);
+    target.appendChild(sec);
+  }
+
   function render() {
     var D = JSON.parse(document.getElementById('settle-data').textContent);
     var R = D.result || {};
@@ -650,7 +759,8 @@ const char* const html_script = R"SETTLE((function () {
     var head = el('header', { cls: 'head' });
     head.appendChild(el('h1', {}, [el('span', { cls: 'kind', text: D.kind }), D.design]));
     head.appendChild(el('code', { cls: 'cmd', text: D.invocation }));
-    var facts = 'settle ' + D.version + ' \u00b7 ' + D.gates + ' gates \u00b7 ' + D.net_count + ' nets \u00b7 reported: ' + D.nets.join(', ');
+    var facts = 'settle ' + D.version + ' \u00b7 ' + D.gates + ' gates \u00b7 ' + D.net_count + ' nets';
+    if (D.nets.length) facts += ' \u00b7 reported: ' + D.nets.join(', ');
     if (R.corner) facts += ' \u00b7 corner ' + R.corner;
     if (R.corners !== undefined) facts += ' \u00b7 ' + R.corners + ' corners (' + R.spec + ', seed ' + R.seed + ')';
     if (R.model) facts += ' \u00b7 model ' + R.model;
@@ -658,10 +768,11 @@ const char* const html_script = R"SETTLE((function () {
     head.appendChild(el('div', { cls: 'facts', text: facts }));
     root.appendChild(head);
     (D.notes || []).concat(R.notes || []).forEach(function (n) { root.appendChild(el('div', { cls: 'note', text: n })); });
-    if (D.kind === 'sweep') { sweepSteps(root, R.steps || [], R.corners, D); closedLoopPart(root, R, R.corners); }
+    if (D.kind === 'sweep') { sweepSteps(root, R.steps || [], R.corners, D); closedLoopPart(root, R, R.corners); elementsPart(root, R); }
     else if (D.kind === 'run') { runSteps(root, R, D); closedLoopPart(root, R, undefined); }
     else if (D.kind === 'margin') marginPart(root, R, D);
     else if (D.kind === 'explore') exploreSteps(root, R, D);
+    else if (D.kind === 'mtbf') mtbfPart(root, R);
     var panels = document.querySelectorAll('.wave');
     for (var i = 0; i < panels.length; ++i) panels[i]._draw();
     window.addEventListener('resize', function () { for (var i = 0; i < panels.length; ++i) panels[i]._draw(); });

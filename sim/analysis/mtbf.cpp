@@ -24,10 +24,105 @@ time_fs exponential_gap(std::uint64_t seed, std::uint64_t s, std::uint64_t i, do
   return static_cast<time_fs>(std::max(1.0, std::llround(fs) * 1.0));
 }
 
-struct input_event {
-  time_fs time;
-  net_id net;
-  logic value;
+// One input's events in time order, made as the simulation reaches them so
+// that memory does not grow with the number of events.
+class event_stream {
+ public:
+  // Random requests of `rate_hz` (stream `s` of the seed) on `net` until
+  // `end`: each holds for `hold`; an arrival while a request stands, or
+  // within `rest` after it, joins it.
+  static event_stream requests(net_id net, std::uint64_t seed, std::uint64_t s, double rate_hz,
+                               time_fs end, time_fs hold, time_fs rest) {
+    event_stream e(kind::requests, net);
+    e.seed_ = seed, e.s_ = s, e.rate_ = rate_hz, e.end_ = end, e.hold_ = hold, e.rest_ = rest;
+    e.arrive();
+    return e;
+  }
+  // A clock of `period`, low in the first half, for `edges` rising edges.
+  static event_stream clock(net_id net, time_fs period, std::uint64_t edges) {
+    event_stream e(kind::clock, net);
+    e.hold_ = period, e.edges_ = edges;
+    e.at_ = period / 2, e.value_ = logic::one;
+    e.done_ = edges == 0;
+    return e;
+  }
+  // Toggles of `net` at random times of `rate_hz` (stream `s`) until `end`.
+  static event_stream toggles(net_id net, std::uint64_t seed, std::uint64_t s, double rate_hz,
+                              time_fs end) {
+    event_stream e(kind::toggles, net);
+    e.seed_ = seed, e.s_ = s, e.rate_ = rate_hz, e.end_ = end;
+    e.value_ = logic::zero;
+    e.toggle();
+    return e;
+  }
+
+  bool done() const { return done_; }
+  time_fs time() const { return at_; }
+  assignment event() const { return {net_, value_}; }
+  std::uint64_t made() const { return made_; }  // requests made, or edges, or toggles
+
+  void advance() {
+    switch (kind_) {
+      case kind::requests:
+        if (value_ == logic::one) {
+          value_ = logic::zero;
+          at_ = arrival_ + hold_;
+          free_ = at_ + rest_;
+        } else {
+          arrive();
+        }
+        break;
+      case kind::clock:
+        if (value_ == logic::one) {
+          value_ = logic::zero;
+          at_ += hold_ - hold_ / 2;
+        } else if (++made_ == edges_) {
+          done_ = true;
+        } else {
+          value_ = logic::one;
+          at_ += hold_ / 2;
+        }
+        break;
+      case kind::toggles:
+        toggle();
+        break;
+    }
+  }
+
+ private:
+  enum class kind { requests, clock, toggles };
+  event_stream(kind k, net_id net) : kind_(k), net_(net) {}
+
+  time_fs gap() { return exponential_gap(seed_, s_, i_++, rate_); }
+  void arrive() {
+    do {
+      arrival_ += gap();
+      if (arrival_ >= end_) {
+        done_ = true;
+        return;
+      }
+    } while (arrival_ < free_);
+    at_ = arrival_, value_ = logic::one;
+    ++made_;
+  }
+  void toggle() {
+    arrival_ += gap();
+    if (arrival_ >= end_) {
+      done_ = true;
+      return;
+    }
+    at_ = arrival_;
+    value_ = value_ == logic::zero ? logic::one : logic::zero;
+    ++made_;
+  }
+
+  kind kind_;
+  net_id net_;
+  logic value_ = logic::zero;
+  bool done_ = false;
+  time_fs at_ = 0, arrival_ = 0, free_ = 0, end_ = 0, hold_ = 0, rest_ = 0;
+  std::uint64_t seed_ = 0, s_ = 0, i_ = 0, edges_ = 0, made_ = 0;
+  double rate_ = 0;
 };
 
 // The exact (Garwood) 95% interval of a Poisson count k, as rates over `duration_s`.
@@ -129,74 +224,71 @@ std::optional<mtbf_result> mtbf(const design& d, const mtbf_options& o, std::str
       r.delay + static_cast<time_fs>(
                     std::llround(static_cast<double>(r.sim_tau) *
                                  std::log(std::max(2.0, static_cast<double>(r.sim_window)))));
-  std::vector<input_event> events;
-  double counted[2] = {0, 0};  // mutex: the requests actually made, per stream
+  std::vector<event_stream> streams;
   if (r.mutex) {
     // Independent random request streams; a request holds until its grant
     // must have come and gone, and an arrival while its request still stands
     // (or just after) joins it.
     const time_fs hold = 2 * longest + r.delay;
     const time_fs end = static_cast<time_fs>(static_cast<double>(o.events) / (f1 + f2) * 1e15);
-    for (int k = 0; k < 2; ++k) {
-      time_fs at = 0, free = 0;
-      for (std::uint64_t i = 0;; ++i) {
-        at += exponential_gap(o.seed, static_cast<std::uint64_t>(k), i, r.rate_hz[k]);
-        if (at >= end) break;
-        if (at < free) continue;
-        events.push_back({at, r.inputs[k], logic::one});
-        events.push_back({at + hold, r.inputs[k], logic::zero});
-        free = at + hold + 2 * r.delay;
-        counted[k] += 1;
-      }
-    }
-    r.events = static_cast<std::uint64_t>(counted[0] + counted[1]);
+    for (std::uint64_t k = 0; k < 2; ++k)
+      streams.push_back(
+          event_stream::requests(r.inputs[k], o.seed, k, r.rate_hz[k], end, hold, 2 * r.delay));
     r.duration_s = static_cast<double>(end) * 1e-15;
   } else {
-    // A periodic clock (half high) and data toggling at random times.
+    // A periodic clock (low, then high for the second half) and data
+    // toggling at random times.
     const time_fs period = static_cast<time_fs>(std::llround(1e15 / f2));
-    const time_fs end = period * o.events;
-    for (std::uint64_t k = 0; k < o.events; ++k) {
-      events.push_back({k * period + period / 2, r.inputs[1], logic::one});
-      events.push_back({(k + 1) * period, r.inputs[1], logic::zero});
-    }
-    time_fs at = 0;
-    logic v = logic::zero;
-    for (std::uint64_t i = 0;; ++i) {
-      at += exponential_gap(o.seed, 7, i, f1);
-      if (at >= end) break;
-      v = v == logic::zero ? logic::one : logic::zero;
-      events.push_back({at, r.inputs[0], v});
-    }
+    streams.push_back(event_stream::clock(r.inputs[1], period, o.events));
+    streams.push_back(event_stream::toggles(r.inputs[0], o.seed, 7, f1, period * o.events));
     r.events = o.events;
     r.duration_s = static_cast<double>(period * o.events) * 1e-15;
   }
-  std::stable_sort(events.begin(), events.end(),
-                   [](const input_event& a, const input_event& b) { return a.time < b.time; });
 
   simulator sim(n);
   sim.reset(delays);
   std::vector<assignment> now;
   for (net_id in : n.inputs) now.push_back({in, logic::zero});
   sim.process_instant(0, now);
-  for (std::size_t i = 0; i < events.size();) {
-    const time_fs at = std::max<time_fs>(events[i].time, 1);
+  const time_fs limit = r.delay + o.budget;
+  // Counts the first k resolutions and forgets them.
+  auto count = [&](std::size_t k) {
+    const auto& log = sim.resolutions();
+    for (std::size_t i = 0; i < k; ++i) {
+      if (n.meta_of(log[i].gate) != m) continue;
+      ++r.resolutions;
+      if (log[i].time() > limit) ++r.failures;
+    }
+    sim.drop_resolutions(k);
+  };
+  // The streams merged in time order; events of one instant are applied
+  // together, in stream order.
+  auto earliest = [&] {
+    time_fs at = time_last;
+    for (const event_stream& s : streams)
+      if (!s.done()) at = std::min(at, std::max<time_fs>(s.time(), 1));
+    return at;
+  };
+  for (time_fs at = earliest(); at != time_last; at = earliest()) {
     sim.run_quiet(at - 1, 0, 0);
     now.clear();
-    for (; i < events.size() && std::max<time_fs>(events[i].time, 1) == at; ++i)
-      now.push_back({events[i].net, events[i].value});
+    for (event_stream& s : streams)
+      while (!s.done() && std::max<time_fs>(s.time(), 1) == at) {
+        now.push_back(s.event());
+        s.advance();
+      }
     sim.process_instant(at, now);
+    if (sim.resolutions().size() >= 4096) count(sim.final_resolutions());
   }
   sim.run_quiet(time_last, 0, 0);
-  const time_fs limit = r.delay + o.budget;
-  for (const auto& res : sim.resolutions()) {
-    if (n.meta_of(res.gate) != m) continue;
-    ++r.resolutions;
-    if (res.time() > limit) ++r.failures;
-  }
+  count(sim.resolutions().size());
+  if (r.mutex) r.events = streams[0].made() + streams[1].made();
   r.observed_hz = static_cast<double>(r.failures) / r.duration_s;
   poisson_interval(r.failures, r.duration_s, r.low_hz, r.high_hz);
-  const double g1 = r.mutex ? counted[0] / r.duration_s : f1;
-  const double g2 = r.mutex ? counted[1] / r.duration_s : f2;
+  // A mutex's requests that joined a standing one were never made: the
+  // formula takes the rates of those made.
+  const double g1 = r.mutex ? static_cast<double>(streams[0].made()) / r.duration_s : f1;
+  const double g2 = r.mutex ? static_cast<double>(streams[1].made()) / r.duration_s : f2;
   r.formula_hz = tau_s == 0 ? 0.0 : failure_rate(r.mutex, g1, g2, tau_s, window_s, t);
   return r;
 }

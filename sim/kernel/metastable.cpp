@@ -5,13 +5,13 @@
 // events a gap apart inside the window W resolve tau x ln(W / gap) later
 // than the element's normal delay D. The logarithm is evaluated once per
 // event in double precision and rounded to the nearest femtosecond.
+#include <algorithm>
 #include <cmath>
 
 #include "sim/kernel/simulator.hpp"
 #include "sim/model/mix.hpp"
 
 namespace settle {
-namespace {}  // namespace
 
 // tau x ln(reach / gap) in fs, for 0 < gap < reach; 0 otherwise.
 time_fs simulator::resolve_extra(std::uint32_t element, double reach, double gap) const {
@@ -158,6 +158,27 @@ logic simulator::decide_syncff(gate_id g, time_fs t, time_fs& due) {
   }
   due = m.due;
   return present;
+}
+
+std::size_t simulator::final_resolutions() const {
+  std::size_t final = resolutions_.size();
+  for (const meta_element& e : n_.meta) {
+    if (n_.kind[e.gates[0]] != gate_kind::syncff) continue;
+    const meta_gate& m = meta_gate_[e.gates[0]];
+    const time_fs half = meta_window_[n_.meta_at[e.gates[0]]] / 2;
+    if (m.revisable && m.logged && now_ - m.edge <= half)
+      final = std::min<std::size_t>(final, m.logged - 1);
+  }
+  return final;
+}
+
+void simulator::drop_resolutions(std::size_t k) {
+  resolutions_.erase(resolutions_.begin(), resolutions_.begin() + static_cast<std::ptrdiff_t>(k));
+  for (const meta_element& e : n_.meta) {
+    if (n_.kind[e.gates[0]] != gate_kind::syncff) continue;
+    meta_gate& m = meta_gate_[e.gates[0]];
+    m.logged = m.logged > k ? m.logged - static_cast<std::uint32_t>(k) : 0;
+  }
 }
 
 }  // namespace settle

@@ -83,6 +83,12 @@ class simulator {
   /// The resolutions of metastable elements since reset(), in the order they
   /// were decided (a mutex's when its grant rose).
   const std::vector<resolution>& resolutions() const { return resolutions_; }
+  /// How many of resolutions() are final: a synchronizing flip-flop's entry
+  /// may still be revised by a D change within half its window after the edge.
+  std::size_t final_resolutions() const;
+  /// Forgets the first k resolutions (k <= final_resolutions()), so that a
+  /// long run can count them as it goes and keep memory flat.
+  void drop_resolutions(std::size_t k);
 
  private:
   static constexpr logic none = static_cast<logic>(3);
